@@ -1,0 +1,59 @@
+package net.zbin.app;
+
+import java.io.PrintWriter;
+import net.zbin.io.ConfigException;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+
+/** The {@code zbin} command line. Exit codes: 0 ok, 1 runtime failure, 2 bad usage, config or input. */
+@Command(name = "zbin", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
+        description = "Sorting controller for passive-component lines: measures each part through an impedance meter,"
+                + " grades it by recipe and tells the handler which bin it goes in.",
+        subcommands = {CalcCommand.class, CheckCommand.class, ReplayCommand.class, CommandLine.HelpCommand.class})
+public final class Main implements Runnable {
+    public static final int EXIT_OK = 0;
+    public static final int EXIT_RUNTIME = 1;
+    public static final int EXIT_USAGE = 2;
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Override
+    public void run() {
+        throw new CommandLine.ParameterException(spec.commandLine(), "name a command (see zbin --help)");
+    }
+
+    public static void main(String[] args) {
+        System.exit(execute(args, new PrintWriter(System.out, true), new PrintWriter(System.err, true)));
+    }
+
+    /** Runs one command line; used by tests too, so nothing here may call System.exit. */
+    public static int execute(String[] args, PrintWriter out, PrintWriter err) {
+        CommandLine cl = new CommandLine(new Main());
+        cl.setOut(out);
+        cl.setErr(err);
+        cl.setExitCodeExceptionMapper(t -> t instanceof ConfigException || t instanceof UsageException ? EXIT_USAGE : EXIT_RUNTIME);
+        cl.setExecutionExceptionHandler((ex, line, parse) -> {
+            if (ex instanceof ConfigException || ex instanceof UsageException) {
+                err.println("zbin: " + ex.getMessage());
+                return EXIT_USAGE;
+            }
+            err.println("zbin: " + ex);
+            if (System.getenv("ZBIN_DEBUG") != null) ex.printStackTrace(err);
+            return EXIT_RUNTIME;
+        });
+        int rc = cl.execute(args);
+        out.flush();
+        err.flush();
+        return rc;
+    }
+
+    /** Version from the jar manifest, or "dev" when run from classes. */
+    static final class Version implements CommandLine.IVersionProvider {
+        @Override
+        public String[] getVersion() {
+            String v = Main.class.getPackage().getImplementationVersion();
+            return new String[] {"zbin " + (v == null ? "dev" : v)};
+        }
+    }
+}

@@ -1,0 +1,10 @@
+package net.zbin.core;
+
+import java.util.Locale;
+
+/** Series or parallel equivalent circuit. */
+public enum EquivalentModel {
+    SERIES, PARALLEL;
+
+    public String key() { return name().toLowerCase(Locale.ROOT); }
+}

@@ -1,0 +1,40 @@
+package net.zbin.core;
+
+/**
+ * Loss and phase limits a part must meet before its value is graded. Null means no limit.
+ *
+ * @param dMax        highest dissipation factor D accepted
+ * @param qMin        lowest quality factor Q accepted
+ * @param esrMaxOhm   highest ESR in ohms accepted
+ * @param thetaMinDeg lowest phase angle in degrees accepted
+ * @param thetaMaxDeg highest phase angle in degrees accepted
+ */
+public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinDeg, Double thetaMaxDeg) {
+    public static final Gates NONE = new Gates(null, null, null, null, null);
+
+    public Gates {
+        if (dMax != null && !(dMax > 0)) throw new SpecException("gates.d_max", "must be > 0 (was " + dMax + ")");
+        if (qMin != null && !(qMin > 0)) throw new SpecException("gates.q_min", "must be > 0 (was " + qMin + ")");
+        if (esrMaxOhm != null && !(esrMaxOhm > 0)) throw new SpecException("gates.esr_max_ohm", "must be > 0 (was " + esrMaxOhm + ")");
+        if (thetaMinDeg != null && (thetaMinDeg < -90 || thetaMinDeg > 90))
+            throw new SpecException("gates.theta_min_deg", "must be within -90..90 (was " + thetaMinDeg + ")");
+        if (thetaMaxDeg != null && (thetaMaxDeg < -90 || thetaMaxDeg > 90))
+            throw new SpecException("gates.theta_max_deg", "must be within -90..90 (was " + thetaMaxDeg + ")");
+        if (thetaMinDeg != null && thetaMaxDeg != null && thetaMinDeg >= thetaMaxDeg)
+            throw new SpecException("gates.theta_min_deg", "must be below theta_max_deg (" + thetaMinDeg + " >= " + thetaMaxDeg + ")");
+        if (dMax != null && qMin != null && qMin > 1 / dMax)
+            throw new SpecException("gates.q_min", "q_min " + qMin + " with d_max " + dMax
+                    + " passes nothing (Q = 1/D, so q_min must be <= " + 1 / dMax + ")");
+    }
+
+    /** The reason code of the first gate the reading fails, or null when it passes all. */
+    public String firstFailure(Impedance z) {
+        if (dMax != null && !(z.d() <= dMax)) return "d-high";
+        if (qMin != null && !(z.q() >= qMin)) return "q-low";
+        if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return "esr-high";
+        double t = z.thetaDeg();
+        if (thetaMinDeg != null && t < thetaMinDeg) return "theta-out";
+        if (thetaMaxDeg != null && t > thetaMaxDeg) return "theta-out";
+        return null;
+    }
+}

@@ -1,0 +1,129 @@
+package net.zbin.core;
+
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+
+/**
+ * A validated recipe: the test conditions and the bin plan for one part number. Every check that
+ * relates fields to each other lives here, with the key path as written in a recipe file.
+ *
+ * @param name        recipe id, as named on the command topic and in records
+ * @param partType    capacitor, inductor or resistor
+ * @param nominal     nominal value in F, H or Ω
+ * @param test        meter conditions
+ * @param model       equivalent-model policy
+ * @param primary     graded parameter, or null to follow the chosen model
+ * @param mode        nested or sequential grades
+ * @param grades      value grades in file order
+ * @param guard       guard band on acceptance limits
+ * @param gates       D/Q/ESR/θ limits
+ * @param reject      bins for parts without a value grade
+ * @param retest      retest count and bin
+ * @param contact     open/short detection
+ * @param compensationRequired true: without matching compensation nothing is graded
+ */
+public record Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model,
+                     PrimaryParam primary, GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates,
+                     RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
+    public Recipe {
+        if (name == null || !name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
+            throw new SpecException("recipe", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + name + "')");
+        if (partType == null) throw new SpecException("part", "is required (capacitor, inductor or resistor)");
+        if (!(nominal > 0) || !Double.isFinite(nominal))
+            throw new SpecException("nominal", "must be > 0 (was " + nominal + ")");
+        if (test == null) throw new SpecException("test", "is required");
+        if (grades == null || grades.isEmpty()) throw new SpecException("grades", "at least one grade is required");
+        grades = List.copyOf(grades);
+        if (model == null) model = ModelPolicy.DEFAULT;
+        if (mode == null) mode = GradingMode.NESTED;
+        if (guard == null) guard = GuardBand.NONE;
+        if (gates == null) gates = Gates.NONE;
+        if (contact == null) contact = ContactCheck.DEFAULT;
+        if (reject == null) throw new SpecException("reject", "is required (bins for low, high, gate, contact, short, overload, fault)");
+        if (retest == null) throw new SpecException("retest", "is required (count and bin)");
+        checkPrimary(partType, primary, model);
+        checkGrades(grades, mode, guard);
+        checkBins(grades, reject, retest);
+    }
+
+    private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model) {
+        if (p == null) return;
+        boolean fits = switch (type) {
+            case CAPACITOR -> p == PrimaryParam.CS || p == PrimaryParam.CP;
+            case INDUCTOR -> p == PrimaryParam.LS || p == PrimaryParam.LP;
+            case RESISTOR -> p == PrimaryParam.RS || p == PrimaryParam.RP || p == PrimaryParam.Z;
+        };
+        if (!fits) throw new SpecException("primary", p.label() + " is not a parameter of a " + type.key());
+        if (p.model() != null && model.mode() != ModelPolicy.Mode.AUTO
+                && !p.model().key().equals(model.mode().name().toLowerCase(java.util.Locale.ROOT)))
+            throw new SpecException("primary", p.label() + " is a " + p.model().key() + " parameter but model.mode is "
+                    + model.mode().name().toLowerCase(java.util.Locale.ROOT));
+    }
+
+    private static void checkGrades(List<Grade> grades, GradingMode mode, GuardBand guard) {
+        Set<String> names = new HashSet<>();
+        for (int i = 0; i < grades.size(); i++) {
+            Grade g = grades.get(i);
+            String k = "grades[" + i + "]";
+            if (g.name() == null || g.name().isBlank()) throw new SpecException(k + ".name", "is required");
+            if (!names.add(g.name())) throw new SpecException(k + ".name", "grade name '" + g.name() + "' is used twice");
+            if (!Double.isFinite(g.lowPct()) || !Double.isFinite(g.highPct()))
+                throw new SpecException(k, "limits must be finite");
+            if (g.lowPct() >= g.highPct())
+                throw new SpecException(k, "low limit must be below high limit (low " + g.lowPct() + " % >= high " + g.highPct() + " %)");
+            if (g.lowPct() <= -100)
+                throw new SpecException(k, "low limit must be above -100 % (was " + g.lowPct() + " %)");
+            if (g.bin() < 0 || g.bin() > 999) throw new SpecException(k + ".bin", "bin must be 0..999 (was " + g.bin() + ")");
+        }
+        if (mode == GradingMode.NESTED) {
+            for (int i = 1; i < grades.size(); i++) {
+                Grade prev = grades.get(i - 1), g = grades.get(i);
+                if (g.lowPct() > prev.lowPct() || g.highPct() < prev.highPct()
+                        || (g.lowPct() == prev.lowPct() && g.highPct() == prev.highPct()))
+                    throw new SpecException("grades[" + i + "]", "nested grades must widen, tightest first: '" + g.name()
+                            + "' [" + g.lowPct() + ", " + g.highPct() + "] % does not contain '" + prev.name()
+                            + "' [" + prev.lowPct() + ", " + prev.highPct() + "] %");
+            }
+            Grade tight = grades.get(0);
+            if (guard.widthPct() >= tight.halfWidthPct())
+                throw new SpecException(guard.key(), "guard band " + guard.widthPct() + " % leaves grade '" + tight.name()
+                        + "' no acceptance (half-width " + tight.halfWidthPct() + " %)");
+        } else {
+            for (int i = 1; i < grades.size(); i++) {
+                Grade prev = grades.get(i - 1), g = grades.get(i);
+                if (g.lowPct() < prev.highPct())
+                    throw new SpecException("grades[" + i + "]", "sequential grades overlap or are not ascending: '" + g.name()
+                            + "' starts at " + g.lowPct() + " % but '" + prev.name() + "' ends at " + prev.highPct() + " %");
+                if (g.lowPct() > prev.highPct())
+                    throw new SpecException("grades[" + i + "]", "sequential grades must be contiguous: gap between '" + prev.name()
+                            + "' (ends " + prev.highPct() + " %) and '" + g.name() + "' (starts " + g.lowPct() + " %)");
+            }
+            Grade first = grades.get(0), last = grades.get(grades.size() - 1);
+            if (guard.widthPct() >= first.halfWidthPct() || guard.widthPct() >= last.halfWidthPct())
+                throw new SpecException(guard.key(), "guard band " + guard.widthPct() + " % is as wide as half an outer grade");
+        }
+    }
+
+    private static void checkBins(List<Grade> grades, RejectBins reject, RetestPolicy retest) {
+        Map<Integer, String> passBins = new HashMap<>();
+        for (int i = 0; i < grades.size(); i++) passBins.putIfAbsent(grades.get(i).bin(), "grades[" + i + "]");
+        int[] rb = reject.all();
+        for (int i = 0; i < rb.length; i++) {
+            String owner = passBins.get(rb[i]);
+            if (owner != null)
+                throw new SpecException(RejectBins.KEYS[i], "bin " + rb[i] + " is also the pass bin of " + owner
+                        + " (one bin cannot mean both pass and reject)");
+            if (rb[i] == retest.bin())
+                throw new SpecException(RejectBins.KEYS[i], "bin " + rb[i] + " is also retest.bin (one bin cannot mean both reject and retest)");
+        }
+        String owner = passBins.get(retest.bin());
+        if (owner != null)
+            throw new SpecException("retest.bin", "bin " + retest.bin() + " is also the pass bin of " + owner);
+    }
+
+    /** Frequency the recipe measures at, in Hz. */
+    public double freqHz() { return test.freqHz(); }
+}

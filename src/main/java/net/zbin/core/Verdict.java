@@ -1,0 +1,10 @@
+package net.zbin.core;
+
+import java.util.Locale;
+
+/** What the handler does with the part: keep it in a value bin, reject it, or present it again. */
+public enum Verdict {
+    PASS, FAIL, RETEST;
+
+    public String key() { return name().toLowerCase(Locale.ROOT); }
+}

@@ -1,0 +1,140 @@
+package net.zbin.io;
+
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import net.zbin.core.ContactCheck;
+import net.zbin.core.Gates;
+import net.zbin.core.Grade;
+import net.zbin.core.GradingMode;
+import net.zbin.core.GuardBand;
+import net.zbin.core.MarkingCode;
+import net.zbin.core.ModelPolicy;
+import net.zbin.core.PartType;
+import net.zbin.core.PrimaryParam;
+import net.zbin.core.Recipe;
+import net.zbin.core.RejectBins;
+import net.zbin.core.RetestPolicy;
+import net.zbin.core.TestConditions;
+import net.zbin.core.ToleranceCode;
+
+/** Loads a recipe YAML file into a validated {@link Recipe}; every refusal names file and key. */
+public final class RecipeLoader {
+    private RecipeLoader() {}
+
+    public static Recipe load(Path file) throws ConfigException {
+        return parse(Yaml.read(file));
+    }
+
+    static Recipe parse(SpecNode n) throws ConfigException {
+        String name = n.text("recipe");
+        n.optText("description", "");
+        PartType type = n.build("part", () -> PartType.parse(n.text("part")));
+        double nominal = value(n, "nominal", type);
+
+        SpecNode t = n.child("test");
+        TestConditions test = n.build(null, () -> new TestConditions(t.number("freq"), t.optNumber("level_v", 1.0),
+                t.optText("speed", "medium"), t.optInteger("averaging", 1)));
+        t.finish();
+
+        SpecNode m = n.child("model");
+        ModelPolicy model = m.build(null, () -> new ModelPolicy(ModelPolicy.Mode.parse(m.optText("mode", "auto")),
+                m.optNumber("series_below_ohm", 100), m.optNumber("parallel_above_ohm", 10_000)));
+        m.finish();
+
+        PrimaryParam primary = n.has("primary") ? n.build("primary", () -> PrimaryParam.parse(n.optText("primary", ""))) : null;
+        if (!n.has("primary")) n.optText("primary", null);
+        String gm = n.optText("grading", "nested");
+        GradingMode mode = switch (gm) {
+            case "nested" -> GradingMode.NESTED;
+            case "sequential" -> GradingMode.SEQUENTIAL;
+            default -> throw n.error("grading", "must be nested or sequential (was '" + gm + "')");
+        };
+        if (!n.has("grades")) throw n.error("grades", "is required: a list of grades with name, bin and limits");
+        List<Grade> grades = n.list("grades", g -> grade(g, type, nominal));
+
+        SpecNode gb = n.child("guard_band");
+        if (gb.has("pct") && gb.has("uncertainty_pct")) throw gb.error("pct", "give pct or uncertainty_pct, not both");
+        boolean fromU = gb.has("uncertainty_pct");
+        double width = fromU ? gb.optNumber("uncertainty_pct", 0) : gb.optNumber("pct", 0);
+        gb.finish();
+        GuardBand guard = n.build(null, () -> new GuardBand(width, fromU));
+
+        SpecNode ga = n.child("gates");
+        Double dMax = ga.optNumberOrNull("d_max"), qMin = ga.optNumberOrNull("q_min"), esr = ga.optNumberOrNull("esr_max_ohm"),
+                tMin = ga.optNumberOrNull("theta_min_deg"), tMax = ga.optNumberOrNull("theta_max_deg");
+        ga.finish();
+        Gates gates = n.build(null, () -> new Gates(dMax, qMin, esr, tMin, tMax));
+
+        if (!n.has("reject")) throw n.error("reject", "is required: bins for low, high, gate, contact, short, overload, fault");
+        SpecNode r = n.child("reject");
+        int low = r.integer("low"), high = r.integer("high"), gate = r.integer("gate"), contact = r.integer("contact"),
+                shortBin = r.integer("short"), overload = r.integer("overload"), fault = r.integer("fault");
+        r.finish();
+        RejectBins reject = n.build(null, () -> new RejectBins(low, high, gate, contact, shortBin, overload, fault));
+
+        if (!n.has("retest")) throw n.error("retest", "is required: count and bin");
+        SpecNode rt = n.child("retest");
+        int count = rt.integer("count"), rbin = rt.integer("bin");
+        rt.finish();
+        RetestPolicy retest = n.build(null, () -> new RetestPolicy(count, rbin));
+
+        SpecNode c = n.child("contact");
+        double of = c.optNumber("open_factor", ContactCheck.DEFAULT.openFactor());
+        double sf = c.optNumber("short_factor", ContactCheck.DEFAULT.shortFactor());
+        c.finish();
+        ContactCheck check = n.build(null, () -> new ContactCheck(of, sf));
+
+        SpecNode cp = n.child("compensation");
+        boolean required = cp.optBool("required", false);
+        cp.finish();
+        n.finish();
+        return n.build(null, () -> new Recipe(name, type, nominal, test, model, primary, mode, grades, guard,
+                gates, reject, retest, check, required));
+    }
+
+    private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {
+        String name = g.text("name");
+        int bin = g.integer("bin");
+        List<String> forms = new ArrayList<>();
+        for (String k : new String[] {"tolerance", "pct", "low_pct", "low"}) if (g.has(k)) forms.add(k);
+        if (g.has("high_pct") && !g.has("low_pct")) throw g.error("low_pct", "is required with high_pct");
+        if (g.has("high") && !g.has("low")) throw g.error("low", "is required with high");
+        if (forms.isEmpty()) throw g.error("tolerance", "give the limits: tolerance (IEC 60062 letter), pct, low_pct/high_pct or low/high");
+        if (forms.size() > 1) throw g.error(forms.get(1), "give the limits one way only (found " + String.join(" and ", forms) + ")");
+        double lo, hi;
+        switch (forms.get(0)) {
+            case "tolerance" -> {
+                ToleranceCode code = g.build("tolerance", () -> ToleranceCode.parse(g.optText("tolerance", "")));
+                double[] l = code.limitsPct(type, nominal);
+                lo = l[0];
+                hi = l[1];
+            }
+            case "pct" -> {
+                double p = g.optNumber("pct", 0);
+                if (!(p > 0)) throw g.error("pct", "must be > 0 (was " + p + ")");
+                lo = -p;
+                hi = p;
+            }
+            case "low_pct" -> {
+                lo = g.optNumber("low_pct", 0);
+                hi = g.number("high_pct");
+            }
+            default -> {
+                double a = value(g, "low", type), b = value(g, "high", type);
+                lo = (a - nominal) / nominal * 100;
+                hi = (b - nominal) / nominal * 100;
+            }
+        }
+        g.finish();
+        return new Grade(name, bin, lo, hi);
+    }
+
+    /** A value in F/H/Ω: SI form or, for capacitors and resistors, a marking code. */
+    private static double value(SpecNode n, String k, PartType type) throws ConfigException {
+        String text = n.text(k);
+        double v = n.build(k, () -> MarkingCode.parseValue(text, type));
+        if (!(v > 0)) throw n.error(k, "must be > 0 (was " + text + ")");
+        return v;
+    }
+}

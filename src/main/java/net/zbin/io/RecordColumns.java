@@ -1,0 +1,18 @@
+package net.zbin.io;
+
+import java.util.List;
+
+/**
+ * Record-log columns (contract, DESIGN §5.2). New columns are only ever appended at the end:
+ * {@code attempt} (0 first presentation, n the n-th retest) lets a replay reproduce retest bins.
+ */
+public final class RecordColumns {
+    private RecordColumns() {}
+
+    public static final List<String> ALL = List.of("time", "line", "lot", "seq", "part", "kind", "recipe", "freq_hz",
+            "r_ohm", "x_ohm", "raw_r_ohm", "raw_x_ohm", "model", "param", "value", "dev_pct", "d", "q", "esr_ohm",
+            "theta_deg", "bin", "grade", "verdict", "reason", "latency_ms", "comp", "attempt");
+
+    /** The columns a replay input must have, by name. */
+    public static final List<String> REPLAY_REQUIRED = List.of("freq_hz", "r_ohm", "x_ohm");
+}
