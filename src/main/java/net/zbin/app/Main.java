@@ -32,7 +32,7 @@ public final class Main implements Runnable {
         CommandLine cl = new CommandLine(new Main());
         cl.setOut(out);
         cl.setErr(err);
-        cl.setExitCodeExceptionMapper(t -> t instanceof ConfigException || t instanceof UsageException ? EXIT_USAGE : EXIT_RUNTIME);
+        cl.setUsageHelpWidth(100);
         cl.setExecutionExceptionHandler((ex, line, parse) -> {
             if (ex instanceof ConfigException || ex instanceof UsageException) {
                 err.println("zbin: " + ex.getMessage());

@@ -6,8 +6,10 @@ import java.util.Optional;
 /**
  * Fixture compensation for one test frequency.
  *
- * <p>Open/short: Zdut = (Zm − Zs) / (1 − (Zm − Zs)·Yo), equivalent to Zo(Zm − Zs)/(Zo − Zm) but
- * defined when only one of the two is known (Yo = 0 or Zs = 0). Open/short/load additionally
+ * <p>Open/short: Zdut = (Zm − Zs) / (1 − (Zm − Zs)·Yo) with Yo = 1/(Zo − Zs), which is exact for a
+ * series residual in front of a shunt stray, i.e. (Zo − Zs)(Zm − Zs)/(Zo − Zm); the textbook
+ * Zo(Zm − Zs)/(Zo − Zm) is its limit for Zs ≪ Zo. It stays defined when only one of the two is
+ * known (Yo = 0 or Zs = 0). Open/short/load additionally
  * scales by a reference part of known impedance: Zdut = Zstd(Zo − Zsm)(Zm − Zs)/((Zsm − Zs)(Zo − Zm)).
  *
  * @param freqHz   the frequency the data were taken at; applying it at another frequency is refused
@@ -79,7 +81,7 @@ public record Compensation(double freqHz, CompensationSource source, Instant tak
         Cplx zs = shortZ == null ? Cplx.ZERO : c(shortZ);
         Cplx result;
         if (load == null) {
-            Cplx yo = open == null ? Cplx.ZERO : c(open).reciprocal();
+            Cplx yo = open == null ? Cplx.ZERO : c(open).sub(zs).reciprocal();
             Cplx num = zm.sub(zs);
             result = num.div(Cplx.ONE.sub(num.mul(yo)));
         } else {

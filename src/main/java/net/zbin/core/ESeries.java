@@ -9,8 +9,11 @@ import java.util.Arrays;
 public enum ESeries {
     E3(3), E6(6), E12(12), E24(24), E48(48), E96(96), E192(192);
 
-    private static final double[] E24_VALUES = {1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
-        3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1};
+    /** Holder: enum constants are built before the enum's own static fields. */
+    private static final class Historical {
+        static final double[] E24 = {1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
+            3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1};
+    }
 
     private final int n;
     private final double[] mantissas;
@@ -24,7 +27,7 @@ public enum ESeries {
         double[] m = new double[n];
         if (n <= 24) {
             int step = 24 / n;
-            for (int i = 0; i < n; i++) m[i] = E24_VALUES[i * step];
+            for (int i = 0; i < n; i++) m[i] = Historical.E24[i * step];
             return m;
         }
         for (int i = 0; i < n; i++) m[i] = Math.round(Math.pow(10, (double) i / n) * 100) / 100.0;

@@ -1,0 +1,89 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.Map;
+import java.util.TreeMap;
+import org.apache.commons.csv.CSVFormat;
+import org.apache.commons.csv.CSVRecord;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+class ReplayCommandTest {
+    static final String RECIPE = "config/recipes/mlcc-x7r-100n.yaml";
+    static final ObjectMapper M = new ObjectMapper();
+
+    @TempDir
+    Path dir;
+
+    static Map<Integer, Long> countsOf(JsonNode summary) {
+        Map<Integer, Long> m = new TreeMap<>();
+        for (JsonNode b : summary.get("bins")) m.merge(b.get("bin").asInt(), b.get("count").asLong(), Long::sum);
+        return m;
+    }
+
+    @Test
+    void exampleLot_countsMatchAnIndependentGrading() throws Exception {
+        Path lot = Path.of("examples/lot-mlcc-100n.csv");
+        Map<Integer, Long> expected = new TreeMap<>();
+        try (var p = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(lot))) {
+            for (CSVRecord r : p) expected.merge(IndependentMlccGrader.bin(Double.parseDouble(r.get("r_ohm")),
+                    Double.parseDouble(r.get("x_ohm"))), 1L, Long::sum);
+        }
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", lot.toString(), "--json");
+        assertEquals(0, c.exit(), c.err());
+        JsonNode s = M.readTree(c.out());
+        assertEquals(2000, s.get("total").asLong());
+        assertEquals(expected, countsOf(s));
+        long pass = expected.getOrDefault(1, 0L) + expected.getOrDefault(2, 0L) + expected.getOrDefault(3, 0L);
+        assertEquals(100.0 * pass / 2000, s.get("yield_pct").asDouble(), 1e-9);
+        assertTrue(s.get("reasons").has("in-grade"));
+    }
+
+    @Test
+    void badRows_areReportedByLineNumberAndSkipped_tornLastLineToo() throws Exception {
+        Path f = dir.resolve("lot.csv");
+        Files.writeString(f, String.join("\n", List.of(
+                "freq_hz,r_ohm,x_ohm,extra",
+                "1000,16,-1591.5,a",
+                "1000,sixteen,-1591.5,b",
+                "1000,16,-1591.5",
+                "-1000,16,-1591.5,c",
+                "1000,16,-1591.5,d",
+                "1000,16,-15")));  // torn: no newline at the end
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", f.toString(), "--json");
+        assertEquals(0, c.exit(), c.err());
+        assertEquals(2, M.readTree(c.out()).get("total").asLong());
+        assertTrue(c.err().contains("line 3: r_ohm is not a number"), c.err());
+        assertTrue(c.err().contains("line 4: has 3 fields"), c.err());
+        assertTrue(c.err().contains("line 5: freq_hz must be > 0"), c.err());
+        assertTrue(c.err().contains("line 7: torn last line"), c.err());
+        Cli strict = Cli.run("replay", "--recipe", RECIPE, "--in", f.toString(), "--strict");
+        assertEquals(2, strict.exit());
+        assertTrue(strict.err().contains("line 3"), strict.err());
+    }
+
+    @Test
+    void inputWithoutRequiredColumns_exits2NamingTheColumn() throws Exception {
+        Path f = dir.resolve("bad.csv");
+        Files.writeString(f, "freq,r,x\n1000,1,2\n");
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", f.toString());
+        assertEquals(2, c.exit());
+        assertTrue(c.err().contains("freq_hz"), c.err());
+        assertEquals(2, Cli.run("replay", "--recipe", RECIPE, "--in", dir.resolve("none.csv").toString()).exit());
+    }
+
+    @Test
+    void textSummary_listsBinsAndReasons() {
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", "examples/lot-mlcc-100n.csv");
+        assertEquals(0, c.exit(), c.err());
+        assertTrue(c.out().contains("2000 parts graded"), c.out());
+        assertTrue(c.out().contains("in-grade"), c.out());
+    }
+}
