@@ -1,0 +1,125 @@
+package net.zbin.io.meter;
+
+import java.io.ByteArrayOutputStream;
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import net.zbin.core.FaultKind;
+
+/**
+ * Terminator-framed text over a {@link Transport}: send a line, read one reply line within a
+ * deadline. After a timeout the link may still deliver the late reply; the next exchange first
+ * drains it so a reply is never matched to the wrong query.
+ */
+final class LineChannel {
+    private static final int MAX_LINE = 4096;
+
+    private final Transport transport;
+    private final byte[] terminator;
+    private final byte[] buf = new byte[1024];
+    private final ByteArrayOutputStream pending = new ByteArrayOutputStream();
+    private boolean dirty;
+
+    LineChannel(Transport transport, String terminator) {
+        this.transport = transport;
+        this.terminator = terminator.getBytes(StandardCharsets.US_ASCII);
+    }
+
+    Transport transport() { return transport; }
+
+    /** Sends a command that has no reply. */
+    void send(String command) throws MeterException {
+        if (dirty) drain(command);
+        try {
+            transport.write((command + new String(terminator, StandardCharsets.US_ASCII)).getBytes(StandardCharsets.US_ASCII));
+        } catch (IOException e) {
+            transport.close();
+            throw new MeterException(FaultKind.DISCONNECTED, command, null, "write failed on " + transport.describe() + ": " + e.getMessage(), e);
+        }
+    }
+
+    /** Sends a query and returns its reply line without the terminator. */
+    String query(String command, int timeoutMs) throws MeterException {
+        send(command);
+        return readLine(command, timeoutMs);
+    }
+
+    private String readLine(String sent, int timeoutMs) throws MeterException {
+        long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
+        while (true) {
+            String line = takeLine();
+            if (line != null) return line;
+            if (pending.size() > MAX_LINE) {
+                String got = pending.toString(StandardCharsets.ISO_8859_1);
+                pending.reset();
+                dirty = true;
+                throw new MeterException(FaultKind.GARBLED, sent, got, "reply longer than " + MAX_LINE + " bytes without terminator");
+            }
+            long left = (deadline - System.nanoTime()) / 1_000_000L;
+            if (left <= 0) {
+                String got = pending.size() == 0 ? null : pending.toString(StandardCharsets.ISO_8859_1);
+                pending.reset();
+                dirty = true;
+                throw new MeterException(FaultKind.TIMEOUT, sent, got, "no reply within " + timeoutMs + " ms on " + transport.describe());
+            }
+            int n;
+            try {
+                n = transport.read(buf, (int) Math.min(left, Integer.MAX_VALUE));
+            } catch (IOException e) {
+                transport.close();
+                throw new MeterException(FaultKind.DISCONNECTED, sent, pending.toString(StandardCharsets.ISO_8859_1),
+                        "read failed on " + transport.describe() + ": " + e.getMessage(), e);
+            }
+            if (n < 0) {
+                String got = pending.size() == 0 ? null : pending.toString(StandardCharsets.ISO_8859_1);
+                pending.reset();
+                transport.close();
+                throw new MeterException(FaultKind.DISCONNECTED, sent, got, "the meter closed the link (" + transport.describe() + ")");
+            }
+            pending.write(buf, 0, n);
+        }
+    }
+
+    private String takeLine() {
+        byte[] data = pending.toByteArray();
+        int at = indexOf(data, terminator);
+        if (at < 0) return null;
+        String line = new String(data, 0, at, StandardCharsets.ISO_8859_1);
+        pending.reset();
+        pending.write(data, at + terminator.length, data.length - at - terminator.length);
+        return line;
+    }
+
+    private static int indexOf(byte[] data, byte[] pat) {
+        outer:
+        for (int i = 0; i <= data.length - pat.length; i++) {
+            for (int j = 0; j < pat.length; j++) if (data[i + j] != pat[j]) continue outer;
+            return i;
+        }
+        return -1;
+    }
+
+    /** Discards a late reply or garbage left by a failed exchange. */
+    private void drain(String sent) throws MeterException {
+        pending.reset();
+        try {
+            long end = System.nanoTime() + 20_000_000L;
+            while (System.nanoTime() < end) {
+                int n = transport.read(buf, 2);
+                if (n < 0) {
+                    transport.close();
+                    throw new MeterException(FaultKind.DISCONNECTED, sent, null, "the meter closed the link (" + transport.describe() + ")");
+                }
+                if (n == 0) break;
+            }
+        } catch (IOException e) {
+            transport.close();
+            throw new MeterException(FaultKind.DISCONNECTED, sent, null, "read failed on " + transport.describe() + ": " + e.getMessage(), e);
+        }
+        dirty = false;
+    }
+
+    void reset() {
+        pending.reset();
+        dirty = false;
+    }
+}

@@ -1,0 +1,105 @@
+package net.zbin.io.meter;
+
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
+
+/**
+ * Everything zbin needs to talk to one meter model, read from a profile file: no code per meter.
+ *
+ * @param name             profile id
+ * @param terminator       line terminator for both directions ("\n", "\r\n", …)
+ * @param identifyQuery    identification query, e.g. "*IDN?"
+ * @param identifyExpect   regex the identification must match (null: anything)
+ * @param setup            commands sent when test conditions change; placeholders {freq_hz}, {level_v}, {speed}, {averaging}
+ * @param speedNames       the meter's words for fast, medium, slow
+ * @param syncQuery        query sent after setup to wait until it is applied (null: none)
+ * @param syncExpect       regex the sync reply must match
+ * @param measureQuery     query that triggers and returns one reading
+ * @param measureTimeoutMs how long a reading may take
+ * @param separator        field separator in the reply (a literal string)
+ * @param fields           meaning of each reply field, in order
+ * @param statusOk         the OK value of the status field (null when there is none)
+ * @param statusOverload   status values that mean overload
+ * @param errorQuery       query that reads the meter's error queue (null: none)
+ * @param errorNone        regex of the "no error" reply
+ * @param commandTimeoutMs timeout of every other query
+ * @param transport        default link (a line config may override it)
+ * @param reconnectInitialMs first reconnect delay
+ * @param reconnectMaxMs   largest reconnect delay (doubling from the first)
+ */
+public record MeterProfile(String name, String terminator, String identifyQuery, Pattern identifyExpect, List<String> setup,
+                           Map<String, String> speedNames, String syncQuery, Pattern syncExpect, String measureQuery,
+                           int measureTimeoutMs, String separator, List<Field> fields, String statusOk,
+                           Set<String> statusOverload, String errorQuery, Pattern errorNone, int commandTimeoutMs,
+                           TransportSpec transport, int reconnectInitialMs, int reconnectMaxMs) {
+
+    /** What one reply field means. */
+    public enum Field {
+        R_OHM("r_ohm"), X_OHM("x_ohm"), Z_OHM("z_ohm"), THETA_DEG("theta_deg"), THETA_RAD("theta_rad"),
+        STATUS("status"), IGNORE("ignore");
+
+        private final String key;
+
+        Field(String key) { this.key = key; }
+
+        public String key() { return key; }
+
+        public static Field parse(String s) {
+            for (Field f : values()) if (f.key.equals(s)) return f;
+            throw new IllegalArgumentException("unknown field '" + s + "' (r_ohm, x_ohm, z_ohm, theta_deg, theta_rad, status, ignore)");
+        }
+    }
+
+    public static final Set<String> PLACEHOLDERS = Set.of("freq_hz", "level_v", "speed", "averaging");
+    private static final Pattern PLACEHOLDER = Pattern.compile("\\{([a-z_]*)}");
+
+    public MeterProfile {
+        if (terminator == null || terminator.isEmpty()) throw new IllegalArgumentException("terminator must not be empty");
+        if (measureQuery == null || measureQuery.isBlank()) throw new IllegalArgumentException("measure.query is required");
+        setup = List.copyOf(setup);
+        fields = List.copyOf(fields);
+        statusOverload = Set.copyOf(statusOverload);
+        speedNames = Map.copyOf(speedNames);
+        for (String s : setup) {
+            Matcher m = PLACEHOLDER.matcher(s);
+            while (m.find())
+                if (!PLACEHOLDERS.contains(m.group(1)))
+                    throw new IllegalArgumentException("setup command '" + s + "' has unknown placeholder {" + m.group(1) + "} (known: " + PLACEHOLDERS + ")");
+        }
+        boolean rx = fields.contains(Field.R_OHM) && fields.contains(Field.X_OHM);
+        boolean polar = fields.contains(Field.Z_OHM) && (fields.contains(Field.THETA_DEG) || fields.contains(Field.THETA_RAD));
+        if (rx == polar) throw new IllegalArgumentException("response.fields must hold r_ohm and x_ohm, or z_ohm with theta_deg or theta_rad");
+        if (fields.contains(Field.THETA_DEG) && fields.contains(Field.THETA_RAD))
+            throw new IllegalArgumentException("response.fields: give theta in degrees or radians, not both");
+        for (Field f : Field.values())
+            if (f != Field.IGNORE && fields.stream().filter(x -> x == f).count() > 1)
+                throw new IllegalArgumentException("response.fields names " + f.key() + " twice");
+        if (fields.contains(Field.STATUS) && statusOk == null)
+            throw new IllegalArgumentException("response.status_ok is required when fields include status");
+        if (measureTimeoutMs < 1 || commandTimeoutMs < 1) throw new IllegalArgumentException("timeouts must be >= 1 ms");
+        if (reconnectInitialMs < 1 || reconnectMaxMs < reconnectInitialMs)
+            throw new IllegalArgumentException("reconnect: initial_ms must be >= 1 and max_ms >= initial_ms");
+        if (syncQuery != null && syncExpect == null) throw new IllegalArgumentException("sync.expect is required with sync.query");
+    }
+
+    public MeterProfile withTransport(TransportSpec t) {
+        return new MeterProfile(name, terminator, identifyQuery, identifyExpect, setup, speedNames, syncQuery, syncExpect,
+                measureQuery, measureTimeoutMs, separator, fields, statusOk, statusOverload, errorQuery, errorNone,
+                commandTimeoutMs, t, reconnectInitialMs, reconnectMaxMs);
+    }
+
+    /** A setup template with the test conditions filled in. */
+    public String fill(String template, net.zbin.core.TestConditions c) {
+        return template.replace("{freq_hz}", num(c.freqHz())).replace("{level_v}", num(c.levelV()))
+                .replace("{speed}", speedNames.getOrDefault(c.speed(), c.speed()))
+                .replace("{averaging}", Integer.toString(c.averaging()));
+    }
+
+    private static String num(double v) {
+        if (v == Math.rint(v) && Math.abs(v) < 1e15) return Long.toString((long) v);
+        return Double.toString(v);
+    }
+}

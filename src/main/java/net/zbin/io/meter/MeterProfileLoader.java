@@ -1,0 +1,74 @@
+package net.zbin.io.meter;
+
+import java.nio.file.Path;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.regex.Pattern;
+import java.util.regex.PatternSyntaxException;
+import net.zbin.io.ConfigException;
+import net.zbin.io.SpecNode;
+import net.zbin.io.Yaml;
+
+/** Loads {@code config/meters/*.yaml} into a {@link MeterProfile}. */
+public final class MeterProfileLoader {
+    private MeterProfileLoader() {}
+
+    public static MeterProfile load(Path file) throws ConfigException {
+        SpecNode n = Yaml.read(file);
+        String name = n.text("meter");
+        n.optText("description", "");
+        String term = n.optText("terminator", "\n");
+        SpecNode id = n.child("identify");
+        String idQuery = id.optText("query", null);
+        Pattern idExpect = regex(id, "expect");
+        id.finish();
+        List<String> setup = n.values("setup", s -> s);
+        SpecNode sp = n.child("speeds");
+        Map<String, String> speeds = new HashMap<>();
+        for (String s : List.of("fast", "medium", "slow")) speeds.put(s, sp.optText(s, s));
+        sp.finish();
+        SpecNode sy = n.child("sync");
+        String syncQ = sy.optText("query", null);
+        Pattern syncE = regex(sy, "expect");
+        sy.finish();
+        if (!n.has("measure")) throw n.error("measure", "is required (query and timeout_ms)");
+        SpecNode me = n.child("measure");
+        String mq = me.text("query");
+        int mt = me.optInteger("timeout_ms", 2000);
+        me.finish();
+        if (!n.has("response")) throw n.error("response", "is required (separator and fields)");
+        SpecNode re = n.child("response");
+        String sep = re.optText("separator", ",");
+        List<MeterProfile.Field> fields = re.values("fields", MeterProfile.Field::parse);
+        String ok = re.optText("status_ok", null);
+        List<String> ovl = re.values("status_overload", s -> s);
+        re.finish();
+        SpecNode er = n.child("error");
+        String eq = er.optText("query", null);
+        Pattern none = regex(er, "none");
+        er.finish();
+        SpecNode to = n.child("timeouts");
+        int ct = to.optInteger("command_ms", 1000);
+        to.finish();
+        if (!n.has("transport")) throw n.error("transport", "is required (tcp: {host, port} or serial: {port, baud, ...})");
+        TransportSpec transport = TransportSpecs.parse(n.child("transport"));
+        SpecNode rc = n.child("reconnect");
+        int ri = rc.optInteger("initial_ms", 100), rm = rc.optInteger("max_ms", 5000);
+        rc.finish();
+        n.finish();
+        return n.build(null, () -> new MeterProfile(name, term, idQuery, idExpect, setup, speeds, syncQ, syncE, mq, mt, sep,
+                fields, ok, new HashSet<>(ovl), eq, none, ct, transport, ri, rm));
+    }
+
+    private static Pattern regex(SpecNode n, String key) throws ConfigException {
+        String s = n.optText(key, null);
+        if (s == null) return null;
+        try {
+            return Pattern.compile(s);
+        } catch (PatternSyntaxException e) {
+            throw n.error(key, "not a valid regular expression: " + e.getDescription());
+        }
+    }
+}

@@ -1,0 +1,21 @@
+package net.zbin.io.meter;
+
+import net.zbin.core.TestConditions;
+
+/** A conversation with one meter. Not thread-safe: one owner measures one part at a time. */
+public interface MeterSession extends AutoCloseable {
+    /** The meter's identification string. */
+    String identify() throws MeterException;
+
+    /** Sets the test conditions; sends nothing when they are already in force. */
+    void apply(TestConditions conditions) throws MeterException;
+
+    /** One reading at the conditions last applied. */
+    MeterReading measure() throws MeterException;
+
+    /** Reconnects performed so far (for monitoring and tests). */
+    long reconnects();
+
+    @Override
+    void close();
+}

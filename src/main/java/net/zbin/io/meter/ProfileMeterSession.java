@@ -1,0 +1,159 @@
+package net.zbin.io.meter;
+
+import java.io.IOException;
+import java.time.Clock;
+import java.util.List;
+import net.zbin.core.FaultKind;
+import net.zbin.core.MeterStatus;
+import net.zbin.core.Reading;
+import net.zbin.core.TestConditions;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * A {@link MeterSession} driven entirely by a {@link MeterProfile}. The link is opened lazily and
+ * reopened after a failure with doubling backoff (timed by the injected clock), and setup is sent
+ * again after every reconnect because the meter may have been power-cycled.
+ */
+public final class ProfileMeterSession implements MeterSession {
+    private static final Logger LOG = LoggerFactory.getLogger(ProfileMeterSession.class);
+
+    private final MeterProfile profile;
+    private final LineChannel channel;
+    private final Clock clock;
+    private TestConditions wanted;
+    private TestConditions applied;
+    private long backoffMs;
+    private long nextAttemptAt;
+    private long reconnects;
+    private boolean everOpened;
+
+    public ProfileMeterSession(MeterProfile profile, Transport transport, Clock clock) {
+        this.profile = profile;
+        this.channel = new LineChannel(transport, profile.terminator());
+        this.clock = clock;
+    }
+
+    public static ProfileMeterSession open(MeterProfile profile, Clock clock) {
+        return new ProfileMeterSession(profile, profile.transport().create(), clock);
+    }
+
+    private void ensureOpen(String forWhat) throws MeterException {
+        Transport t = channel.transport();
+        if (t.isOpen()) return;
+        long now = clock.millis();
+        if (now < nextAttemptAt)
+            throw new MeterException(FaultKind.DISCONNECTED, forWhat, null, "link to " + t.describe() + " is down; next attempt in "
+                    + (nextAttemptAt - now) + " ms");
+        try {
+            t.open();
+        } catch (IOException e) {
+            backoffMs = backoffMs == 0 ? profile.reconnectInitialMs() : Math.min(profile.reconnectMaxMs(), backoffMs * 2);
+            nextAttemptAt = now + backoffMs;
+            throw new MeterException(FaultKind.DISCONNECTED, forWhat, null, "cannot open " + t.describe() + ": " + e.getMessage(), e);
+        }
+        if (everOpened) {
+            reconnects++;
+            LOG.info("meter link {} reopened (reconnect {})", t.describe(), reconnects);
+        }
+        everOpened = true;
+        backoffMs = 0;
+        nextAttemptAt = 0;
+        applied = null;
+        channel.reset();
+    }
+
+    @Override
+    public String identify() throws MeterException {
+        if (profile.identifyQuery() == null) return profile.name();
+        ensureOpen(profile.identifyQuery());
+        String id = channel.query(profile.identifyQuery(), profile.commandTimeoutMs());
+        if (profile.identifyExpect() != null && !profile.identifyExpect().matcher(id).find())
+            throw new MeterException(FaultKind.GARBLED, profile.identifyQuery(), id,
+                    "identification does not match " + profile.identifyExpect().pattern() + " (wrong meter or profile?)");
+        return id;
+    }
+
+    @Override
+    public void apply(TestConditions c) throws MeterException {
+        wanted = c;
+        ensureOpen("setup");
+        if (c.equals(applied)) return;
+        for (String template : profile.setup()) channel.send(profile.fill(template, c));
+        if (profile.syncQuery() != null) {
+            String r = channel.query(profile.syncQuery(), profile.commandTimeoutMs());
+            if (!profile.syncExpect().matcher(r).find())
+                throw new MeterException(FaultKind.GARBLED, profile.syncQuery(), r, "setup not confirmed");
+        }
+        applied = c;
+    }
+
+    @Override
+    public MeterReading measure() throws MeterException {
+        if (wanted == null) throw new IllegalStateException("apply test conditions before measuring");
+        ensureOpen(profile.measureQuery());
+        if (!wanted.equals(applied)) apply(wanted);
+        long t0 = System.nanoTime();
+        String reply = channel.query(profile.measureQuery(), profile.measureTimeoutMs());
+        double ms = (System.nanoTime() - t0) / 1e6;
+        return new MeterReading(parse(reply), ms);
+    }
+
+    private Reading parse(String reply) throws MeterException {
+        String q = profile.measureQuery();
+        String[] parts = reply.trim().split(java.util.regex.Pattern.quote(profile.separator()), -1);
+        List<MeterProfile.Field> fields = profile.fields();
+        if (parts.length != fields.size())
+            throw new MeterException(FaultKind.GARBLED, q, reply, "expected " + fields.size() + " fields, got " + parts.length);
+        double r = Double.NaN, x = Double.NaN, z = Double.NaN, theta = Double.NaN;
+        boolean radians = false;
+        String status = null;
+        for (int i = 0; i < parts.length; i++) {
+            String p = parts[i].trim();
+            switch (fields.get(i)) {
+                case STATUS -> status = p;
+                case IGNORE -> { }
+                case R_OHM -> r = number(p, reply);
+                case X_OHM -> x = number(p, reply);
+                case Z_OHM -> z = number(p, reply);
+                case THETA_DEG -> theta = number(p, reply);
+                case THETA_RAD -> { theta = number(p, reply); radians = true; }
+            }
+        }
+        if (status != null && !status.equals(profile.statusOk())) {
+            if (profile.statusOverload().contains(status))
+                throw new MeterException(FaultKind.OVERLOAD, q, reply, "meter reports overload (status " + status + ")");
+            throw new MeterException(FaultKind.INSTRUMENT_ERROR, q, reply, "meter status " + status + errorQueue());
+        }
+        if (Double.isNaN(r)) {
+            double t = radians ? theta : Math.toRadians(theta);
+            r = z * Math.cos(t);
+            x = z * Math.sin(t);
+        }
+        return new Reading(wanted.freqHz(), r, x, MeterStatus.OK);
+    }
+
+    private String errorQueue() {
+        if (profile.errorQuery() == null) return "";
+        try {
+            String e = channel.query(profile.errorQuery(), profile.commandTimeoutMs());
+            return profile.errorNone() != null && profile.errorNone().matcher(e).find() ? "" : "; error queue: " + e;
+        } catch (MeterException e) {
+            return "; error queue unreadable (" + e.kind().reason() + ")";
+        }
+    }
+
+    private double number(String p, String reply) throws MeterException {
+        try {
+            return Double.parseDouble(p);
+        } catch (NumberFormatException e) {
+            throw new MeterException(FaultKind.GARBLED, profile.measureQuery(), reply, "field '" + p + "' is not a number");
+        }
+    }
+
+    @Override
+    public long reconnects() { return reconnects; }
+
+    @Override
+    public void close() { channel.transport().close(); }
+}

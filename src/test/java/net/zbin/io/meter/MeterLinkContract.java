@@ -1,0 +1,155 @@
+package net.zbin.io.meter;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Path;
+import java.time.Clock;
+import net.zbin.core.FaultKind;
+import net.zbin.core.TestConditions;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.Fixture;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.SimFault;
+import net.zbin.sim.SimMeter;
+import org.apache.commons.math3.complex.Complex;
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.BeforeEach;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** One contract for the meter link, run over every transport: the real pty and real TCP. */
+abstract class MeterLinkContract {
+    static final Fixture FIXTURE = new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0);
+    static final TestConditions COND = new TestConditions(1000, 1, "medium", 1);
+
+    @TempDir
+    Path dir;
+    SimMeter meter;
+    ProfileMeterSession session;
+
+    /** Starts the simulator's side of the link and returns the profile for zbin's side. */
+    abstract MeterProfile start(SimMeter meter, Path dir) throws Exception;
+
+    abstract void stop() throws Exception;
+
+    @BeforeEach
+    void up() throws Exception {
+        meter = new SimMeter(new Contacts(), FIXTURE, Clock.systemUTC(), 17, 0, SimMeter.RandomFaults.NONE);
+        MeterProfile p = start(meter, dir);
+        session = ProfileMeterSession.open(p, Clock.systemUTC());
+    }
+
+    @AfterEach
+    void down() throws Exception {
+        session.close();
+        stop();
+    }
+
+    @Test
+    void identify_matchesTheProfile() throws Exception {
+        assertTrue(session.identify().startsWith("ZBIN,SIMLCR"));
+    }
+
+    @Test
+    void tenThousandReadings_allParsedAndWithinStatedNoiseOfTruth() throws Exception {
+        session.apply(COND);
+        PartModel[] parts = {new PartModel.Capacitor(100e-9, 0.02, 0.6e-9, 0.012),
+                new PartModel.Inductor(4.7e-6, 0.05, 3e-12), new PartModel.Resistor(4990, 2e-9, 0.1e-12)};
+        for (int i = 0; i < 10_000; i++) {
+            meter.contacts().load(parts[i % 3], 0);
+            Complex truth = meter.truth();
+            double bound = 6 * meter.noiseRel() * truth.abs(); // 6σ: chance of a false failure ~1e-5 over the run
+            MeterReading r = session.measure();
+            assertEquals(truth.getReal(), r.reading().rOhm(), bound, "R of reading " + i);
+            assertEquals(truth.getImaginary(), r.reading().xOhm(), bound, "X of reading " + i);
+        }
+        assertEquals(10_000, meter.measurements());
+    }
+
+    @Test
+    void setup_isSentOnlyWhenConditionsChange() throws Exception {
+        session.apply(COND);
+        session.measure();
+        meter.handle("CONF:FREQ 5000"); // someone changed the meter behind zbin's back: zbin does not look
+        session.apply(COND);
+        assertEquals(5000, meter.freqHz(), "same conditions: nothing re-sent");
+        session.apply(new TestConditions(2000, 1, "medium", 1));
+        assertEquals(2000, meter.freqHz());
+    }
+
+    @Test
+    void injectedTimeout_givesTimeoutWithinConfiguredTime_thenRecovers() throws Exception {
+        session.apply(COND);
+        meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        meter.inject(SimFault.TIMEOUT, 1);
+        long t0 = System.nanoTime();
+        MeterException e = assertThrows(MeterException.class, session::measure);
+        long ms = (System.nanoTime() - t0) / 1_000_000;
+        assertEquals(FaultKind.TIMEOUT, e.kind());
+        assertEquals("TRIG:RX?", e.sent());
+        assertTrue(ms < 1500 + 500, "timeout after " + ms + " ms, configured 1500");
+        assertGood();
+    }
+
+    @Test
+    void injectedGarbage_givesGarbledWithWhatCameBack_thenRecovers() throws Exception {
+        session.apply(COND);
+        meter.inject(SimFault.GARBAGE, 1);
+        MeterException e = assertThrows(MeterException.class, session::measure);
+        assertEquals(FaultKind.GARBLED, e.kind());
+        assertTrue(e.received() != null && !e.received().isEmpty());
+        assertGood();
+    }
+
+    @Test
+    void injectedOverloadAndError_giveTheirKinds_thenRecover() throws Exception {
+        session.apply(COND);
+        meter.inject(SimFault.OVERLOAD, 1);
+        assertEquals(FaultKind.OVERLOAD, assertThrows(MeterException.class, session::measure).kind());
+        meter.inject(SimFault.ERROR, 1);
+        MeterException e = assertThrows(MeterException.class, session::measure);
+        assertEquals(FaultKind.INSTRUMENT_ERROR, e.kind());
+        assertTrue(e.getMessage().contains("bridge unbalanced"), "error queue read: " + e.getMessage());
+        assertGood();
+    }
+
+    @Test
+    void slowReply_timesOut_andTheLateReplyIsNotTakenForTheNextReading() throws Exception {
+        session.apply(COND);
+        meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
+        meter.inject(SimFault.SLOW, 1);
+        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, session::measure).kind());
+        // The late reply (of the 1 kΩ part) lands while the next part, 47 kΩ, is loaded.
+        meter.contacts().load(new PartModel.Resistor(47_000, 0, 0), 0);
+        Thread.sleep(SimMeter.SLOW_MS - 1500 + 300);
+        MeterReading next = session.measure();
+        assertEquals(47_000, next.reading().rOhm(), 47_000 * 1e-2, "reading belongs to the part now on the contacts");
+    }
+
+    @Test
+    void injectedDisconnect_isReportedAndTheSessionRecovers() throws Exception {
+        session.apply(COND);
+        meter.inject(SimFault.DISCONNECT, 1);
+        MeterException e = assertThrows(MeterException.class, session::measure);
+        assertTrue(e.kind() == FaultKind.DISCONNECTED || e.kind() == FaultKind.TIMEOUT, e.getMessage());
+        long end = System.currentTimeMillis() + 5000;
+        while (true) {
+            try {
+                assertGood();
+                return;
+            } catch (MeterException again) {
+                if (System.currentTimeMillis() > end) throw again;
+                Thread.sleep(20);
+            }
+        }
+    }
+
+    void assertGood() throws Exception {
+        meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
+        Complex truth = meter.truth();
+        MeterReading r = session.measure();
+        assertEquals(truth.getReal(), r.reading().rOhm(), 6 * meter.noiseRel() * truth.abs());
+    }
+}
