@@ -2,12 +2,42 @@ package net.zbin.app;
 
 import java.io.PrintWriter;
 import java.nio.file.Path;
+import java.util.Locale;
+import net.zbin.core.Compensation;
+import net.zbin.core.Recipe;
+import net.zbin.core.SiValue;
+import net.zbin.io.CompensationStore;
+import net.zbin.io.LineConfig;
+import net.zbin.io.LineConfigLoader;
+import net.zbin.io.meter.TransportSpec;
 
-/** Prints a validated line config. Filled in with the daemon's config loader. */
+/** Prints a validated line config: what {@code zbin run} would connect to and sort with. */
 final class ConfigCheck {
     private ConfigCheck() {}
 
-    static int print(PrintWriter out, Path config) throws UsageException {
-        throw new UsageException("--config: line configs arrive with the daemon; use --recipe for now");
+    static int print(PrintWriter out, Path file) throws Exception {
+        LineConfig c = LineConfigLoader.load(file);
+        out.printf(Locale.ROOT, "line %s%n", c.line());
+        var m = c.mqtt();
+        out.printf(Locale.ROOT, "  broker %s as %s (%s), topics %s/%s/…%n", m.broker(), m.clientId(),
+                m.username() == null ? "anonymous" : "user " + m.username() + (m.password() != null ? ", password set" : ""),
+                m.topicRoot(), c.line());
+        TransportSpec t = c.meter().transport();
+        out.printf(Locale.ROOT, "  meter profile %s over %s%n", c.meter().name(),
+                t.serial() != null ? "serial " + t.serial().port() + " " + t.serial().baud() + " baud" : "tcp " + t.tcpHost() + ":" + t.tcpPort());
+        CompensationStore store = CompensationStore.load(c.stateDir());
+        out.printf(Locale.ROOT, "  recipes in %s:%n", c.recipeDir());
+        for (Recipe r : Recipes.all(c.recipeDir())) {
+            Compensation comp = store.forFrequency(r.freqHz());
+            out.printf(Locale.ROOT, "    %s %-22s %s at %s, compensation %s%n", r.name().equals(c.activeRecipe()) ? "*" : " ",
+                    r.name(), SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.freqHz(), "Hz"),
+                    comp.isApplied() ? "taken " + comp.takenAt() : "none");
+        }
+        out.printf(Locale.ROOT, "  state %s; records %s (flush every %d ms, rotate at %.4g MiB, %s on write failure)%n", c.stateDir(),
+                c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,
+                c.records().pauseOnFailure() ? "pause" : "continue");
+        out.printf(Locale.ROOT, "  handler deadline %d ms, dashboard every %s%n", c.deadlineMs(), SiValue.format(c.dashboardMs() / 1000.0, "s"));
+        out.println("ok: " + file);
+        return Main.EXIT_OK;
     }
 }

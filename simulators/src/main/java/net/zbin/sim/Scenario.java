@@ -1,0 +1,123 @@
+package net.zbin.sim;
+
+import com.fasterxml.jackson.annotation.JsonProperty;
+import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.JsonMappingException;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.annotation.JsonDeserialize;
+import com.fasterxml.jackson.dataformat.yaml.YAMLFactory;
+import java.io.IOException;
+import java.io.InputStream;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import net.zbin.core.PartType;
+
+/**
+ * An invented production scenario for the simulators: the lot, the part population, the fixture,
+ * contact and meter fault rates, and the handler's pace. Numbers take SI prefixes.
+ */
+public record Scenario(String scenario, String description, long seed, Lot lot, Part part, FixtureSpec fixture,
+                       ContactFaults contact, MeterFaults meterFaults, Handler handler) {
+
+    /** @param id lot id; @param partPrefix part ids are prefix-00001, … */
+    public record Lot(String id, @JsonProperty("part_prefix") String partPrefix) {}
+
+    /**
+     * The population of parts.
+     *
+     * @param type        capacitor, inductor or resistor
+     * @param nominal     nominal value in F, H or Ω
+     * @param testFreq    frequency at which loss is specified, in Hz
+     * @param offsetPct   population mean deviation in %
+     * @param spreadPct   population σ in %
+     * @param lossMean    mean D at testFreq (tan δ for C, 1/Q for L, unused for R)
+     * @param lossSigma   σ of D
+     * @param lossyRate   share of parts with excess loss
+     * @param lossyLoss   D of such parts
+     * @param seriesOhm   ESR of C; ignored for L (winding R follows from D) and R
+     * @param parasitic   ESL of C, self-capacitance of L, series L of R
+     */
+    public record Part(String type, @JsonDeserialize(using = SiNumber.class) Double nominal,
+                       @JsonProperty("test_freq") @JsonDeserialize(using = SiNumber.class) Double testFreq,
+                       @JsonProperty("offset_pct") double offsetPct, @JsonProperty("spread_pct") double spreadPct,
+                       @JsonProperty("loss_mean") double lossMean, @JsonProperty("loss_sigma") double lossSigma,
+                       @JsonProperty("lossy_rate") double lossyRate, @JsonProperty("lossy_loss") double lossyLoss,
+                       @JsonProperty("series_ohm") @JsonDeserialize(using = SiNumber.class) Double seriesOhm,
+                       @JsonDeserialize(using = SiNumber.class) Double parasitic) {
+        public PartType partType() { return PartType.parse(type); }
+    }
+
+    /** Fixture parasitics; see {@link Fixture}. */
+    public record FixtureSpec(@JsonDeserialize(using = SiNumber.class) Double stray,
+                              @JsonProperty("stray_g_s") @JsonDeserialize(using = SiNumber.class) Double strayGS,
+                              @JsonProperty("residual_r_ohm") @JsonDeserialize(using = SiNumber.class) Double residualROhm,
+                              @JsonProperty("residual_l_h") @JsonDeserialize(using = SiNumber.class) Double residualLH,
+                              @JsonProperty("drift_per_hour") @JsonDeserialize(using = SiNumber.class) Double driftPerHour) {
+        public Fixture toFixture() {
+            return new Fixture(z(stray), z(strayGS), z(residualROhm), z(residualLH), z(driftPerHour));
+        }
+    }
+
+    /** Per-part probabilities of contact trouble. */
+    public record ContactFaults(@JsonProperty("open_rate") double openRate, @JsonProperty("short_rate") double shortRate,
+                                @JsonProperty("intermittent_rate") double intermittentRate,
+                                @JsonProperty("intermittent_p") double intermittentP) {}
+
+    /** Per-measurement probabilities of meter trouble. */
+    public record MeterFaults(@JsonProperty("timeout_rate") double timeoutRate, @JsonProperty("garbage_rate") double garbageRate,
+                              @JsonProperty("overload_rate") double overloadRate) {
+        public SimMeter.RandomFaults toRandomFaults() {
+            return timeoutRate + garbageRate + overloadRate == 0 ? SimMeter.RandomFaults.NONE
+                    : new SimMeter.RandomFaults(timeoutRate, garbageRate, overloadRate);
+        }
+    }
+
+    /**
+     * @param ratePerS        triggers per second
+     * @param checkEvery      an open, a short and a reference check after every this many parts (0: none)
+     * @param deadlineMs      how long the handler waits for a decision
+     */
+    public record Handler(@JsonProperty("rate_per_s") double ratePerS, @JsonProperty("check_every") int checkEvery,
+                          @JsonProperty("deadline_ms") int deadlineMs) {}
+
+    private static double z(Double d) { return d == null ? 0 : d; }
+
+    public Scenario {
+        if (lot == null || part == null || fixture == null) throw new IllegalArgumentException("scenario needs lot, part and fixture");
+        if (part.nominal() == null || !(part.nominal() > 0)) throw new IllegalArgumentException("part.nominal must be > 0");
+        if (part.testFreq() == null || !(part.testFreq() > 0)) throw new IllegalArgumentException("part.test_freq must be > 0");
+        part.partType();
+        if (contact == null) contact = new ContactFaults(0, 0, 0, 0);
+        if (meterFaults == null) meterFaults = new MeterFaults(0, 0, 0);
+        if (handler == null) handler = new Handler(100, 0, 150);
+    }
+
+    private static final ObjectMapper YAML = new ObjectMapper(new YAMLFactory())
+            .enable(DeserializationFeature.FAIL_ON_UNKNOWN_PROPERTIES)
+            .setPropertyNamingStrategy(com.fasterxml.jackson.databind.PropertyNamingStrategies.SNAKE_CASE);
+
+    /** The scenario shipped inside the jar, used when none is named. */
+    public static Scenario builtIn() {
+        try (InputStream in = Scenario.class.getResourceAsStream("/zbin-sim/default-scenario.yaml")) {
+            return YAML.readValue(in, Scenario.class);
+        } catch (IOException e) {
+            throw new IllegalStateException("built-in scenario unreadable", e);
+        }
+    }
+
+    /**
+     * @throws IllegalArgumentException naming the file, the key path and the problem
+     */
+    public static Scenario read(Path file) throws IOException {
+        try {
+            return YAML.readValue(Files.readAllBytes(file), Scenario.class);
+        } catch (JsonMappingException e) {
+            String path = e.getPath().stream().map(r -> r.getFieldName() != null ? r.getFieldName() : "[" + r.getIndex() + "]")
+                    .reduce((a, b) -> b.startsWith("[") ? a + b : a + "." + b).orElse("(top level)");
+            throw new IllegalArgumentException(file + ": " + path + ": " + e.getOriginalMessage());
+        } catch (com.fasterxml.jackson.core.JsonProcessingException e) {
+            throw new IllegalArgumentException(file + ": line " + (e.getLocation() == null ? "?" : e.getLocation().getLineNr())
+                    + ": not valid YAML: " + e.getOriginalMessage());
+        }
+    }
+}

@@ -1,0 +1,53 @@
+package net.zbin.io;
+
+import java.nio.file.Path;
+import net.zbin.core.FixtureLimits;
+import net.zbin.io.meter.MeterProfile;
+
+/**
+ * A validated line configuration: everything {@code zbin run} needs. Paths are resolved against
+ * the config file's folder.
+ *
+ * @param file            the config file itself
+ * @param line            line id, part of every topic
+ * @param mqtt            broker settings
+ * @param meter           meter profile with the line's transport
+ * @param recipeDir       folder of recipe files
+ * @param activeRecipe    recipe id in force at start
+ * @param stateDir        folder for compensation data and other state
+ * @param records         record-log settings
+ * @param deadlineMs      handler's index time: a decision later than this counts as late
+ * @param dashboardMs     period of the dashboard publish
+ * @param fixture         plausibility limits for compensation captures
+ */
+public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
+                         Path stateDir, RecordSettings records, int deadlineMs, int dashboardMs, FixtureLimits fixture) {
+
+    /**
+     * @param broker        tcp://host:port or ssl://host:port
+     * @param topicRoot     first topic level (default "zbin")
+     * @param clientId      MQTT client id, unique per process
+     * @param username      null for anonymous
+     * @param password      null for none; read from a file or environment variable, never logged
+     * @param caFile        CA certificate (PEM) for ssl://, or null
+     * @param certFile      client certificate (PEM), or null
+     * @param keyFile       client key (PKCS#8 PEM), or null
+     * @param keepAliveS    MQTT keep-alive in seconds
+     */
+    public record MqttSettings(String broker, String topicRoot, String clientId, String username, char[] password,
+                               Path caFile, Path certFile, Path keyFile, int keepAliveS) {
+        @Override
+        public String toString() {
+            return "MqttSettings[broker=" + broker + ", topicRoot=" + topicRoot + ", clientId=" + clientId
+                    + ", username=" + username + ", password=" + (password == null ? "none" : "****") + "]";
+        }
+    }
+
+    /**
+     * @param dir         folder of the daily CSV files
+     * @param flushMs     rows are flushed to disk at least this often (kill -9 loses at most this much)
+     * @param rotateBytes a file is closed and a new one started past this size
+     * @param pauseOnFailure true: the line pauses when the log cannot be written
+     */
+    public record RecordSettings(Path dir, int flushMs, long rotateBytes, boolean pauseOnFailure) {}
+}

@@ -1,0 +1,119 @@
+package net.zbin.io;
+
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import net.zbin.core.FixtureLimits;
+import net.zbin.io.meter.MeterProfile;
+import net.zbin.io.meter.MeterProfileLoader;
+import net.zbin.io.meter.TransportSpecs;
+
+/**
+ * Loads a line config and everything it names (meter profile, recipe folder, TLS files). Fails
+ * closed: a missing file, an unknown key or an unreadable secret stops the start with a message.
+ */
+public final class LineConfigLoader {
+    private LineConfigLoader() {}
+
+    public static LineConfig load(Path file) throws ConfigException {
+        SpecNode n = Yaml.read(file);
+        Path base = file.toAbsolutePath().getParent();
+        String line = n.text("line");
+        if (!line.matches("[A-Za-z0-9_-]{1,32}")) throw n.error("line", "must be 1..32 letters, digits, '_' or '-' (was '" + line + "')");
+        n.optText("description", "");
+
+        SpecNode m = n.child("mqtt");
+        String broker = m.optText("broker", "tcp://127.0.0.1:1883");
+        if (!broker.matches("(tcp|ssl)://[^/:]+:\\d{1,5}")) throw m.error("broker", "must be tcp://host:port or ssl://host:port (was '" + broker + "')");
+        String root = m.optText("topic_root", "zbin");
+        if (root.isEmpty() || root.contains("+") || root.contains("#") || root.startsWith("/") || root.endsWith("/"))
+            throw m.error("topic_root", "must be a plain topic prefix without wildcards or outer slashes (was '" + root + "')");
+        String clientId = m.optText("client_id", "zbin-" + line + "-" + ProcessHandle.current().pid());
+        String user = m.optText("username", null);
+        String pwFile = m.optText("password_file", null), pwEnv = m.optText("password_env", null);
+        if (pwFile != null && pwEnv != null) throw m.error("password_file", "give password_file or password_env, not both");
+        char[] password = null;
+        if (pwFile != null) password = readSecret(file, m.key("password_file"), base.resolve(pwFile));
+        if (pwEnv != null) {
+            String v = System.getenv(pwEnv);
+            if (v == null) throw m.error("password_env", "environment variable " + pwEnv + " is not set");
+            password = v.toCharArray();
+        }
+        SpecNode tls = m.child("tls");
+        Path ca = optFile(tls, "ca_file", base), cert = optFile(tls, "cert_file", base), key = optFile(tls, "key_file", base);
+        tls.finish();
+        if (broker.startsWith("ssl://") && ca == null) throw m.error("tls.ca_file", "is required for an ssl:// broker");
+        if ((cert == null) != (key == null)) throw m.error("tls.cert_file", "cert_file and key_file go together");
+        int keepAlive = m.optInteger("keepalive_s", 10);
+        if (keepAlive < 2 || keepAlive > 600) throw m.error("keepalive_s", "must be 2..600 (was " + keepAlive + ")");
+        m.finish();
+
+        SpecNode me = n.child("meter");
+        if (!n.has("meter")) throw n.error("meter", "is required (profile and optionally transport)");
+        Path profileFile = base.resolve(me.text("profile"));
+        MeterProfile profile = MeterProfileLoader.load(profileFile);
+        if (me.has("transport")) profile = profile.withTransport(TransportSpecs.parse(me.child("transport")));
+        me.finish();
+
+        SpecNode r = n.child("recipes");
+        Path recipeDir = base.resolve(r.optText("dir", "recipes")).normalize();
+        if (!Files.isDirectory(recipeDir)) throw r.error("dir", "recipe folder " + recipeDir + " does not exist");
+        String active = r.text("active");
+        Path activeFile = recipeDir.resolve(active + ".yaml");
+        if (!Files.exists(activeFile)) throw r.error("active", "no recipe file " + activeFile);
+        RecipeLoader.load(activeFile);
+        r.finish();
+
+        Path state = base.resolve(n.optText("state_dir", "state")).normalize();
+
+        SpecNode rec = n.child("records");
+        Path recDir = base.resolve(rec.optText("dir", "records")).normalize();
+        int flush = rec.optInteger("flush_ms", 200);
+        if (flush < 0 || flush > 60_000) throw rec.error("flush_ms", "must be 0..60000 (was " + flush + ")");
+        double rotateMb = rec.optNumber("rotate_mb", 64);
+        if (!(rotateMb >= 0.001)) throw rec.error("rotate_mb", "must be > 0 (was " + rotateMb + ")");
+        String onFail = rec.optText("on_failure", "pause");
+        if (!onFail.equals("pause") && !onFail.equals("continue")) throw rec.error("on_failure", "must be pause or continue (was '" + onFail + "')");
+        rec.finish();
+
+        SpecNode h = n.child("handler");
+        int deadline = h.optInteger("deadline_ms", 150);
+        if (deadline < 1) throw h.error("deadline_ms", "must be >= 1 (was " + deadline + ")");
+        h.finish();
+        SpecNode d = n.child("dashboard");
+        double interval = d.optNumber("interval_s", 5);
+        if (!(interval >= 0.1 && interval <= 3600)) throw d.error("interval_s", "must be 0.1..3600 (was " + interval + ")");
+        d.finish();
+
+        SpecNode fx = n.child("fixture");
+        FixtureLimits dflt = FixtureLimits.DEFAULT;
+        double oMax = fx.optNumber("open_max_f", dflt.openMaxF()), gMax = fx.optNumber("open_max_g_s", dflt.openMaxGS()),
+                sMax = fx.optNumber("short_max_ohm", dflt.shortMaxOhm()), lMax = fx.optNumber("load_max_dev_pct", dflt.loadMaxDevPct());
+        int reps = fx.optInteger("repeats", dflt.repeats());
+        fx.finish();
+        FixtureLimits fl = fx.build(null, () -> new FixtureLimits(oMax, gMax, sMax, lMax, reps));
+        n.finish();
+        return new LineConfig(file, line, new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive),
+                profile, recipeDir, active, state, new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024),
+                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl);
+    }
+
+    private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {
+        String s = n.optText(key, null);
+        if (s == null) return null;
+        Path p = base.resolve(s);
+        if (!Files.isReadable(p)) throw n.error(key, "file " + p + " is missing or unreadable");
+        return p;
+    }
+
+    private static char[] readSecret(Path config, String key, Path p) throws ConfigException {
+        try {
+            String s = Files.readString(p, StandardCharsets.UTF_8).strip();
+            if (s.isEmpty()) throw new ConfigException(config, key, "password file " + p + " is empty");
+            return s.toCharArray();
+        } catch (IOException e) {
+            throw new ConfigException(config, key, "cannot read password file " + p);
+        }
+    }
+}

@@ -1,0 +1,30 @@
+package net.zbin.app;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.stream.Stream;
+
+/** Writes a line config into a temp folder, with the shipped recipes and meter profile beside it. */
+public final class TestLine {
+    private TestLine() {}
+
+    public static Path write(Path dir, String line, String broker, int meterPort, String extra) throws IOException {
+        Path recipes = dir.resolve("recipes"), meters = dir.resolve("meters");
+        Files.createDirectories(recipes);
+        Files.createDirectories(meters);
+        try (Stream<Path> s = Files.list(Path.of("config/recipes"))) {
+            for (Path p : s.toList()) Files.copy(p, recipes.resolve(p.getFileName()), java.nio.file.StandardCopyOption.REPLACE_EXISTING);
+        }
+        Files.copy(Path.of("config/meters/zbin-sim.yaml"), meters.resolve("zbin-sim.yaml"), java.nio.file.StandardCopyOption.REPLACE_EXISTING);
+        Path cfg = dir.resolve(line + ".yaml");
+        Files.writeString(cfg, "line: " + line + "\n"
+                + "mqtt: {broker: '" + broker + "', topic_root: zbin}\n"
+                + "meter:\n  profile: meters/zbin-sim.yaml\n  transport: {tcp: {host: 127.0.0.1, port: " + meterPort + "}}\n"
+                + "recipes: {dir: recipes, active: mlcc-x7r-100n}\n"
+                + "state_dir: state-" + line + "\n"
+                + "records: {dir: records-" + line + ", flush_ms: 50}\n"
+                + extra);
+        return cfg;
+    }
+}
