@@ -1,6 +1,7 @@
 package net.zbin.io;
 
 import java.nio.file.Path;
+import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
 import net.zbin.io.meter.MeterProfile;
 
@@ -19,9 +20,11 @@ import net.zbin.io.meter.MeterProfile;
  * @param deadlineMs      handler's index time: a decision later than this counts as late
  * @param dashboardMs     period of the dashboard publish
  * @param fixture         plausibility limits for compensation captures
+ * @param checks          drift limits for the handler's open/short check presentations
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
-                         Path stateDir, RecordSettings records, int deadlineMs, int dashboardMs, FixtureLimits fixture) {
+                         Path stateDir, RecordSettings records, int deadlineMs, int dashboardMs, FixtureLimits fixture,
+                         FixtureCheck.Limits checks) {
 
     /**
      * @param broker        tcp://host:port or ssl://host:port

@@ -4,6 +4,7 @@ import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
 import net.zbin.io.meter.MeterProfile;
 import net.zbin.io.meter.MeterProfileLoader;
@@ -91,12 +92,15 @@ public final class LineConfigLoader {
         double oMax = fx.optNumber("open_max_f", dflt.openMaxF()), gMax = fx.optNumber("open_max_g_s", dflt.openMaxGS()),
                 sMax = fx.optNumber("short_max_ohm", dflt.shortMaxOhm()), lMax = fx.optNumber("load_max_dev_pct", dflt.loadMaxDevPct());
         int reps = fx.optInteger("repeats", dflt.repeats());
+        double oChk = fx.optNumber("open_check_f", FixtureCheck.Limits.DEFAULT.openDriftMaxF());
+        double sChk = fx.optNumber("short_check_ohm", FixtureCheck.Limits.DEFAULT.shortDriftMaxOhm());
         fx.finish();
         FixtureLimits fl = fx.build(null, () -> new FixtureLimits(oMax, gMax, sMax, lMax, reps));
+        FixtureCheck.Limits checks = fx.build(null, () -> new FixtureCheck.Limits(oChk, sChk));
         n.finish();
         return new LineConfig(file, line, new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive),
                 profile, recipeDir, active, state, new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024),
-                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl);
+                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl, checks);
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

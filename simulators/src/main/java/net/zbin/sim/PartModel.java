@@ -10,6 +10,9 @@ public sealed interface PartModel permits PartModel.Capacitor, PartModel.Inducto
     /** The value a recipe grades (F, H or Ω). */
     double nominalValue();
 
+    /** The simulator command that puts this part on the contacts. */
+    String loadCommand();
+
     /**
      * Capacitor with ESR, ESL and dielectric loss: Z = ESR + jωL + 1/(ωC·tanδ + jωC).
      *
@@ -26,6 +29,8 @@ public sealed interface PartModel permits PartModel.Capacitor, PartModel.Inducto
         }
 
         public double nominalValue() { return capF; }
+
+        public String loadCommand() { return "SIM:LOAD C," + capF + "," + esrOhm + "," + eslH + "," + tanDelta; }
     }
 
     /**
@@ -44,6 +49,8 @@ public sealed interface PartModel permits PartModel.Capacitor, PartModel.Inducto
         }
 
         public double nominalValue() { return lH; }
+
+        public String loadCommand() { return "SIM:LOAD L," + lH + "," + windingOhm + "," + selfCapF; }
     }
 
     /**
@@ -61,5 +68,7 @@ public sealed interface PartModel permits PartModel.Capacitor, PartModel.Inducto
         }
 
         public double nominalValue() { return rOhm; }
+
+        public String loadCommand() { return "SIM:LOAD R," + rOhm + "," + seriesLH + "," + shuntCapF; }
     }
 }

@@ -1,0 +1,274 @@
+package net.zbin.sim;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.util.Map;
+import java.util.TreeMap;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.TimeoutException;
+import java.util.concurrent.atomic.AtomicLong;
+import java.util.function.Consumer;
+import javax.net.SocketFactory;
+import org.HdrHistogram.Histogram;
+import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
+import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
+import org.eclipse.paho.client.mqttv3.MqttCallback;
+import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
+import org.eclipse.paho.client.mqttv3.MqttMessage;
+import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
+
+/**
+ * The handler simulator: presents each part of a lot, triggers, and waits for the decision within
+ * its deadline as a real handler does (one part on the contacts at a time). Retest verdicts are
+ * re-presented with {@code retest_of}; every {@code checkEvery} parts an open, a short and a
+ * reference check go through; every {@code repeatEvery} parts a trigger is sent twice on purpose.
+ * It counts missing, duplicate, late and contradictory decisions, and stops feeding while the
+ * state topic says the line is offline.
+ */
+public final class HandlerSim implements AutoCloseable {
+    private static final ObjectMapper JSON = new ObjectMapper();
+
+    /**
+     * @param broker      broker URL
+     * @param topicRoot   first topic level
+     * @param line        line id
+     * @param parts       parts to run
+     * @param ratePerS    presentations per second at most
+     * @param deadlineMs  a decision later than this is late
+     * @param missingMs   a decision not here after this is missing
+     * @param checkEvery  open/short/reference checks after every this many parts (0: none)
+     * @param repeatEvery send a trigger twice after every this many parts (0: never)
+     * @param maxRetests  re-presentations of one part at most
+     * @param clientId    MQTT client id
+     * @param sockets     socket factory for the broker connection (TCP_NODELAY)
+     * @param username    null for anonymous
+     * @param password    null for none
+     * @param offlineWaitMs how long to wait for the line to come (back) online before giving up
+     */
+    public record Options(String broker, String topicRoot, String line, long parts, double ratePerS, int deadlineMs,
+                          int missingMs, int checkEvery, int repeatEvery, int maxRetests, String clientId,
+                          SocketFactory sockets, String username, char[] password, long offlineWaitMs) {}
+
+    /** Live progress, for a progress line. */
+    public record Progress(long parts, long decided, double uph, double yieldPct, int lastBin, String lastGrade) {}
+
+    /** Final counts. {@code bins} holds the final bin of each part. */
+    public record Summary(long parts, long triggers, long decisions, Map<Integer, Long> bins, Map<String, Long> reasons,
+                          long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
+                          long retests, long checksPassed, long checksFailed, double p50Ms, double p99Ms, double maxMs,
+                          long offlinePauses) {
+        public double yieldPct() { return parts == 0 ? Double.NaN : 100.0 * passed / parts; }
+    }
+
+    private final Options o;
+    private final Scenario scenario;
+    private final PartLoader loader;
+    private final MqttAsyncClient client;
+    private final Map<Long, CompletableFuture<JsonNode>> waiting = new ConcurrentHashMap<>();
+    private final Map<Long, JsonNode> answered = new ConcurrentHashMap<>();
+    private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong();
+    private final Object stateLock = new Object();
+    private volatile boolean online;
+    private long seq;
+
+    public HandlerSim(Options options, Scenario scenario, PartLoader loader) throws Exception {
+        this.o = options;
+        this.scenario = scenario;
+        this.loader = loader;
+        this.client = new MqttAsyncClient(o.broker(), o.clientId(), new MemoryPersistence());
+        client.setCallback(new MqttCallback() {
+            public void connectionLost(Throwable cause) { setOnline(false); }
+
+            public void messageArrived(String topic, MqttMessage m) { onMessage(topic, m.getPayload()); }
+
+            public void deliveryComplete(IMqttDeliveryToken t) { }
+        });
+        MqttConnectOptions c = new MqttConnectOptions();
+        c.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
+        c.setCleanSession(true);
+        c.setAutomaticReconnect(true);
+        c.setMaxReconnectDelay(1000);
+        c.setMaxInflight(1000);
+        if (o.sockets() != null) c.setSocketFactory(o.sockets());
+        if (o.username() != null) c.setUserName(o.username());
+        if (o.password() != null) c.setPassword(o.password());
+        client.connect(c).waitForCompletion(10_000);
+        String base = o.topicRoot() + "/" + o.line() + "/";
+        client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}).waitForCompletion(10_000);
+    }
+
+    private void setOnline(boolean v) {
+        synchronized (stateLock) {
+            online = v;
+            stateLock.notifyAll();
+        }
+    }
+
+    private void onMessage(String topic, byte[] payload) {
+        JsonNode n;
+        try {
+            n = JSON.readTree(payload);
+        } catch (Exception e) {
+            return;
+        }
+        if (topic.endsWith("/state")) {
+            setOnline(n.path("online").asBoolean(false));
+            return;
+        }
+        long s = n.path("seq").asLong(-1);
+        boolean repeat = n.path("repeat").asBoolean(false);
+        JsonNode first = answered.putIfAbsent(s, n);
+        if (first != null) {
+            if (!repeat) duplicate.incrementAndGet();
+            else {
+                repeatsAnswered.incrementAndGet();
+                if (first.path("bin").asInt() != n.path("bin").asInt() || !first.path("verdict").asText().equals(n.path("verdict").asText()))
+                    contradictory.incrementAndGet();
+            }
+            return;
+        }
+        CompletableFuture<JsonNode> f = waiting.get(s);
+        if (f != null) f.complete(n);
+    }
+
+    private void awaitOnline() throws InterruptedException, TimeoutException {
+        long end = System.currentTimeMillis() + o.offlineWaitMs();
+        synchronized (stateLock) {
+            while (!online) {
+                long left = end - System.currentTimeMillis();
+                if (left <= 0) throw new TimeoutException("line " + o.line() + " did not come online within " + o.offlineWaitMs() + " ms");
+                stateLock.wait(left);
+            }
+        }
+    }
+
+    private JsonNode trigger(String kind, String part, long retestOf) throws Exception {
+        long s = seq++;
+        CompletableFuture<JsonNode> f = new CompletableFuture<>();
+        waiting.put(s, f);
+        ObjectNode t = JSON.createObjectNode();
+        t.put("seq", s);
+        t.put("part", part);
+        t.put("lot", scenario.lot().id());
+        t.put("kind", kind);
+        if (retestOf >= 0) t.put("retest_of", retestOf);
+        client.publish(o.topicRoot() + "/" + o.line() + "/trigger", JSON.writeValueAsBytes(t), 1, false);
+        try {
+            return f.get(o.missingMs(), TimeUnit.MILLISECONDS);
+        } catch (TimeoutException e) {
+            return null;
+        } finally {
+            waiting.remove(s);
+        }
+    }
+
+    /** Runs the lot; the progress consumer is called after each part. */
+    public Summary run(Consumer<Progress> progress) throws Exception {
+        LotGenerator gen = new LotGenerator(scenario, scenario.seed() + 1);
+        Map<Integer, Long> bins = new TreeMap<>();
+        Map<String, Long> reasons = new TreeMap<>();
+        Histogram lat = new Histogram(60_000_000L, 3);
+        long triggers = 0, decisions = 0, passed = 0, missing = 0, late = 0, retests = 0, checksOk = 0, checksBad = 0, pauses = 0;
+        long periodNs = o.ratePerS() > 0 ? (long) (1e9 / o.ratePerS()) : 0;
+        long next = System.nanoTime(), start = next;
+        for (long i = 0; i < o.parts(); i++) {
+            if (!online) {
+                pauses++;
+                awaitOnline();
+            }
+            LotGenerator.SimPart p = gen.next();
+            long retestOf = -1;
+            JsonNode d = null;
+            for (int attempt = 0; attempt <= o.maxRetests(); attempt++) {
+                loader.present(p);
+                long t0 = System.nanoTime();
+                d = trigger("part", p.partId(), retestOf);
+                triggers++;
+                if (d == null) { missing++; break; }
+                decisions++;
+                double ms = (System.nanoTime() - t0) / 1e6;
+                lat.recordValue(Math.min(60_000_000L, Math.round(ms * 1000)));
+                if (ms > o.deadlineMs()) late++;
+                if (!"retest".equals(d.path("verdict").asText())) break;
+                retestOf = d.path("seq").asLong();
+                if (attempt < o.maxRetests()) retests++;
+            }
+            if (d != null) {
+                bins.merge(d.path("bin").asInt(), 1L, Long::sum);
+                reasons.merge(d.path("reason").asText(), 1L, Long::sum);
+                if ("pass".equals(d.path("verdict").asText())) passed++;
+                if (o.repeatEvery() > 0 && (i + 1) % o.repeatEvery() == 0) {
+                    JsonNode again = repeatLast(d);
+                    triggers++;
+                    if (again == null) missing++;
+                }
+            }
+            if (o.checkEvery() > 0 && (i + 1) % o.checkEvery() == 0) {
+                long[] ok = checks(gen);
+                checksOk += ok[0];
+                checksBad += ok[1];
+                triggers += 3;
+                missing += ok[2];
+            }
+            double elapsedH = (System.nanoTime() - start) / 3.6e12;
+            progress.accept(new Progress(i + 1, decisions, elapsedH > 0 ? (i + 1) / elapsedH : 0, 100.0 * passed / (i + 1),
+                    d == null ? -1 : d.path("bin").asInt(), d == null ? "missing" : d.path("grade").asText()));
+            next += periodNs;
+            long wait = next - System.nanoTime();
+            if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+            else next = System.nanoTime();
+        }
+        Thread.sleep(200); // late duplicates still arrive
+        boolean any = lat.getTotalCount() > 0;
+        return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicate.get(), late,
+                contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
+                any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses);
+    }
+
+    /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */
+    private JsonNode repeatLast(JsonNode d) throws Exception {
+        long s = d.path("seq").asLong();
+        long before = repeatsAnswered.get();
+        ObjectNode t = JSON.createObjectNode();
+        t.put("seq", s);
+        t.put("part", d.path("part").asText());
+        t.put("lot", scenario.lot().id());
+        client.publish(o.topicRoot() + "/" + o.line() + "/trigger", JSON.writeValueAsBytes(t), 1, false);
+        long end = System.currentTimeMillis() + o.missingMs();
+        while (repeatsAnswered.get() == before && System.currentTimeMillis() < end) Thread.sleep(1);
+        return repeatsAnswered.get() > before ? d : null;
+    }
+
+    /** Open, short and reference checks: [passed, failed, missing]. */
+    private long[] checks(LotGenerator gen) throws Exception {
+        long[] r = new long[3];
+        loader.presentOpen();
+        count(trigger("open", "check-open", -1), r);
+        loader.presentShort();
+        count(trigger("short", "check-short", -1), r);
+        loader.presentReference(gen.reference());
+        count(trigger("reference", "check-reference", -1), r);
+        return r;
+    }
+
+    private static void count(JsonNode d, long[] r) {
+        if (d == null) r[2]++;
+        else if ("pass".equals(d.path("verdict").asText())) r[0]++;
+        else r[1]++;
+    }
+
+    @Override
+    public void close() {
+        try {
+            if (client.isConnected()) client.disconnect(1000).waitForCompletion(2000);
+            client.close(true);
+        } catch (Exception ignored) {
+            // closing
+        }
+        loader.close();
+    }
+}

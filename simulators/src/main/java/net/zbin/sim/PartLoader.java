@@ -1,0 +1,67 @@
+package net.zbin.sim;
+
+import java.io.IOException;
+import java.io.OutputStream;
+import java.net.InetSocketAddress;
+import java.net.Socket;
+import java.nio.charset.StandardCharsets;
+
+/** How the handler simulator puts a part on the meter's contacts. */
+public interface PartLoader extends AutoCloseable {
+    void present(LotGenerator.SimPart part) throws IOException;
+
+    void presentOpen() throws IOException;
+
+    void presentShort() throws IOException;
+
+    void presentReference(PartModel reference) throws IOException;
+
+    @Override
+    default void close() { }
+
+    /** The meter simulator runs in this process: load its contacts directly. */
+    static PartLoader direct(Contacts c) {
+        return new PartLoader() {
+            public void present(LotGenerator.SimPart p) { LotGenerator.present(p, c); }
+            public void presentOpen() { c.open(); }
+            public void presentShort() { c.shortBar(); }
+            public void presentReference(PartModel m) { c.load(m, 0); }
+        };
+    }
+
+    /** The meter simulator runs elsewhere: send it SIM: commands over its own TCP port. */
+    static PartLoader remote(String host, int port) throws IOException {
+        Socket s = new Socket();
+        s.setTcpNoDelay(true);
+        s.connect(new InetSocketAddress(host, port), 2000);
+        OutputStream out = s.getOutputStream();
+        return new PartLoader() {
+            private void send(String line) throws IOException {
+                out.write((line + "\n").getBytes(StandardCharsets.US_ASCII));
+                out.flush();
+            }
+
+            public void present(LotGenerator.SimPart p) throws IOException {
+                switch (p.state()) {
+                    case OPEN -> send("SIM:OPEN");
+                    case SHORT -> send("SIM:SHORT");
+                    case PART -> presentReference(p.model());
+                }
+            }
+
+            public void presentOpen() throws IOException { send("SIM:OPEN"); }
+
+            public void presentShort() throws IOException { send("SIM:SHORT"); }
+
+            public void presentReference(PartModel m) throws IOException { send(m.loadCommand()); }
+
+            public void close() {
+                try {
+                    s.close();
+                } catch (IOException ignored) {
+                    // closing
+                }
+            }
+        };
+    }
+}

@@ -1,0 +1,126 @@
+package net.zbin.app;
+
+import java.io.IOException;
+import java.io.InputStream;
+import java.io.PrintWriter;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.List;
+import java.util.Locale;
+import java.util.concurrent.Callable;
+import net.zbin.app.daemon.Daemon;
+import net.zbin.core.PartType;
+import net.zbin.core.Recipe;
+import net.zbin.io.LineConfig;
+import net.zbin.io.LineConfigLoader;
+import net.zbin.io.meter.ProfileMeterSession;
+import net.zbin.io.mqtt.NoDelaySockets;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.HandlerSim;
+import net.zbin.sim.PartLoader;
+import net.zbin.sim.Scenario;
+import net.zbin.sim.SimMeter;
+import net.zbin.sim.SimTcpServer;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+/**
+ * {@code zbin demo}: zero setup. An embedded broker, the meter simulator over a real TCP link, the
+ * real daemon and the handler simulator, all talking through the broker. The fixture is compensated
+ * first through the daemon's command topic, then a lot runs with a live progress line.
+ */
+@Command(name = "demo", mixinStandardHelpOptions = true, sortOptions = false,
+        description = {"Run a whole simulated line on this machine: broker, meter simulator, daemon, handler simulator.",
+                "Needs nothing but Java. Prints a live progress line and a summary; keeps the record log for replay."})
+public final class DemoCommand implements Callable<Integer> {
+    @Option(names = "--parts", defaultValue = "1000", description = "parts in the lot (default ${DEFAULT-VALUE})")
+    long parts;
+    @Option(names = "--rate", defaultValue = "50", paramLabel = "PER_S", description = "presentations per second at most (default ${DEFAULT-VALUE})")
+    double rate;
+    @Option(names = "--scenario", paramLabel = "FILE", description = "scenario file (default: the built-in Harrowgate MLCC lot)")
+    Path scenarioFile;
+    @Option(names = "--out", paramLabel = "DIR", description = "folder for config, state and records (default: a new temp folder)")
+    Path out;
+
+    @picocli.CommandLine.Spec
+    picocli.CommandLine.Model.CommandSpec spec;
+
+    @Override
+    public Integer call() throws Exception {
+        Scenario sc = Scenarios.load(scenarioFile);
+        if (parts < 1 || !(rate > 0)) throw new UsageException("--parts must be >= 1 and --rate > 0");
+        Path dir = out != null ? Files.createDirectories(out) : Files.createTempDirectory("zbin-demo-");
+        unpackConfig(dir);
+        String recipe = recipeFor(sc, dir.resolve("recipes"));
+        PrintWriter o = spec.commandLine().getOut();
+        Contacts contacts = new Contacts();
+        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0.3,
+                sc.meterFaults().toRandomFaults());
+        try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("broker")));
+             SimTcpServer meterServer = new SimTcpServer(meter, 0)) {
+            Path cfgFile = dir.resolve("line.yaml");
+            Files.writeString(cfgFile, "line: demo\ndescription: " + sc.description() + "\n"
+                    + "mqtt: {broker: '" + broker.url() + "', topic_root: zbin}\n"
+                    + "meter:\n  profile: meters/zbin-sim.yaml\n  transport: {tcp: {host: 127.0.0.1, port: " + meterServer.port() + "}}\n"
+                    + "recipes: {dir: recipes, active: " + recipe + "}\n"
+                    + "state_dir: state\nrecords: {dir: records, flush_ms: 200}\n"
+                    + "handler: {deadline_ms: " + sc.handler().deadlineMs() + "}\ndashboard: {interval_s: 2}\n", StandardCharsets.UTF_8);
+            LineConfig cfg = LineConfigLoader.load(cfgFile);
+            o.printf(Locale.ROOT, "zbin demo: %s%n  broker %s, meter simulator on 127.0.0.1:%d, recipe %s, lot %s, %d parts at up to %.0f/s%n",
+                    sc.description(), broker.url(), meterServer.port(), recipe, sc.lot().id(), parts, rate);
+            o.flush();
+            HandlerSim.Summary s;
+            Daemon daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
+            try {
+                daemon.start(10_000);
+                try (Engineer eng = new Engineer(cfg.mqtt().broker(), daemon.topics())) {
+                    contacts.open();
+                    o.println("  " + eng.command("{\"cmd\":\"compensate\",\"kind\":\"open\"}"));
+                    contacts.shortBar();
+                    o.println("  " + eng.command("{\"cmd\":\"compensate\",\"kind\":\"short\"}"));
+                    o.println("  " + eng.command("{\"cmd\":\"lot\",\"lot\":\"" + sc.lot().id() + "\"}"));
+                }
+                int dl = sc.handler().deadlineMs();
+                HandlerSim.Options opts = new HandlerSim.Options(broker.url(), "zbin", "demo", parts, rate, dl, Math.max(3000, 10 * dl),
+                        sc.handler().checkEvery(), 97, 3, "zbin-demo-handler", NoDelaySockets.plain(), null, null, 10_000);
+                try (HandlerSim h = new HandlerSim(opts, sc, PartLoader.direct(contacts))) {
+                    s = h.run(Progress.line(o));
+                }
+            } finally {
+                daemon.close();
+            }
+            o.println();
+            Summaries.print(o, s);
+            o.printf(Locale.ROOT, "  record log: %d rows in %s%n", daemon.recordsWritten(), dir.resolve("records"));
+            o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv%n",
+                    dir.resolve("recipes").resolve(recipe + ".yaml"), dir);
+            boolean clean = s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0;
+            o.println(clean ? "demo ok: every trigger got exactly one decision" : "demo: answers were missing, duplicated or contradictory");
+            return clean ? Main.EXIT_OK : Main.EXIT_RUNTIME;
+        }
+    }
+
+    /** Copies the shipped recipes and meter profile out of the jar. */
+    static void unpackConfig(Path dir) throws IOException {
+        Files.createDirectories(dir.resolve("recipes"));
+        Files.createDirectories(dir.resolve("meters"));
+        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml",
+                "meters/zbin-sim.yaml")) {
+            try (InputStream in = DemoCommand.class.getResourceAsStream("/zbin-config/" + name)) {
+                if (in == null) throw new IOException("jar lacks /zbin-config/" + name);
+                Files.write(dir.resolve(name), in.readAllBytes());
+            }
+        }
+    }
+
+    /** The shipped recipe for the scenario's part (same type and nominal). */
+    static String recipeFor(Scenario sc, Path recipes) throws Exception {
+        PartType type = sc.part().partType();
+        for (Recipe r : Recipes.all(recipes))
+            if (r.partType() == type && Math.abs(r.nominal() - sc.part().nominal()) <= 1e-9 * r.nominal()) return r.name();
+        throw new UsageException("no shipped recipe sorts a " + type.key() + " of nominal " + sc.part().nominal()
+                + " (scenario " + sc.scenario() + ")");
+    }
+}

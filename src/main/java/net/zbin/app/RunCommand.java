@@ -1,0 +1,52 @@
+package net.zbin.app;
+
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.concurrent.Callable;
+import java.util.concurrent.CountDownLatch;
+import net.zbin.app.daemon.Daemon;
+import net.zbin.io.LineConfig;
+import net.zbin.io.LineConfigLoader;
+import net.zbin.io.meter.ProfileMeterSession;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+/** {@code zbin run}: the daemon against a real broker and meter, until SIGTERM or Ctrl-C. */
+@Command(name = "run", mixinStandardHelpOptions = true,
+        description = {"Run the sorting daemon for one line: answer every trigger with a bin, log every decision.",
+                "Stops cleanly on SIGTERM/Ctrl-C (state offline, record log flushed)."})
+public final class RunCommand implements Callable<Integer> {
+    private static final Logger LOG = LoggerFactory.getLogger(RunCommand.class);
+
+    @Option(names = "--config", required = true, paramLabel = "FILE", description = "line config")
+    Path config;
+    @Option(names = "--connect-timeout", defaultValue = "30000", paramLabel = "MS", description = "wait this long for the broker at start (default ${DEFAULT-VALUE})")
+    long connectTimeoutMs;
+
+    @picocli.CommandLine.Spec
+    picocli.CommandLine.Model.CommandSpec spec;
+
+    @Override
+    public Integer call() throws Exception {
+        LineConfig cfg = LineConfigLoader.load(config);
+        Daemon d = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
+        CountDownLatch stopped = new CountDownLatch(1);
+        Runtime.getRuntime().addShutdownHook(new Thread(() -> {
+            d.close();
+            stopped.countDown();
+        }, "zbin-stop"));
+        try {
+            d.start(connectTimeoutMs);
+        } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
+            spec.commandLine().getErr().println("zbin: cannot connect to " + cfg.mqtt().broker() + ": " + e.getMessage());
+            return Main.EXIT_RUNTIME;
+        }
+        spec.commandLine().getOut().println("zbin: line " + cfg.line() + " running on " + cfg.mqtt().broker() + " (" + d.topics().base() + "…)");
+        spec.commandLine().getOut().flush();
+        LOG.info("running; stop with SIGTERM");
+        stopped.await();
+        return Main.EXIT_OK;
+    }
+}

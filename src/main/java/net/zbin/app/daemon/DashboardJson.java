@@ -1,0 +1,47 @@
+package net.zbin.app.daemon;
+
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import net.zbin.core.BinTally;
+import net.zbin.io.Json;
+import net.zbin.io.mqtt.Payloads;
+
+/** The retained dashboard payload: rolling figures of the line since the last counter reset. */
+final class DashboardJson {
+    private DashboardJson() {}
+
+    static byte[] encode(String line, String lot, String recipe, Mode mode, LineStats.Snapshot s, long recordBacklog) {
+        ObjectNode n = Json.object();
+        n.put("line", line);
+        n.put("lot", lot);
+        n.put("recipe", recipe);
+        n.put("mode", mode.key());
+        n.put("total", s.total());
+        n.put("passed", s.passed());
+        Json.num(n, "yield_pct", s.yieldPct());
+        Json.num(n, "yield_low_pct", s.yieldLowPct());
+        Json.num(n, "yield_high_pct", s.yieldHighPct());
+        Json.num(n, "uph", s.uph());
+        ArrayNode bins = n.putArray("bins");
+        for (BinTally.BinCount b : s.bins()) {
+            ObjectNode o = bins.addObject();
+            o.put("bin", b.bin());
+            o.put("grade", b.grade());
+            o.put("verdict", b.verdict().key());
+            o.put("count", b.count());
+            o.put("pct", b.pct());
+        }
+        ObjectNode reasons = n.putObject("reasons");
+        s.reasons().forEach(reasons::put);
+        ObjectNode lat = n.putObject("latency_ms");
+        Json.num(lat, "p50", s.p50Ms());
+        Json.num(lat, "p99", s.p99Ms());
+        Json.num(lat, "max", s.maxMs());
+        n.put("late", s.late());
+        n.put("repeats", s.repeats());
+        n.put("rejected", s.rejected());
+        n.put("record_backlog", recordBacklog);
+        n.put("since", s.since().toString());
+        return Payloads.bytes(n);
+    }
+}

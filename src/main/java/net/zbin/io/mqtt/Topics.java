@@ -1,0 +1,14 @@
+package net.zbin.io.mqtt;
+
+/** The topics of one line (contract, DESIGN §5.1): {@code <root>/<line>/<name>}. */
+public record Topics(String root, String line) {
+    public String base() { return root + "/" + line + "/"; }
+    public String trigger() { return base() + "trigger"; }
+    public String decision() { return base() + "decision"; }
+    public String state() { return base() + "state"; }
+    public String dashboard() { return base() + "dashboard"; }
+    public String alarm() { return base() + "alarm"; }
+    public String command() { return base() + "command"; }
+    public String commandResult() { return base() + "command/result"; }
+    public String rejected() { return base() + "rejected"; }
+}
