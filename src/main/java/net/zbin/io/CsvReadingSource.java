@@ -108,8 +108,12 @@ final class CsvReadingSource implements ReadingSource {
         if (att < 0) throw new IllegalArgumentException("attempt must be >= 0 (was " + att + ")");
         String comp = opt(rec, "comp");
         CompensationSource cs = comp == null || comp.isEmpty() ? CompensationSource.NONE : CompensationSource.parse(comp);
+        String kind = opt(rec, "kind");
+        if (kind == null || kind.isEmpty()) kind = "part";
+        if (!java.util.Set.of("part", "open", "short", "reference").contains(kind))
+            throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
         return new ReplayRow(line, f, r, x, optNumber(rec, "raw_r_ohm"), optNumber(rec, "raw_x_ohm"),
-                mayBeBlank ? reason : null, att, cs);
+                mayBeBlank ? reason : null, att, cs, kind);
     }
 
     private String opt(CSVRecord rec, String col) {

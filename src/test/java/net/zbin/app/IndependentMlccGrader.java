@@ -11,10 +11,14 @@ final class IndependentMlccGrader {
     static final double NOMINAL = 100e-9, F = 1000, W = 2 * Math.PI * F;
 
     /** The bin for a compensated (r, x) at attempt 0. */
-    static int bin(double r, double x) {
+    static int bin(double r, double x) { return bin(r, x, 0); }
+
+    /** The bin for a compensated (r, x) at a given attempt (0 = first presentation). */
+    static int bin(double r, double x, int attempt) {
         double ideal = 1 / (W * NOMINAL);
         double z = Math.sqrt(r * r + x * x);
-        if (z > 10 * ideal || z < 0.01 * ideal) return 0; // unclean → retest bin (count 1, attempt 0)
+        if (z > 10 * ideal) return attempt < 1 ? 0 : 10;  // open contact: retest once, then the contact bin
+        if (z < 0.01 * ideal) return attempt < 1 ? 0 : 10; // short: retest once, then the short bin (10 too)
         double cs = -1 / (W * x);
         if (cs <= 0) return 7;
         if (r / Math.abs(x) > 0.025) return 9;

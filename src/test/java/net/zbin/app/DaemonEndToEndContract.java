@@ -1,0 +1,178 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.TreeMap;
+import java.util.stream.Collectors;
+import net.zbin.sim.HandlerSim;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import org.apache.commons.csv.CSVFormat;
+import org.apache.commons.csv.CSVRecord;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** The daemon end to end through a real broker; subclasses give the broker. */
+abstract class DaemonEndToEndContract {
+    static final ObjectMapper M = new ObjectMapper();
+
+    @TempDir
+    Path dir;
+
+    abstract String broker();
+
+    static boolean isDecision(Tap.Msg m) { return m.topic().endsWith("/decision"); }
+
+    @Test
+    void fiveThousandTriggersAt200PerSecond_exactlyOneDecisionEach_binsAsIndependentGradingPredicts() throws Exception {
+        try (LineRig rig = new LineRig(dir, "e2e", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker(), "zbin/e2e/#")) {
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean() && m.json().path("mode").asText().equals("ready"), 1, 10_000);
+            rig.compensate();
+            HandlerSim.Summary s = rig.runHandler(5000, 200, 500, 50);
+            assertEquals(0, s.missing(), "missing");
+            assertEquals(0, s.duplicate(), "duplicate");
+            assertEquals(0, s.contradictory(), "contradictory");
+            assertEquals(100, s.repeatsAnswered(), "every deliberate repeat answered as a repeat");
+            long expected = s.triggers() - 100;
+            List<Tap.Msg> decisions = tap.await(m -> isDecision(m) && !m.json().path("repeat").asBoolean(), (int) expected, 30_000);
+            Map<Long, List<JsonNode>> bySeq = decisions.stream().map(Tap.Msg::json).collect(Collectors.groupingBy(j -> j.path("seq").asLong()));
+            assertEquals(expected, bySeq.size(), "one decision per seq");
+            bySeq.forEach((seq, l) -> assertEquals(1, l.size(), "seq " + seq));
+            List<JsonNode> repeats = tap.on("/decision").stream().map(Tap.Msg::json).filter(j -> j.path("repeat").asBoolean()).toList();
+            for (JsonNode r : repeats) assertEquals(bySeq.get(r.path("seq").asLong()).get(0).path("bin").asInt(), r.path("bin").asInt());
+
+            rig.close();
+            assertEquals("false", tap.on("/state").get(tap.on("/state").size() - 1).json().path("online").asText(), "offline on clean stop");
+            Map<Integer, Long> published = new TreeMap<>();
+            int graded = 0;
+            for (Path f : rig.recordFiles()) {
+                try (var p = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(f))) {
+                    for (CSVRecord r : p) {
+                        JsonNode d = bySeq.get(Long.parseLong(r.get("seq"))).get(0);
+                        assertEquals(d.path("bin").asInt(), Integer.parseInt(r.get("bin")), "record row agrees with the decision");
+                        if (!r.get("kind").equals("part")) continue;
+                        published.merge(d.path("bin").asInt(), 1L, Long::sum);
+                        int predicted = IndependentMlccGrader.bin(Double.parseDouble(r.get("r_ohm")), Double.parseDouble(r.get("x_ohm")),
+                                Integer.parseInt(r.get("attempt")));
+                        assertEquals(predicted, d.path("bin").asInt(), "seq " + r.get("seq") + ": " + d);
+                        graded++;
+                    }
+                }
+            }
+            assertTrue(graded >= 5000, "every part graded (retests add rows): " + graded);
+            Cli replay = Cli.run("replay", "--recipe", rig.cfg.recipeDir().resolve("mlcc-x7r-100n.yaml").toString(),
+                    "--in", rig.recordFiles().get(0).toString(), "--json");
+            assertEquals(0, replay.exit(), replay.err());
+            assertEquals(published, ReplayCommandTest.countsOf(M.readTree(replay.out())), "replay of the log = decisions published");
+        }
+    }
+
+    @Test
+    void thousandMalformedPayloads_eachGetARejectedNotice_andTheDaemonKeepsServing() throws Exception {
+        try (LineRig rig = new LineRig(dir, "bad", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker(), "zbin/bad/rejected", "zbin/bad/decision")) {
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            String topic = "zbin/bad/trigger";
+            for (int i = 0; i < 1000; i++) {
+                String p = switch (i % 5) {
+                    case 0 -> "{seq: " + i;
+                    case 1 -> "{\"seq\": \"" + i + "\"}";
+                    case 2 -> "{\"part\": \"no-seq-" + i + "\"}";
+                    case 3 -> "{\"seq\": " + i + ", \"part\": \"" + "x".repeat(5000) + "\"}";
+                    default -> "[" + i + "]";
+                };
+                tap.publish(topic, p);
+            }
+            List<Tap.Msg> rejected = tap.await(m -> m.topic().endsWith("/rejected"), 1000, 60_000);
+            for (Tap.Msg m : rejected) {
+                assertEquals(topic, m.json().path("topic").asText());
+                assertFalse(m.json().path("reason").asText().isEmpty());
+            }
+            assertTrue(rejected.stream().anyMatch(m -> m.json().path("reason").asText().contains("limit 4096")));
+            tap.publish(topic, "{\"seq\": 424242, \"part\": \"after-the-storm\"}");
+            JsonNode d = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 424242, 1, 10_000).get(0).json();
+            assertEquals("J", d.path("grade").asText());
+            assertEquals(0, tap.on("/decision").size() - 1, "no decision for any malformed payload");
+        }
+    }
+
+    @Test
+    void commands_answerOnTheResultTopic_andChangeWhatTheLineDoes() throws Exception {
+        try (LineRig rig = new LineRig(dir, "cmd", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker(), "zbin/cmd/#")) {
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            String c = "zbin/cmd/command", t = "zbin/cmd/trigger";
+            tap.publish(c, "{\"cmd\":\"pause\",\"id\":\"a1\"}");
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("paused"), 1, 5000);
+            tap.publish(t, "{\"seq\":1}");
+            JsonNode paused = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 1, 1, 5000).get(0).json();
+            assertEquals("retest", paused.path("verdict").asText());
+            assertEquals("line-paused", paused.path("reason").asText());
+            tap.publish(c, "{\"cmd\":\"resume\"}");
+            tap.publish(t, "{\"seq\":2,\"retest_of\":1}");
+            JsonNode resumed = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 2, 1, 5000).get(0).json();
+            assertEquals("J", resumed.path("grade").asText());
+            assertEquals(1, resumed.path("attempt").asInt(), "retest_of counts as an attempt");
+
+            tap.publish(c, "{\"cmd\":\"recipe\",\"name\":\"resistor-prec-4k99\"}");
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("recipe").asText().equals("resistor-prec-4k99"), 1, 5000);
+            rig.contacts.load(new PartModel.Resistor(4990, 0, 0), 0);
+            tap.publish(t, "{\"seq\":3}");
+            JsonNode r = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 3, 1, 5000).get(0).json();
+            assertEquals("resistor-prec-4k99", r.path("recipe").asText());
+            assertEquals("Rs", r.path("param").asText());
+
+            tap.publish(c, "{\"cmd\":\"recipe\",\"name\":\"no-such-recipe\",\"id\":\"r2\"}");
+            tap.publish(c, "{\"cmd\":\"lot\",\"lot\":\"HG-9\",\"id\":\"l1\"}");
+            tap.publish(c, "{\"cmd\":\"reset-counters\",\"id\":\"z1\"}");
+            tap.publish(c, "{\"cmd\":\"launch\",\"id\":\"u1\"}");
+            tap.publish(c, "not json");
+            // seven commands carry a cmd and get a result; "not json" gets only a rejected notice
+            List<Tap.Msg> results = tap.await(m -> m.topic().endsWith("/command/result"), 7, 5000);
+            Map<String, JsonNode> byId = new HashMap<>();
+            for (Tap.Msg m : results) byId.put(m.json().path("id").asText(), m.json());
+            assertTrue(byId.get("a1").path("ok").asBoolean());
+            assertFalse(byId.get("r2").path("ok").asBoolean());
+            assertTrue(byId.get("l1").path("ok").asBoolean());
+            assertTrue(byId.get("z1").path("ok").asBoolean());
+            assertFalse(byId.get("u1").path("ok").asBoolean());
+            tap.await(m -> m.topic().endsWith("/rejected") && m.json().path("topic").asText().equals(c), 3, 5000);
+            tap.publish(t, "{\"seq\":4}");
+            JsonNode withLot = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 4, 1, 5000).get(0).json();
+            assertEquals("HG-9", withLot.path("lot").asText());
+        }
+    }
+
+    @Test
+    void recordLogUnwritable_raisesAlarmAndPauses_thenRecoversWithNothingLost() throws Exception {
+        Path blocker = dir.resolve("records-logfail");
+        Files.writeString(blocker, "a file where the record folder should be");
+        try (LineRig rig = new LineRig(dir, "logfail", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker(), "zbin/logfail/#")) {
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            tap.publish("zbin/logfail/trigger", "{\"seq\":1}");
+            tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("record-log-failed")
+                    && m.json().path("active").asBoolean(), 1, 5000);
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("paused"), 1, 5000);
+            tap.publish("zbin/logfail/trigger", "{\"seq\":2}");
+            JsonNode d = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 2, 1, 5000).get(0).json();
+            assertEquals("line-paused", d.path("reason").asText(), "no sorting without a record");
+            Files.delete(blocker);
+            tap.await(m -> m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5000);
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 5000);
+            rig.close();
+            long rows = Files.readAllLines(rig.recordFiles().get(0)).size() - 1;
+            assertEquals(2, rows, "both decisions were recorded once the folder could be written");
+        }
+    }
+}

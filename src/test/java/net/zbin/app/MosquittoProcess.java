@@ -1,0 +1,55 @@
+package net.zbin.app;
+
+import java.io.IOException;
+import java.net.InetSocketAddress;
+import java.net.ServerSocket;
+import java.net.Socket;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.concurrent.TimeUnit;
+
+/** A Mosquitto broker started by the test from a generated config on a free port (never the system service). */
+public final class MosquittoProcess implements AutoCloseable {
+    public final int port;
+    private final Process process;
+
+    /** @param extraConfig further mosquitto.conf lines (password_file, acl_file, …) */
+    public MosquittoProcess(Path dir, String extraConfig) throws IOException, InterruptedException {
+        port = freePort();
+        Path conf = dir.resolve("mosquitto-" + port + ".conf");
+        Files.writeString(conf, "listener " + port + " 127.0.0.1\n"
+                + "set_tcp_nodelay true\n"
+                + "persistence false\n"
+                + "max_queued_messages 20000\n"
+                + "log_dest stderr\n"
+                + (extraConfig.contains("allow_anonymous") ? "" : "allow_anonymous true\n")
+                + extraConfig);
+        process = new ProcessBuilder("mosquitto", "-c", conf.toString()).redirectErrorStream(true)
+                .redirectOutput(dir.resolve("mosquitto-" + port + ".log").toFile()).start();
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(10);
+        while (true) {
+            try (Socket s = new Socket()) {
+                s.connect(new InetSocketAddress("127.0.0.1", port), 200);
+                return;
+            } catch (IOException e) {
+                if (!process.isAlive()) throw new IllegalStateException("mosquitto exited: " + Files.readString(dir.resolve("mosquitto-" + port + ".log")));
+                if (System.nanoTime() > end) throw new IllegalStateException("mosquitto did not listen on " + port);
+                Thread.sleep(50);
+            }
+        }
+    }
+
+    public String url() { return "tcp://127.0.0.1:" + port; }
+
+    static int freePort() throws IOException {
+        try (ServerSocket s = new ServerSocket(0)) {
+            return s.getLocalPort();
+        }
+    }
+
+    @Override
+    public void close() throws InterruptedException {
+        process.destroy();
+        if (!process.waitFor(5, TimeUnit.SECONDS)) process.destroyForcibly();
+    }
+}

@@ -1,0 +1,75 @@
+package net.zbin.app;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.nio.charset.StandardCharsets;
+import java.util.List;
+import java.util.concurrent.CopyOnWriteArrayList;
+import java.util.concurrent.TimeUnit;
+import java.util.function.Predicate;
+import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
+import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
+import org.eclipse.paho.client.mqttv3.MqttCallback;
+import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
+import org.eclipse.paho.client.mqttv3.MqttMessage;
+import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
+
+/** A test's own MQTT client: records every message under a filter, and publishes raw payloads. */
+public final class Tap implements AutoCloseable {
+    public record Msg(String topic, JsonNode json, String raw, boolean retained) {}
+
+    private static final ObjectMapper M = new ObjectMapper();
+    private final MqttAsyncClient c;
+    public final List<Msg> msgs = new CopyOnWriteArrayList<>();
+
+    public Tap(String broker, String... filters) throws Exception {
+        c = new MqttAsyncClient(broker, "tap-" + System.nanoTime(), new MemoryPersistence());
+        c.setCallback(new MqttCallback() {
+            public void connectionLost(Throwable t) { }
+
+            public void messageArrived(String topic, MqttMessage m) {
+                String raw = new String(m.getPayload(), StandardCharsets.UTF_8);
+                JsonNode j;
+                try {
+                    j = M.readTree(raw);
+                } catch (Exception e) {
+                    j = null;
+                }
+                msgs.add(new Msg(topic, j, raw, m.isRetained()));
+            }
+
+            public void deliveryComplete(IMqttDeliveryToken t) { }
+        });
+        MqttConnectOptions o = new MqttConnectOptions();
+        o.setMaxInflight(2000);
+        o.setCleanSession(true);
+        c.connect(o).waitForCompletion(10_000);
+        int[] qos = new int[filters.length];
+        java.util.Arrays.fill(qos, 1);
+        c.subscribe(filters, qos).waitForCompletion(10_000);
+    }
+
+    public void publish(String topic, byte[] payload) throws Exception { c.publish(topic, payload, 1, false); }
+
+    public void publish(String topic, String payload) throws Exception { publish(topic, payload.getBytes(StandardCharsets.UTF_8)); }
+
+    public List<Msg> on(String topicSuffix) { return msgs.stream().filter(m -> m.topic().endsWith(topicSuffix)).toList(); }
+
+    /** Waits until {@code count} messages match, or fails after the timeout. */
+    public List<Msg> await(Predicate<Msg> p, int count, long timeoutMs) throws InterruptedException {
+        long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
+        while (true) {
+            List<Msg> got = msgs.stream().filter(p).toList();
+            if (got.size() >= count) return got;
+            if (System.nanoTime() > end) throw new AssertionError("waited " + timeoutMs + " ms for " + count + " messages, got " + got.size()
+                    + "; last: " + (msgs.isEmpty() ? "none" : msgs.get(msgs.size() - 1)));
+            Thread.sleep(10);
+        }
+    }
+
+    @Override
+    public void close() throws Exception {
+        if (c.isConnected()) c.disconnect().waitForCompletion(2000);
+        c.close(true);
+    }
+}

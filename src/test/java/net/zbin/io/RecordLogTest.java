@@ -1,0 +1,125 @@
+package net.zbin.io;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Instant;
+import java.util.List;
+import java.util.concurrent.atomic.AtomicInteger;
+import java.util.stream.Stream;
+import net.zbin.core.CompensationSource;
+import net.zbin.core.Decision;
+import net.zbin.core.EquivalentModel;
+import net.zbin.core.Grading;
+import net.zbin.core.PrimaryParam;
+import net.zbin.core.Verdict;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+class RecordLogTest {
+    @TempDir
+    Path dir;
+
+    static Decision decision(long seq) {
+        Grading g = new Grading(1, "J", Verdict.PASS, "in-grade", EquivalentModel.SERIES, PrimaryParam.CS, 1.0e-7, 0.5, 1000,
+                16.0, -1591.5, 16.1, -1590.0, CompensationSource.USER);
+        return new Decision(seq, "P-" + seq, "LOT-1", "part", "mlcc-x7r-100n", g, 1.25, false, 0);
+    }
+
+    static RecordLog.Row row(long seq, Instant t) { return new RecordLog.Row(t, "l1", decision(seq)); }
+
+    static List<Path> files(Path d) throws Exception {
+        try (Stream<Path> s = Files.list(d)) {
+            return s.sorted().toList();
+        }
+    }
+
+    @Test
+    void rows_haveTheContractHeaderAndReadBackThroughReplay() throws Exception {
+        Path recs = dir.resolve("r");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 20, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < 100; i++) log.offer(row(i, Instant.parse("2026-11-30T10:00:00Z")));
+        }
+        Path f = recs.resolve("l1-2026-11-30.csv");
+        List<String> lines = Files.readAllLines(f);
+        assertEquals(String.join(",", RecordColumns.ALL), lines.get(0));
+        assertEquals(101, lines.size());
+        try (ReadingSource src = ReadingSource.open(f, b -> { throw new AssertionError(b.toString()); })) {
+            int n = 0;
+            ReplayRow r;
+            while ((r = src.next()) != null) {
+                assertEquals(16.0, r.rOhm());
+                assertEquals(CompensationSource.USER, r.comp());
+                n++;
+            }
+            assertEquals(100, n);
+        }
+    }
+
+    @Test
+    void tornLastLine_isCutOffWhenTheFileIsReopened() throws Exception {
+        Path recs = dir.resolve("r");
+        Instant t = Instant.parse("2026-11-30T10:00:00Z");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < 3; i++) log.offer(row(i, t));
+        }
+        Path f = recs.resolve("l1-2026-11-30.csv");
+        String whole = Files.readString(f);
+        Files.writeString(f, whole + "2026-11-30T10:00:01Z,l1,LOT-1,3,P-3,part,mlcc-x7r-100n,1000.0,16"); // killed mid-row
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            log.offer(row(4, t));
+        }
+        List<String> lines = Files.readAllLines(f);
+        assertEquals(5, lines.size(), "header + 3 rows + the new one; the torn row is gone");
+        assertTrue(lines.get(4).contains(",4,P-4,"));
+        assertTrue(lines.stream().noneMatch(l -> l.contains(",3,P-3,")));
+    }
+
+    @Test
+    void files_rotateBySizeAndByUtcDay() throws Exception {
+        Path recs = dir.resolve("r");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 2_000, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < 40; i++) {
+                log.offer(row(i, Instant.parse("2026-11-30T23:59:00Z")));
+                Thread.sleep(2);
+            }
+            log.offer(row(40, Instant.parse("2026-12-01T00:00:01Z")));
+        }
+        List<String> names = files(recs).stream().map(p -> p.getFileName().toString()).toList();
+        assertTrue(names.contains("l1-2026-11-30.csv") && names.contains("l1-2026-11-30.1.csv"), names.toString());
+        assertTrue(names.contains("l1-2026-12-01.csv"), names.toString());
+        long rows = 0;
+        for (Path p : files(recs)) rows += Files.readAllLines(p).size() - 1;
+        assertEquals(41, rows, "every row in exactly one file");
+    }
+
+    @Test
+    void unwritableFolder_isReported_rowsKept_andWrittenOnRecovery() throws Exception {
+        Path recs = dir.resolve("r");
+        Files.writeString(recs, "a file where the folder should be");
+        AtomicInteger failed = new AtomicInteger(), recovered = new AtomicInteger();
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 10, 1 << 20, true), "l1", new RecordLog.Listener() {
+            public void failed(String m) { failed.incrementAndGet(); }
+
+            public void recovered() { recovered.incrementAndGet(); }
+        })) {
+            log.start();
+            for (int i = 0; i < 10; i++) log.offer(row(i, Instant.parse("2026-11-30T10:00:00Z")));
+            long end = System.currentTimeMillis() + 5000;
+            while (failed.get() == 0 && System.currentTimeMillis() < end) Thread.sleep(5);
+            assertEquals(1, failed.get(), "reported once, not per retry");
+            assertEquals(10, log.backlog());
+            Files.delete(recs);
+            end = System.currentTimeMillis() + 5000;
+            while (recovered.get() == 0 && System.currentTimeMillis() < end) Thread.sleep(5);
+            assertEquals(1, recovered.get());
+        }
+        assertEquals(11, Files.readAllLines(recs.resolve("l1-2026-11-30.csv")).size());
+    }
+}
