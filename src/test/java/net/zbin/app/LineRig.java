@@ -18,7 +18,7 @@ import net.zbin.sim.SimMeter;
 import net.zbin.sim.SimTcpServer;
 
 /** One line under test: a simulated meter on TCP, a line config in a temp folder, and the real daemon. */
-public final class LineRig implements AutoCloseable {
+public class LineRig implements AutoCloseable {
     public final String line;
     public final Scenario scenario;
     public final Contacts contacts = new Contacts();
@@ -30,13 +30,20 @@ public final class LineRig implements AutoCloseable {
     private boolean closed;
 
     public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra) throws Exception {
+        this(dir, line, broker, sc, recipe, extra, null);
+    }
+
+    /** @param mqttTail replaces the end of the mqtt mapping ("topic_root: zbin}") to add login settings, or null */
+    public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail) throws Exception {
         this.line = line;
         this.scenario = sc;
         this.dir = dir;
         meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, sc.meterFaults().toRandomFaults());
         meterServer = new SimTcpServer(meter, 0);
         Path cfgFile = TestLine.write(dir, line, broker, meterServer.port(), extra);
-        Files.writeString(cfgFile, Files.readString(cfgFile).replace("active: mlcc-x7r-100n", "active: " + recipe));
+        String text = Files.readString(cfgFile).replace("active: mlcc-x7r-100n", "active: " + recipe);
+        if (mqttTail != null) text = text.replace("topic_root: zbin}", mqttTail);
+        Files.writeString(cfgFile, text);
         cfg = LineConfigLoader.load(cfgFile);
         daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
         daemon.start(10_000);

@@ -1,12 +1,39 @@
 package net.zbin.app;
 
-import java.nio.file.Path;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
-/** Checks for the broker and service files shipped in config/ (filled in with those files). */
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.List;
+
+/**
+ * Checks for the broker and service files shipped in config/. The Mosquitto files are also run
+ * in a real broker by {@link BrokerAclIT}; here they are checked for what zbin relies on.
+ */
 final class MosquittoAndSystemdFiles {
     private MosquittoAndSystemdFiles() {}
 
-    static void check(Path p) {
-        throw new AssertionError("no check yet for " + p);
+    static void check(Path p) throws Exception {
+        List<String> lines = Files.readAllLines(p).stream().map(String::strip).filter(l -> !l.isEmpty() && !l.startsWith("#")).toList();
+        String name = p.getFileName().toString();
+        switch (name) {
+            case "zbin.conf" -> {
+                for (String d : List.of("set_tcp_nodelay true", "allow_anonymous false"))
+                    assertTrue(lines.contains(d), name + " must say '" + d + "'");
+                assertTrue(lines.stream().anyMatch(l -> l.startsWith("acl_file ")), name + " names an acl_file");
+                assertTrue(lines.stream().anyMatch(l -> l.startsWith("password_file ")), name + " names a password_file");
+            }
+            case "zbin.acl" -> {
+                for (String u : List.of("zbin-daemon", "handler", "operator", "engineer"))
+                    assertTrue(lines.contains("user " + u), name + " has user " + u);
+                assertTrue(lines.stream().allMatch(l -> l.startsWith("user ") || l.startsWith("topic ")), name + ": only user/topic lines");
+            }
+            case "zbin@.service" -> {
+                for (String s : List.of("[Unit]", "[Service]", "[Install]")) assertTrue(lines.contains(s), name + " has " + s);
+                assertTrue(lines.stream().anyMatch(l -> l.startsWith("ExecStart=") && l.contains("zbin.jar run --config")), name + " runs zbin run");
+                assertTrue(lines.contains("KillSignal=SIGTERM"), name + " stops with SIGTERM (clean offline)");
+            }
+            default -> throw new AssertionError("no check for " + p);
+        }
     }
 }

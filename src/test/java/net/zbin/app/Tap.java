@@ -22,7 +22,14 @@ public final class Tap implements AutoCloseable {
     private final MqttAsyncClient c;
     public final List<Msg> msgs = new CopyOnWriteArrayList<>();
 
-    public Tap(String broker, String... filters) throws Exception {
+    public Tap(String broker, String... filters) throws Exception { this(broker, null, null, filters, true); }
+
+    /** A tap that logs in with a user name and password. */
+    public static Tap login(String broker, String user, String password, String... filters) throws Exception {
+        return new Tap(broker, user, password, filters, true);
+    }
+
+    private Tap(String broker, String user, String password, String[] filters, boolean unused) throws Exception {
         c = new MqttAsyncClient(broker, "tap-" + System.nanoTime(), new MemoryPersistence());
         c.setCallback(new MqttCallback() {
             public void connectionLost(Throwable t) { }
@@ -43,6 +50,10 @@ public final class Tap implements AutoCloseable {
         MqttConnectOptions o = new MqttConnectOptions();
         o.setMaxInflight(2000);
         o.setCleanSession(true);
+        if (user != null) {
+            o.setUserName(user);
+            o.setPassword(password.toCharArray());
+        }
         c.connect(o).waitForCompletion(10_000);
         int[] qos = new int[filters.length];
         java.util.Arrays.fill(qos, 1);

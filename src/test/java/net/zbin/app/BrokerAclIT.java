@@ -1,0 +1,81 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.concurrent.TimeUnit;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * The shipped Mosquitto config and ACL, run in a real Mosquitto (paths and port rewritten to the
+ * test's), with the real daemon logging in as zbin-daemon: each role can do what it should, no more.
+ */
+class BrokerAclIT {
+    @TempDir
+    Path dir;
+
+    @Test
+    void shippedAcl_handlerTriggers_operatorReads_engineerCommands() throws Exception {
+        Path pw = dir.resolve("zbin.passwd");
+        boolean first = true;
+        for (String u : new String[] {"zbin-daemon", "handler", "operator", "engineer"}) {
+            ProcessBuilder pb = first ? new ProcessBuilder("mosquitto_passwd", "-c", "-b", pw.toString(), u, u + "-secret")
+                    : new ProcessBuilder("mosquitto_passwd", "-b", pw.toString(), u, u + "-secret");
+            Process p = pb.redirectErrorStream(true).start();
+            assertTrue(p.waitFor(10, TimeUnit.SECONDS));
+            assertEquals(0, p.exitValue(), "mosquitto_passwd for " + u + ": " + new String(p.getInputStream().readAllBytes()));
+            first = false;
+        }
+        Files.copy(Path.of("config/mosquitto/zbin.acl"), dir.resolve("zbin.acl"));
+        StringBuilder conf = new StringBuilder();
+        for (String l : Files.readAllLines(Path.of("config/mosquitto/zbin.conf"))) {
+            if (l.startsWith("listener ")) continue; // the test's own listener on a free port
+            if (l.startsWith("password_file ")) l = "password_file " + pw;
+            if (l.startsWith("acl_file ")) l = "acl_file " + dir.resolve("zbin.acl");
+            if (l.startsWith("persistence_location ")) l = "persistence_location " + dir + "/";
+            conf.append(l).append('\n');
+        }
+        // Mosquitto started as root drops to its own user: let it read the test's files.
+        Files.setPosixFilePermissions(dir, java.nio.file.attribute.PosixFilePermissions.fromString("rwxr-xr-x"));
+        for (Path f : new Path[] {pw, dir.resolve("zbin.acl")})
+            Files.setPosixFilePermissions(f, java.nio.file.attribute.PosixFilePermissions.fromString("rw-r--r--"));
+        try (MosquittoProcess broker = new MosquittoProcess(dir, conf.toString())) {
+            Files.writeString(dir.resolve("daemon.pass"), "zbin-daemon-secret\n");
+            Scenario sc = LineRig.quietMeter(Scenario.builtIn());
+            try (LineRig rig = new LineRigWithLogin(dir, broker.url(), sc);
+                 Tap handler = Tap.login(broker.url(), "handler", "handler-secret", "zbin/acl/decision", "zbin/acl/state");
+                 Tap operator = Tap.login(broker.url(), "operator", "operator-secret", "zbin/acl/#");
+                 Tap engineer = Tap.login(broker.url(), "engineer", "engineer-secret", "zbin/acl/#")) {
+                rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+                handler.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean(), 1, 10_000);
+                handler.publish("zbin/acl/trigger", "{\"seq\": 1, \"part\": \"acl-1\"}");
+                assertEquals("J", handler.await(m -> m.topic().endsWith("/decision"), 1, 10_000).get(0).json().path("grade").asText());
+                operator.await(m -> m.topic().endsWith("/decision"), 1, 10_000);
+
+                operator.publish("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"op\"}");   // denied by the ACL
+                handler.publish("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"hd\"}");    // denied by the ACL
+                engineer.publish("zbin/acl/command", "{\"cmd\":\"lot\",\"lot\":\"HG-ACL\",\"id\":\"en\"}");
+                var results = engineer.await(m -> m.topic().endsWith("/command/result"), 1, 10_000);
+                Thread.sleep(500);
+                results = engineer.on("/command/result");
+                assertEquals(1, results.size(), "only the engineer's command reached the daemon: " + results);
+                assertEquals("en", results.get(0).json().path("id").asText());
+                operator.publish("zbin/acl/trigger", "{\"seq\": 2}");                       // operator may not trigger
+                Thread.sleep(500);
+                assertEquals(1, handler.on("/decision").size(), "no decision for the operator's trigger");
+            }
+        }
+    }
+
+    /** A line rig whose daemon logs in as zbin-daemon with a password file. */
+    static final class LineRigWithLogin extends LineRig {
+        LineRigWithLogin(Path dir, String broker, Scenario sc) throws Exception {
+            super(dir, "acl", broker, sc, "mlcc-x7r-100n", "", "topic_root: zbin, username: zbin-daemon, password_file: daemon.pass}");
+        }
+    }
+}

@@ -1,0 +1,70 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.concurrent.TimeUnit;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.SimMeter;
+import net.zbin.sim.SimTcpServer;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** The real {@code zbin run} process, driven by clients that are not part of the project. */
+class DaemonProcessIT {
+    @TempDir
+    Path dir;
+
+    Process startDaemon(Path cfg) throws Exception {
+        return new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+                .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + System.nanoTime() + ".log").toFile()).start();
+    }
+
+    @Test
+    void mosquittoClientsDriveZbinRun_cleanStopAndKillNineBothLeaveItOffline() throws Exception {
+        SimMeter meter = new SimMeter(new Contacts(), net.zbin.sim.Fixture.IDEAL, Clock.systemUTC(), 9, 0, SimMeter.RandomFaults.NONE);
+        meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
+             SimTcpServer sim = new SimTcpServer(meter, 0);
+             Tap tap = new Tap(broker.url(), "zbin/proc/state")) {
+            Path cfg = TestLine.write(dir, "proc", broker.url(), sim.port(), "");
+            Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}", "topic_root: zbin, keepalive_s: 2}"));
+
+            Process daemon = startDaemon(cfg);
+            tap.await(m -> m.json().path("online").asBoolean(), 1, 20_000);
+            // The README's example: mosquitto_sub waits for one decision, mosquitto_pub sends a trigger.
+            Process sub = new ProcessBuilder("mosquitto_sub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
+                    "-t", "zbin/proc/decision", "-C", "1", "-W", "20").start();
+            Thread.sleep(500);
+            Process pub = new ProcessBuilder("mosquitto_pub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
+                    "-t", "zbin/proc/trigger", "-m", "{\"seq\": 1, \"part\": \"ext-0001\", \"lot\": \"HG-EXT\"}").start();
+            assertTrue(pub.waitFor(10, TimeUnit.SECONDS));
+            assertTrue(sub.waitFor(25, TimeUnit.SECONDS));
+            JsonNode d = new ObjectMapper().readTree(new String(sub.getInputStream().readAllBytes(), StandardCharsets.UTF_8));
+            assertEquals(1, d.path("seq").asLong());
+            assertEquals("J", d.path("grade").asText());
+            assertEquals("ext-0001", d.path("part").asText());
+
+            daemon.destroy(); // SIGTERM: clean stop
+            assertTrue(daemon.waitFor(20, TimeUnit.SECONDS));
+            JsonNode clean = tap.await(m -> !m.json().path("online").asBoolean(), 1, 10_000).get(0).json();
+            assertEquals("offline", clean.path("mode").asText());
+
+            int before = tap.msgs.size();
+            Process again = startDaemon(cfg);
+            tap.await(m -> tap.msgs.indexOf(m) >= before && m.json().path("online").asBoolean(), 1, 20_000);
+            int online = tap.msgs.size();
+            again.destroyForcibly(); // SIGKILL: only the Will can tell
+            assertTrue(again.waitFor(10, TimeUnit.SECONDS));
+            JsonNode will = tap.await(m -> tap.msgs.indexOf(m) >= online && !m.json().path("online").asBoolean(), 1, 15_000).get(0).json();
+            assertEquals("offline", will.path("mode").asText());
+        }
+    }
+}
