@@ -1,6 +1,5 @@
 package net.zbin.app;
 
-import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import java.io.IOException;
 import java.io.PrintWriter;
@@ -10,6 +9,7 @@ import java.util.concurrent.Callable;
 import net.zbin.core.BinTally;
 import net.zbin.core.Recipe;
 import net.zbin.io.Json;
+import net.zbin.io.TallyJson;
 import net.zbin.io.ReadingSource;
 import net.zbin.io.RecipeLoader;
 import net.zbin.io.ReplayRow;
@@ -74,17 +74,7 @@ public final class ReplayCommand implements Callable<Integer> {
         ObjectNode n = Json.object();
         n.put("total", s.total());
         Json.num(n, "yield_pct", s.yieldPct());
-        ArrayNode bins = n.putArray("bins");
-        for (BinTally.BinCount b : s.bins()) {
-            ObjectNode o = bins.addObject();
-            o.put("bin", b.bin());
-            o.put("grade", b.grade());
-            o.put("verdict", b.verdict().key());
-            o.put("count", b.count());
-            o.put("pct", b.pct());
-        }
-        ObjectNode reasons = n.putObject("reasons");
-        s.reasons().forEach(reasons::put);
+        TallyJson.put(n, s);
         n.put("skipped_rows", skipped);
         n.put("fixture_checks", checks);
         return n;

@@ -53,6 +53,8 @@ abstract class DaemonEndToEndContract {
 
             rig.close();
             assertEquals("false", tap.on("/state").get(tap.on("/state").size() - 1).json().path("online").asText(), "offline on clean stop");
+            List<Tap.Msg> dashboards = tap.on("/dashboard");
+            JsonNode dash = dashboards.get(dashboards.size() - 1).json();
             Map<Integer, Long> published = new TreeMap<>();
             int graded = 0;
             for (Path f : rig.recordFiles()) {
@@ -70,6 +72,12 @@ abstract class DaemonEndToEndContract {
                 }
             }
             assertTrue(graded >= 5000, "every part graded (retests add rows): " + graded);
+            long parts = published.values().stream().mapToLong(Long::longValue).sum();
+            assertEquals(parts, dash.path("total").asLong(), "final dashboard counts every part decision");
+            assertEquals(100, dash.path("repeats").asLong());
+            double y = dash.path("yield_pct").asDouble();
+            assertTrue(dash.path("yield_low_pct").asDouble() < y && y < dash.path("yield_high_pct").asDouble(), dash.toString());
+            assertTrue(dash.path("latency_ms").path("p99").asDouble() > 0, dash.toString());
             Cli replay = Cli.run("replay", "--recipe", rig.cfg.recipeDir().resolve("mlcc-x7r-100n.yaml").toString(),
                     "--in", rig.recordFiles().get(0).toString(), "--json");
             assertEquals(0, replay.exit(), replay.err());
@@ -173,6 +181,41 @@ abstract class DaemonEndToEndContract {
             rig.close();
             long rows = Files.readAllLines(rig.recordFiles().get(0)).size() - 1;
             assertEquals(2, rows, "both decisions were recorded once the folder could be written");
+        }
+    }
+
+    @Test
+    void meterLinkDown_givesFaultModeAndLineFaultRetests_thenRecovers() throws Exception {
+        try (LineRig rig = new LineRig(dir, "flt", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker(), "zbin/flt/decision", "zbin/flt/state", "zbin/flt/alarm")) {
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            tap.publish("zbin/flt/trigger", "{\"seq\":1}");
+            tap.await(m -> isDecision(m) && m.json().path("grade").asText().equals("J"), 1, 5000);
+            int port = rig.meterServer.port();
+            rig.meterServer.close(); // the meter goes away
+            tap.publish("zbin/flt/trigger", "{\"seq\":2}");
+            JsonNode first = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 2, 1, 5000).get(0).json();
+            assertEquals("meter-disconnected", first.path("reason").asText());
+            assertEquals("retest", first.path("verdict").asText());
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("fault"), 1, 5000);
+            tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-link-down") && m.json().path("active").asBoolean(), 1, 5000);
+            tap.publish("zbin/flt/trigger", "{\"seq\":3,\"retest_of\":2}");
+            JsonNode next = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 3, 1, 5000).get(0).json();
+            assertEquals("line-fault", next.path("reason").asText(), "while faulted, parts are sent back without counting");
+            assertEquals("retest", next.path("verdict").asText());
+            try (net.zbin.sim.SimTcpServer back = new net.zbin.sim.SimTcpServer(rig.meter, port)) {
+                long end = System.currentTimeMillis() + 10_000;
+                long seq = 4;
+                while (System.currentTimeMillis() < end) {
+                    long s = seq++;
+                    tap.publish("zbin/flt/trigger", "{\"seq\":" + s + "}");
+                    JsonNode d = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == s, 1, 5000).get(0).json();
+                    if (d.path("grade").asText().equals("J")) break;
+                    Thread.sleep(100);
+                }
+                tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready") && tap.msgs.indexOf(m) > 3, 1, 5000);
+                tap.await(m -> m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5000);
+            }
         }
     }
 }

@@ -22,6 +22,24 @@ class DaemonProcessIT {
     @TempDir
     Path dir;
 
+    /** The shipped config/ folder, copied; only the broker and meter ports are the test's own. */
+    Path shippedConfig(int brokerPort, int meterPort) throws Exception {
+        Path conf = dir.resolve("config");
+        try (var files = Files.walk(Path.of("config"))) {
+            for (Path p : files.toList()) {
+                Path to = conf.resolve(Path.of("config").relativize(p).toString());
+                if (Files.isDirectory(p)) Files.createDirectories(to);
+                else Files.copy(p, to);
+            }
+        }
+        Path line = conf.resolve("line.yaml");
+        String text = Files.readString(line);
+        assertTrue(text.contains("broker: tcp://127.0.0.1:1883") && text.contains("port: 5025"), "shipped config as documented");
+        Files.writeString(line, text.replace("broker: tcp://127.0.0.1:1883", "broker: tcp://127.0.0.1:" + brokerPort)
+                .replace("port: 5025", "port: " + meterPort));
+        return line;
+    }
+
     Process startDaemon(Path cfg) throws Exception {
         return new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
                 .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + System.nanoTime() + ".log").toFile()).start();
@@ -33,18 +51,17 @@ class DaemonProcessIT {
         meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
              SimTcpServer sim = new SimTcpServer(meter, 0);
-             Tap tap = new Tap(broker.url(), "zbin/proc/state")) {
-            Path cfg = TestLine.write(dir, "proc", broker.url(), sim.port(), "");
-            Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}", "topic_root: zbin, keepalive_s: 2}"));
+             Tap tap = new Tap(broker.url(), "zbin/hg-line-2/state")) {
+            Path cfg = shippedConfig(broker.port, sim.port());
 
             Process daemon = startDaemon(cfg);
             tap.await(m -> m.json().path("online").asBoolean(), 1, 20_000);
             // The README's example: mosquitto_sub waits for one decision, mosquitto_pub sends a trigger.
             Process sub = new ProcessBuilder("mosquitto_sub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
-                    "-t", "zbin/proc/decision", "-C", "1", "-W", "20").start();
+                    "-t", "zbin/hg-line-2/decision", "-C", "1", "-W", "20").start();
             Thread.sleep(500);
             Process pub = new ProcessBuilder("mosquitto_pub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
-                    "-t", "zbin/proc/trigger", "-m", "{\"seq\": 1, \"part\": \"ext-0001\", \"lot\": \"HG-EXT\"}").start();
+                    "-t", "zbin/hg-line-2/trigger", "-m", "{\"seq\": 1, \"part\": \"ext-0001\", \"lot\": \"HG-EXT\"}").start();
             assertTrue(pub.waitFor(10, TimeUnit.SECONDS));
             assertTrue(sub.waitFor(25, TimeUnit.SECONDS));
             JsonNode d = new ObjectMapper().readTree(new String(sub.getInputStream().readAllBytes(), StandardCharsets.UTF_8));

@@ -21,7 +21,7 @@ import net.zbin.sim.SimTcpServer;
 public class LineRig implements AutoCloseable {
     public final String line;
     public final Scenario scenario;
-    public final Contacts contacts = new Contacts();
+    public final Contacts contacts;
     public final SimMeter meter;
     public final SimTcpServer meterServer;
     public final Path dir;
@@ -35,6 +35,13 @@ public class LineRig implements AutoCloseable {
 
     /** @param mqttTail replaces the end of the mqtt mapping ("topic_root: zbin}") to add login settings, or null */
     public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail) throws Exception {
+        this(dir, line, broker, sc, recipe, extra, mqttTail, new Contacts());
+    }
+
+    /** @param contacts the meter's contacts, shared with a handler simulator made before the rig */
+    public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail, Contacts contacts)
+            throws Exception {
+        this.contacts = contacts;
         this.line = line;
         this.scenario = sc;
         this.dir = dir;

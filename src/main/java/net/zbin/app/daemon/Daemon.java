@@ -335,9 +335,6 @@ public final class Daemon implements AutoCloseable {
         }
     }
 
-    /** Current figures (for the demo's progress line and tests). */
-    public LineStats.Snapshot figures() { return stats.snapshot(clock.millis()); }
-
     public long recordsWritten() { return records.written(); }
 
     /** Clean stop: finish queued work, publish offline, flush the record log. */

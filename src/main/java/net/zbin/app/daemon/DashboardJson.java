@@ -1,9 +1,8 @@
 package net.zbin.app.daemon;
 
-import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import net.zbin.core.BinTally;
 import net.zbin.io.Json;
+import net.zbin.io.TallyJson;
 import net.zbin.io.mqtt.Payloads;
 
 /** The retained dashboard payload: rolling figures of the line since the last counter reset. */
@@ -16,23 +15,13 @@ final class DashboardJson {
         n.put("lot", lot);
         n.put("recipe", recipe);
         n.put("mode", mode.key());
-        n.put("total", s.total());
-        n.put("passed", s.passed());
-        Json.num(n, "yield_pct", s.yieldPct());
+        n.put("total", s.tally().total());
+        n.put("passed", s.tally().passed());
+        Json.num(n, "yield_pct", s.tally().yieldPct());
         Json.num(n, "yield_low_pct", s.yieldLowPct());
         Json.num(n, "yield_high_pct", s.yieldHighPct());
         Json.num(n, "uph", s.uph());
-        ArrayNode bins = n.putArray("bins");
-        for (BinTally.BinCount b : s.bins()) {
-            ObjectNode o = bins.addObject();
-            o.put("bin", b.bin());
-            o.put("grade", b.grade());
-            o.put("verdict", b.verdict().key());
-            o.put("count", b.count());
-            o.put("pct", b.pct());
-        }
-        ObjectNode reasons = n.putObject("reasons");
-        s.reasons().forEach(reasons::put);
+        TallyJson.put(n, s.tally());
         ObjectNode lat = n.putObject("latency_ms");
         Json.num(lat, "p50", s.p50Ms());
         Json.num(lat, "p99", s.p99Ms());

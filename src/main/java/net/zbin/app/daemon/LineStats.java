@@ -2,8 +2,6 @@ package net.zbin.app.daemon;
 
 import java.time.Instant;
 import java.util.ArrayDeque;
-import java.util.List;
-import java.util.Map;
 import net.zbin.core.BinTally;
 import net.zbin.core.Decision;
 import net.zbin.core.Wilson;
@@ -26,9 +24,8 @@ final class LineStats {
     LineStats(Instant now) { reset(now); }
 
     /** Immutable figures for the dashboard. Yield counts parts only (checks and repeats excluded). */
-    record Snapshot(long total, long passed, double yieldPct, double yieldLowPct, double yieldHighPct, double uph,
-                    List<BinTally.BinCount> bins, Map<String, Long> reasons, double p50Ms, double p99Ms, double maxMs,
-                    long late, long repeats, long rejected, Instant since) {}
+    record Snapshot(BinTally.Snapshot tally, double yieldLowPct, double yieldHighPct, double uph,
+                    double p50Ms, double p99Ms, double maxMs, long late, long repeats, long rejected, Instant since) {}
 
     synchronized void decided(Decision d, boolean isLate, long nowMs) {
         if ("part".equals(d.kind())) tally.add(d.grading());
@@ -62,7 +59,7 @@ final class LineStats {
         long window = Math.min(UPH_WINDOW_MS, Math.max(1, nowMs - sinceMs));
         double uph = recentMs.size() * 3_600_000.0 / window;
         boolean any = latencyUs.getTotalCount() > 0;
-        return new Snapshot(s.total(), s.passed(), s.yieldPct(), ci[0] * 100, ci[1] * 100, uph, s.bins(), s.reasons(),
+        return new Snapshot(s, ci[0] * 100, ci[1] * 100, uph,
                 any ? latencyUs.getValueAtPercentile(50) / 1000.0 : Double.NaN,
                 any ? latencyUs.getValueAtPercentile(99) / 1000.0 : Double.NaN,
                 any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, late, repeats, rejected, since);

@@ -1,0 +1,99 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.TimeUnit;
+import net.zbin.core.TestConditions;
+import net.zbin.io.meter.MeterProfileLoader;
+import net.zbin.io.meter.ProfileMeterSession;
+import net.zbin.io.meter.TransportSpec;
+import net.zbin.io.mqtt.NoDelaySockets;
+import net.zbin.sim.HandlerSim;
+import net.zbin.sim.PartLoader;
+import net.zbin.sim.Scenario;
+import org.junit.jupiter.api.AfterAll;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** The simulators as tools: the handler waits for the line, the meter and lot commands run from the jar. */
+class HandlerSimIT {
+    static EmbeddedBroker broker;
+
+    @BeforeAll
+    static void up() throws Exception { broker = new EmbeddedBroker(Files.createTempDirectory("moquette-h")); }
+
+    @AfterAll
+    static void down() { broker.close(); }
+
+    @TempDir
+    Path dir;
+
+    @Test
+    void handlerStopsFeedingWhileTheLineIsOffline_andResumesWhenItComesOnline() throws Exception {
+        Scenario sc = LineRig.quietMeter(Scenario.builtIn());
+        net.zbin.sim.Contacts contacts = new net.zbin.sim.Contacts();
+        HandlerSim.Options o = new HandlerSim.Options(broker.url(), "zbin", "late", 50, 100, 150, 5000, 0, 0, 3, "h-late",
+                NoDelaySockets.plain(), null, null, 30_000);
+        CompletableFuture<HandlerSim.Summary> run = new CompletableFuture<>();
+        LineRig[] rig = new LineRig[1];
+        try (HandlerSim h = new HandlerSim(o, sc, PartLoader.direct(contacts))) {
+            Thread t = new Thread(() -> {
+                try {
+                    run.complete(h.run(p -> { }));
+                } catch (Exception e) {
+                    run.completeExceptionally(e);
+                }
+            });
+            t.start();
+            Thread.sleep(1500);
+            assertTrue(!run.isDone(), "nothing fed while no line is online");
+            rig[0] = new LineRig(dir, "late", broker.url(), sc, "mlcc-x7r-100n", "", null, contacts);
+            HandlerSim.Summary s = run.get(60, TimeUnit.SECONDS);
+            assertEquals(1, s.offlinePauses());
+            assertEquals(0, s.missing());
+            assertEquals(50, s.parts());
+            assertTrue(s.passed() > 40, "parts were really measured: " + s);
+        } finally {
+            if (rig[0] != null) rig[0].close();
+        }
+    }
+
+    @Test
+    void simMeterCommand_servesTheShippedProfileOnTcp() throws Exception {
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "sim", "meter", "--tcp", "0", "--time-scale", "0").start();
+        try {
+            String first = new java.io.BufferedReader(new java.io.InputStreamReader(p.getInputStream(), StandardCharsets.UTF_8)).readLine();
+            assertTrue(first != null && first.contains("listening on 127.0.0.1:"), first);
+            int port = Integer.parseInt(first.substring(first.lastIndexOf(':') + 1).trim());
+            try (ProfileMeterSession s = ProfileMeterSession.open(MeterProfileLoader.load(Path.of("config/meters/zbin-sim.yaml"))
+                    .withTransport(TransportSpec.tcp("127.0.0.1", port)), Clock.systemUTC())) {
+                assertTrue(s.identify().startsWith("ZBIN,SIMLCR"));
+                s.apply(new TestConditions(1000, 1, "fast", 1));
+                assertTrue(s.measure().reading().isFinite());
+            }
+        } finally {
+            p.destroy();
+            p.waitFor(10, TimeUnit.SECONDS);
+        }
+    }
+
+    @Test
+    void simLotCommand_writesALotThatReplays() throws Exception {
+        Path lot = dir.resolve("lot.csv");
+        Cli w = Cli.run("sim", "lot", "--parts", "3000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-inductor-4u7.yaml");
+        assertEquals(0, w.exit(), w.err());
+        Cli r = Cli.run("replay", "--recipe", "config/recipes/inductor-pwr-4u7.yaml", "--in", lot.toString(), "--json");
+        assertEquals(0, r.exit(), r.err());
+        var json = new com.fasterxml.jackson.databind.ObjectMapper().readTree(r.out());
+        assertEquals(3000, json.path("total").asLong());
+        assertTrue(json.path("yield_pct").asDouble() > 50, r.out());
+        assertTrue(json.path("reasons").has("q-low"), "the lot's low-Q tail is caught by the Q gate: " + r.out());
+    }
+}
