@@ -78,10 +78,26 @@ class DaemonProcessIT {
             Process again = startDaemon(cfg);
             tap.await(m -> tap.msgs.indexOf(m) >= before && m.json().path("online").asBoolean(), 1, 20_000);
             int online = tap.msgs.size();
+            try (Tap decisions = new Tap(broker.url(), "zbin/hg-line-2/decision")) {
+                for (int i = 0; i < 300; i++) decisions.publish("zbin/hg-line-2/trigger", "{\"seq\": " + (1000 + i) + "}");
+                decisions.await(m -> true, 300, 30_000);
+            }
+            Thread.sleep(1000); // longer than the shipped flush_ms (200 ms)
             again.destroyForcibly(); // SIGKILL: only the Will can tell
             assertTrue(again.waitFor(10, TimeUnit.SECONDS));
             JsonNode will = tap.await(m -> tap.msgs.indexOf(m) >= online && !m.json().path("online").asBoolean(), 1, 15_000).get(0).json();
             assertEquals("offline", will.path("mode").asText());
+
+            // Nothing decided before the last flush interval is lost, and the log reads back clean.
+            Path records = dir.resolve("records");
+            Path log;
+            try (var files = Files.list(records)) {
+                log = files.filter(f -> f.toString().endsWith(".csv")).findFirst().orElseThrow();
+            }
+            Cli replay = Cli.run("replay", "--recipe", dir.resolve("config/recipes/mlcc-x7r-100n.yaml").toString(), "--in", log.toString(),
+                    "--json", "--strict");
+            assertEquals(0, replay.exit(), replay.err());
+            assertEquals(301, new ObjectMapper().readTree(replay.out()).path("total").asLong(), "seq 1 and the 300 after it");
         }
     }
 }
