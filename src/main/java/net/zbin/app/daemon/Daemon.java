@@ -1,10 +1,8 @@
 package net.zbin.app.daemon;
 
-import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Path;
 import java.time.Clock;
 import java.time.Instant;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
@@ -21,7 +19,6 @@ import net.zbin.core.Grader;
 import net.zbin.core.Grading;
 import net.zbin.core.Impedance;
 import net.zbin.core.Recipe;
-import net.zbin.core.SiValue;
 import net.zbin.core.TestConditions;
 import net.zbin.core.Trigger;
 import net.zbin.io.CompensationStore;
@@ -61,6 +58,7 @@ public final class Daemon implements AutoCloseable {
     private final LineStats stats;
     private final RecordLog records;
     private final Map<String, Instant> activeAlarms = new ConcurrentHashMap<>();
+    private final LineCommands commands = new LineCommands(this);
     private CompensationStore store;
     private MqttLink mqtt;
     private volatile Recipe recipe;
@@ -115,7 +113,7 @@ public final class Daemon implements AutoCloseable {
         long arrived = System.nanoTime();
         try {
             if (topic.equals(topics.trigger())) work.execute(() -> onTrigger(payload, arrived));
-            else if (topic.equals(topics.command())) work.execute(() -> onCommand(payload));
+            else if (topic.equals(topics.command())) work.execute(() -> commands.handle(payload));
         } catch (RejectedExecutionException e) {
             LOG.debug("stopping: {} dropped", topic);
         }
@@ -190,50 +188,19 @@ public final class Daemon implements AutoCloseable {
         };
     }
 
-    private void reject(String topic, String reason) {
+    void reject(String topic, String reason) {
         stats.rejected();
         mqtt.publish(topics.rejected(), Payloads.rejected(topic, reason), 1, false);
     }
 
-    // ---- commands -------------------------------------------------------------------------------
+    // ---- what the command handler may do -------------------------------------------------------
 
-    private void onCommand(byte[] payload) {
-        JsonNode n;
-        String cmd, id;
-        try {
-            n = TriggerCodec.object(payload);
-            cmd = TriggerCodec.text(n, "cmd");
-            id = TriggerCodec.text(n, "id");
-            if (cmd == null) throw new PayloadException("cmd is missing");
-        } catch (PayloadException e) {
-            reject(topics.command(), e.getMessage());
-            return;
-        }
-        try {
-            String message = switch (cmd) {
-                case "pause" -> { setOperatorPaused(true); yield "paused"; }
-                case "resume" -> { setOperatorPaused(false); yield "resumed; mode " + mode().key(); }
-                case "recipe" -> switchRecipe(TriggerCodec.text(n, "name"));
-                case "lot" -> {
-                    String l = TriggerCodec.text(n, "lot");
-                    if (l == null) throw new PayloadException("lot is missing");
-                    lot = l;
-                    yield "lot " + l;
-                }
-                case "reset-counters" -> { stats.reset(clock.instant()); yield "counters reset"; }
-                case "compensate" -> compensate(n);
-                default -> throw new PayloadException("unknown cmd '" + cmd + "' (pause, resume, recipe, lot, reset-counters, compensate)");
-            };
-            mqtt.publish(topics.commandResult(), Payloads.commandResult(id, cmd, true, message), 1, false);
-        } catch (PayloadException e) {
-            reject(topics.command(), e.getMessage());
-            mqtt.publish(topics.commandResult(), Payloads.commandResult(id, cmd, false, e.getMessage()), 1, false);
-        } catch (ConfigException | CompensationCapture.ImplausibleException | MeterException | java.io.IOException e) {
-            mqtt.publish(topics.commandResult(), Payloads.commandResult(id, cmd, false, e.getMessage()), 1, false);
-        }
-    }
+    LineConfig config() { return cfg; }
 
-    private String switchRecipe(String name) throws PayloadException, ConfigException {
+    Recipe recipe() { return recipe; }
+
+    /** Loads a recipe by name from the recipe folder and makes it active. */
+    String switchRecipe(String name) throws PayloadException, ConfigException {
         if (name == null) throw new PayloadException("name is missing");
         if (!name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}")) throw new PayloadException("name is not a recipe id: '" + name + "'");
         Path f = recipeFile(name);
@@ -243,35 +210,25 @@ public final class Daemon implements AutoCloseable {
         return "recipe " + name;
     }
 
-    private String compensate(JsonNode n) throws PayloadException, ConfigException, MeterException,
-            CompensationCapture.ImplausibleException, java.io.IOException {
-        String kind = TriggerCodec.text(n, "kind");
-        CompensationCapture.Kind k;
-        try {
-            k = CompensationCapture.Kind.valueOf(kind == null ? "" : kind.toUpperCase(java.util.Locale.ROOT));
-        } catch (IllegalArgumentException e) {
-            throw new PayloadException("kind must be open, short or load (was '" + kind + "')");
-        }
-        Recipe r = recipe;
-        List<TestConditions> conds = List.of(r.test());
-        List<Impedance> std = new ArrayList<>();
-        if (k == CompensationCapture.Kind.LOAD) {
-            JsonNode sr = n.get("std_r"), sx = n.get("std_x");
-            if (sr == null || !sr.isNumber()) throw new PayloadException("std_r (number, ohm) is required for load");
-            std.add(new Impedance(r.freqHz(), sr.asDouble(), sx != null && sx.isNumber() ? sx.asDouble() : 0));
-        }
+    void setLot(String l) { lot = l; }
+
+    void resetCounters() { stats.reset(clock.instant()); }
+
+    /** Captures compensation through the line's meter; runs on the measuring thread, between parts. */
+    List<Impedance> capture(CompensationCapture.Kind k, List<TestConditions> conds, List<Impedance> std)
+            throws ConfigException, MeterException, CompensationCapture.ImplausibleException, java.io.IOException {
         List<Impedance> got = new CompensationCapture(meter, cfg.fixture(), clock).capture(k, conds, std, store);
         store = CompensationStore.load(cfg.stateDir());
-        Impedance z = got.get(0);
-        String what = k == CompensationCapture.Kind.OPEN
-                ? SiValue.format(z.cpF(), "F") + " stray, " + SiValue.format(z.gS(), "S")
-                : SiValue.format(z.rOhm(), "ohm") + " + j" + SiValue.format(z.xOhm(), "ohm");
-        return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + what;
+        return got;
+    }
+
+    void publishResult(String id, String cmd, boolean ok, String message) {
+        mqtt.publish(topics.commandResult(), Payloads.commandResult(id, cmd, ok, message), 1, false);
     }
 
     // ---- mode, state, alarms ---------------------------------------------------------------------
 
-    private synchronized Mode mode() {
+    synchronized Mode mode() {
         if (operatorPaused || (logFailing && cfg.records().pauseOnFailure())) return Mode.PAUSED;
         if (linkDown) return Mode.FAULT;
         return Mode.READY;
@@ -279,7 +236,7 @@ public final class Daemon implements AutoCloseable {
 
     private synchronized boolean linkDownNow() { return linkDown; }
 
-    private synchronized void setOperatorPaused(boolean p) {
+    synchronized void setOperatorPaused(boolean p) {
         operatorPaused = p;
         modeChanged();
     }
