@@ -126,11 +126,18 @@ class CalcCommandTest {
     void everyCommandsHelp_readsWell() {
         Cli top = Cli.run("--help");
         assertEquals(0, top.exit());
-        for (String cmd : new String[] {"calc", "check", "replay"}) {
+        for (String cmd : new String[] {"demo", "run", "calc", "check", "replay", "compensate", "sim"}) {
             assertTrue(top.out().contains(cmd), "top help lists " + cmd);
             Cli h = Cli.run(cmd, "--help");
             assertEquals(0, h.exit(), cmd);
             assertTrue(h.out().startsWith("Usage: zbin " + cmd), h.out());
         }
+        for (String sim : new String[] {"meter", "handler", "lot"}) {
+            Cli h = Cli.run("sim", sim, "--help");
+            assertEquals(0, h.exit(), sim);
+            assertTrue(h.out().startsWith("Usage: zbin sim " + sim), h.out());
+        }
+        assertEquals(2, Cli.run("launch").exit(), "unknown command is bad usage");
+        assertEquals(2, Cli.run().exit(), "no command is bad usage");
     }
 }

@@ -96,4 +96,18 @@ class HandlerSimIT {
         assertTrue(json.path("yield_pct").asDouble() > 50, r.out());
         assertTrue(json.path("reasons").has("q-low"), "the lot's low-Q tail is caught by the Q gate: " + r.out());
     }
+
+    @Test
+    void simHandlerCommand_loadsPartsIntoARemoteMeterSimulator() throws Exception {
+        try (LineRig rig = new LineRig(dir, "remote", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "")) {
+            rig.compensate();
+            Cli c = Cli.run("sim", "handler", "--broker", broker.url(), "--line", "remote", "--parts", "200", "--rate", "100",
+                    "--meter-sim", "127.0.0.1:" + rig.meterServer.port(), "--repeat-every", "20", "--check-every", "100");
+            assertEquals(0, c.exit(), c.out() + c.err());
+            assertTrue(c.out().contains("200 parts"), c.out());
+            assertTrue(c.out().contains("missing 0, duplicate 0, contradictory 0"), c.out());
+            assertTrue(c.out().contains("repeats answered 10"), c.out());
+            assertTrue(c.out().contains("fixture checks: 6 passed, 0 failed"), c.out());
+        }
+    }
 }
