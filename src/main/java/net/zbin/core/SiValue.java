@@ -58,14 +58,15 @@ public final class SiValue {
 
     /** Formats with an SI prefix and 4 significant digits for people: 1.000e-7 F → "100.0 nF". */
     public static String format(double v, String unit) {
-        if (!Double.isFinite(v)) return v + " " + unit;
-        if (v == 0) return "0 " + unit;
+        String unitText = unit.equals("ohm") ? "Ω" : unit;
+        if (Double.isNaN(v)) return "- " + unitText;
+        if (Double.isInfinite(v)) return (v > 0 ? "∞ " : "-∞ ") + unitText;
+        if (v == 0) return "0 " + unitText;
         double a = Math.abs(v);
         String[] pre = {"f", "p", "n", "µ", "m", "", "k", "M", "G", "T"};
         int idx = (int) Math.floor(Math.log10(a) / 3) + 5;
         idx = Math.max(0, Math.min(pre.length - 1, idx));
         double scaled = v / Math.pow(1000, idx - 5);
-        String unitText = unit.equals("ohm") ? "Ω" : unit;
         return String.format(java.util.Locale.ROOT, "%.4g %s%s", scaled, pre[idx], unitText);
     }
 

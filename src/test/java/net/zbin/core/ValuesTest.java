@@ -93,4 +93,13 @@ class ValuesTest {
         rel(10e-9, ESeries.E6.nearest(9.6e-9));
         assertEquals(192, ESeries.E192.size());
     }
+
+    @Test
+    void numbersForPeople_carryPrefixAndUnit() {
+        assertEquals("100.0 nF", SiValue.format(100e-9, "F"));
+        assertEquals("4.990 kΩ", SiValue.format(4990, "ohm"));
+        assertEquals("0 Ω", SiValue.format(0, "ohm"));
+        assertEquals("∞ Ω", SiValue.format(Double.POSITIVE_INFINITY, "ohm"));
+        assertEquals("-159.2 mH", SiValue.format(-0.1592, "H"));
+    }
 }
