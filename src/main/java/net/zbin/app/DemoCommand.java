@@ -35,12 +35,10 @@ import picocli.CommandLine.Option;
         description = {"Run a whole simulated line on this machine: broker, meter simulator, daemon, handler simulator.",
                 "Needs nothing but Java. Prints a live progress line and a summary; keeps the record log for replay."})
 public final class DemoCommand implements Callable<Integer> {
-    @Option(names = "--parts", defaultValue = "1000", description = "parts in the lot (default ${DEFAULT-VALUE})")
-    long parts;
+    @picocli.CommandLine.Mixin
+    LotOptions lot;
     @Option(names = "--rate", defaultValue = "50", paramLabel = "PER_S", description = "presentations per second at most (default ${DEFAULT-VALUE})")
     double rate;
-    @Option(names = "--scenario", paramLabel = "FILE", description = "scenario file (default: the built-in Harrowgate MLCC lot)")
-    Path scenarioFile;
     @Option(names = "--out", paramLabel = "DIR", description = "folder for config, state and records (default: a new temp folder)")
     Path out;
 
@@ -49,8 +47,9 @@ public final class DemoCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        Scenario sc = Scenarios.load(scenarioFile);
-        if (parts < 1 || !(rate > 0)) throw new UsageException("--parts must be >= 1 and --rate > 0");
+        Scenario sc = lot.scenario();
+        if (!(rate > 0)) throw new UsageException("--rate must be > 0 (was " + rate + ")");
+        long parts = lot.parts;
         Path dir = out != null ? Files.createDirectories(out) : Files.createTempDirectory("zbin-demo-");
         unpackConfig(dir);
         String recipe = recipeFor(sc, dir.resolve("recipes"));

@@ -1,8 +1,6 @@
 package net.zbin.app;
 
 import java.io.PrintWriter;
-import java.nio.file.Path;
-import java.util.Locale;
 import java.util.concurrent.Callable;
 import net.zbin.io.mqtt.NoDelaySockets;
 import net.zbin.sim.HandlerSim;
@@ -22,12 +20,10 @@ public final class SimHandlerCommand implements Callable<Integer> {
     String line;
     @Option(names = "--topic-root", defaultValue = "zbin", description = "topic root (default ${DEFAULT-VALUE})")
     String root;
-    @Option(names = "--parts", defaultValue = "1000", description = "parts (default ${DEFAULT-VALUE})")
-    long parts;
+    @picocli.CommandLine.Mixin
+    LotOptions lot;
     @Option(names = "--rate", defaultValue = "50", paramLabel = "PER_S", description = "presentations per second at most (default ${DEFAULT-VALUE})")
     double rate;
-    @Option(names = "--scenario", paramLabel = "FILE", description = "scenario file (default: the built-in one)")
-    Path scenarioFile;
     @Option(names = "--meter-sim", paramLabel = "HOST:PORT", description = "meter simulator to load parts into")
     String meterSim;
     @Option(names = "--deadline", paramLabel = "MS", description = "decision deadline (default: the scenario's)")
@@ -44,8 +40,8 @@ public final class SimHandlerCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        Scenario sc = Scenarios.load(scenarioFile);
-        if (parts < 1 || !(rate > 0)) throw new UsageException("--parts must be >= 1 and --rate > 0");
+        Scenario sc = lot.scenario();
+        if (!(rate > 0)) throw new UsageException("--rate must be > 0 (was " + rate + ")");
         PartLoader loader = PartLoader.direct(new net.zbin.sim.Contacts());
         if (meterSim != null) {
             String[] hp = meterSim.split(":");
@@ -59,7 +55,7 @@ public final class SimHandlerCommand implements Callable<Integer> {
             pw = v.toCharArray();
         }
         int dl = deadline != null ? deadline : sc.handler().deadlineMs();
-        HandlerSim.Options o = new HandlerSim.Options(broker, root, line, parts, rate, dl, Math.max(2000, 10 * dl),
+        HandlerSim.Options o = new HandlerSim.Options(broker, root, line, lot.parts, rate, dl, Math.max(2000, 10 * dl),
                 checkEvery != null ? checkEvery : sc.handler().checkEvery(), repeatEvery, 3,
                 "zbin-handler-sim-" + ProcessHandle.current().pid(), NoDelaySockets.plain(), username, pw, 30_000);
         PrintWriter out = spec.commandLine().getOut();

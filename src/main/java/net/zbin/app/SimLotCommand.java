@@ -28,10 +28,8 @@ import picocli.CommandLine.Option;
         description = {"Write a simulated lot as CSV (freq_hz, r_ohm, x_ohm compensated; raw_* as read; true_value).",
                 "The file replays with: zbin replay --recipe R --in FILE"})
 public final class SimLotCommand implements Callable<Integer> {
-    @Option(names = "--scenario", paramLabel = "FILE", description = "scenario file (default: the built-in one)")
-    Path scenarioFile;
-    @Option(names = "--parts", defaultValue = "10000", description = "parts in the lot (default ${DEFAULT-VALUE})")
-    long parts;
+    @picocli.CommandLine.Mixin
+    LotOptions lot;
     @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.class, description = "test frequency (default: the scenario's)")
     Double freq;
     @Option(names = "--speed", defaultValue = "NORMAL", description = "meter pace: QUICK, NORMAL or FINE (default ${DEFAULT-VALUE})")
@@ -44,8 +42,8 @@ public final class SimLotCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        Scenario sc = Scenarios.load(scenarioFile);
-        if (parts < 1) throw new UsageException("--parts must be >= 1 (was " + parts + ")");
+        Scenario sc = lot.scenario();
+        long parts = lot.parts;
         double f = freq != null ? freq : sc.part().testFreq();
         Contacts contacts = new Contacts();
         SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
