@@ -26,10 +26,33 @@ public final class EmbeddedBroker implements AutoCloseable {
         p.setProperty("netty.mqtt.message_size", "65536");
         p.setProperty("netty.tcp_nodelay", "true");
         p.setProperty("immediate_buffer_flush", "true");
+        // MQTT 3.1.1 lets a clean-session client send an empty id (mosquitto_pub/sub do).
+        p.setProperty("allow_zero_byte_client_id", "true");
         server.startServer(new MemoryConfig(p));
+        port = boundPort();
     }
 
-    public int port() { return server.getPort(); }
+    private final int port;
+
+    /** Moquette binds asynchronously: getPort() is 0 until the listener is up. */
+    private int boundPort() throws IOException {
+        long end = System.nanoTime() + 10_000_000_000L;
+        while (server.getPort() == 0) {
+            if (System.nanoTime() > end) {
+                server.stopServer();
+                throw new IOException("embedded broker did not bind a port within 10 s");
+            }
+            try {
+                Thread.sleep(5);
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+                throw new IOException("interrupted while the broker started", e);
+            }
+        }
+        return server.getPort();
+    }
+
+    public int port() { return port; }
 
     public String url() { return "tcp://127.0.0.1:" + port(); }
 

@@ -6,7 +6,7 @@ import picocli.CommandLine.Option;
 
 /** The options every simulated-lot command shares: how many parts, drawn from which scenario. */
 final class LotOptions {
-    @Option(names = "--parts", defaultValue = "1000", description = "parts in the lot (default ${DEFAULT-VALUE})")
+    @Option(names = "--parts", defaultValue = "1000", paramLabel = "N", description = "parts in the lot (default ${DEFAULT-VALUE})")
     long parts;
     @Option(names = "--scenario", paramLabel = "FILE", description = "scenario file (default: the built-in Harrowgate MLCC lot)")
     Path scenarioFile;

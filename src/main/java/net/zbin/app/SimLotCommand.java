@@ -32,7 +32,7 @@ public final class SimLotCommand implements Callable<Integer> {
     LotOptions lot;
     @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.class, description = "test frequency (default: the scenario's)")
     Double freq;
-    @Option(names = "--speed", defaultValue = "NORMAL", description = "meter pace: QUICK, NORMAL or FINE (default ${DEFAULT-VALUE})")
+    @Option(names = "--speed", defaultValue = "NORMAL", paramLabel = "PACE", description = "meter pace: QUICK, NORMAL or FINE (default ${DEFAULT-VALUE})")
     String speed;
     @Option(names = "--out", required = true, paramLabel = "FILE.csv", description = "where to write the lot")
     Path out;

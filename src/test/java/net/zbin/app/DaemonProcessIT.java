@@ -46,21 +46,33 @@ class DaemonProcessIT {
     }
 
     @Test
-    void mosquittoClientsDriveZbinRun_cleanStopAndKillNineBothLeaveItOffline() throws Exception {
+    void throughMosquitto_mosquittoClientsDriveZbinRun_cleanStopAndKillNineBothLeaveItOffline() throws Exception {
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "")) {
+            driveAndKill(broker.url(), broker.port);
+        }
+    }
+
+    @Test
+    void throughMoquette_mosquittoClientsDriveZbinRun_cleanStopAndKillNineBothLeaveItOffline() throws Exception {
+        try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("moquette")))) {
+            driveAndKill(broker.url(), broker.port());
+        }
+    }
+
+    void driveAndKill(String brokerUrl, int brokerPort) throws Exception {
         SimMeter meter = new SimMeter(new Contacts(), net.zbin.sim.Fixture.IDEAL, Clock.systemUTC(), 9, 0, SimMeter.RandomFaults.NONE);
         meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
-             SimTcpServer sim = new SimTcpServer(meter, 0);
-             Tap tap = new Tap(broker.url(), "zbin/hg-line-2/state")) {
-            Path cfg = shippedConfig(broker.port, sim.port());
+        try (SimTcpServer sim = new SimTcpServer(meter, 0);
+             Tap tap = new Tap(brokerUrl, "zbin/hg-line-2/state")) {
+            Path cfg = shippedConfig(brokerPort, sim.port());
 
             Process daemon = startDaemon(cfg);
             tap.await(m -> m.json().path("online").asBoolean(), 1, 20_000);
             // The README's example: mosquitto_sub waits for one decision, mosquitto_pub sends a trigger.
-            Process sub = new ProcessBuilder("mosquitto_sub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
+            Process sub = new ProcessBuilder("mosquitto_sub", "-h", "127.0.0.1", "-p", Integer.toString(brokerPort), "-q", "1",
                     "-t", "zbin/hg-line-2/decision", "-C", "1", "-W", "20").start();
             Thread.sleep(500);
-            Process pub = new ProcessBuilder("mosquitto_pub", "-h", "127.0.0.1", "-p", Integer.toString(broker.port), "-q", "1",
+            Process pub = new ProcessBuilder("mosquitto_pub", "-h", "127.0.0.1", "-p", Integer.toString(brokerPort), "-q", "1",
                     "-t", "zbin/hg-line-2/trigger", "-m", "{\"seq\": 1, \"part\": \"ext-0001\", \"lot\": \"HG-EXT\"}").start();
             assertTrue(pub.waitFor(10, TimeUnit.SECONDS));
             assertTrue(sub.waitFor(25, TimeUnit.SECONDS));
@@ -78,7 +90,7 @@ class DaemonProcessIT {
             Process again = startDaemon(cfg);
             tap.await(m -> tap.msgs.indexOf(m) >= before && m.json().path("online").asBoolean(), 1, 20_000);
             int online = tap.msgs.size();
-            try (Tap decisions = new Tap(broker.url(), "zbin/hg-line-2/decision")) {
+            try (Tap decisions = new Tap(brokerUrl, "zbin/hg-line-2/decision")) {
                 for (int i = 0; i < 300; i++) decisions.publish("zbin/hg-line-2/trigger", "{\"seq\": " + (1000 + i) + "}");
                 decisions.await(m -> true, 300, 30_000);
             }
