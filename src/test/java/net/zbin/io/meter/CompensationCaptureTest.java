@@ -83,4 +83,35 @@ class CompensationCaptureTest {
             assertFalse(Files.exists(state.resolve(CompensationStore.FILE)));
         }
     }
+
+    @Test
+    void openShortLoadCaptured_recoverTheTruePartThroughTheStoredStandard() throws Exception {
+        SimMeter meter = new SimMeter(new Contacts(), LEADS, Clock.systemUTC(), 8, 0, SimMeter.RandomFaults.NONE);
+        TestConditions c = new TestConditions(100e3, 1, "slow", 4);
+        try (SimTcpServer server = new SimTcpServer(meter, 0);
+             ProfileMeterSession s = ProfileMeterSession.open(Profiles.sim(TransportSpec.tcp("127.0.0.1", server.port())), Clock.systemUTC())) {
+            CompensationStore store = CompensationStore.load(state);
+            CompensationCapture cap = new CompensationCapture(s, new FixtureLimits(20e-12, 1e-6, 2, 10, 16), Clock.systemUTC());
+            meter.contacts().open();
+            cap.capture(CompensationCapture.Kind.OPEN, List.of(c), null, store);
+            meter.contacts().shortBar();
+            cap.capture(CompensationCapture.Kind.SHORT, List.of(c), null, store);
+            meter.contacts().load(new PartModel.Resistor(100, 0, 0), 0); // a 100 Ω standard, known to be 100 + j0
+            cap.capture(CompensationCapture.Kind.LOAD, List.of(c), List.of(new Impedance(100e3, 100, 0)), store);
+
+            Compensation comp = CompensationStore.load(state).forFrequency(100e3);
+            assertTrue(comp.load() != null && comp.loadTrue() != null, "stored as open/short/load");
+            PartModel part = new PartModel.Inductor(4.7e-6, 0.05, 0);
+            meter.contacts().load(part, 0);
+            s.apply(c);
+            var rd = s.measure().reading();
+            Impedance got = comp.correct(new Impedance(100e3, rd.rOhm(), rd.xOhm())).orElseThrow();
+            double trueLs = part.impedance(100e3).getImaginary() / (2 * Math.PI * 100e3);
+            // FINE pace noise is 2.5e-5 of |Z| per component; the standard and the open add their own.
+            assertEquals(trueLs, got.lsH(), trueLs * 5e-4);
+            meter.contacts().load(new PartModel.Resistor(150, 0, 0), 0); // the wrong standard
+            assertThrows(CompensationCapture.ImplausibleException.class,
+                    () -> cap.capture(CompensationCapture.Kind.LOAD, List.of(c), List.of(new Impedance(100e3, 100, 0)), store));
+        }
+    }
 }
