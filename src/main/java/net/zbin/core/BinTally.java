@@ -30,8 +30,6 @@ public final class BinTally {
     public record Snapshot(long total, long passed, List<BinCount> bins, Map<String, Long> reasons) {
         /** Pass share in percent, NaN when nothing was counted. */
         public double yieldPct() { return total == 0 ? Double.NaN : 100.0 * passed / total; }
-
-        public long count(Verdict v) { return bins.stream().filter(b -> b.verdict() == v).mapToLong(BinCount::count).sum(); }
     }
 
     public void add(Grading g) {

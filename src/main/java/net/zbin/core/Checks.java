@@ -15,16 +15,7 @@ public final class Checks {
         return v;
     }
 
-    public static double nonNegative(String field, double v) {
-        finite(field, v);
-        if (v < 0) throw new IllegalArgumentException(field + " must be >= 0 (was " + v + ")");
-        return v;
-    }
 
-    public static int nonNegative(String field, int v) {
-        if (v < 0) throw new IllegalArgumentException(field + " must be >= 0 (was " + v + ")");
-        return v;
-    }
 
     public static <T> T present(String field, T v) {
         if (v == null) throw new IllegalArgumentException(field + " is required");

@@ -91,8 +91,6 @@ public final class RecordLog implements AutoCloseable {
     /** Rows accepted but not yet on disk. */
     public int backlog() { return queue.size() + pending.size(); }
 
-    public Path currentFile() { return current; }
-
     private void run() {
         long lastFlush = System.nanoTime();
         List<Row> batch = new ArrayList<>();

@@ -92,6 +92,8 @@ class ValuesTest {
         rel(4.7e3, ESeries.E12.nearest(4.6e3));
         rel(10e-9, ESeries.E6.nearest(9.6e-9));
         assertEquals(192, ESeries.E192.size());
+        assertEquals(ESeries.E96, ESeries.parse("e96"));
+        assertThrows(IllegalArgumentException.class, () -> ESeries.parse("E7"));
     }
 
     @Test

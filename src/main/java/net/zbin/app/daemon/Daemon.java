@@ -286,7 +286,7 @@ public final class Daemon implements AutoCloseable {
     private void publishDashboard() {
         try {
             LineStats.Snapshot s = stats.snapshot(clock.millis());
-            mqtt.publish(topics.dashboard(), DashboardJson.encode(cfg.line(), lot, recipe.name(), mode(), s, records.backlog()), 0, true);
+            mqtt.publish(topics.dashboard(), DashboardJson.encode(cfg.line(), lot, recipe.name(), mode(), s, records.backlog(), records.dropped()), 0, true);
         } catch (RuntimeException e) {
             LOG.warn("dashboard: {}", e.toString());
         }

@@ -9,7 +9,8 @@ import net.zbin.io.mqtt.Payloads;
 final class DashboardJson {
     private DashboardJson() {}
 
-    static byte[] encode(String line, String lot, String recipe, Mode mode, LineStats.Snapshot s, long recordBacklog) {
+    static byte[] encode(String line, String lot, String recipe, Mode mode, LineStats.Snapshot s, long recordBacklog,
+                         long recordDropped) {
         ObjectNode n = Json.object();
         n.put("line", line);
         n.put("lot", lot);
@@ -30,6 +31,7 @@ final class DashboardJson {
         n.put("repeats", s.repeats());
         n.put("rejected", s.rejected());
         n.put("record_backlog", recordBacklog);
+        n.put("record_dropped", recordDropped);
         n.put("since", s.since().toString());
         return Payloads.bytes(n);
     }
