@@ -30,7 +30,7 @@ class ReplayCommandTest {
 
     @Test
     void exampleLot_countsMatchAnIndependentGrading() throws Exception {
-        Path lot = Path.of("examples/lot-mlcc-100n.csv");
+        Path lot = Path.of("simulators/lots/lot-mlcc-100n.csv");
         Map<Integer, Long> expected = new TreeMap<>();
         try (var p = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(lot))) {
             for (CSVRecord r : p) expected.merge(IndependentMlccGrader.bin(Double.parseDouble(r.get("r_ohm")),
@@ -81,7 +81,7 @@ class ReplayCommandTest {
 
     @Test
     void textSummary_listsBinsAndReasons() {
-        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", "examples/lot-mlcc-100n.csv");
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", "simulators/lots/lot-mlcc-100n.csv");
         assertEquals(0, c.exit(), c.err());
         assertTrue(c.out().contains("2000 parts graded"), c.out());
         assertTrue(c.out().contains("in-grade"), c.out());
