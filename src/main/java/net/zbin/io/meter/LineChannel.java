@@ -7,8 +7,8 @@ import net.zbin.core.FaultKind;
 
 /**
  * Terminator-framed text over a {@link Transport}: send a line, read one reply line within a
- * deadline. After a timeout the link may still deliver the late reply; the next exchange first
- * drains it so a reply is never matched to the wrong query.
+ * deadline. After a failed exchange the link may still deliver a late reply; {@link #settle} must
+ * run before the next exchange so that a reply is never matched to the wrong query.
  */
 final class LineChannel {
     private static final int MAX_LINE = 4096;
@@ -26,9 +26,41 @@ final class LineChannel {
 
     Transport transport() { return transport; }
 
+    /** True after a failed exchange, until {@link #settle} succeeds. */
+    boolean dirty() { return dirty; }
+
+    /**
+     * Brings the link back in step after a failure. With a sync query (e.g. {@code *OPC?}) it is sent
+     * and every line before its answer is discarded: a meter answers in order, so a late reply can
+     * only come before it. Without one, whatever arrives within 20 ms is discarded.
+     */
+    void settle(String syncQuery, java.util.regex.Pattern syncExpect, int timeoutMs) throws MeterException {
+        if (!dirty) return;
+        if (syncQuery == null) {
+            drain(null);
+            return;
+        }
+        pending.reset();
+        write(syncQuery);
+        long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
+        while (true) {
+            long left = (deadline - System.nanoTime()) / 1_000_000L;
+            if (left <= 0) throw new MeterException(FaultKind.TIMEOUT, syncQuery, null, "meter did not come back in step within " + timeoutMs + " ms");
+            String line = readLine(syncQuery, (int) left);
+            if (syncExpect.matcher(line).find()) {
+                dirty = false;
+                return;
+            }
+        }
+    }
+
     /** Sends a command that has no reply. */
     void send(String command) throws MeterException {
-        if (dirty) drain(command);
+        if (dirty) throw new IllegalStateException("settle the link before the next exchange");
+        write(command);
+    }
+
+    private void write(String command) throws MeterException {
         try {
             transport.write((command + new String(terminator, StandardCharsets.US_ASCII)).getBytes(StandardCharsets.US_ASCII));
         } catch (IOException e) {
@@ -117,6 +149,9 @@ final class LineChannel {
         }
         dirty = false;
     }
+
+    /** A reply was framed but made no sense: the link may be out of step. */
+    void markDirty() { dirty = true; }
 
     void reset() {
         pending.reset();

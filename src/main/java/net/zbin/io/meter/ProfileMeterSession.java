@@ -63,27 +63,37 @@ public final class ProfileMeterSession implements MeterSession {
         channel.reset();
     }
 
+    /** Opens the link if needed and brings it back in step after a failed exchange. */
+    private void ready(String forWhat) throws MeterException {
+        ensureOpen(forWhat);
+        channel.settle(profile.syncQuery(), profile.syncExpect(), profile.commandTimeoutMs());
+    }
+
     @Override
     public String identify() throws MeterException {
         if (profile.identifyQuery() == null) return profile.name();
-        ensureOpen(profile.identifyQuery());
+        ready(profile.identifyQuery());
         String id = channel.query(profile.identifyQuery(), profile.commandTimeoutMs());
-        if (profile.identifyExpect() != null && !profile.identifyExpect().matcher(id).find())
+        if (profile.identifyExpect() != null && !profile.identifyExpect().matcher(id).find()) {
+            channel.markDirty();
             throw new MeterException(FaultKind.GARBLED, profile.identifyQuery(), id,
                     "identification does not match " + profile.identifyExpect().pattern() + " (wrong meter or profile?)");
+        }
         return id;
     }
 
     @Override
     public void apply(TestConditions c) throws MeterException {
         wanted = c;
-        ensureOpen("setup");
+        ready("setup");
         if (c.equals(applied)) return;
         for (String template : profile.setup()) channel.send(profile.fill(template, c));
         if (profile.syncQuery() != null) {
             String r = channel.query(profile.syncQuery(), profile.commandTimeoutMs());
-            if (!profile.syncExpect().matcher(r).find())
+            if (!profile.syncExpect().matcher(r).find()) {
+                channel.markDirty();
                 throw new MeterException(FaultKind.GARBLED, profile.syncQuery(), r, "setup not confirmed");
+            }
         }
         applied = c;
     }
@@ -91,12 +101,17 @@ public final class ProfileMeterSession implements MeterSession {
     @Override
     public MeterReading measure() throws MeterException {
         if (wanted == null) throw new IllegalStateException("apply test conditions before measuring");
-        ensureOpen(profile.measureQuery());
+        ready(profile.measureQuery());
         if (!wanted.equals(applied)) apply(wanted);
         long t0 = System.nanoTime();
         String reply = channel.query(profile.measureQuery(), profile.measureTimeoutMs());
         double ms = (System.nanoTime() - t0) / 1e6;
-        return new MeterReading(parse(reply), ms);
+        try {
+            return new MeterReading(parse(reply), ms);
+        } catch (MeterException e) {
+            if (e.kind() == FaultKind.GARBLED) channel.markDirty();
+            throw e;
+        }
     }
 
     private Reading parse(String reply) throws MeterException {
