@@ -78,7 +78,7 @@ public final class CalcCommand implements Callable<Integer> {
         ModelPolicy.Choice choice = zc == null ? null : policy.choose(guess, zc.zOhm());
         Decision decision = null;
         if (recipe != null) {
-            Grading g = Grader.grade(recipe, Reading.ok(raw), comp, 0);
+            Grading g = Grader.grade(recipe, Reading.of(raw), comp, 0);
             decision = new Decision(-1, null, null, "part", recipe.name(), g, Double.NaN, false, 0);
         }
         if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(raw, zc, comp, choice, decision)));

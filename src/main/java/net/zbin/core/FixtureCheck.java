@@ -22,7 +22,7 @@ public final class FixtureCheck {
     }
 
     public static Grading open(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite() || rd.status() != MeterStatus.OK) return result(r, rd, "open-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
+        if (!rd.isFinite()) return result(r, rd, "open-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
         if (comp == null || comp.open() == null) return result(r, rd, "open-check", Verdict.FAIL, "no-compensation", CompensationSource.NONE);
         Impedance now = new Impedance(rd.freqHz(), rd.rOhm(), rd.xOhm());
         double delta = now.cpF() - comp.open().cpF();
@@ -31,7 +31,7 @@ public final class FixtureCheck {
     }
 
     public static Grading shortBar(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite() || rd.status() != MeterStatus.OK) return result(r, rd, "short-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
+        if (!rd.isFinite()) return result(r, rd, "short-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
         if (comp == null || comp.shortZ() == null) return result(r, rd, "short-check", Verdict.FAIL, "no-compensation", CompensationSource.NONE);
         double delta = Math.hypot(rd.rOhm() - comp.shortZ().rOhm(), rd.xOhm() - comp.shortZ().xOhm());
         boolean ok = delta <= lim.shortDriftMaxOhm();

@@ -4,8 +4,9 @@ import java.util.Optional;
 
 /**
  * Turns a raw reading into a grading under a recipe. Fail-safe: any reading that is not clean
- * (meter status, non-finite, wrong frequency, missing or mismatched compensation, open contact,
- * short) is retested up to the recipe's count and then rejected; it never reaches a value grade.
+ * (non-finite, wrong frequency, missing or mismatched compensation, open contact, short) — and any
+ * meter failure, see {@link #fault} — is retested up to the recipe's count and then rejected; it
+ * never reaches a value grade.
  */
 public final class Grader {
     private Grader() {}
@@ -17,10 +18,6 @@ public final class Grader {
     public static Grading grade(Recipe recipe, Reading reading, Compensation comp, int attempt) {
         double f = reading.freqHz();
         RejectBins rb = recipe.reject();
-        if (reading.status() == MeterStatus.OVERLOAD)
-            return unclean(recipe, attempt, "overload", rb.overload(), "overload", reading, null, CompensationSource.NONE);
-        if (reading.status() != MeterStatus.OK)
-            return unclean(recipe, attempt, "meter-status", rb.fault(), "fault", reading, null, CompensationSource.NONE);
         if (!reading.isFinite())
             return unclean(recipe, attempt, "non-finite", rb.fault(), "fault", reading, null, CompensationSource.NONE);
         if (!Compensation.matches(f, recipe.freqHz()))
@@ -146,7 +143,7 @@ public final class Grader {
         boolean again = attempt < recipe.retest().count();
         return done(again ? recipe.retest().bin() : rejectBin, again ? "retest" : cls,
                 again ? Verdict.RETEST : Verdict.FAIL, reason, null, null, Double.NaN, Double.NaN,
-                reading == null ? new Reading(recipe.freqHz(), Double.NaN, Double.NaN, MeterStatus.NOT_OK) : reading, z, source);
+                reading == null ? new Reading(recipe.freqHz(), Double.NaN, Double.NaN) : reading, z, source);
     }
 
     private static Grading done(int bin, String grade, Verdict verdict, String reason, EquivalentModel model,

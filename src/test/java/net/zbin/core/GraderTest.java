@@ -25,7 +25,7 @@ class GraderTest {
     /** A 100 nF-class reading with a given deviation and D. */
     static Reading capReading(double devPct, double d) {
         double c = 100e-9 * (1 + devPct / 100), x = -1 / (W * c);
-        return new Reading(F, d * Math.abs(x), x, MeterStatus.OK);
+        return new Reading(F, d * Math.abs(x), x);
     }
 
     @Test
@@ -72,10 +72,10 @@ class GraderTest {
     void openContact_neverGetsValueGrade() {
         Recipe r = cap(GradingMode.NESTED, NESTED, GuardBand.NONE, Gates.NONE);
         double x = -1 / (W * 2e-12); // only the fixture's 2 pF stray
-        Grading g = Grader.grade(r, new Reading(F, 0, x, MeterStatus.OK), null, 0);
+        Grading g = Grader.grade(r, new Reading(F, 0, x), null, 0);
         assertEquals(Verdict.RETEST, g.verdict());
         assertEquals("open-contact", g.reason());
-        Grading last = Grader.grade(r, new Reading(F, 0, x, MeterStatus.OK), null, 1);
+        Grading last = Grader.grade(r, new Reading(F, 0, x), null, 1);
         assertEquals(Verdict.FAIL, last.verdict());
         assertEquals(10, last.bin());
     }
@@ -85,17 +85,18 @@ class GraderTest {
         Recipe r = cap(GradingMode.NESTED, NESTED, GuardBand.NONE, Gates.NONE);
         Impedance open = new Impedance(F, 100, -79.6e6);
         Compensation c = new Compensation(F, CompensationSource.USER, Instant.EPOCH, open, null, null, null);
-        assertEquals("open-contact", Grader.grade(r, Reading.ok(open), c, 5).reason());
+        assertEquals("open-contact", Grader.grade(r, Reading.of(open), c, 5).reason());
     }
 
     @Test
     void shortOverloadNonFiniteAndMeterFaults_neverGetValueGrades() {
         Recipe r = cap(GradingMode.NESTED, NESTED, GuardBand.NONE, Gates.NONE);
-        assertEquals("short", Grader.grade(r, new Reading(F, 0.002, -0.001, MeterStatus.OK), null, 0).reason());
-        assertEquals(12, Grader.grade(r, new Reading(F, 1, -1591, MeterStatus.OVERLOAD), null, 1).bin());
-        assertEquals("non-finite", Grader.grade(r, new Reading(F, Double.NaN, -1591, MeterStatus.OK), null, 0).reason());
-        assertEquals("non-finite", Grader.grade(r, new Reading(F, 1, Double.NEGATIVE_INFINITY, MeterStatus.OK), null, 0).reason());
-        assertEquals("frequency-mismatch", Grader.grade(r, new Reading(2 * F, 1, -1591, MeterStatus.OK), null, 0).reason());
+        assertEquals("short", Grader.grade(r, new Reading(F, 0.002, -0.001), null, 0).reason());
+        assertEquals(12, Grader.fault(r, FaultKind.OVERLOAD, 1).bin());
+        assertEquals(Verdict.RETEST, Grader.fault(r, FaultKind.OVERLOAD, 0).verdict());
+        assertEquals("non-finite", Grader.grade(r, new Reading(F, Double.NaN, -1591), null, 0).reason());
+        assertEquals("non-finite", Grader.grade(r, new Reading(F, 1, Double.NEGATIVE_INFINITY), null, 0).reason());
+        assertEquals("frequency-mismatch", Grader.grade(r, new Reading(2 * F, 1, -1591), null, 0).reason());
         assertEquals(13, Grader.fault(r, FaultKind.TIMEOUT, 1).bin());
         assertEquals(Verdict.RETEST, Grader.notMeasured(r, Grader.NOT_MEASURED_PAUSED).verdict());
     }
@@ -118,9 +119,9 @@ class GraderTest {
         for (int i = 0; i < 20_000; i++) {
             Reading rd;
             int k = rnd.nextInt(10);
-            if (k == 0) rd = new Reading(F, rnd.nextDouble(), -1 / (W * 1e-12 * rnd.nextDouble() * 5), MeterStatus.OK);
-            else if (k == 1) rd = new Reading(F, Double.NaN, 1, MeterStatus.OK);
-            else if (k == 2) rd = new Reading(F, 1, -1591, MeterStatus.OVERLOAD);
+            if (k == 0) rd = new Reading(F, rnd.nextDouble(), -1 / (W * 1e-12 * rnd.nextDouble() * 5));
+            else if (k == 1) rd = new Reading(F, Double.NaN, 1);
+            else if (k == 2) rd = new Reading(F, Double.POSITIVE_INFINITY, -1591);
             else rd = capReading(rnd.nextGaussian() * 15, Math.abs(rnd.nextGaussian() * 0.02));
             Grading g = Grader.grade(r, rd, null, rnd.nextInt(3));
             boolean clean = k >= 3;

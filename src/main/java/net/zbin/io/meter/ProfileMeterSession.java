@@ -4,7 +4,6 @@ import java.io.IOException;
 import java.time.Clock;
 import java.util.List;
 import net.zbin.core.FaultKind;
-import net.zbin.core.MeterStatus;
 import net.zbin.core.Reading;
 import net.zbin.core.TestConditions;
 import org.slf4j.Logger;
@@ -145,7 +144,7 @@ public final class ProfileMeterSession implements MeterSession {
             r = z * Math.cos(t);
             x = z * Math.sin(t);
         }
-        return new Reading(wanted.freqHz(), r, x, MeterStatus.OK);
+        return new Reading(wanted.freqHz(), r, x);
     }
 
     private String errorQueue() {
