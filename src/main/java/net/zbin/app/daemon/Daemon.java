@@ -60,6 +60,8 @@ public final class Daemon implements AutoCloseable {
     private final Map<String, Instant> activeAlarms = new ConcurrentHashMap<>();
     private final LineCommands commands = new LineCommands(this);
     private CompensationStore store;
+    /** Compensation at the active recipe's frequency; changes only on the measuring thread. */
+    private Compensation comp;
     private MqttLink mqtt;
     private volatile Recipe recipe;
     private volatile String lot = "";
@@ -83,6 +85,7 @@ public final class Daemon implements AutoCloseable {
         });
         this.recipe = RecipeLoader.load(recipeFile(cfg.activeRecipe()));
         this.store = CompensationStore.load(cfg.stateDir());
+        this.comp = store.forFrequency(recipe.freqHz());
     }
 
     private static Thread named(Runnable r, String name) {
@@ -179,7 +182,6 @@ public final class Daemon implements AutoCloseable {
             return Grader.fault(r, e.kind(), attempt);
         }
         if (linkDownNow()) setLinkDown(false, null);
-        Compensation comp = store.forFrequency(r.freqHz());
         return switch (t.kind()) {
             case PART -> Grader.grade(r, mr.reading(), comp, attempt);
             case OPEN -> FixtureCheck.open(r, mr.reading(), comp, cfg.checks());
@@ -206,6 +208,7 @@ public final class Daemon implements AutoCloseable {
         Path f = recipeFile(name);
         if (!java.nio.file.Files.exists(f)) throw new PayloadException("no recipe '" + name + "' in " + cfg.recipeDir());
         recipe = RecipeLoader.load(f);
+        comp = store.forFrequency(recipe.freqHz());
         publishStateNow();
         return "recipe " + name;
     }
@@ -219,6 +222,7 @@ public final class Daemon implements AutoCloseable {
             throws ConfigException, MeterException, CompensationCapture.ImplausibleException, java.io.IOException {
         List<Impedance> got = new CompensationCapture(meter, cfg.fixture(), clock).capture(k, conds, std, store);
         store = CompensationStore.load(cfg.stateDir());
+        comp = store.forFrequency(recipe.freqHz());
         return got;
     }
 

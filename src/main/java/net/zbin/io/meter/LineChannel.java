@@ -1,6 +1,5 @@
 package net.zbin.io.meter;
 
-import java.io.ByteArrayOutputStream;
 import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import net.zbin.core.FaultKind;
@@ -16,12 +15,14 @@ final class LineChannel {
     private final Transport transport;
     private final byte[] terminator;
     private final byte[] buf = new byte[1024];
-    private final ByteArrayOutputStream pending = new ByteArrayOutputStream();
+    private final Pending pending = new Pending();
+    private final String terminatorText;
     private boolean dirty;
 
     LineChannel(Transport transport, String terminator) {
         this.transport = transport;
         this.terminator = terminator.getBytes(StandardCharsets.US_ASCII);
+        this.terminatorText = terminator;
     }
 
     Transport transport() { return transport; }
@@ -62,7 +63,7 @@ final class LineChannel {
 
     private void write(String command) throws MeterException {
         try {
-            transport.write((command + new String(terminator, StandardCharsets.US_ASCII)).getBytes(StandardCharsets.US_ASCII));
+            transport.write((command + terminatorText).getBytes(StandardCharsets.US_ASCII));
         } catch (IOException e) {
             transport.close();
             throw new MeterException(FaultKind.DISCONNECTED, command, null, "write failed on " + transport.describe() + ": " + e.getMessage(), e);
@@ -78,17 +79,17 @@ final class LineChannel {
     private String readLine(String sent, int timeoutMs) throws MeterException {
         long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
         while (true) {
-            String line = takeLine();
+            String line = pending.takeLine(terminator);
             if (line != null) return line;
             if (pending.size() > MAX_LINE) {
-                String got = pending.toString(StandardCharsets.ISO_8859_1);
+                String got = pending.text();
                 pending.reset();
                 dirty = true;
                 throw new MeterException(FaultKind.GARBLED, sent, got, "reply longer than " + MAX_LINE + " bytes without terminator");
             }
             long left = (deadline - System.nanoTime()) / 1_000_000L;
             if (left <= 0) {
-                String got = pending.size() == 0 ? null : pending.toString(StandardCharsets.ISO_8859_1);
+                String got = pending.size() == 0 ? null : pending.text();
                 pending.reset();
                 dirty = true;
                 throw new MeterException(FaultKind.TIMEOUT, sent, got, "no reply within " + timeoutMs + " ms on " + transport.describe());
@@ -98,36 +99,58 @@ final class LineChannel {
                 n = transport.read(buf, (int) Math.min(left, Integer.MAX_VALUE));
             } catch (IOException e) {
                 transport.close();
-                throw new MeterException(FaultKind.DISCONNECTED, sent, pending.toString(StandardCharsets.ISO_8859_1),
+                throw new MeterException(FaultKind.DISCONNECTED, sent, pending.text(),
                         "read failed on " + transport.describe() + ": " + e.getMessage(), e);
             }
             if (n < 0) {
-                String got = pending.size() == 0 ? null : pending.toString(StandardCharsets.ISO_8859_1);
+                String got = pending.size() == 0 ? null : pending.text();
                 pending.reset();
                 transport.close();
                 throw new MeterException(FaultKind.DISCONNECTED, sent, got, "the meter closed the link (" + transport.describe() + ")");
             }
-            pending.write(buf, 0, n);
+            pending.append(buf, n);
         }
     }
 
-    private String takeLine() {
-        byte[] data = pending.toByteArray();
-        int at = indexOf(data, terminator);
-        if (at < 0) return null;
-        String line = new String(data, 0, at, StandardCharsets.ISO_8859_1);
-        pending.reset();
-        pending.write(data, at + terminator.length, data.length - at - terminator.length);
-        return line;
-    }
+    /**
+     * Bytes received but not yet taken as a line. Scans only what arrived since the last look, and
+     * copies nothing until a whole line is there.
+     */
+    private static final class Pending {
+        private byte[] data = new byte[256];
+        private int len;
+        private int scanned;
 
-    private static int indexOf(byte[] data, byte[] pat) {
-        outer:
-        for (int i = 0; i <= data.length - pat.length; i++) {
-            for (int j = 0; j < pat.length; j++) if (data[i + j] != pat[j]) continue outer;
-            return i;
+        int size() { return len; }
+
+        void reset() {
+            len = 0;
+            scanned = 0;
         }
-        return -1;
+
+        void append(byte[] b, int n) {
+            if (len + n > data.length) data = java.util.Arrays.copyOf(data, Math.max(data.length * 2, len + n));
+            System.arraycopy(b, 0, data, len, n);
+            len += n;
+        }
+
+        String text() { return new String(data, 0, len, StandardCharsets.ISO_8859_1); }
+
+        /** The first complete line without its terminator, or null. */
+        String takeLine(byte[] term) {
+            outer:
+            for (int i = Math.max(0, scanned - term.length + 1); i <= len - term.length; i++) {
+                for (int k = 0; k < term.length; k++) if (data[i + k] != term[k]) continue outer;
+                String line = new String(data, 0, i, StandardCharsets.ISO_8859_1);
+                int rest = len - i - term.length;
+                System.arraycopy(data, i + term.length, data, 0, rest);
+                len = rest;
+                scanned = 0;
+                return line;
+            }
+            scanned = len;
+            return null;
+        }
     }
 
     /** Discards a late reply or garbage left by a failed exchange. */

@@ -20,6 +20,7 @@ public final class ProfileMeterSession implements MeterSession {
     private final MeterProfile profile;
     private final LineChannel channel;
     private final Clock clock;
+    private final java.util.regex.Pattern separator;
     private TestConditions wanted;
     private TestConditions applied;
     private long backoffMs;
@@ -31,6 +32,7 @@ public final class ProfileMeterSession implements MeterSession {
         this.profile = profile;
         this.channel = new LineChannel(transport, profile.terminator());
         this.clock = clock;
+        this.separator = java.util.regex.Pattern.compile(java.util.regex.Pattern.quote(profile.separator()));
     }
 
     public static ProfileMeterSession open(MeterProfile profile, Clock clock) {
@@ -115,7 +117,7 @@ public final class ProfileMeterSession implements MeterSession {
 
     private Reading parse(String reply) throws MeterException {
         String q = profile.measureQuery();
-        String[] parts = reply.trim().split(java.util.regex.Pattern.quote(profile.separator()), -1);
+        String[] parts = separator.split(reply.trim(), -1);
         List<MeterProfile.Field> fields = profile.fields();
         if (parts.length != fields.size())
             throw new MeterException(FaultKind.GARBLED, q, reply, "expected " + fields.size() + " fields, got " + parts.length);
