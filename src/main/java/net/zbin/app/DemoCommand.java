@@ -3,18 +3,20 @@ package net.zbin.app;
 import java.io.IOException;
 import java.io.InputStream;
 import java.io.PrintWriter;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Clock;
 import java.util.List;
 import java.util.Locale;
 import java.util.concurrent.Callable;
+import com.fasterxml.jackson.databind.node.ObjectNode;
 import net.zbin.app.daemon.Daemon;
 import net.zbin.core.PartType;
 import net.zbin.core.Recipe;
 import net.zbin.io.LineConfig;
+import net.zbin.io.Json;
 import net.zbin.io.LineConfigLoader;
+import net.zbin.io.Yaml;
 import net.zbin.io.meter.ProfileMeterSession;
 import net.zbin.io.mqtt.NoDelaySockets;
 import net.zbin.sim.Contacts;
@@ -60,12 +62,7 @@ public final class DemoCommand implements Callable<Integer> {
         try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("broker")));
              SimTcpServer meterServer = new SimTcpServer(meter, 0)) {
             Path cfgFile = dir.resolve("line.yaml");
-            Files.writeString(cfgFile, "line: demo\ndescription: " + sc.description() + "\n"
-                    + "mqtt: {broker: '" + broker.url() + "', topic_root: zbin}\n"
-                    + "meter:\n  profile: meters/zbin-sim.yaml\n  transport: {tcp: {host: 127.0.0.1, port: " + meterServer.port() + "}}\n"
-                    + "recipes: {dir: recipes, active: " + recipe + "}\n"
-                    + "state_dir: state\nrecords: {dir: records, flush_ms: 200}\n"
-                    + "handler: {deadline_ms: " + sc.handler().deadlineMs() + "}\ndashboard: {interval_s: 2}\n", StandardCharsets.UTF_8);
+            Files.write(cfgFile, Yaml.mapper().writeValueAsBytes(lineConfig(sc, broker.url(), meterServer.port(), recipe)));
             LineConfig cfg = LineConfigLoader.load(cfgFile);
             o.printf(Locale.ROOT, "zbin demo: %s%n  broker %s, meter simulator on 127.0.0.1:%d, recipe %s, lot %s, %d parts at up to %.0f/s%n",
                     sc.description(), broker.url(), meterServer.port(), recipe, sc.lot().id(), parts, rate);
@@ -99,6 +96,23 @@ public final class DemoCommand implements Callable<Integer> {
             o.println(clean ? "demo ok: every trigger got exactly one decision" : "demo: answers were missing, duplicated or contradictory");
             return clean ? Main.EXIT_OK : Main.EXIT_RUNTIME;
         }
+    }
+
+    /** The demo line's config, as a tree: Jackson writes the YAML, so any scenario text is quoted right. */
+    static ObjectNode lineConfig(Scenario sc, String brokerUrl, int meterPort, String recipe) {
+        ObjectNode n = Json.object();
+        n.put("line", "demo");
+        n.put("description", sc.description());
+        n.putObject("mqtt").put("broker", brokerUrl).put("topic_root", "zbin");
+        ObjectNode meter = n.putObject("meter");
+        meter.put("profile", "meters/zbin-sim.yaml");
+        meter.putObject("transport").putObject("tcp").put("host", "127.0.0.1").put("port", meterPort);
+        n.putObject("recipes").put("dir", "recipes").put("active", recipe);
+        n.put("state_dir", "state");
+        n.putObject("records").put("dir", "records").put("flush_ms", 200);
+        n.putObject("handler").put("deadline_ms", sc.handler().deadlineMs());
+        n.putObject("dashboard").put("interval_s", 2);
+        return n;
     }
 
     /** Copies the shipped recipes and meter profile out of the jar. */
