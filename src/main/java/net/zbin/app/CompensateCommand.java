@@ -71,12 +71,8 @@ public final class CompensateCommand implements Callable<Integer> {
         var out = spec.commandLine().getOut();
         try (ProfileMeterSession meter = ProfileMeterSession.open(cfg.meter(), Clock.systemUTC())) {
             List<Impedance> got = new CompensationCapture(meter, cfg.fixture(), Clock.systemUTC()).capture(k, conds, std, store);
-            for (Impedance z : got) {
-                String what = k == CompensationCapture.Kind.OPEN
-                        ? SiValue.format(z.cpF(), "F") + " stray, " + SiValue.format(z.gS(), "S")
-                        : SiValue.format(z.rOhm(), "ohm") + " + j" + SiValue.format(z.xOhm(), "ohm");
-                out.printf(Locale.ROOT, "%s at %s: %s%n", kind, SiValue.format(z.freqHz(), "Hz"), what);
-            }
+            for (Impedance z : got)
+                out.printf(Locale.ROOT, "%s at %s: %s%n", kind, SiValue.format(z.freqHz(), "Hz"), CompensationCapture.describe(k, z));
             out.println("stored in " + store.file());
             return Main.EXIT_OK;
         } catch (CompensationCapture.ImplausibleException e) {

@@ -39,8 +39,8 @@ import picocli.CommandLine.Option;
 public final class DemoCommand implements Callable<Integer> {
     @picocli.CommandLine.Mixin
     LotOptions lot;
-    @Option(names = "--rate", defaultValue = "50", paramLabel = "PER_S", description = "presentations per second at most (default ${DEFAULT-VALUE})")
-    double rate;
+    @picocli.CommandLine.Mixin
+    RateOption pace;
     @Option(names = "--out", paramLabel = "DIR", description = "folder for config, state and records (default: a new temp folder)")
     Path out;
 
@@ -50,7 +50,7 @@ public final class DemoCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         Scenario sc = lot.scenario();
-        if (!(rate > 0)) throw new UsageException("--rate must be > 0 (was " + rate + ")");
+        double rate = pace.perSecond();
         long parts = lot.parts;
         Path dir = out != null ? Files.createDirectories(out) : Files.createTempDirectory("zbin-demo-");
         unpackConfig(dir);

@@ -22,8 +22,8 @@ public final class SimHandlerCommand implements Callable<Integer> {
     String root;
     @picocli.CommandLine.Mixin
     LotOptions lot;
-    @Option(names = "--rate", defaultValue = "50", paramLabel = "PER_S", description = "presentations per second at most (default ${DEFAULT-VALUE})")
-    double rate;
+    @picocli.CommandLine.Mixin
+    RateOption pace;
     @Option(names = "--meter-sim", paramLabel = "HOST:PORT", description = "meter simulator to load parts into")
     String meterSim;
     @Option(names = "--deadline", paramLabel = "MS", description = "decision deadline (default: the scenario's)")
@@ -41,7 +41,7 @@ public final class SimHandlerCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         Scenario sc = lot.scenario();
-        if (!(rate > 0)) throw new UsageException("--rate must be > 0 (was " + rate + ")");
+        double rate = pace.perSecond();
         PartLoader loader = PartLoader.direct(new net.zbin.sim.Contacts());
         if (meterSim != null) {
             String[] hp = meterSim.split(":");

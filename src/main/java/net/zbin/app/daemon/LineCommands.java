@@ -90,9 +90,6 @@ final class LineCommands {
             std.add(new Impedance(r.freqHz(), sr.asDouble(), sx != null && sx.isNumber() ? sx.asDouble() : 0));
         }
         Impedance z = line.capture(k, List.of(r.test()), std).get(0);
-        String what = k == CompensationCapture.Kind.OPEN
-                ? SiValue.format(z.cpF(), "F") + " stray, " + SiValue.format(z.gS(), "S")
-                : SiValue.format(z.rOhm(), "ohm") + " + j" + SiValue.format(z.xOhm(), "ohm");
-        return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + what;
+        return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + CompensationCapture.describe(k, z);
     }
 }

@@ -7,6 +7,7 @@ import java.util.List;
 import net.zbin.core.FixtureLimits;
 import net.zbin.core.Impedance;
 import net.zbin.core.Reading;
+import net.zbin.core.SiValue;
 import net.zbin.core.TestConditions;
 import net.zbin.io.CompensationStore;
 
@@ -21,6 +22,13 @@ public final class CompensationCapture {
     /** A capture that was refused because the reading does not look like the fixture it claims to be. */
     public static final class ImplausibleException extends Exception {
         public ImplausibleException(String message) { super(message); }
+    }
+
+    /** A captured reading as people read fixtures: an open as stray C and G, a short or load as R + jX. */
+    public static String describe(Kind kind, Impedance z) {
+        return kind == Kind.OPEN
+                ? SiValue.format(z.cpF(), "F") + " stray, " + SiValue.format(z.gS(), "S")
+                : SiValue.format(z.rOhm(), "ohm") + " + j" + SiValue.format(z.xOhm(), "ohm");
     }
 
     private final MeterSession meter;
