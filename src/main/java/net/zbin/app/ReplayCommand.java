@@ -7,13 +7,13 @@ import java.nio.file.Path;
 import java.util.Locale;
 import java.util.concurrent.Callable;
 import net.zbin.core.BinTally;
+import net.zbin.core.Grader;
 import net.zbin.core.Recipe;
+import net.zbin.core.RecordedReading;
 import net.zbin.io.Json;
 import net.zbin.io.TallyJson;
 import net.zbin.io.ReadingSource;
-import net.zbin.io.RecipeLoader;
-import net.zbin.io.ReplayRow;
-import picocli.CommandLine.Command;
+import net.zbin.io.RecipeLoader;import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.Spec;
 import picocli.CommandLine.Model.CommandSpec;
@@ -51,11 +51,11 @@ public final class ReplayCommand implements Callable<Integer> {
             if (badRows[0]++ < maxShown) err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)");
             if (firstBad[0] == null) firstBad[0] = b;
         })) {
-            ReplayRow row;
+            RecordedReading row;
             while ((row = src.next()) != null) {
                 if (strict && firstBad[0] != null) break;
                 if (row.isCheck()) checks++;
-                else tally.add(Replay.grade(recipe, row));
+                else tally.add(Grader.regrade(recipe, row));
             }
         } catch (IOException e) {
             throw new UsageException(e.getMessage());

@@ -65,6 +65,21 @@ public final class Grader {
     }
 
     /**
+     * Grades a recorded reading again, as it was graded live: compensated R/X are graded as they
+     * stand, and a row without R/X (nothing was measured, e.g. a meter timeout or overload) is
+     * re-created from its reason.
+     */
+    public static Grading regrade(Recipe recipe, RecordedReading row) {
+        boolean hasZ = Double.isFinite(row.rOhm()) && Double.isFinite(row.xOhm());
+        if (!hasZ && row.reason() != null) return byReason(recipe, row.reason(), row.attempt());
+        if (!hasZ) return grade(recipe, new Reading(row.freqHz(), row.rOhm(), row.xOhm()), null, row.attempt());
+        Impedance z = new Impedance(row.freqHz(), row.rOhm(), row.xOhm());
+        double rawR = Double.isFinite(row.rawROhm()) ? row.rawROhm() : row.rOhm();
+        double rawX = Double.isFinite(row.rawXOhm()) ? row.rawXOhm() : row.xOhm();
+        return gradeCorrected(recipe, z, new Reading(row.freqHz(), rawR, rawX), row.comp(), row.attempt());
+    }
+
+    /**
      * Re-creates the grading of a reading that was not clean, from its reason code alone (replay
      * of a record whose reading is missing). Unknown codes count as a fault.
      */

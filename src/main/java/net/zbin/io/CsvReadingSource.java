@@ -11,6 +11,7 @@ import java.nio.file.Path;
 import java.util.Iterator;
 import java.util.Map;
 import java.util.function.Consumer;
+import net.zbin.core.RecordedReading;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVParser;
 import org.apache.commons.csv.CSVRecord;
@@ -69,7 +70,7 @@ final class CsvReadingSource implements ReadingSource {
     }
 
     @Override
-    public ReplayRow next() throws IOException {
+    public RecordedReading next() throws IOException {
         while (true) {
             CSVRecord rec;
             try {
@@ -91,7 +92,7 @@ final class CsvReadingSource implements ReadingSource {
         }
     }
 
-    private ReplayRow row(CSVRecord rec, long line) {
+    private RecordedReading row(CSVRecord rec, long line) {
         if (!rec.isConsistent()) throw new IllegalArgumentException("has " + rec.size() + " fields, header has " + header.size());
         String reason = opt(rec, "reason");
         double f = number(rec, "freq_hz", false);
@@ -112,7 +113,7 @@ final class CsvReadingSource implements ReadingSource {
         if (kind == null || kind.isEmpty()) kind = "part";
         if (!java.util.Set.of("part", "open", "short", "reference").contains(kind))
             throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
-        return new ReplayRow(line, f, r, x, optNumber(rec, "raw_r_ohm"), optNumber(rec, "raw_x_ohm"),
+        return new RecordedReading(line, f, r, x, optNumber(rec, "raw_r_ohm"), optNumber(rec, "raw_x_ohm"),
                 mayBeBlank ? reason : null, att, cs, kind);
     }
 

@@ -149,4 +149,19 @@ class GraderTest {
             }
         }
     }
+
+    @Test
+    void recordedReadings_regradeAsTheyWereGradedLive() {
+        Recipe r = cap(GradingMode.NESTED, NESTED, GuardBand.NONE, Gates.NONE);
+        Reading live = capReading(3, 0.01);
+        Grading first = Grader.grade(r, live, null, 0);
+        RecordedReading row = new RecordedReading(2, F, live.rOhm(), live.xOhm(), live.rOhm(), live.xOhm(), first.reason(), 0,
+                CompensationSource.NONE, "part");
+        assertEquals(first.bin(), Grader.regrade(r, row).bin());
+        // A meter timeout on a retest left no reading: its reason and attempt alone give the fault bin.
+        RecordedReading timeout = new RecordedReading(3, F, Double.NaN, Double.NaN, Double.NaN, Double.NaN, "meter-timeout", 1,
+                CompensationSource.NONE, "part");
+        assertEquals(Grader.fault(r, FaultKind.TIMEOUT, 1).bin(), Grader.regrade(r, timeout).bin());
+        assertEquals(13, Grader.regrade(r, timeout).bin());
+    }
 }

@@ -14,6 +14,7 @@ import net.zbin.core.Decision;
 import net.zbin.core.EquivalentModel;
 import net.zbin.core.Grading;
 import net.zbin.core.PrimaryParam;
+import net.zbin.core.RecordedReading;
 import net.zbin.core.Verdict;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
@@ -49,7 +50,7 @@ class RecordLogTest {
         assertEquals(101, lines.size());
         try (ReadingSource src = ReadingSource.open(f, b -> { throw new AssertionError(b.toString()); })) {
             int n = 0;
-            ReplayRow r;
+            RecordedReading r;
             while ((r = src.next()) != null) {
                 assertEquals(16.0, r.rOhm());
                 assertEquals(CompensationSource.USER, r.comp());

@@ -1,0 +1,23 @@
+package net.zbin.core;
+
+/**
+ * A reading as a record log (or any reading file) kept it, to be graded again. R/X are the
+ * compensated values (NaN when the row has none); {@code reason}, {@code attempt} and {@code comp}
+ * come from a record log and are null/0/NONE in a plain reading file.
+ *
+ * @param line    line number in the file it came from (1 = header), for messages
+ * @param freqHz  test frequency in Hz
+ * @param rOhm    compensated R in ohms
+ * @param xOhm    compensated X in ohms
+ * @param rawROhm raw R, NaN if absent
+ * @param rawXOhm raw X, NaN if absent
+ * @param reason  the recorded reason code, or null
+ * @param attempt 0 for a first presentation, n for the n-th retest
+ * @param comp    compensation that was applied to R/X
+ * @param kind    "part", or "open", "short", "reference" for the handler's fixture checks
+ */
+public record RecordedReading(long line, double freqHz, double rOhm, double xOhm, double rawROhm, double rawXOhm,
+                              String reason, int attempt, CompensationSource comp, String kind) {
+    /** True for the handler's fixture checks, which are not parts and are not graded again. */
+    public boolean isCheck() { return !kind.equals("part"); }
+}
