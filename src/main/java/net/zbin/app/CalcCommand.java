@@ -33,27 +33,27 @@ import picocli.CommandLine.Option;
                 "  zbin calc --freq 1M --r 0.5 --x -1007.3 --open-c 2p --json",
                 "  zbin calc --freq 1k --r 0.8 --x -1591 --recipe config/recipes/mlcc-x7r-100n.yaml"})
 public final class CalcCommand implements Callable<Integer> {
-    @Option(names = "--freq", required = true, paramLabel = "HZ", converter = SiConverter.class, description = "test frequency in Hz")
+    @Option(names = "--freq", required = true, paramLabel = "HZ", converter = SiConverter.Hertz.class, description = "test frequency in Hz")
     Double freq;
-    @Option(names = "--r", paramLabel = "OHM", converter = SiConverter.class, description = "measured R in Ω (with --x)")
+    @Option(names = "--r", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "measured R in Ω (with --x)")
     Double r;
-    @Option(names = "--x", paramLabel = "OHM", converter = SiConverter.class, description = "measured X in Ω, negative for capacitive (with --r)")
+    @Option(names = "--x", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "measured X in Ω, negative for capacitive (with --r)")
     Double x;
-    @Option(names = "--z", paramLabel = "OHM", converter = SiConverter.class, description = "measured |Z| in Ω (with --theta)")
+    @Option(names = "--z", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "measured |Z| in Ω (with --theta)")
     Double z;
-    @Option(names = "--theta", paramLabel = "DEG", converter = SiConverter.class, description = "measured phase in degrees, -90..90 (with --z)")
+    @Option(names = "--theta", paramLabel = "DEG", converter = SiConverter.Degree.class, description = "measured phase in degrees, -90..90 (with --z)")
     Double theta;
-    @Option(names = "--open-r", paramLabel = "OHM", converter = SiConverter.class, description = "open compensation: fixture R in Ω (with --open-x)")
+    @Option(names = "--open-r", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "open compensation: fixture R in Ω (with --open-x)")
     Double openR;
-    @Option(names = "--open-x", paramLabel = "OHM", converter = SiConverter.class, description = "open compensation: fixture X in Ω")
+    @Option(names = "--open-x", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "open compensation: fixture X in Ω")
     Double openX;
-    @Option(names = "--open-c", paramLabel = "F", converter = SiConverter.class, description = "open compensation as stray capacitance in F (e.g. 2p)")
+    @Option(names = "--open-c", paramLabel = "F", converter = SiConverter.Farad.class, description = "open compensation as stray capacitance in F (e.g. 2p)")
     Double openC;
-    @Option(names = "--open-g", paramLabel = "S", converter = SiConverter.class, description = "stray conductance in S with --open-c (default 0)")
+    @Option(names = "--open-g", paramLabel = "S", converter = SiConverter.Siemens.class, description = "stray conductance in S with --open-c (default 0)")
     Double openG;
-    @Option(names = "--short-r", paramLabel = "OHM", converter = SiConverter.class, description = "short compensation: residual R in Ω (with --short-x)")
+    @Option(names = "--short-r", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "short compensation: residual R in Ω (with --short-x)")
     Double shortR;
-    @Option(names = "--short-x", paramLabel = "OHM", converter = SiConverter.class, description = "short compensation: residual X in Ω")
+    @Option(names = "--short-x", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "short compensation: residual X in Ω")
     Double shortX;
     @Option(names = "--recipe", paramLabel = "FILE", description = "grade the reading with this recipe")
     Path recipeFile;
@@ -74,15 +74,16 @@ public final class CalcCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         Impedance zc = corrected.orElse(null);
         PartType guess = recipe != null ? recipe.partType() : guessType(zc);
-        ModelPolicy policy = recipe != null ? recipe.model() : ModelPolicy.DEFAULT;
-        ModelPolicy.Choice choice = zc == null ? null : policy.choose(guess, zc.zOhm());
+        // With a recipe the model is the recipe's, resolved once from its nominal; without one, from this reading.
+        ModelPolicy.Choice choice = recipe != null ? recipe.modelChoice()
+                : zc == null ? null : ModelPolicy.DEFAULT.choose(guess, zc.zOhm());
         Decision decision = null;
         if (recipe != null) {
             Grading g = Grader.grade(recipe, Reading.of(raw), comp, 0);
             decision = new Decision(-1, null, null, "part", recipe.name(), g, Double.NaN, false, 0);
         }
         if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(raw, zc, comp, choice, decision)));
-        else printText(out, raw, zc, comp, choice, decision);
+        else printText(out, raw, zc, comp, choice, decision, recipe);
         return Main.EXIT_OK;
     }
 
@@ -153,7 +154,8 @@ public final class CalcCommand implements Callable<Integer> {
         return n;
     }
 
-    private static void printText(PrintWriter out, Impedance raw, Impedance z, Compensation comp, ModelPolicy.Choice choice, Decision d) {
+    private static void printText(PrintWriter out, Impedance raw, Impedance z, Compensation comp, ModelPolicy.Choice choice, Decision d,
+                                  Recipe recipe) {
         out.printf(Locale.ROOT, "Reading at %s%n", SiValue.format(raw.freqHz(), "Hz"));
         out.printf(Locale.ROOT, "  as read      R = %-12s X = %s%n", SiValue.format(raw.rOhm(), "ohm"), SiValue.format(raw.xOhm(), "ohm"));
         if (comp.isApplied())
@@ -165,8 +167,11 @@ public final class CalcCommand implements Callable<Integer> {
             out.printf(Locale.ROOT, "  Cs  = %-12s Cp = %s%n", SiValue.format(z.csF(), "F"), SiValue.format(z.cpF(), "F"));
             out.printf(Locale.ROOT, "  Ls  = %-12s Lp = %s%n", SiValue.format(z.lsH(), "H"), SiValue.format(z.lpH(), "H"));
             out.printf(Locale.ROOT, "  Rs  = %-12s Rp = %s%n", SiValue.format(z.rsOhm(), "ohm"), SiValue.format(z.rpOhm(), "ohm"));
-            out.printf(Locale.ROOT, "  D   = %-12.5g Q  = %-10.5g ESR = %s%n", z.d(), z.q(), SiValue.format(z.esrOhm(), "ohm"));
-            out.printf(Locale.ROOT, "  model: %s (%s)%n", choice.model().key(), choice.reason());
+            out.printf(Locale.ROOT, "  D   = %-12s Q  = %-10s ESR = %s%n", SiValue.ratio(z.d()), SiValue.ratio(z.q()), SiValue.format(z.esrOhm(), "ohm"));
+        }
+        if (choice != null) {
+            out.printf(Locale.ROOT, "  model: %s (%s)%n", choice.model().key(), recipe == null
+                    ? choice.reason() + ", from this reading's |Z|" : RecipeText.modelWhy(recipe));
         }
         if (d != null) {
             Grading g = d.grading();

@@ -31,7 +31,7 @@ public final class CheckCommand implements Callable<Integer> {
         var out = spec.commandLine().getOut();
         if (target.recipe != null) {
             Recipe r = RecipeLoader.load(target.recipe);
-            RecipeText.print(out, r);
+            RecipeText.print(out, r, "fixture defaults; a line config may set its own");
             out.println("ok: " + target.recipe);
             return Main.EXIT_OK;
         }

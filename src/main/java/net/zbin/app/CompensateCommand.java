@@ -33,11 +33,11 @@ public final class CompensateCommand implements Callable<Integer> {
     Path config;
     @Parameters(index = "0", paramLabel = "open|short|load", description = "what is on the contacts")
     String kind;
-    @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.class, split = ",", description = "frequencies (repeat or comma-separate)")
+    @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.Hertz.class, split = ",", description = "frequencies (repeat or comma-separate)")
     List<Double> freqs;
-    @Option(names = "--std-r", paramLabel = "OHM", converter = SiConverter.class, description = "load standard's true R (load only)")
+    @Option(names = "--std-r", paramLabel = "OHM", converter = SiConverter.Ohm.class, description = "load standard's true R (load only)")
     Double stdR;
-    @Option(names = "--std-x", paramLabel = "OHM", converter = SiConverter.class, defaultValue = "0", description = "load standard's true X (default 0)")
+    @Option(names = "--std-x", paramLabel = "OHM", converter = SiConverter.Ohm.class, defaultValue = "0", description = "load standard's true X (default 0)")
     Double stdX;
 
     @picocli.CommandLine.Spec
@@ -56,7 +56,7 @@ public final class CompensateCommand implements Callable<Integer> {
         Recipe active = RecipeLoader.load(cfg.recipeDir().resolve(cfg.activeRecipe() + ".yaml"));
         TreeSet<Double> fs = new TreeSet<>();
         if (freqs != null && !freqs.isEmpty()) fs.addAll(freqs);
-        else for (Recipe r : Recipes.all(cfg.recipeDir())) fs.add(r.freqHz());
+        else for (Recipe r : Recipes.all(cfg.recipeDir(), cfg.bounds())) fs.add(r.freqHz());
         List<TestConditions> conds = new ArrayList<>();
         List<Impedance> std = new ArrayList<>();
         for (double f : fs) {

@@ -27,11 +27,16 @@ final class ConfigCheck {
                 t.serial() != null ? "serial " + t.serial().port() + " " + t.serial().baud() + " baud" : "tcp " + t.tcpHost() + ":" + t.tcpPort());
         CompensationStore store = CompensationStore.load(c.stateDir());
         out.printf(Locale.ROOT, "  recipes in %s:%n", c.recipeDir());
-        for (Recipe r : Recipes.all(c.recipeDir())) {
+        for (Recipe r : Recipes.all(c.recipeDir(), c.bounds())) {
             Compensation comp = store.forFrequency(r.freqHz());
             out.printf(Locale.ROOT, "    %s %-22s %s at %s, compensation %s%n", r.name().equals(c.activeRecipe()) ? "*" : " ",
                     r.name(), SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.freqHz(), "Hz"),
                     comp.isApplied() ? "taken " + comp.takenAt() : "none");
+            if (r.needsOpenCompensation() || r.needsShortCompensation())
+                out.printf(Locale.ROOT, "        grades nothing without %s compensation: %s, %s is within %.0f× of this fixture's bare %s%n",
+                        r.needsOpenCompensation() && r.needsShortCompensation() ? "open and short" : r.needsOpenCompensation() ? "open" : "short",
+                        SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.idealZOhm(), "ohm"),
+                        net.zbin.core.FixtureBounds.MARGIN, r.needsOpenCompensation() ? "open" : "short");
         }
         out.printf(Locale.ROOT, "  state %s; records %s (flush every %d ms, rotate at %.4g MiB, %s on write failure)%n", c.stateDir(),
                 c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,

@@ -131,9 +131,9 @@ public final class DemoCommand implements Callable<Integer> {
     /** The shipped recipe for the scenario's part (same type and nominal). */
     static String recipeFor(Scenario sc, Path recipes) throws Exception {
         PartType type = sc.part().partType();
-        for (Recipe r : Recipes.all(recipes))
+        for (Recipe r : Recipes.all(recipes, net.zbin.core.FixtureBounds.DEFAULT))
             if (r.partType() == type && Math.abs(r.nominal() - sc.part().nominal()) <= 1e-9 * r.nominal()) return r.name();
-        throw new UsageException("no shipped recipe sorts a " + type.key() + " of nominal " + sc.part().nominal()
+        throw new UsageException("no shipped recipe sorts " + type.withArticle() + " of nominal " + sc.part().nominal()
                 + " (scenario " + sc.scenario() + ")");
     }
 }

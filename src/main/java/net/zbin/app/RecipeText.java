@@ -4,35 +4,32 @@ import java.io.PrintWriter;
 import java.util.Locale;
 import net.zbin.core.Grade;
 import net.zbin.core.GradingMode;
+import net.zbin.core.ModelPolicy;
 import net.zbin.core.Recipe;
 import net.zbin.core.SiValue;
 
-/** A recipe described for people: what the meter is set to and which bin takes which part. */
+/** A recipe described for people: what the meter is set to, which model, and which bin takes which part. */
 final class RecipeText {
     private RecipeText() {}
 
-    static void print(PrintWriter out, Recipe r) {
+    static void print(PrintWriter out, Recipe r, String fixtureSource) {
         String unit = r.partType().unit();
-        out.printf(Locale.ROOT, "recipe %s: %s, nominal %s%n", r.name(), r.partType().key(), SiValue.format(r.nominal(), unit));
+        int digits = digits(r);
+        out.printf(Locale.ROOT, "recipe %s: %s, nominal %s%n", r.name(), r.partType().key(), SiValue.format(r.nominal(), unit, digits));
         var t = r.test();
         out.printf(Locale.ROOT, "  test: %s, %s rms, speed %s, averaging %d%n", SiValue.format(t.freqHz(), "Hz"),
                 SiValue.format(t.levelV(), "V"), t.speed(), t.averaging());
-        var m = r.model();
-        out.printf(Locale.ROOT, "  model: %s (series below %s, parallel above %s), primary %s%n",
-                m.mode().name().toLowerCase(Locale.ROOT), SiValue.format(m.seriesBelowOhm(), "ohm"),
-                SiValue.format(m.parallelAboveOhm(), "ohm"), r.primary() == null ? "by model" : r.primary().label());
+        out.printf(Locale.ROOT, "  model: %s, primary %s — %s%n", r.equivalentModel().key(), r.primaryParam().label(), modelWhy(r));
+        GradingMode mode = r.mode();
         double w = r.guard().widthPct();
-        out.printf(Locale.ROOT, "  grades (%s%s):%n", r.mode() == GradingMode.NESTED ? "nested, first match wins" : "sequential",
-                w > 0 ? String.format(Locale.ROOT, ", guard band %.4g %% per %s", w,
-                        r.mode() == GradingMode.NESTED ? "edge" : "outer edge") : "");
-        for (int i = 0; i < r.grades().size(); i++) {
-            Grade g = r.grades().get(i);
-            boolean guardLow = r.mode() == GradingMode.NESTED || i == 0;
-            boolean guardHigh = r.mode() == GradingMode.NESTED || i == r.grades().size() - 1;
-            double lo = g.lowPct() + (guardLow ? w : 0), hi = g.highPct() - (guardHigh ? w : 0);
-            out.printf(Locale.ROOT, "    bin %3d  %-8s %+8.4g %% .. %+8.4g %%   accepts %s .. %s%n", g.bin(), g.name(),
-                    g.lowPct(), g.highPct(), SiValue.format(r.nominal() * (1 + lo / 100), unit),
-                    SiValue.format(r.nominal() * (1 + hi / 100), unit));
+        out.printf(Locale.ROOT, "  grades (%s%s):%n", mode == GradingMode.CONCENTRIC ? "concentric, tightest first" : "ladder, low to high",
+                w > 0 ? String.format(Locale.ROOT, ", guard band %.4g %% of each limit", w) : "");
+        for (Grade g : r.grades()) {
+            double lo = g.acceptLowPct(r.guard()), hi = g.acceptHighPct(r.guard());
+            String pct = "%+." + (digits - 1) + "g";
+            out.printf(Locale.ROOT, "    bin %3d  %-8s %+.4g %% .. %+.4g %%   accepts %s .. %s (" + pct + " %% .. " + pct + " %%)%n",
+                    g.bin(), g.name(), g.lowPct(), g.highPct(), SiValue.format(r.nominal() * (1 + lo / 100), unit, digits),
+                    SiValue.format(r.nominal() * (1 + hi / 100), unit, digits), lo, hi);
         }
         var gt = r.gates();
         StringBuilder gates = new StringBuilder();
@@ -42,11 +39,59 @@ final class RecipeText {
         if (gt.thetaMinDeg() != null) gates.append(String.format(Locale.ROOT, " θ >= %.4g°", gt.thetaMinDeg()));
         if (gt.thetaMaxDeg() != null) gates.append(String.format(Locale.ROOT, " θ <= %.4g°", gt.thetaMaxDeg()));
         out.println("  gates:" + (gates.length() == 0 ? " none" : gates));
+        out.printf(Locale.ROOT, "  plausible phase: %.4g° .. %.4g° (outside: phase-implausible, gate bin)%n",
+                r.plausible().minDeg(), r.plausible().maxDeg());
         var rb = r.reject();
-        out.printf(Locale.ROOT, "  reject bins: low %d, high %d, gate %d, contact %d, short %d, overload %d, fault %d%n",
-                rb.low(), rb.high(), rb.gate(), rb.contact(), rb.shortBin(), rb.overload(), rb.fault());
-        out.printf(Locale.ROOT, "  retest: up to %d time(s) via bin %d; open contact above %.3g × ideal |Z|, short below %.3g ×%n",
-                r.retest().count(), r.retest().bin(), r.contact().openFactor(), r.contact().shortFactor());
-        out.printf(Locale.ROOT, "  compensation: %s%n", r.compensationRequired() ? "required" : "used when present");
+        out.printf(Locale.ROOT, "  reject bins: low %d, high %d, gate %d, contact %d, short %d, overload %d, fault %d, guard band %s%n",
+                rb.low(), rb.high(), rb.gate(), rb.contact(), rb.shortBin(), rb.overload(), rb.fault(),
+                rb.guard() >= 0 ? String.valueOf(rb.guard()) : "low/high by side");
+        out.printf(Locale.ROOT, "  retest: an unclean reading is sent back up to %d time(s) via bin %d, then rejected%n",
+                r.retest().count(), r.retest().bin());
+        double ideal = r.idealZOhm();
+        var c = r.contact();
+        out.printf(Locale.ROOT, "  contacts: open when %s is above %s (%.4g × ideal |Z| %s) or the reading is the fixture's open;"
+                        + " short when |Z| is below %s (%.4g ×) or the reading is the fixture's short%n",
+                r.partType() == net.zbin.core.PartType.RESISTOR ? "|Z|" : "|X|", SiValue.format(c.openFactor() * ideal, "ohm"),
+                c.openFactor(), SiValue.format(ideal, "ohm"), SiValue.format(c.shortFactor() * ideal, "ohm"), c.shortFactor());
+        out.printf(Locale.ROOT, "  compensation: %s%n", compensation(r, fixtureSource));
+    }
+
+    /** Significant digits that show the tightest grade's guarded limits apart from the nominal. */
+    static int digits(Recipe r) {
+        double tightest = Double.MAX_VALUE;
+        for (Grade g : r.grades()) tightest = Math.min(tightest, Math.min(Math.abs(g.acceptLowPct(r.guard())), Math.abs(g.acceptHighPct(r.guard()))));
+        if (!(tightest > 0)) tightest = 1e-3;
+        int d = (int) Math.ceil(-Math.log10(tightest / 100)) + 2;
+        return Math.max(4, Math.min(9, d));
+    }
+
+    static String modelWhy(Recipe r) {
+        ModelPolicy.Choice c = r.modelChoice();
+        String z = SiValue.format(r.idealZOhm(), "ohm");
+        if (c.reason().startsWith("primary-")) return "the recipe grades " + r.primaryParam().label() + ", a " + c.model().key() + " parameter";
+        return switch (c.reason()) {
+            case "forced-series", "forced-parallel" -> "model.mode is " + c.model().key();
+            case "low-z-series" -> "the nominal reads " + z + " at the test frequency, below " + SiValue.format(r.model().seriesBelowOhm(), "ohm");
+            case "high-z-parallel" -> "the nominal reads " + z + " at the test frequency, above " + SiValue.format(r.model().parallelAboveOhm(), "ohm");
+            default -> "the nominal reads " + z + " at the test frequency, in the mid range, where " + r.partType().key()
+                    + "s are graded " + c.model().key();
+        } + " (resolved once for the recipe, not per reading)";
+    }
+
+    private static String compensation(Recipe r, String fixtureSource) {
+        StringBuilder s = new StringBuilder(r.compensationRequired() ? "required by the recipe" : "used when present");
+        boolean open = r.needsOpenCompensation(), shortZ = r.needsShortCompensation();
+        if (open || shortZ) {
+            var f = r.contact().fixture();
+            s.append("; nothing is graded without ").append(open && shortZ ? "open and short" : open ? "open" : "short")
+                    .append(" compensation: the nominal (").append(SiValue.format(r.idealZOhm(), "ohm")).append(") is within ")
+                    .append(String.format(Locale.ROOT, "%.0f×", net.zbin.core.FixtureBounds.MARGIN)).append(" of what the bare fixture may read (");
+            if (open) s.append("open from ").append(SiValue.format(f.openZOhm(r.freqHz()), "ohm"))
+                    .append(", i.e. up to ").append(SiValue.format(f.openMaxF(), "F")).append(" of stray");
+            if (open && shortZ) s.append("; ");
+            if (shortZ) s.append("short up to ").append(SiValue.format(f.shortMaxOhm(), "ohm"));
+            s.append(", ").append(fixtureSource).append(")");
+        }
+        return s.toString();
     }
 }

@@ -6,6 +6,7 @@ import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.stream.Stream;
+import net.zbin.core.FixtureBounds;
 import net.zbin.core.Recipe;
 import net.zbin.io.ConfigException;
 import net.zbin.io.RecipeLoader;
@@ -14,10 +15,11 @@ import net.zbin.io.RecipeLoader;
 final class Recipes {
     private Recipes() {}
 
-    static List<Recipe> all(Path dir) throws ConfigException, IOException {
+    /** Each recipe on the line's fixture. */
+    static List<Recipe> all(Path dir, FixtureBounds fixture) throws ConfigException, IOException {
         List<Recipe> out = new ArrayList<>();
         try (Stream<Path> s = Files.list(dir)) {
-            for (Path p : s.filter(p -> p.toString().endsWith(".yaml")).sorted().toList()) out.add(RecipeLoader.load(p));
+            for (Path p : s.filter(p -> p.toString().endsWith(".yaml")).sorted().toList()) out.add(RecipeLoader.load(p).withFixture(fixture));
         }
         return out;
     }

@@ -30,7 +30,7 @@ import picocli.CommandLine.Option;
 public final class SimLotCommand implements Callable<Integer> {
     @picocli.CommandLine.Mixin
     LotOptions lot;
-    @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.class, description = "test frequency (default: the scenario's)")
+    @Option(names = "--freq", paramLabel = "HZ", converter = SiConverter.Hertz.class, description = "test frequency (default: the scenario's)")
     Double freq;
     @Option(names = "--speed", defaultValue = "NORMAL", paramLabel = "PACE", description = "meter pace: QUICK, NORMAL or FINE (default ${DEFAULT-VALUE})")
     String speed;

@@ -27,10 +27,15 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
                     + " passes nothing (Q = 1/D, so q_min must be <= " + 1 / dMax + ")");
     }
 
-    /** The reason code of the first gate the reading fails, or null when it passes all. */
+    /**
+     * The reason code of the first gate the reading fails, or null when it passes all. D and Q go
+     * through one quantity, D = R/|X| (Q ≥ q_min is D ≤ 1/q_min), so the two gates never disagree,
+     * also for an R that compensation left slightly below zero.
+     */
     public String firstFailure(Impedance z) {
-        if (dMax != null && !(z.d() <= dMax)) return "d-high";
-        if (qMin != null && !(z.q() >= qMin)) return "q-low";
+        double d = z.d();
+        if (dMax != null && !(d <= dMax)) return "d-high";
+        if (qMin != null && !(d <= 1 / qMin)) return "q-low";
         if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return "esr-high";
         double t = z.thetaDeg();
         if (thetaMinDeg != null && t < thetaMinDeg) return "theta-out";

@@ -9,9 +9,14 @@ package net.zbin.core;
  * @param highPct upper deviation limit in percent of nominal (e.g. +5)
  */
 public record Grade(String name, int bin, double lowPct, double highPct) {
-    public boolean contains(double devPct, double lowGuardPct, double highGuardPct) {
-        return devPct >= lowPct + lowGuardPct && devPct <= highPct - highGuardPct;
-    }
+    /** Lowest accepted deviation in percent: the low limit pulled in by its guard. */
+    public double acceptLowPct(GuardBand g) { return lowPct + g.atPct(lowPct); }
 
-    public double halfWidthPct() { return (highPct - lowPct) / 2; }
+    /** Highest accepted deviation in percent: the high limit pulled in by its guard. */
+    public double acceptHighPct(GuardBand g) { return highPct - g.atPct(highPct); }
+
+    /** Whether a deviation is accepted; the window is closed: [low + guard, high − guard]. */
+    public boolean accepts(double devPct, GuardBand g) {
+        return devPct >= acceptLowPct(g) && devPct <= acceptHighPct(g);
+    }
 }

@@ -24,13 +24,13 @@ public final class Grader {
             return unclean(recipe, attempt, "frequency-mismatch", rb.fault(), "fault", reading, null, CompensationSource.NONE);
         Impedance raw = new Impedance(f, reading.rOhm(), reading.xOhm());
         CompensationSource source = comp == null || !comp.isApplied() ? CompensationSource.NONE : comp.source();
-        if (source == CompensationSource.NONE) return gradeCorrected(recipe, raw, reading, source, attempt);
+        if (source == CompensationSource.NONE) return gradeCorrected(recipe, raw, reading, source, attempt, false, false);
         if (!Compensation.matches(comp.freqHz(), f))
             return unclean(recipe, attempt, "compensation-mismatch", rb.fault(), "fault", reading, null, source);
         Optional<Impedance> corrected = comp.correct(raw);
         if (corrected.isEmpty())
             return unclean(recipe, attempt, "open-contact", rb.contact(), "contact", reading, null, source);
-        return gradeCorrected(recipe, corrected.get(), reading, source, attempt);
+        return gradeCorrected(recipe, corrected.get(), reading, source, attempt, comp.open() != null, comp.shortZ() != null);
     }
 
     /**
@@ -38,26 +38,42 @@ public final class Grader {
      * tail of {@link #grade}). {@code raw} keeps the reading as the meter gave it.
      */
     public static Grading gradeCorrected(Recipe recipe, Impedance z, Reading raw, CompensationSource source, int attempt) {
+        return gradeCorrected(recipe, z, raw, source, attempt, source != CompensationSource.NONE, source != CompensationSource.NONE);
+    }
+
+    /**
+     * As above, saying which sides of the compensation were applied, so that an open or a short is
+     * judged against the stored fixture where there is one and against any uncompensated fixture where
+     * there is none.
+     */
+    public static Grading gradeCorrected(Recipe recipe, Impedance z, Reading raw, CompensationSource source, int attempt,
+                                         boolean openCompensated, boolean shortCompensated) {
         RejectBins rb = recipe.reject();
         double f = z.freqHz();
         if (!Compensation.matches(f, recipe.freqHz()))
             return unclean(recipe, attempt, "frequency-mismatch", rb.fault(), "fault", raw, null, source);
-        if (source == CompensationSource.NONE && recipe.compensationRequired())
+        boolean missing = source == CompensationSource.NONE && recipe.compensationRequired()
+                || recipe.needsOpenCompensation() && !openCompensated
+                || recipe.needsShortCompensation() && !shortCompensated;
+        if (missing)
             return unclean(recipe, attempt, "no-compensation", rb.fault(), "fault", raw, null, source);
-        double ideal = recipe.partType().idealZOhm(recipe.nominal(), f);
-        double zOhm = z.zOhm();
-        if (zOhm > recipe.contact().openFactor() * ideal)
+        double ideal = recipe.idealZOhm();
+        ContactCheck contact = recipe.contact();
+        if (contact.isOpen(recipe.partType(), ideal, z, openCompensated))
             return unclean(recipe, attempt, "open-contact", rb.contact(), "contact", raw, z, source);
-        if (zOhm < recipe.contact().shortFactor() * ideal)
+        if (contact.isShort(ideal, z, shortCompensated))
             return unclean(recipe, attempt, "short", rb.shortBin(), "short", raw, z, source);
+        if (contact.fixture().negativeBeyondResolution(z))
+            return unclean(recipe, attempt, "negative-r", rb.fault(), "fault", raw, z, source);
 
-        ModelPolicy.Choice choice = recipe.model().choose(recipe.partType(), zOhm);
-        PrimaryParam param = recipe.primary() != null ? recipe.primary() : PrimaryParam.of(recipe.partType(), choice.model());
-        EquivalentModel model = param.model() != null ? param.model() : choice.model();
+        PrimaryParam param = recipe.primaryParam();
+        EquivalentModel model = recipe.equivalentModel();
         double value = z.value(param);
         double dev = (value - recipe.nominal()) / recipe.nominal() * 100;
         if (!(value > 0) || !Double.isFinite(value))
             return done(rb.low(), "low", Verdict.FAIL, "wrong-sign", model, param, value, dev, raw, z, source);
+        if (!recipe.plausible().admits(z))
+            return done(rb.gate(), "gate", Verdict.FAIL, "phase-implausible", model, param, value, dev, raw, z, source);
         String gate = recipe.gates().firstFailure(z);
         if (gate != null)
             return done(rb.gate(), "gate", Verdict.FAIL, gate, model, param, value, dev, raw, z, source);
@@ -101,34 +117,33 @@ public final class Grader {
 
     private static Grading byValue(Recipe r, double dev, EquivalentModel model, PrimaryParam param, double value,
                                    Reading reading, Impedance z, CompensationSource source) {
-        double w = r.guard().widthPct();
+        GuardBand gb = r.guard();
         var grades = r.grades();
         Grade first = grades.get(0), last = grades.get(grades.size() - 1);
-        if (r.mode() == GradingMode.NESTED) {
+        if (r.mode() == GradingMode.CONCENTRIC) {
             for (Grade g : grades)
-                if (g.contains(dev, w, w))
+                if (g.accepts(dev, gb))
                     return done(g.bin(), g.name(), Verdict.PASS, "in-grade", model, param, value, dev, reading, z, source);
-            Grade widest = last;
-            if (dev < widest.lowPct() || dev > widest.highPct())
-                return outside(r, dev < widest.lowPct(), model, param, value, dev, reading, z, source);
-            boolean lowSide = dev < (widest.lowPct() + widest.highPct()) / 2;
-            return done(lowSide ? r.reject().low() : r.reject().high(), lowSide ? "low" : "high", Verdict.FAIL,
-                    "guard-band", model, param, value, dev, reading, z, source);
+            if (dev < last.lowPct() || dev > last.highPct())
+                return outside(r, dev < last.lowPct(), model, param, value, dev, reading, z, source);
+            return guarded(r, dev < (last.lowPct() + last.highPct()) / 2, model, param, value, dev, reading, z, source);
         }
         if (dev < first.lowPct() || dev > last.highPct())
             return outside(r, dev < first.lowPct(), model, param, value, dev, reading, z, source);
-        if (dev < first.lowPct() + w || dev > last.highPct() - w) {
-            boolean lowSide = dev < first.lowPct() + w;
-            return done(lowSide ? r.reject().low() : r.reject().high(), lowSide ? "low" : "high", Verdict.FAIL,
-                    "guard-band", model, param, value, dev, reading, z, source);
-        }
-        for (int i = 0; i < grades.size(); i++) {
+        // Adjacent ranges, every edge guarded; at an unguarded inner edge the upper range takes the part.
+        for (int i = grades.size() - 1; i >= 0; i--) {
             Grade g = grades.get(i);
-            boolean lastOne = i == grades.size() - 1;
-            if (dev >= g.lowPct() && (dev < g.highPct() || lastOne && dev <= g.highPct()))
+            if (g.accepts(dev, gb))
                 return done(g.bin(), g.name(), Verdict.PASS, "in-grade", model, param, value, dev, reading, z, source);
         }
-        throw new IllegalStateException("sequential grades are contiguous, yet dev " + dev + " % matched none");
+        boolean lowSide = dev < first.acceptLowPct(gb) || dev <= last.acceptHighPct(gb) && dev < 0;
+        return guarded(r, lowSide, model, param, value, dev, reading, z, source);
+    }
+
+    private static Grading guarded(Recipe r, boolean lowSide, EquivalentModel model, PrimaryParam param, double value,
+                                   double dev, Reading reading, Impedance z, CompensationSource source) {
+        return done(r.reject().guardBin(lowSide), lowSide ? "low" : "high", Verdict.FAIL, "guard-band", model, param,
+                value, dev, reading, z, source);
     }
 
     private static Grading outside(Recipe r, boolean low, EquivalentModel model, PrimaryParam param, double value,

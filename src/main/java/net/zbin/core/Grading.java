@@ -2,8 +2,10 @@ package net.zbin.core;
 
 /**
  * The outcome of grading one reading: what the handler gets (bin, verdict) and what explains it.
- * Quantities that do not exist for this outcome (no reading, or no clean one) are NaN; payload
- * writers turn NaN into JSON null.
+ * Quantities that do not exist for this outcome are NaN; payload writers turn NaN into JSON null. D, Q,
+ * ESR and θ exist only where a value was computed (a graded part, or one failed on its value, phase or
+ * gates): an open contact, a short or a fault carries its R and X for diagnosis, but no loss figures,
+ * since they would describe the fixture, not a part.
  *
  * @param bin       handler bin number
  * @param grade     grade name for a pass, the reject class otherwise ("low", "high", "gate", …)
@@ -25,13 +27,15 @@ public record Grading(int bin, String grade, Verdict verdict, String reason, Equ
                       double rawROhm, double rawXOhm, CompensationSource comp) {
     private boolean hasZ() { return Double.isFinite(rOhm) && Double.isFinite(xOhm) && freqHz > 0; }
 
+    private boolean hasValue() { return param != null && hasZ(); }
+
     /** The compensated impedance, or null when there is none. */
     public Impedance impedance() { return hasZ() ? new Impedance(freqHz, rOhm, xOhm) : null; }
 
-    public double d() { return hasZ() ? impedance().d() : Double.NaN; }
-    public double q() { return hasZ() ? impedance().q() : Double.NaN; }
-    public double esrOhm() { return hasZ() ? rOhm : Double.NaN; }
-    public double thetaDeg() { return hasZ() ? impedance().thetaDeg() : Double.NaN; }
+    public double d() { return hasValue() ? impedance().d() : Double.NaN; }
+    public double q() { return hasValue() ? impedance().q() : Double.NaN; }
+    public double esrOhm() { return hasValue() ? rOhm : Double.NaN; }
+    public double thetaDeg() { return hasValue() ? impedance().thetaDeg() : Double.NaN; }
     public double zOhm() { return hasZ() ? impedance().zOhm() : Double.NaN; }
     public String unit() { return param == null ? null : param.unit(); }
 }

@@ -15,6 +15,8 @@ public record Impedance(double freqHz, double rOhm, double xOhm) {
         Checks.positive("freqHz", freqHz);
         Checks.finite("rOhm", rOhm);
         Checks.finite("xOhm", xOhm);
+        rOhm += 0.0; // −0 is 0: "--r -0" and "--r 0" are the same reading
+        xOhm += 0.0;
     }
 
     /** Builds from magnitude in ohms and phase in degrees, as many meters report. */
@@ -61,11 +63,14 @@ public record Impedance(double freqHz, double rOhm, double xOhm) {
     /** Parallel resistance in ohms, 1/G. */
     public double rpOhm() { return 1 / gS(); }
 
-    /** Dissipation factor D = R/|X| = tan δ; the same in series and parallel models. */
+    /**
+     * Dissipation factor D = R/|X| = tan δ; the same in series and parallel models. +∞ for a pure
+     * resistance (X = 0); slightly negative when compensation left R just below zero.
+     */
     public double d() { return rOhm / Math.abs(xOhm); }
 
-    /** Quality factor Q = |X|/R = 1/D. */
-    public double q() { return Math.abs(xOhm) / rOhm; }
+    /** Quality factor Q = 1/D; +∞ when R ≤ 0 (no loss the meter can see), 0 for a pure resistance. */
+    public double q() { return rOhm > 0 ? Math.abs(xOhm) / rOhm : Double.POSITIVE_INFINITY; }
 
     /** Equivalent series resistance in ohms (the series-model R). */
     public double esrOhm() { return rOhm; }

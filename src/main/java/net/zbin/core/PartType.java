@@ -28,6 +28,9 @@ public enum PartType {
 
     public String key() { return name().toLowerCase(Locale.ROOT); }
 
+    /** "a capacitor", "an inductor", "a resistor". */
+    public String withArticle() { return (this == INDUCTOR ? "an " : "a ") + key(); }
+
     public static PartType parse(String s) {
         for (PartType t : values()) if (t.key().equalsIgnoreCase(s)) return t;
         throw new IllegalArgumentException("unknown part type '" + s + "' (expected capacitor, inductor or resistor)");

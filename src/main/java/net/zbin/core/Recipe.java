@@ -16,10 +16,11 @@ import java.util.Set;
  * @param test        meter conditions
  * @param model       equivalent-model policy
  * @param primary     graded parameter, or null to follow the chosen model
- * @param mode        nested or sequential grades
+ * @param mode        concentric or ladder grades
  * @param grades      value grades in file order
  * @param guard       guard band on acceptance limits
  * @param gates       D/Q/ESR/θ limits
+ * @param plausible   phase a reading must have to be graded as this part type (null: the type's default)
  * @param reject      bins for parts without a value grade
  * @param retest      retest count and bin
  * @param contact     open/short detection
@@ -27,7 +28,7 @@ import java.util.Set;
  */
 public record Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model,
                      PrimaryParam primary, GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates,
-                     RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
+                     PhaseWindow plausible, RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
     public Recipe {
         if (name == null || !name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new SpecException("recipe", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + name + "')");
@@ -38,25 +39,29 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         if (grades == null || grades.isEmpty()) throw new SpecException("grades", "at least one grade is required");
         grades = List.copyOf(grades);
         if (model == null) model = ModelPolicy.DEFAULT;
-        if (mode == null) mode = GradingMode.NESTED;
+        if (mode == null) mode = GradingMode.CONCENTRIC;
         if (guard == null) guard = GuardBand.NONE;
         if (gates == null) gates = Gates.NONE;
+        if (plausible == null) plausible = PhaseWindow.defaultFor(partType);
         if (contact == null) contact = ContactCheck.DEFAULT;
         if (reject == null) throw new SpecException("reject", "is required (bins for low, high, gate, contact, short, overload, fault)");
         if (retest == null) throw new SpecException("retest", "is required (count and bin)");
-        checkPrimary(partType, primary, model);
+        checkPrimary(partType, primary, model, gates);
         checkGrades(grades, mode, guard);
         checkBins(grades, reject, retest);
     }
 
-    private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model) {
+    private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model, Gates gates) {
         if (p == null) return;
+        if (p == PrimaryParam.Z && (gates.thetaMinDeg() == null || gates.thetaMaxDeg() == null))
+            throw new SpecException("primary", "Z grades |Z| whatever the phase: give gates.theta_min_deg and "
+                    + "gates.theta_max_deg too, so a reactance is never sorted as a resistor");
         boolean fits = switch (type) {
             case CAPACITOR -> p == PrimaryParam.CS || p == PrimaryParam.CP;
             case INDUCTOR -> p == PrimaryParam.LS || p == PrimaryParam.LP;
             case RESISTOR -> p == PrimaryParam.RS || p == PrimaryParam.RP || p == PrimaryParam.Z;
         };
-        if (!fits) throw new SpecException("primary", p.label() + " is not a parameter of a " + type.key());
+        if (!fits) throw new SpecException("primary", p.label() + " is not a parameter of " + type.withArticle());
         if (p.model() != null && model.mode() != ModelPolicy.Mode.AUTO
                 && !p.model().key().equals(model.mode().name().toLowerCase(java.util.Locale.ROOT)))
             throw new SpecException("primary", p.label() + " is a " + p.model().key() + " parameter but model.mode is "
@@ -78,33 +83,30 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
                 throw new SpecException(k, "low limit must be above -100 % (was " + g.lowPct() + " %)");
             if (g.bin() < 0 || g.bin() > 999) throw new SpecException(k + ".bin", "bin must be 0..999 (was " + g.bin() + ")");
         }
-        if (mode == GradingMode.NESTED) {
+        if (mode == GradingMode.CONCENTRIC) {
             for (int i = 1; i < grades.size(); i++) {
                 Grade prev = grades.get(i - 1), g = grades.get(i);
                 if (g.lowPct() > prev.lowPct() || g.highPct() < prev.highPct()
                         || (g.lowPct() == prev.lowPct() && g.highPct() == prev.highPct()))
-                    throw new SpecException("grades[" + i + "]", "nested grades must widen, tightest first: '" + g.name()
+                    throw new SpecException("grades[" + i + "]", "concentric grades must widen, tightest first: '" + g.name()
                             + "' [" + g.lowPct() + ", " + g.highPct() + "] % does not contain '" + prev.name()
                             + "' [" + prev.lowPct() + ", " + prev.highPct() + "] %");
             }
-            Grade tight = grades.get(0);
-            if (guard.widthPct() >= tight.halfWidthPct())
-                throw new SpecException(guard.key(), "guard band " + guard.widthPct() + " % leaves grade '" + tight.name()
-                        + "' no acceptance (half-width " + tight.halfWidthPct() + " %)");
         } else {
             for (int i = 1; i < grades.size(); i++) {
                 Grade prev = grades.get(i - 1), g = grades.get(i);
                 if (g.lowPct() < prev.highPct())
-                    throw new SpecException("grades[" + i + "]", "sequential grades overlap or are not ascending: '" + g.name()
+                    throw new SpecException("grades[" + i + "]", "ladder grades overlap or are not ascending: '" + g.name()
                             + "' starts at " + g.lowPct() + " % but '" + prev.name() + "' ends at " + prev.highPct() + " %");
                 if (g.lowPct() > prev.highPct())
-                    throw new SpecException("grades[" + i + "]", "sequential grades must be contiguous: gap between '" + prev.name()
+                    throw new SpecException("grades[" + i + "]", "ladder grades must be adjacent: gap between '" + prev.name()
                             + "' (ends " + prev.highPct() + " %) and '" + g.name() + "' (starts " + g.lowPct() + " %)");
             }
-            Grade first = grades.get(0), last = grades.get(grades.size() - 1);
-            if (guard.widthPct() >= first.halfWidthPct() || guard.widthPct() >= last.halfWidthPct())
-                throw new SpecException(guard.key(), "guard band " + guard.widthPct() + " % is as wide as half an outer grade");
         }
+        for (Grade g : grades)
+            if (g.acceptLowPct(guard) >= g.acceptHighPct(guard))
+                throw new SpecException(guard.key(), "guard band " + guard.widthPct() + " % of the limit leaves grade '" + g.name()
+                        + "' [" + g.lowPct() + ", " + g.highPct() + "] % no acceptance");
     }
 
     private static void checkBins(List<Grade> grades, RejectBins reject, RetestPolicy retest) {
@@ -126,4 +128,41 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
 
     /** Frequency the recipe measures at, in Hz. */
     public double freqHz() { return test.freqHz(); }
+
+    /** |Z| in Ω an ideal part of the nominal shows at the test frequency. */
+    public double idealZOhm() { return partType.idealZOhm(nominal, test.freqHz()); }
+
+    /**
+     * The equivalent model, resolved once from the recipe and never per reading: by the primary
+     * parameter when it belongs to one model, else by the policy on the nominal's ideal |Z|. Grading a
+     * part is then monotonic in its value across the whole range.
+     */
+    public ModelPolicy.Choice modelChoice() {
+        if (primary != null && primary.model() != null && model.mode() == ModelPolicy.Mode.AUTO)
+            return new ModelPolicy.Choice(primary.model(), "primary-" + primary.label());
+        return model.choose(partType, idealZOhm());
+    }
+
+    /** The graded parameter: the one named, or the value of the resolved model. */
+    public PrimaryParam primaryParam() {
+        return primary != null ? primary : PrimaryParam.of(partType, modelChoice().model());
+    }
+
+    /** The model reported with a value: the primary's own, or the resolved one for |Z|. */
+    public EquivalentModel equivalentModel() {
+        PrimaryParam p = primaryParam();
+        return p.model() != null ? p.model() : modelChoice().model();
+    }
+
+    /** True when the nominal cannot be told from the uncompensated open: nothing is graded without an open. */
+    public boolean needsOpenCompensation() { return contact.fixture().needsOpen(idealZOhm(), freqHz()); }
+
+    /** True when the nominal cannot be told from the uncompensated short: nothing is graded without a short. */
+    public boolean needsShortCompensation() { return contact.fixture().needsShort(idealZOhm()); }
+
+    /** This recipe on a fixture with other bounds (the line config's). */
+    public Recipe withFixture(FixtureBounds f) {
+        return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject,
+                retest, contact.withFixture(f), compensationRequired);
+    }
 }

@@ -1,63 +1,119 @@
 package net.zbin.core;
 
+import java.math.BigDecimal;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
 
 /**
- * Parses numbers as engineers write them: plain or exponent ({@code 1e-9}), with an SI prefix and
- * an optional unit ({@code 100n}, {@code 100nF}, {@code 4.7u}, {@code 4.7µH}, {@code 1k}, {@code 10kohm}),
- * or in IEC 60062 RKM form where the prefix letter is the decimal point ({@code 2p2}, {@code 4R7},
- * {@code R47}, {@code 4K7}, {@code 1M5}). "m" is milli and "M" mega; "R" stands for the unit ohm.
+ * Parses numbers as engineers write them, in one stated {@link Unit}: plain or with exponent
+ * ({@code 1000}, {@code 1e-9}, {@code −5}), with an SI prefix and optionally the unit ({@code 100n},
+ * {@code 100nF}, {@code 4.7µH}, {@code 1kHz}), or in IEC 60062 RKM form where the prefix letter stands for
+ * the decimal point ({@code 2p2}, {@code 4u7}, {@code 4k7}, {@code 1M5}).
+ *
+ * <p>A number means what it says: a plain number is a plain value in the unit, never a marking code
+ * (those are read by {@link MarkingCode}, from an explicit form). A written unit must be the expected
+ * one. {@code R} as decimal marker or unit ({@code 4R7}, {@code 10R}) and {@code K} for kilo belong to
+ * resistance only. Decimal text is converted exactly: {@code 2p2} is the double nearest 2.2e-12.
+ * "m" is milli and "M" mega.
  */
 public final class SiValue {
     private SiValue() {}
 
-    private static final Pattern PLAIN = Pattern.compile(
-            "([+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)\\s*([fpnuµμmkKMGTR]?)\\s*(F|H|Ω|ohms?|Ohms?|OHMS?|V|Hz|hz|A|S|s|%)?");
-    private static final Pattern RKM = Pattern.compile("(\\d*)([pnuµμmkKMGR])(\\d+)\\s*(F|H|Ω|ohms?)?");
+    private static final String NUM = "([+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)";
+    private static final Pattern PLAIN = Pattern.compile(NUM + "\\s*([fpnuµμmkKMGTR]?)\\s*(\\S*)");
+    private static final Pattern RKM = Pattern.compile("([+-]?)(\\d*)([pnuµμmkKMGR])(\\d+)\\s*(\\S*)");
 
     /**
-     * @throws IllegalArgumentException naming the text when it is not a number of this form
+     * @throws IllegalArgumentException naming the text and what is wrong when it is not a number in this unit
      */
-    public static double parse(String text) {
+    public static double parse(String text, Unit unit) {
         if (text == null) throw new IllegalArgumentException("value is missing");
-        String s = text.trim();
+        String s = text.trim().replace('\u2212', '-');
         if (s.isEmpty()) throw new IllegalArgumentException("value is empty");
+        Matcher r = RKM.matcher(s);
+        if (r.matches() && (!r.group(2).isEmpty() || r.group(3).equals("R"))) {
+            String prefix = r.group(3);
+            checkUnit(text, r.group(5), unit);
+            checkPrefix(text, prefix, unit);
+            String whole = r.group(2).isEmpty() ? "0" : r.group(2);
+            return exact(r.group(1) + whole + "." + r.group(4), prefix);
+        }
         Matcher m = PLAIN.matcher(s);
         if (m.matches()) {
-            String prefix = m.group(2);
-            String unit = m.group(3);
-            // "100F" is 100 farads, not 100 femto: F after a number with no other unit is the unit.
-            if (prefix.isEmpty() || prefix.equals("R")) return Double.parseDouble(m.group(1));
-            if (prefix.equals("F") && unit == null) return Double.parseDouble(m.group(1));
-            return Double.parseDouble(m.group(1)) * multiplier(prefix.charAt(0));
+            String prefix = m.group(2), written = m.group(3);
+            // "100F" is 100 farads: F is a unit, femto is f.
+            checkUnit(text, written, unit);
+            checkPrefix(text, prefix, unit);
+            return exact(m.group(1), prefix);
         }
-        Matcher r = RKM.matcher(s);
-        if (r.matches()) {
-            String whole = r.group(1).isEmpty() ? "0" : r.group(1);
-            return Double.parseDouble(whole + "." + r.group(3)) * multiplier(r.group(2).charAt(0));
-        }
-        throw new IllegalArgumentException("'" + text + "' is not a number (examples: 100n, 4.7u, 2p2, 4K7, 1e-9)");
+        throw new IllegalArgumentException("'" + text + "' is not a number" + example(unit));
     }
 
-    static double multiplier(char p) {
-        return switch (p) {
-            case 'f' -> 1e-15;
-            case 'p' -> 1e-12;
-            case 'n' -> 1e-9;
-            case 'u', 'µ', 'μ' -> 1e-6;
-            case 'm' -> 1e-3;
-            case 'R' -> 1;
-            case 'k', 'K' -> 1e3;
-            case 'M' -> 1e6;
-            case 'G' -> 1e9;
-            case 'T' -> 1e12;
+    private static void checkUnit(String text, String written, Unit unit) {
+        if (written.isEmpty() || unit.accepts(written)) return;
+        Unit other = Unit.owning(written);
+        if (other != null)
+            throw new IllegalArgumentException("'" + text + "' is " + other.withArticle() + " (" + written + "), but "
+                    + unit.withArticle() + " is expected" + example(unit));
+        throw new IllegalArgumentException("'" + text + "': unknown unit '" + written + "'" + example(unit));
+    }
+
+    private static void checkPrefix(String text, String prefix, Unit unit) {
+        if (prefix.isEmpty()) return;
+        if (!unit.takesPrefix())
+            throw new IllegalArgumentException("'" + text + "': " + unit.withArticle() + " takes no SI prefix" + example(unit));
+        if ((prefix.equals("R") || prefix.equals("K")) && unit != Unit.OHM)
+            throw new IllegalArgumentException("'" + text + "': '" + prefix + "' is resistor notation (R = ohm, K = kilo-ohm), "
+                    + "not " + unit.withArticle() + example(unit)
+                    + (prefix.equals("R") ? "; a marking code is written {code: " + text.trim() + "} in a recipe" : ""));
+    }
+
+    private static double exact(String mantissa, String prefix) {
+        BigDecimal v = new BigDecimal(mantissa.startsWith("+") ? mantissa.substring(1) : mantissa);
+        double d = v.scaleByPowerOfTen(exponent(prefix)).doubleValue();
+        return d == 0 ? 0.0 : d; // no negative zero: -0 means 0
+    }
+
+    private static int exponent(String p) {
+        if (p.isEmpty()) return 0;
+        return switch (p.charAt(0)) {
+            case 'f' -> -15;
+            case 'p' -> -12;
+            case 'n' -> -9;
+            case 'u', 'µ', 'μ' -> -6;
+            case 'm' -> -3;
+            case 'R' -> 0;
+            case 'k', 'K' -> 3;
+            case 'M' -> 6;
+            case 'G' -> 9;
+            case 'T' -> 12;
             default -> throw new IllegalArgumentException("unknown SI prefix '" + p + "'");
+        };
+    }
+
+    private static String example(Unit unit) {
+        return switch (unit) {
+            case HERTZ -> " (examples: 1k, 100kHz, 1e6)";
+            case OHM -> " (examples: 4.7k, 4K7, 4R7, 100mΩ, 1e3)";
+            case FARAD -> " (examples: 100n, 2p2, 4.7uF, 1e-9)";
+            case HENRY -> " (examples: 4u7, 10uH, 1e-6)";
+            case SIEMENS -> " (examples: 1u, 10nS)";
+            case VOLT -> " (examples: 1, 0.5V, 500m)";
+            case SECOND -> " (examples: 1, 200m, 5s)";
+            case DEGREE -> " (examples: -88.4, 45°)";
+            case PERCENT -> " (examples: 5, 0.25, 10%)";
+            case RATIO -> " (examples: 0.025, 10, 1e-3)";
+            case ANY -> " (examples: 100n, 4.7u, 2p2, 1e-9)";
         };
     }
 
     /** Formats with an SI prefix and 4 significant digits for people: 1.000e-7 F → "100.0 nF". */
     public static String format(double v, String unit) {
+        return format(v, unit, 4);
+    }
+
+    /** Formats with an SI prefix and the given significant digits; ∞ for infinite, "-" for NaN. */
+    public static String format(double v, String unit, int digits) {
         String unitText = unit.equals("ohm") ? "Ω" : unit;
         if (Double.isNaN(v)) return "- " + unitText;
         if (Double.isInfinite(v)) return (v > 0 ? "∞ " : "-∞ ") + unitText;
@@ -67,7 +123,13 @@ public final class SiValue {
         int idx = (int) Math.floor(Math.log10(a) / 3) + 5;
         idx = Math.max(0, Math.min(pre.length - 1, idx));
         double scaled = v / Math.pow(1000, idx - 5);
-        return String.format(java.util.Locale.ROOT, "%.4g %s%s", scaled, pre[idx], unitText);
+        return String.format(java.util.Locale.ROOT, "%." + digits + "g %s%s", scaled, pre[idx], unitText);
     }
 
+    /** A plain ratio for people (D, Q): 5 significant digits, ∞ for infinite, "-" for NaN. */
+    public static String ratio(double v) {
+        if (Double.isNaN(v)) return "-";
+        if (Double.isInfinite(v)) return v > 0 ? "∞" : "-∞";
+        return String.format(java.util.Locale.ROOT, "%.5g", v);
+    }
 }

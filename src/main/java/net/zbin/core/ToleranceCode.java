@@ -1,12 +1,18 @@
 package net.zbin.core;
 
+import java.util.Arrays;
+import java.util.Locale;
+import java.util.stream.Collectors;
+
 /**
- * IEC 60062 tolerance letters. For capacitors below 10 pF the letters B, C, D, F and G mean an
- * absolute tolerance in pF instead of a percentage.
+ * IEC 60062 tolerance letters, symmetric and asymmetric. For capacitors below 10 pF the letters B, C,
+ * D, F and G mean an absolute tolerance in pF instead of a percentage.
  */
 public enum ToleranceCode {
+    E(0.005, 0.005, Double.NaN), L(0.01, 0.01, Double.NaN), P(0.02, 0.02, Double.NaN), W(0.05, 0.05, Double.NaN),
     B(0.1, 0.1, 0.1e-12), C(0.25, 0.25, 0.25e-12), D(0.5, 0.5, 0.5e-12), F(1, 1, 1e-12), G(2, 2, 2e-12),
-    J(5, 5, Double.NaN), K(10, 10, Double.NaN), M(20, 20, Double.NaN), Z(20, 80, Double.NaN);
+    J(5, 5, Double.NaN), K(10, 10, Double.NaN), M(20, 20, Double.NaN), N(30, 30, Double.NaN),
+    Q(10, 30, Double.NaN), T(10, 50, Double.NaN), S(20, 50, Double.NaN), Z(20, 80, Double.NaN);
 
     /** Below this nominal (10 pF) the absolute form applies. */
     public static final double ABSOLUTE_BELOW_F = 10e-12;
@@ -39,11 +45,17 @@ public enum ToleranceCode {
         return new double[] {-minusPct, plusPct};
     }
 
+    /** The letters as a list for people: "E L P W B C D F G J K M N Q T S Z". */
+    public static String letters() {
+        return Arrays.stream(values()).map(Enum::name).collect(Collectors.joining(" "));
+    }
+
     public static ToleranceCode parse(String s) {
-        try {
-            return valueOf(s.trim().toUpperCase(java.util.Locale.ROOT));
-        } catch (IllegalArgumentException e) {
-            throw new IllegalArgumentException("unknown tolerance letter '" + s + "' (IEC 60062: B C D F G J K M Z)");
+        String t = s.trim();
+        if (t.length() == 1) {
+            for (ToleranceCode c : values()) if (c.name().equals(t.toUpperCase(Locale.ROOT))) return c;
         }
+        throw new IllegalArgumentException("unknown tolerance letter '" + s + "' (IEC 60062 letters: " + letters()
+                + "; for other limits give pct or low_pct/high_pct)");
     }
 }

@@ -1,5 +1,6 @@
 package net.zbin.io;
 
+import net.zbin.core.Unit;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import java.io.IOException;
@@ -62,13 +63,13 @@ public final class CompensationStore {
     }
 
     private static Entry entry(SpecNode n) throws ConfigException {
-        double f = n.number("freq_hz");
+        double f = n.number("freq_hz", Unit.HERTZ);
         if (!(f > 0)) throw n.error("freq_hz", "must be > 0");
         Part open = part(n, "open", f), shortZ = part(n, "short", f), load = part(n, "load", f);
         Impedance loadTrue = null;
         if (load != null) {
             SpecNode l = n.child("load_standard");
-            double r = l.number("r_ohm"), x = l.number("x_ohm");
+            double r = l.number("r_ohm", Unit.OHM), x = l.number("x_ohm", Unit.OHM);
             l.finish();
             loadTrue = new Impedance(f, r, x);
         }
@@ -79,7 +80,7 @@ public final class CompensationStore {
     private static Part part(SpecNode n, String key, double f) throws ConfigException {
         if (!n.has(key)) { n.optText(key, null); return null; }
         SpecNode p = n.child(key);
-        double r = p.number("r_ohm"), x = p.number("x_ohm");
+        double r = p.number("r_ohm", Unit.OHM), x = p.number("x_ohm", Unit.OHM);
         String t = p.text("taken_at");
         p.finish();
         try {

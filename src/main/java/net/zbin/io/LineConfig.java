@@ -1,5 +1,6 @@
 package net.zbin.io;
 
+import net.zbin.core.FixtureBounds;
 import java.nio.file.Path;
 import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
@@ -21,10 +22,11 @@ import net.zbin.io.meter.MeterProfile;
  * @param dashboardMs     period of the dashboard publish
  * @param fixture         plausibility limits for compensation captures
  * @param checks          drift limits for the handler's open/short check presentations
+ * @param bounds          what the fixture itself reads, for telling an open or short from a part
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
                          Path stateDir, RecordSettings records, int deadlineMs, int dashboardMs, FixtureLimits fixture,
-                         FixtureCheck.Limits checks) {
+                         FixtureCheck.Limits checks, FixtureBounds bounds) {
 
     /**
      * @param broker        tcp://host:port or ssl://host:port

@@ -1,5 +1,7 @@
 package net.zbin.io;
 
+import net.zbin.core.FixtureBounds;
+import net.zbin.core.Unit;
 import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
@@ -72,7 +74,7 @@ public final class LineConfigLoader {
         Path recDir = base.resolve(rec.optText("dir", "records")).normalize();
         int flush = rec.optInteger("flush_ms", 200);
         if (flush < 0 || flush > 60_000) throw rec.error("flush_ms", "must be 0..60000 (was " + flush + ")");
-        double rotateMb = rec.optNumber("rotate_mb", 64);
+        double rotateMb = rec.optNumber("rotate_mb", 64, Unit.RATIO);
         if (!(rotateMb >= 0.001)) throw rec.error("rotate_mb", "must be > 0 (was " + rotateMb + ")");
         String onFail = rec.optText("on_failure", "pause");
         if (!onFail.equals("pause") && !onFail.equals("continue")) throw rec.error("on_failure", "must be pause or continue (was '" + onFail + "')");
@@ -83,24 +85,26 @@ public final class LineConfigLoader {
         if (deadline < 1) throw h.error("deadline_ms", "must be >= 1 (was " + deadline + ")");
         h.finish();
         SpecNode d = n.child("dashboard");
-        double interval = d.optNumber("interval_s", 5);
+        double interval = d.optNumber("interval_s", 5, Unit.SECOND);
         if (!(interval >= 0.1 && interval <= 3600)) throw d.error("interval_s", "must be 0.1..3600 (was " + interval + ")");
         d.finish();
 
         SpecNode fx = n.child("fixture");
         FixtureLimits dflt = FixtureLimits.DEFAULT;
-        double oMax = fx.optNumber("open_max_f", dflt.openMaxF()), gMax = fx.optNumber("open_max_g_s", dflt.openMaxGS()),
-                sMax = fx.optNumber("short_max_ohm", dflt.shortMaxOhm()), lMax = fx.optNumber("load_max_dev_pct", dflt.loadMaxDevPct());
+        double oMax = fx.optNumber("open_max_f", dflt.openMaxF(), Unit.FARAD), gMax = fx.optNumber("open_max_g_s", dflt.openMaxGS(), Unit.SIEMENS),
+                sMax = fx.optNumber("short_max_ohm", dflt.shortMaxOhm(), Unit.OHM), lMax = fx.optNumber("load_max_dev_pct", dflt.loadMaxDevPct(), Unit.PERCENT);
         int reps = fx.optInteger("repeats", dflt.repeats());
-        double oChk = fx.optNumber("open_check_f", FixtureCheck.Limits.DEFAULT.openDriftMaxF());
-        double sChk = fx.optNumber("short_check_ohm", FixtureCheck.Limits.DEFAULT.shortDriftMaxOhm());
+        double oChk = fx.optNumber("open_check_f", FixtureCheck.Limits.DEFAULT.openDriftMaxF(), Unit.FARAD);
+        double sChk = fx.optNumber("short_check_ohm", FixtureCheck.Limits.DEFAULT.shortDriftMaxOhm(), Unit.OHM);
+        double dRes = fx.optNumber("d_resolution", FixtureBounds.DEFAULT.dResolution(), Unit.RATIO);
         fx.finish();
         FixtureLimits fl = fx.build(null, () -> new FixtureLimits(oMax, gMax, sMax, lMax, reps));
         FixtureCheck.Limits checks = fx.build(null, () -> new FixtureCheck.Limits(oChk, sChk));
+        FixtureBounds bounds = fx.build(null, () -> new FixtureBounds(oMax, gMax, sMax, oChk, sChk, dRes));
         n.finish();
         return new LineConfig(file, line, new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive),
                 profile, recipeDir, active, state, new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024),
-                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl, checks);
+                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl, checks, bounds);
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

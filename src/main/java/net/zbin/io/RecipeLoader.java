@@ -11,6 +11,9 @@ import net.zbin.core.GuardBand;
 import net.zbin.core.MarkingCode;
 import net.zbin.core.ModelPolicy;
 import net.zbin.core.PartType;
+import net.zbin.core.PhaseWindow;
+import net.zbin.core.SiValue;
+import net.zbin.core.Unit;
 import net.zbin.core.PrimaryParam;
 import net.zbin.core.Recipe;
 import net.zbin.core.RejectBins;
@@ -33,45 +36,51 @@ public final class RecipeLoader {
         double nominal = value(n, "nominal", type);
 
         SpecNode t = n.child("test");
-        TestConditions test = n.build(null, () -> new TestConditions(t.number("freq"), t.optNumber("level_v", 1.0),
+        TestConditions test = n.build(null, () -> new TestConditions(t.number("freq", Unit.HERTZ), t.optNumber("level_v", 1.0, Unit.VOLT),
                 t.optText("speed", "medium"), t.optInteger("averaging", 1)));
         t.finish();
 
         SpecNode m = n.child("model");
         ModelPolicy model = m.build(null, () -> new ModelPolicy(ModelPolicy.Mode.parse(m.optText("mode", "auto")),
-                m.optNumber("series_below_ohm", 100), m.optNumber("parallel_above_ohm", 10_000)));
+                m.optNumber("series_below_ohm", 100, Unit.OHM), m.optNumber("parallel_above_ohm", 10_000, Unit.OHM)));
         m.finish();
 
         PrimaryParam primary = n.has("primary") ? n.build("primary", () -> PrimaryParam.parse(n.optText("primary", ""))) : null;
         if (!n.has("primary")) n.optText("primary", null);
-        String gm = n.optText("grading", "nested");
-        GradingMode mode = switch (gm) {
-            case "nested" -> GradingMode.NESTED;
-            case "sequential" -> GradingMode.SEQUENTIAL;
-            default -> throw n.error("grading", "must be nested or sequential (was '" + gm + "')");
-        };
+        String gm = n.optText("grading", "concentric");
+        GradingMode mode = n.build("grading", () -> GradingMode.parse(gm));
         if (!n.has("grades")) throw n.error("grades", "is required: a list of grades with name, bin and limits");
         List<Grade> grades = n.list("grades", g -> grade(g, type, nominal));
 
         SpecNode gb = n.child("guard_band");
         if (gb.has("pct") && gb.has("uncertainty_pct")) throw gb.error("pct", "give pct or uncertainty_pct, not both");
         boolean fromU = gb.has("uncertainty_pct");
-        double width = fromU ? gb.optNumber("uncertainty_pct", 0) : gb.optNumber("pct", 0);
+        double width = fromU ? gb.optNumber("uncertainty_pct", 0, Unit.PERCENT) : gb.optNumber("pct", 0, Unit.PERCENT);
         gb.finish();
         GuardBand guard = n.build(null, () -> new GuardBand(width, fromU));
 
         SpecNode ga = n.child("gates");
-        Double dMax = ga.optNumberOrNull("d_max"), qMin = ga.optNumberOrNull("q_min"), esr = ga.optNumberOrNull("esr_max_ohm"),
-                tMin = ga.optNumberOrNull("theta_min_deg"), tMax = ga.optNumberOrNull("theta_max_deg");
+        Double dMax = ga.optNumberOrNull("d_max", Unit.RATIO), qMin = ga.optNumberOrNull("q_min", Unit.RATIO),
+                esr = ga.optNumberOrNull("esr_max_ohm", Unit.OHM),
+                tMin = ga.optNumberOrNull("theta_min_deg", Unit.DEGREE), tMax = ga.optNumberOrNull("theta_max_deg", Unit.DEGREE);
         ga.finish();
         Gates gates = n.build(null, () -> new Gates(dMax, qMin, esr, tMin, tMax));
+
+        SpecNode pl = n.child("plausible");
+        PhaseWindow dfltPhase = PhaseWindow.defaultFor(type);
+        double pMin = pl.optNumber("theta_min_deg", dfltPhase.minDeg(), Unit.DEGREE);
+        double pMax = pl.optNumber("theta_max_deg", dfltPhase.maxDeg(), Unit.DEGREE);
+        pl.finish();
+        PhaseWindow plausible = n.build(null, () -> new PhaseWindow(pMin, pMax));
 
         if (!n.has("reject")) throw n.error("reject", "is required: bins for low, high, gate, contact, short, overload, fault");
         SpecNode r = n.child("reject");
         int low = r.integer("low"), high = r.integer("high"), gate = r.integer("gate"), contact = r.integer("contact"),
                 shortBin = r.integer("short"), overload = r.integer("overload"), fault = r.integer("fault");
+        int guardBin = r.optInteger("guard", -1);
+        if (r.has("guard") && guardBin < 0) throw r.error("guard", "bin must be 0..999 (was " + guardBin + ")");
         r.finish();
-        RejectBins reject = n.build(null, () -> new RejectBins(low, high, gate, contact, shortBin, overload, fault));
+        RejectBins reject = n.build(null, () -> new RejectBins(low, high, gate, contact, shortBin, overload, fault, guardBin));
 
         if (!n.has("retest")) throw n.error("retest", "is required: count and bin");
         SpecNode rt = n.child("retest");
@@ -80,17 +89,17 @@ public final class RecipeLoader {
         RetestPolicy retest = n.build(null, () -> new RetestPolicy(count, rbin));
 
         SpecNode c = n.child("contact");
-        double of = c.optNumber("open_factor", ContactCheck.DEFAULT.openFactor());
-        double sf = c.optNumber("short_factor", ContactCheck.DEFAULT.shortFactor());
+        double of = c.optNumber("open_factor", ContactCheck.DEFAULT.openFactor(), Unit.RATIO);
+        double sf = c.optNumber("short_factor", ContactCheck.DEFAULT.shortFactor(), Unit.RATIO);
         c.finish();
-        ContactCheck check = n.build(null, () -> new ContactCheck(of, sf));
+        ContactCheck check = n.build(null, () -> new ContactCheck(of, sf, null));
 
         SpecNode cp = n.child("compensation");
         boolean required = cp.optBool("required", false);
         cp.finish();
         n.finish();
         return n.build(null, () -> new Recipe(name, type, nominal, test, model, primary, mode, grades, guard,
-                gates, reject, retest, check, required));
+                gates, plausible, reject, retest, check, required));
     }
 
     private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {
@@ -111,14 +120,14 @@ public final class RecipeLoader {
                 hi = l[1];
             }
             case "pct" -> {
-                double p = g.optNumber("pct", 0);
+                double p = g.optNumber("pct", 0, Unit.PERCENT);
                 if (!(p > 0)) throw g.error("pct", "must be > 0 (was " + p + ")");
                 lo = -p;
                 hi = p;
             }
             case "low_pct" -> {
-                lo = g.optNumber("low_pct", 0);
-                hi = g.number("high_pct");
+                lo = g.optNumber("low_pct", 0, Unit.PERCENT);
+                hi = g.number("high_pct", Unit.PERCENT);
             }
             default -> {
                 double a = value(g, "low", type), b = value(g, "high", type);
@@ -130,11 +139,40 @@ public final class RecipeLoader {
         return new Grade(name, bin, lo, hi);
     }
 
-    /** A value in F/H/Ω: SI form or, for capacitors and resistors, a marking code. */
+    private static final java.util.regex.Pattern BARE = java.util.regex.Pattern.compile("[+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?");
+
+    /**
+     * A value in F, H or Ω: a plain number or SI form in the part's unit, or a marking code written
+     * explicitly as {@code {code: 104}}. A bare number of 1 F or 1 H and more is refused as ambiguous:
+     * it is far more often a marking code or a missing prefix than a real capacitance or inductance.
+     */
     private static double value(SpecNode n, String k, PartType type) throws ConfigException {
+        if (n.isMapping(k)) {
+            SpecNode c = n.child(k);
+            String code = c.text("code");
+            c.finish();
+            double v = c.build("code", () -> MarkingCode.parse(code, type));
+            if (!(v > 0)) throw c.error("code", "must be > 0 (was " + code + ")");
+            return v;
+        }
         String text = n.text(k);
-        double v = n.build(k, () -> MarkingCode.parseValue(text, type));
+        Unit unit = Unit.of(type);
+        double v = n.build(k, () -> SiValue.parse(text, unit));
         if (!(v > 0)) throw n.error(k, "must be > 0 (was " + text + ")");
+        if (type != PartType.RESISTOR && v >= 1 && BARE.matcher(text.trim()).matches())
+            throw n.error(k, ambiguous(text.trim(), type, unit));
         return v;
+    }
+
+    private static String ambiguous(String text, PartType type, Unit unit) {
+        String code;
+        try {
+            code = ", or {code: " + text + "} for the marking code (= "
+                    + SiValue.format(MarkingCode.parse(text, type), unit.symbol()) + ")";
+        } catch (IllegalArgumentException e) {
+            code = "";
+        }
+        return "'" + text + "' is ambiguous for " + type.withArticle() + ": as written it is " + text + " " + unit.symbol()
+                + ". Write " + text + unit.symbol() + " if you mean that, a prefix for a smaller value (e.g. " + text + "n)" + code;
     }
 }

@@ -10,6 +10,7 @@ import java.util.List;
 import java.util.Set;
 import java.util.function.Function;
 import net.zbin.core.SiValue;
+import net.zbin.core.Unit;
 
 /**
  * A view of one YAML/JSON mapping that remembers its key path and which keys were read, so that a
@@ -60,20 +61,20 @@ public final class SpecNode {
         return v.asText();
     }
 
-    /** A number, written plainly or with an SI prefix ("1k", "100n"). */
-    public double number(String k) throws ConfigException {
+    /** A number in the given unit, written plainly or with an SI prefix ("1k", "100n"); a written unit must fit. */
+    public double number(String k, Unit unit) throws ConfigException {
         if (!has(k)) { get(k); throw error(k, "is required"); }
-        return optNumber(k, Double.NaN);
+        return optNumber(k, Double.NaN, unit);
     }
 
-    public double optNumber(String k, double dflt) throws ConfigException {
+    public double optNumber(String k, double dflt, Unit unit) throws ConfigException {
         JsonNode v = get(k);
         if (v.isMissingNode()) return dflt;
         double d;
         if (v.isNumber()) d = v.asDouble();
         else if (v.isTextual()) {
             try {
-                d = SiValue.parse(v.asText());
+                d = SiValue.parse(v.asText(), unit);
             } catch (IllegalArgumentException e) {
                 throw error(k, e.getMessage());
             }
@@ -82,9 +83,15 @@ public final class SpecNode {
         return d;
     }
 
-    public Double optNumberOrNull(String k) throws ConfigException {
+    public Double optNumberOrNull(String k, Unit unit) throws ConfigException {
         if (!has(k)) return markNull(k);
-        return optNumber(k, Double.NaN);
+        return optNumber(k, Double.NaN, unit);
+    }
+
+    /** Whether the value at k is a mapping (e.g. {code: 104}). */
+    public boolean isMapping(String k) {
+        JsonNode v = node.get(k);
+        return v != null && v.isObject();
     }
 
     private Double markNull(String k) { seen.add(k); return null; }

@@ -12,7 +12,9 @@ import java.nio.file.Path;
 
 /** Reads a YAML file into a tree, with syntax errors reported by file and line. */
 public final class Yaml {
-    private static final ObjectMapper MAPPER = new ObjectMapper(new YAMLFactory());
+    /** A key written twice in one mapping is refused, not silently overwritten by the second. */
+    private static final ObjectMapper MAPPER = new ObjectMapper(new YAMLFactory())
+            .enable(com.fasterxml.jackson.databind.DeserializationFeature.FAIL_ON_READING_DUP_TREE_KEY);
 
     private Yaml() {}
 

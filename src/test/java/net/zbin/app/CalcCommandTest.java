@@ -21,7 +21,7 @@ class CalcCommandTest {
 
     @Test
     void thetaMinus88point4_givesD0point0279Q35point8() throws Exception {
-        // Common practice (REFERENCES.md): θ = −88.4° → D ≈ 0.0279, Q ≈ 35.8.
+        // Common practice: θ = −88.4° → D ≈ 0.0279, Q ≈ 35.8.
         JsonNode n = json("calc", "--freq", "1k", "--z", "1000", "--theta", "-88.4", "--json");
         assertEquals(0.0279, n.get("d").asDouble(), 0.00005);
         assertEquals(35.8, n.get("q").asDouble(), 0.05);
@@ -33,7 +33,7 @@ class CalcCommandTest {
 
     @Test
     void everyJsonKey_agreesWithIndependentComputation() throws Exception {
-        // Independent reference: Commons Math Complex and the definitions of DESIGN §4.
+        // Independent reference: Commons Math Complex and the definitions of the textbook definitions.
         Random rnd = new Random(2026);
         String[] keys = {"freq_hz", "r_ohm", "x_ohm", "z_ohm", "theta_deg", "g_s", "b_s", "cs_f", "cp_f", "ls_h", "lp_h",
                 "rs_ohm", "rp_ohm", "d", "q", "esr_ohm", "model"};
@@ -74,7 +74,7 @@ class CalcCommandTest {
 
     @Test
     void part158pFThrough2pFOpenStray_reports158pFCompensated() throws Exception {
-        // Common practice (REFERENCES.md): 158 pF read through ~2 pF of lead stray shows ~160 pF, 158 pF after open compensation.
+        // Common practice: 158 pF read through ~2 pF of lead stray shows ~160 pF, 158 pF after open compensation.
         double f = 1e6, w = 2 * Math.PI * f, x = -1 / (w * 160e-12);
         JsonNode n = json("calc", "--freq", "1M", "--r", "0", "--x", fmt(x), "--open-c", "2p", "--json");
         assertEquals(158e-12, n.get("cp_f").asDouble(), 0.01e-12);

@@ -8,7 +8,7 @@ import org.junit.jupiter.api.Test;
 class WilsonTest {
     @Test
     void eightyOneOf263_matchesNewcombeTableI() {
-        // Newcombe 1998, Stat Med 17, Table I (REFERENCES.md): 81/263 → 0.2553–0.3662.
+        // Newcombe 1998, Statistics in Medicine 17:857–872, Table I (Wilson score, method 3): 81/263 → 0.2553–0.3662.
         double[] ci = Wilson.interval(81, 263, Wilson.Z95);
         assertEquals(0.2553, ci[0], 0.00005);
         assertEquals(0.3662, ci[1], 0.00005);

@@ -5,6 +5,7 @@ import com.fasterxml.jackson.databind.DeserializationContext;
 import com.fasterxml.jackson.databind.JsonDeserializer;
 import java.io.IOException;
 import net.zbin.core.SiValue;
+import net.zbin.core.Unit;
 
 /** Lets scenario numbers be written with SI prefixes ("100n", "2.2p"). */
 final class SiNumber extends JsonDeserializer<Double> {
@@ -13,7 +14,7 @@ final class SiNumber extends JsonDeserializer<Double> {
         if (p.currentToken().isNumeric()) return p.getDoubleValue();
         String text = p.getValueAsString();
         try {
-            return SiValue.parse(text);
+            return SiValue.parse(text, Unit.ANY);
         } catch (IllegalArgumentException e) {
             return (Double) ctx.handleWeirdStringValue(Double.class, text, e.getMessage());
         }

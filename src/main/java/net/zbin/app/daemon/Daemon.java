@@ -83,7 +83,7 @@ public final class Daemon implements AutoCloseable {
 
             public void recovered() { logRecovered(); }
         });
-        this.recipe = RecipeLoader.load(recipeFile(cfg.activeRecipe()));
+        this.recipe = RecipeLoader.load(recipeFile(cfg.activeRecipe())).withFixture(cfg.bounds());
         this.store = CompensationStore.load(cfg.stateDir());
         this.comp = store.forFrequency(recipe.freqHz());
     }
@@ -207,7 +207,7 @@ public final class Daemon implements AutoCloseable {
         if (!name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}")) throw new PayloadException("name is not a recipe id: '" + name + "'");
         Path f = recipeFile(name);
         if (!java.nio.file.Files.exists(f)) throw new PayloadException("no recipe '" + name + "' in " + cfg.recipeDir());
-        recipe = RecipeLoader.load(f);
+        recipe = RecipeLoader.load(f).withFixture(cfg.bounds());
         comp = store.forFrequency(recipe.freqHz());
         publishStateNow();
         return "recipe " + name;

@@ -1,5 +1,6 @@
 package net.zbin.io.meter;
 
+import net.zbin.core.Unit;
 import net.zbin.io.ConfigException;
 import net.zbin.io.SpecNode;
 
@@ -24,7 +25,7 @@ public final class TransportSpecs {
             int baud = n.optInteger("baud", 9600);
             int bits = n.optInteger("data_bits", 8);
             String parity = n.optText("parity", "none");
-            double stop = n.optNumber("stop_bits", 1);
+            double stop = n.optNumber("stop_bits", 1, Unit.RATIO);
             String flow = n.optText("flow", "none");
             n.finish();
             SerialSettings s = n.build(null, () -> new SerialSettings(port, baud, bits, parity, stop, flow));
