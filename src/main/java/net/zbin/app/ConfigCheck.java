@@ -37,6 +37,7 @@ final class ConfigCheck {
                         r.needsOpenCompensation() && r.needsShortCompensation() ? "open and short" : r.needsOpenCompensation() ? "open" : "short",
                         SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.idealZOhm(), "ohm"),
                         net.zbin.core.FixtureBounds.MARGIN, r.needsOpenCompensation() ? "open" : "short");
+            if (r.unreachable() != null) out.printf(Locale.ROOT, "        warning: no part can pass: %s%n", r.unreachable());
         }
         out.printf(Locale.ROOT, "  state %s; records %s (flush every %d ms, rotate at %.4g MiB, %s on write failure)%n", c.stateDir(),
                 c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,

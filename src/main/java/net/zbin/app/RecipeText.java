@@ -54,6 +54,7 @@ final class RecipeText {
                 r.partType() == net.zbin.core.PartType.RESISTOR ? "|Z|" : "|X|", SiValue.format(c.openFactor() * ideal, "ohm"),
                 c.openFactor(), SiValue.format(ideal, "ohm"), SiValue.format(c.shortFactor() * ideal, "ohm"), c.shortFactor());
         out.printf(Locale.ROOT, "  compensation: %s%n", compensation(r, fixtureSource));
+        if (r.unreachable() != null) out.printf(Locale.ROOT, "  warning: no part can pass: %s%n", r.unreachable());
     }
 
     /** Significant digits that show the tightest grade's guarded limits apart from the nominal. */

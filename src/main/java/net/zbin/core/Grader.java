@@ -69,7 +69,7 @@ public final class Grader {
         PrimaryParam param = recipe.primaryParam();
         EquivalentModel model = recipe.equivalentModel();
         double value = z.value(param);
-        double dev = (value - recipe.nominal()) / recipe.nominal() * 100;
+        double dev = (value - recipe.nominal()) * 100 / recipe.nominal(); // exact at decimal edges: 930 of 1000 is −7 %
         if (!(value > 0) || !Double.isFinite(value))
             return done(rb.low(), "low", Verdict.FAIL, "wrong-sign", model, param, value, dev, raw, z, source);
         if (!recipe.plausible().admits(z))

@@ -13,6 +13,8 @@ public record Reading(double freqHz, double rOhm, double xOhm) {
     public Reading {
         if (!(freqHz > 0) || !Double.isFinite(freqHz))
             throw new IllegalArgumentException("freqHz must be > 0 (was " + freqHz + ")");
+        rOhm += 0.0; // −0 is 0
+        xOhm += 0.0;
     }
 
     public static Reading of(Impedance z) { return new Reading(z.freqHz(), z.rOhm(), z.xOhm()); }

@@ -160,6 +160,26 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
     /** True when the nominal cannot be told from the uncompensated short: nothing is graded without a short. */
     public boolean needsShortCompensation() { return contact.fixture().needsShort(idealZOhm()); }
 
+    /**
+     * Why no part can ever pass on this fixture, or null: a nominal that reads like the compensated
+     * fixture itself (within fixture.short_check_ohm of the short, or as high as fixture.open_check_f of
+     * stray) is taken for the short bar or the empty fixture every time. Such a recipe is valid but needs a
+     * tighter fixture or another test frequency; {@code check} says so.
+     */
+    public String unreachable() {
+        FixtureBounds f = contact.fixture();
+        double ideal = idealZOhm();
+        if (ideal <= f.shortBandOhm())
+            return "the nominal reads " + SiValue.format(ideal, "ohm") + " at the test frequency, within "
+                    + SiValue.format(f.shortBandOhm(), "ohm") + " of the stored short (fixture.short_check_ohm): every part "
+                    + "will be taken for the short bar; measure at another frequency or set a tighter fixture";
+        if (ideal >= 1 / (2 * Math.PI * freqHz() * f.openBandF()))
+            return "the nominal reads " + SiValue.format(ideal, "ohm") + " at the test frequency, as high as "
+                    + SiValue.format(f.openBandF(), "F") + " of stray (fixture.open_check_f): every part will be taken for "
+                    + "the empty fixture; measure at another frequency or set a tighter fixture";
+        return null;
+    }
+
     /** This recipe on a fixture with other bounds (the line config's). */
     public Recipe withFixture(FixtureBounds f) {
         return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject,
