@@ -39,6 +39,15 @@ public final class Main implements Runnable {
                 err.println("zbin: " + ex.getMessage());
                 return EXIT_USAGE;
             }
+            // A file or folder named on the command line that is missing or closed to us is bad input, not a crash.
+            if (ex instanceof java.nio.file.NoSuchFileException nf) {
+                err.println("zbin: no such file or folder: " + nf.getFile());
+                return EXIT_USAGE;
+            }
+            if (ex instanceof java.nio.file.AccessDeniedException ad) {
+                err.println("zbin: permission denied: " + ad.getFile());
+                return EXIT_USAGE;
+            }
             err.println("zbin: " + ex);
             if (System.getenv("ZBIN_DEBUG") != null) ex.printStackTrace(err);
             return EXIT_RUNTIME;

@@ -42,12 +42,22 @@ public final class SimMeterCommand implements Callable<Integer> {
     public Integer call() throws Exception {
         Scenario sc = Scenarios.load(scenarioFile);
         if (timeScale < 0) throw new UsageException("--time-scale must be >= 0 (was " + timeScale + ")");
+        if (link.tcp != null && (link.tcp < 0 || link.tcp > 65535))
+            throw new UsageException("--tcp must be a port 0..65535 (was " + link.tcp + ")");
+        if (link.serial != null && !java.nio.file.Files.exists(link.serial))
+            throw new UsageException("--serial: no device " + link.serial);
         SimMeter meter = new SimMeter(new Contacts(), sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), timeScale,
                 sc.meterFaults().toRandomFaults());
         var out = spec.commandLine().getOut();
         AutoCloseable server;
         if (link.tcp != null) {
-            SimTcpServer s = new SimTcpServer(meter, link.tcp);
+            SimTcpServer s;
+            try {
+                s = new SimTcpServer(meter, link.tcp);
+            } catch (java.net.BindException e) {
+                throw new UsageException("--tcp " + link.tcp + ": cannot listen on 127.0.0.1:" + link.tcp + " (" + e.getMessage()
+                        + "; is another meter simulator running? --tcp 0 picks a free port)");
+            }
             out.println("sim meter (" + sc.scenario() + ") listening on 127.0.0.1:" + s.port());
             server = s;
         } else {

@@ -20,6 +20,26 @@ public final class Yaml {
 
     public static ObjectMapper mapper() { return MAPPER; }
 
+    /**
+     * A syntax error at the line the YAML parser itself names (its problem mark), in one line of text;
+     * a duplicate key named as such.
+     */
+    static ConfigException syntaxError(Path file, JsonProcessingException e) {
+        for (Throwable t = e; t != null; t = t.getCause()) {
+            if (t instanceof org.yaml.snakeyaml.error.MarkedYAMLException m && m.getProblemMark() != null) {
+                String what = m.getProblem() + (m.getContext() != null ? " (" + m.getContext() + ")" : "");
+                return new ConfigException(file, "line " + (m.getProblemMark().getLine() + 1),
+                        "not valid YAML: " + what.replaceAll("\\s+", " "));
+            }
+        }
+        JsonLocation loc = e.getLocation();
+        String where = loc == null ? "" : "line " + loc.getLineNr();
+        String msg = e.getOriginalMessage();
+        java.util.regex.Matcher dup = java.util.regex.Pattern.compile("Duplicate field '([^']*)'").matcher(msg);
+        if (dup.find()) return new ConfigException(file, where, "key '" + dup.group(1) + "' is given twice in one mapping; keep one");
+        return new ConfigException(file, where, "not valid YAML: " + msg.replaceAll("\\s+", " "));
+    }
+
     public static SpecNode read(Path file) throws ConfigException {
         JsonNode root;
         try {
@@ -27,9 +47,7 @@ public final class Yaml {
         } catch (NoSuchFileException e) {
             throw new ConfigException(file, null, "file not found");
         } catch (JsonProcessingException e) {
-            JsonLocation loc = e.getLocation();
-            String where = loc == null ? "" : "line " + loc.getLineNr();
-            throw new ConfigException(file, where, "not valid YAML: " + e.getOriginalMessage());
+            throw syntaxError(file, e);
         } catch (IOException e) {
             throw new ConfigException(file, null, "cannot read: " + e.getMessage());
         }

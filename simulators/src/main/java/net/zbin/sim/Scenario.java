@@ -94,6 +94,7 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
 
     private static final ObjectMapper YAML = new ObjectMapper(new YAMLFactory())
             .enable(DeserializationFeature.FAIL_ON_UNKNOWN_PROPERTIES)
+            .enable(com.fasterxml.jackson.core.JsonParser.Feature.STRICT_DUPLICATE_DETECTION)
             .setPropertyNamingStrategy(com.fasterxml.jackson.databind.PropertyNamingStrategies.SNAKE_CASE);
 
     /** The scenario shipped inside the jar, used when none is named. */
@@ -116,8 +117,12 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
                     .reduce((a, b) -> b.startsWith("[") ? a + b : a + "." + b).orElse("(top level)");
             throw new IllegalArgumentException(file + ": " + path + ": " + e.getOriginalMessage());
         } catch (com.fasterxml.jackson.core.JsonProcessingException e) {
+            for (Throwable t = e; t != null; t = t.getCause())
+                if (t instanceof org.yaml.snakeyaml.error.MarkedYAMLException m && m.getProblemMark() != null)
+                    throw new IllegalArgumentException(file + ": line " + (m.getProblemMark().getLine() + 1) + ": not valid YAML: "
+                            + (m.getProblem() + (m.getContext() != null ? " (" + m.getContext() + ")" : "")).replaceAll("\\s+", " "));
             throw new IllegalArgumentException(file + ": line " + (e.getLocation() == null ? "?" : e.getLocation().getLineNr())
-                    + ": not valid YAML: " + e.getOriginalMessage());
+                    + ": " + e.getOriginalMessage().replaceAll("\\s+", " "));
         }
     }
 }
