@@ -4,7 +4,7 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import net.zbin.core.Decision;
 import net.zbin.core.Grading;
 
-/** The decision payload of the MQTT contract (DESIGN §5.1); also the {@code decision} of {@code zbin calc}. */
+/** The decision payload of the MQTT contract (contract, see the README's MQTT table); also the {@code decision} of {@code zbin calc}. */
 public final class DecisionJson {
     private DecisionJson() {}
 

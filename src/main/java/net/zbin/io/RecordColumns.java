@@ -3,7 +3,7 @@ package net.zbin.io;
 import java.util.List;
 
 /**
- * Record-log columns (contract, DESIGN §5.2). New columns are only ever appended at the end:
+ * Record-log columns (contract, see the README's record log section). New columns are only ever appended at the end:
  * {@code attempt} (0 first presentation, n the n-th retest) lets a replay reproduce retest bins.
  */
 public final class RecordColumns {

@@ -28,7 +28,7 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * The record log (contract, DESIGN §5.2): one CSV row per decision, appended by its own thread so
+ * The record log (contract, see the README's record log section): one CSV row per decision, appended by its own thread so
  * that the handler's answer never waits on the disk. Rows are flushed and forced to disk at least
  * every {@code flushMs}, so a kill -9 loses at most that interval. A torn last line (the process
  * died mid-row) is cut off when the file is reopened, so no row ever reads back wrong. Files rotate

@@ -14,7 +14,7 @@ import net.zbin.io.mqtt.PayloadException;
 import net.zbin.io.mqtt.TriggerCodec;
 
 /**
- * The engineer's commands (contract, DESIGN §5.1): pause, resume, recipe, lot, reset-counters,
+ * The engineer's commands (contract, see the README's MQTT table): pause, resume, recipe, lot, reset-counters,
  * compensate. Runs on the measuring thread, so a command takes effect between two parts. Every
  * command with a {@code cmd} gets a {@code command/result}; an unusable one also a {@code rejected}.
  */

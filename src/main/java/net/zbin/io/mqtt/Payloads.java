@@ -6,7 +6,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Instant;
 import net.zbin.io.Json;
 
-/** Outbound payloads other than decisions (contract, DESIGN §5.1). */
+/** Outbound payloads other than decisions (contract, see the README's MQTT table). */
 public final class Payloads {
     private Payloads() {}
 

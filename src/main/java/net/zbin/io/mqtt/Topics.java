@@ -1,6 +1,6 @@
 package net.zbin.io.mqtt;
 
-/** The topics of one line (contract, DESIGN §5.1): {@code <root>/<line>/<name>}. */
+/** The topics of one line (contract, see the README's MQTT table): {@code <root>/<line>/<name>}. */
 public record Topics(String root, String line) {
     public String base() { return root + "/" + line + "/"; }
     public String trigger() { return base() + "trigger"; }

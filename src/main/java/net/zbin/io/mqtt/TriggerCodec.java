@@ -6,7 +6,7 @@ import java.io.IOException;
 import net.zbin.core.Trigger;
 import net.zbin.io.Json;
 
-/** Reads trigger payloads (contract, DESIGN §5.1). Unknown keys are ignored for forward compatibility. */
+/** Reads trigger payloads (contract, see the README's MQTT table). Unknown keys are ignored for forward compatibility. */
 public final class TriggerCodec {
     /** Largest payload accepted, in bytes. */
     public static final int MAX_BYTES = 4096;
