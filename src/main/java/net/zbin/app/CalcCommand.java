@@ -80,7 +80,7 @@ public final class CalcCommand implements Callable<Integer> {
         Decision decision = null;
         if (recipe != null) {
             Grading g = Grader.grade(recipe, Reading.of(raw), comp, 0);
-            decision = new Decision(-1, null, null, "part", recipe.name(), g, Double.NaN, false, 0);
+            decision = new Decision(-1, null, null, net.zbin.core.Trigger.Kind.PART, recipe.name(), g, Double.NaN, false, 0);
         }
         if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(raw, zc, comp, choice, decision)));
         else printText(out, raw, zc, comp, choice, decision, recipe);
@@ -176,7 +176,7 @@ public final class CalcCommand implements Callable<Integer> {
         if (d != null) {
             Grading g = d.grading();
             out.printf(Locale.ROOT, "Decision under recipe %s: bin %d, grade %s, %s (%s)%n", d.recipe(), g.bin(), g.grade(),
-                    g.verdict().key(), g.reason());
+                    g.verdict().key(), g.reason().code());
             if (g.param() != null)
                 out.printf(Locale.ROOT, "  %s = %s, deviation %+.4f %%%n", g.param().label(), SiValue.format(g.value(), g.unit()), g.devPct());
         }

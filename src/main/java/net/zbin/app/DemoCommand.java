@@ -87,12 +87,15 @@ public final class DemoCommand implements Callable<Integer> {
             } finally {
                 daemon.close();
             }
-            o.println();
+            Progress.end(o);
             Summaries.print(o, s);
+            var lotFigures = daemon.lotFigures();
+            o.printf(Locale.ROOT, "  the line's own figures for lot %s: %d parts finished, %d passed, yield %.2f %%, %d retests, %d fixture checks%n",
+                    sc.lot().id(), lotFigures.parts(), lotFigures.passed(), lotFigures.yieldPct(), lotFigures.retests(), lotFigures.checks());
             o.printf(Locale.ROOT, "  record log: %d rows in %s%n", daemon.recordsWritten(), dir.resolve("records"));
             o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv%n",
                     dir.resolve("recipes").resolve(recipe + ".yaml"), dir);
-            boolean clean = s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0;
+            boolean clean = s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0 && s.stale() == 0;
             o.println(clean ? "demo ok: every trigger got exactly one decision" : "demo: answers were missing, duplicated or contradictory");
             return clean ? Main.EXIT_OK : Main.EXIT_RUNTIME;
         }

@@ -45,7 +45,6 @@ public final class ReplayCommand implements Callable<Integer> {
         PrintWriter err = spec.commandLine().getErr();
         BinTally tally = new BinTally();
         long[] badRows = {0};
-        long checks = 0;
         ReadingSource.BadRow[] firstBad = {null};
         try (ReadingSource src = ReadingSource.open(in, b -> {
             if (badRows[0]++ < maxShown) err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)");
@@ -54,8 +53,8 @@ public final class ReplayCommand implements Callable<Integer> {
             RecordedReading row;
             while ((row = src.next()) != null) {
                 if (strict && firstBad[0] != null) break;
-                if (row.isCheck()) checks++;
-                else tally.add(Grader.regrade(recipe, row));
+                if (row.isCheck()) tally.addCheck("fixture-ok".equals(row.reason()) || "reference-ok".equals(row.reason()));
+                else tally.add(Grader.regrade(recipe, row), true);
             }
         } catch (IOException e) {
             throw new UsageException(e.getMessage());
@@ -65,29 +64,32 @@ public final class ReplayCommand implements Callable<Integer> {
         if (badRows[0] > maxShown) err.println("zbin: " + in + ": " + badRows[0] + " bad rows in all (skipped)");
         BinTally.Snapshot s = tally.snapshot();
         PrintWriter out = spec.commandLine().getOut();
-        if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(s, badRows[0], checks)));
-        else printTable(out, s, recipe, badRows[0], checks);
+        if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(s, badRows[0])));
+        else printTable(out, s, recipe, badRows[0]);
         return Main.EXIT_OK;
     }
 
-    static ObjectNode toJson(BinTally.Snapshot s, long skipped, long checks) {
+    static ObjectNode toJson(BinTally.Snapshot s, long skipped) {
         ObjectNode n = Json.object();
-        n.put("total", s.total());
-        Json.num(n, "yield_pct", s.yieldPct());
+        n.put("total", s.parts());
         TallyJson.put(n, s);
         n.put("skipped_rows", skipped);
-        n.put("fixture_checks", checks);
         return n;
     }
 
-    static void printTable(PrintWriter out, BinTally.Snapshot s, Recipe recipe, long skipped, long checks) {
-        out.printf(Locale.ROOT, "recipe %s: %d parts graded, yield %.2f %%%s%s%n", recipe.name(), s.total(),
-                s.total() == 0 ? 0.0 : s.yieldPct(), skipped > 0 ? ", " + skipped + " rows skipped" : "",
-                checks > 0 ? ", " + checks + " fixture-check rows not graded" : "");
+    static void printTable(PrintWriter out, BinTally.Snapshot s, Recipe recipe, long skipped) {
+        out.printf(Locale.ROOT, "recipe %s: %d parts finished, yield %.2f %% (%d presentations: %d parts + %d retests)%s%s%n",
+                recipe.name(), s.parts(), s.parts() == 0 ? 0.0 : s.yieldPct(), s.presentations(), s.parts(), s.retests(),
+                skipped > 0 ? ", " + skipped + " rows skipped" : "",
+                s.checks() > 0 ? ", " + s.checks() + " fixture-check rows not graded" : "");
         out.printf(Locale.ROOT, "  %4s  %-10s %-7s %10s %8s%n", "bin", "grade", "verdict", "parts", "share");
         for (BinTally.BinCount b : s.bins())
             out.printf(Locale.ROOT, "  %4d  %-10s %-7s %10d %7.2f %%%n", b.bin(), b.grade(), b.verdict().key(), b.count(), b.pct());
-        out.println("  reasons:");
+        out.println("  reasons (final decision per part):");
         s.reasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k, v));
+        if (!s.retestReasons().isEmpty()) {
+            out.println("  retests:");
+            s.retestReasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k, v));
+        }
     }
 }

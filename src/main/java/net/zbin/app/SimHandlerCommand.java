@@ -61,9 +61,9 @@ public final class SimHandlerCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         try (HandlerSim h = new HandlerSim(o, sc, loader)) {
             HandlerSim.Summary s = h.run(Progress.line(out));
-            out.println();
+            Progress.end(out);
             Summaries.print(out, s);
-            return s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0 ? Main.EXIT_OK : Main.EXIT_RUNTIME;
+            return s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0 && s.stale() == 0 ? Main.EXIT_OK : Main.EXIT_RUNTIME;
         }
     }
 }

@@ -7,50 +7,99 @@ import java.util.Map;
 import java.util.TreeMap;
 
 /**
- * Counts gradings per (bin, grade, verdict) and per reason. Single owner, mutable; {@link #snapshot()}
- * gives the immutable view readers use.
+ * Counts decisions so that every view of a lot — the dashboard, the demo summary and {@code replay} —
+ * gives the same yield. A part's outcome is its final decision (pass or fail, after its retests);
+ * interim retest decisions (and parts not measured because the line was paused, faulted or busy) are
+ * counted as retests, fixture checks as checks; yield = parts passed / parts finished.
+ *
+ * <p>Single owner, mutable, counts only grow; {@link #snapshot()} gives the immutable view readers use,
+ * and "since reset" or a window is {@code later.minus(earlier)}.
  */
 public final class BinTally {
     private final Map<BinKey, long[]> bins = new TreeMap<>(Comparator.comparingInt(BinKey::bin)
             .thenComparing(BinKey::grade).thenComparing(BinKey::verdict));
     private final Map<String, long[]> reasons = new TreeMap<>();
-    private long total;
-    private long passed;
+    private final Map<String, long[]> retestReasons = new TreeMap<>();
+    private long parts, passed, retests, checks, checksPassed;
 
     public record BinKey(int bin, String grade, Verdict verdict) {}
 
     public record BinCount(int bin, String grade, Verdict verdict, long count, double pct) {}
 
     /**
-     * @param total    gradings counted
-     * @param passed   gradings with verdict pass
-     * @param bins     counts per bin/grade/verdict, by bin number
-     * @param reasons  counts per reason code, alphabetical
+     * @param parts         parts finished (final decision pass or fail)
+     * @param passed        parts whose final decision was pass
+     * @param retests       interim decisions (retest verdicts, parts not measured)
+     * @param checks        open/short/reference check presentations
+     * @param checksPassed  checks that passed
+     * @param bins          final decisions per bin/grade/verdict, by bin number
+     * @param reasons       final decisions per reason code, alphabetical
+     * @param retestReasons interim decisions per reason code
      */
-    public record Snapshot(long total, long passed, List<BinCount> bins, Map<String, Long> reasons) {
-        /** Pass share in percent, NaN when nothing was counted. */
-        public double yieldPct() { return total == 0 ? Double.NaN : 100.0 * passed / total; }
+    public record Snapshot(long parts, long passed, long retests, long checks, long checksPassed, List<BinCount> bins,
+                           Map<String, Long> reasons, Map<String, Long> retestReasons) {
+        public static final Snapshot EMPTY = new Snapshot(0, 0, 0, 0, 0, List.of(), Map.of(), Map.of());
+
+        /** Pass share of finished parts in percent, NaN when none finished. */
+        public double yieldPct() { return parts == 0 ? Double.NaN : 100.0 * passed / parts; }
+
+        /** Presentations of parts: finished parts plus interim decisions. */
+        public long presentations() { return parts + retests; }
+
+        /** The counts since {@code earlier}, a snapshot of the same tally taken before this one. */
+        public Snapshot minus(Snapshot earlier) {
+            Map<BinKey, Long> b = new TreeMap<>(Comparator.comparingInt(BinKey::bin).thenComparing(BinKey::grade)
+                    .thenComparing(BinKey::verdict));
+            for (BinCount c : bins) b.merge(new BinKey(c.bin(), c.grade(), c.verdict()), c.count(), Long::sum);
+            for (BinCount c : earlier.bins) b.merge(new BinKey(c.bin(), c.grade(), c.verdict()), -c.count(), Long::sum);
+            long p = parts - earlier.parts;
+            List<BinCount> out = b.entrySet().stream().filter(e -> e.getValue() != 0)
+                    .map(e -> new BinCount(e.getKey().bin(), e.getKey().grade(), e.getKey().verdict(), e.getValue(),
+                            p == 0 ? 0 : 100.0 * e.getValue() / p)).toList();
+            return new Snapshot(p, passed - earlier.passed, retests - earlier.retests, checks - earlier.checks,
+                    checksPassed - earlier.checksPassed, out, diff(reasons, earlier.reasons), diff(retestReasons, earlier.retestReasons));
+        }
+
+        private static Map<String, Long> diff(Map<String, Long> a, Map<String, Long> b) {
+            Map<String, Long> out = new TreeMap<>(a);
+            b.forEach((k, v) -> out.merge(k, -v, Long::sum));
+            out.values().removeIf(v -> v == 0);
+            return java.util.Collections.unmodifiableMap(new LinkedHashMap<>(out));
+        }
     }
 
-    public void add(Grading g) {
-        total++;
+    /** Counts one decision; {@code part} false for an open, short or reference check presentation. */
+    public void add(Grading g, boolean part) {
+        if (!part) {
+            addCheck(g.verdict() == Verdict.PASS);
+            return;
+        }
+        if (g.verdict() == Verdict.RETEST) {
+            retests++;
+            retestReasons.computeIfAbsent(g.reason().code(), k -> new long[1])[0]++;
+            return;
+        }
+        parts++;
         if (g.verdict() == Verdict.PASS) passed++;
         bins.computeIfAbsent(new BinKey(g.bin(), g.grade(), g.verdict()), k -> new long[1])[0]++;
-        reasons.computeIfAbsent(g.reason(), k -> new long[1])[0]++;
+        reasons.computeIfAbsent(g.reason().code(), k -> new long[1])[0]++;
     }
 
-    public void reset() {
-        bins.clear();
-        reasons.clear();
-        total = 0;
-        passed = 0;
+    /** Counts one open, short or reference check presentation. */
+    public void addCheck(boolean passed) {
+        checks++;
+        if (passed) checksPassed++;
     }
 
     public Snapshot snapshot() {
         List<BinCount> b = bins.entrySet().stream().map(e -> new BinCount(e.getKey().bin(), e.getKey().grade(),
-                e.getKey().verdict(), e.getValue()[0], total == 0 ? 0 : 100.0 * e.getValue()[0] / total)).toList();
+                e.getKey().verdict(), e.getValue()[0], parts == 0 ? 0 : 100.0 * e.getValue()[0] / parts)).toList();
+        return new Snapshot(parts, passed, retests, checks, checksPassed, b, copy(reasons), copy(retestReasons));
+    }
+
+    private static Map<String, Long> copy(Map<String, long[]> m) {
         Map<String, Long> r = new LinkedHashMap<>();
-        reasons.forEach((k, v) -> r.put(k, v[0]));
-        return new Snapshot(total, passed, b, java.util.Collections.unmodifiableMap(r));
+        m.forEach((k, v) -> r.put(k, v[0]));
+        return java.util.Collections.unmodifiableMap(r);
     }
 }

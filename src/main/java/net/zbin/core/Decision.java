@@ -13,10 +13,11 @@ package net.zbin.core;
  * @param repeat    true when this answers a repeated trigger from the decision already made
  * @param attempt   0 for a first presentation, n for the n-th retest
  */
-public record Decision(long seq, String part, String lot, String kind, String recipe, Grading grading,
+public record Decision(long seq, String part, String lot, Trigger.Kind kind, String recipe, Grading grading,
                        double latencyMs, boolean repeat, int attempt) {
     public Decision {
         if (grading == null) throw new IllegalArgumentException("grading is required");
+        if (kind == null) kind = Trigger.Kind.PART;
         if (attempt < 0) throw new IllegalArgumentException("attempt must be >= 0 (was " + attempt + ")");
     }
 

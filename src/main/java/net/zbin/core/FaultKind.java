@@ -2,12 +2,12 @@ package net.zbin.core;
 
 /** Why no usable reading exists; each maps to a reason code and is retested, then rejected. */
 public enum FaultKind {
-    TIMEOUT("meter-timeout"), GARBLED("meter-garbled"), DISCONNECTED("meter-disconnected"),
-    INSTRUMENT_ERROR("meter-error"), OVERLOAD("overload");
+    TIMEOUT(Reason.METER_TIMEOUT), GARBLED(Reason.METER_GARBLED), DISCONNECTED(Reason.METER_DISCONNECTED),
+    INSTRUMENT_ERROR(Reason.METER_ERROR), OVERLOAD(Reason.OVERLOAD);
 
-    private final String reason;
+    private final Reason reason;
 
-    FaultKind(String reason) { this.reason = reason; }
+    FaultKind(Reason reason) { this.reason = reason; }
 
-    public String reason() { return reason; }
+    public Reason reason() { return reason; }
 }

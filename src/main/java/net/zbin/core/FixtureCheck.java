@@ -22,32 +22,33 @@ public final class FixtureCheck {
     }
 
     public static Grading open(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite()) return result(r, rd, "open-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
-        if (comp == null || comp.open() == null) return result(r, rd, "open-check", Verdict.FAIL, "no-compensation", CompensationSource.NONE);
+        if (!rd.isFinite()) return result(r, rd, "open-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
+        if (comp == null || comp.open() == null) return result(r, rd, "open-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
         Impedance now = new Impedance(rd.freqHz(), rd.rOhm(), rd.xOhm());
         double delta = now.cpF() - comp.open().cpF();
         boolean ok = Math.abs(delta) <= lim.openDriftMaxF();
-        return result(r, rd, "open-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? "fixture-ok" : "fixture-drift", comp.source());
+        return result(r, rd, "open-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
     }
 
     public static Grading shortBar(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite()) return result(r, rd, "short-check", Verdict.FAIL, "non-finite", CompensationSource.NONE);
-        if (comp == null || comp.shortZ() == null) return result(r, rd, "short-check", Verdict.FAIL, "no-compensation", CompensationSource.NONE);
+        if (!rd.isFinite()) return result(r, rd, "short-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
+        if (comp == null || comp.shortZ() == null) return result(r, rd, "short-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
         double delta = Math.hypot(rd.rOhm() - comp.shortZ().rOhm(), rd.xOhm() - comp.shortZ().xOhm());
         boolean ok = delta <= lim.shortDriftMaxOhm();
-        return result(r, rd, "short-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? "fixture-ok" : "fixture-drift", comp.source());
+        return result(r, rd, "short-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
     }
 
     /** The reference part: graded as a part; it passes when it lands in the recipe's first grade. */
     public static Grading reference(Recipe r, Reading rd, Compensation comp, int attempt) {
         Grading g = Grader.grade(r, rd, comp, attempt);
         boolean ok = g.verdict() == Verdict.PASS && g.grade().equals(r.grades().get(0).name());
-        return new Grading(r.retest().bin(), "reference", ok ? Verdict.PASS : Verdict.FAIL, ok ? "reference-ok" : "reference-off",
-                g.model(), g.param(), g.value(), g.devPct(), g.freqHz(), g.rOhm(), g.xOhm(), g.rawROhm(), g.rawXOhm(), g.comp());
+        return new Grading(new Grading.Outcome(r.retest().bin(), "reference", ok ? Verdict.PASS : Verdict.FAIL,
+                ok ? Reason.REFERENCE_OK : Reason.REFERENCE_OFF), g.measured(), g.graded());
     }
 
-    private static Grading result(Recipe r, Reading rd, String grade, Verdict v, String reason, CompensationSource src) {
-        return new Grading(r.retest().bin(), grade, v, reason, null, null, Double.NaN, Double.NaN, rd.freqHz(),
-                rd.rOhm(), rd.xOhm(), rd.rOhm(), rd.xOhm(), src);
+    /** The check's raw reading is kept as measured (R, X), uncompensated: it is the fixture itself. */
+    private static Grading result(Recipe r, Reading rd, String grade, Verdict v, Reason reason, CompensationSource src) {
+        Impedance z = rd.isFinite() ? new Impedance(rd.freqHz(), rd.rOhm(), rd.xOhm()) : null;
+        return new Grading(new Grading.Outcome(r.retest().bin(), grade, v, reason), Grading.Measurement.of(rd, z, src), null);
     }
 }

@@ -32,14 +32,14 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
      * through one quantity, D = R/|X| (Q ≥ q_min is D ≤ 1/q_min), so the two gates never disagree,
      * also for an R that compensation left slightly below zero.
      */
-    public String firstFailure(Impedance z) {
+    public Reason firstFailure(Impedance z) {
         double d = z.d();
-        if (dMax != null && !(d <= dMax)) return "d-high";
-        if (qMin != null && !(d <= 1 / qMin)) return "q-low";
-        if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return "esr-high";
+        if (dMax != null && !(d <= dMax)) return Reason.D_HIGH;
+        if (qMin != null && !(d <= 1 / qMin)) return Reason.Q_LOW;
+        if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return Reason.ESR_HIGH;
         double t = z.thetaDeg();
-        if (thetaMinDeg != null && t < thetaMinDeg) return "theta-out";
-        if (thetaMaxDeg != null && t > thetaMaxDeg) return "theta-out";
+        if (thetaMinDeg != null && t < thetaMinDeg) return Reason.THETA_OUT;
+        if (thetaMaxDeg != null && t > thetaMaxDeg) return Reason.THETA_OUT;
         return null;
     }
 }

@@ -4,9 +4,9 @@ import java.util.Optional;
 
 /**
  * Turns a raw reading into a grading under a recipe. Fail-safe: any reading that is not clean
- * (non-finite, wrong frequency, missing or mismatched compensation, open contact, short) — and any
- * meter failure, see {@link #fault} — is retested up to the recipe's count and then rejected; it
- * never reaches a value grade.
+ * (non-finite, wrong frequency, missing or mismatched compensation, open contact, short, R below zero
+ * beyond the compensation's resolution) — and any meter failure, see {@link #fault} — is retested up to
+ * the recipe's count and then rejected; it never reaches a value grade.
  */
 public final class Grader {
     private Grader() {}
@@ -17,19 +17,16 @@ public final class Grader {
      */
     public static Grading grade(Recipe recipe, Reading reading, Compensation comp, int attempt) {
         double f = reading.freqHz();
-        RejectBins rb = recipe.reject();
-        if (!reading.isFinite())
-            return unclean(recipe, attempt, "non-finite", rb.fault(), "fault", reading, null, CompensationSource.NONE);
+        if (!reading.isFinite()) return unclean(recipe, attempt, Reason.NON_FINITE, Grading.Measurement.of(reading, null, CompensationSource.NONE));
         if (!Compensation.matches(f, recipe.freqHz()))
-            return unclean(recipe, attempt, "frequency-mismatch", rb.fault(), "fault", reading, null, CompensationSource.NONE);
+            return unclean(recipe, attempt, Reason.FREQUENCY_MISMATCH, Grading.Measurement.of(reading, null, CompensationSource.NONE));
         Impedance raw = new Impedance(f, reading.rOhm(), reading.xOhm());
         CompensationSource source = comp == null || !comp.isApplied() ? CompensationSource.NONE : comp.source();
         if (source == CompensationSource.NONE) return gradeCorrected(recipe, raw, reading, source, attempt, false, false);
         if (!Compensation.matches(comp.freqHz(), f))
-            return unclean(recipe, attempt, "compensation-mismatch", rb.fault(), "fault", reading, null, source);
+            return unclean(recipe, attempt, Reason.COMPENSATION_MISMATCH, Grading.Measurement.of(reading, null, source));
         Optional<Impedance> corrected = comp.correct(raw);
-        if (corrected.isEmpty())
-            return unclean(recipe, attempt, "open-contact", rb.contact(), "contact", reading, null, source);
+        if (corrected.isEmpty()) return unclean(recipe, attempt, Reason.OPEN_CONTACT, Grading.Measurement.of(reading, null, source));
         return gradeCorrected(recipe, corrected.get(), reading, source, attempt, comp.open() != null, comp.shortZ() != null);
     }
 
@@ -48,36 +45,28 @@ public final class Grader {
      */
     public static Grading gradeCorrected(Recipe recipe, Impedance z, Reading raw, CompensationSource source, int attempt,
                                          boolean openCompensated, boolean shortCompensated) {
-        RejectBins rb = recipe.reject();
-        double f = z.freqHz();
-        if (!Compensation.matches(f, recipe.freqHz()))
-            return unclean(recipe, attempt, "frequency-mismatch", rb.fault(), "fault", raw, null, source);
+        Grading.Measurement m = Grading.Measurement.of(raw, z, source);
+        if (!Compensation.matches(z.freqHz(), recipe.freqHz()))
+            return unclean(recipe, attempt, Reason.FREQUENCY_MISMATCH, Grading.Measurement.of(raw, null, source));
         boolean missing = source == CompensationSource.NONE && recipe.compensationRequired()
                 || recipe.needsOpenCompensation() && !openCompensated
                 || recipe.needsShortCompensation() && !shortCompensated;
-        if (missing)
-            return unclean(recipe, attempt, "no-compensation", rb.fault(), "fault", raw, null, source);
+        if (missing) return unclean(recipe, attempt, Reason.NO_COMPENSATION, Grading.Measurement.of(raw, null, source));
         double ideal = recipe.idealZOhm();
         ContactCheck contact = recipe.contact();
-        if (contact.isOpen(recipe.partType(), ideal, z, openCompensated))
-            return unclean(recipe, attempt, "open-contact", rb.contact(), "contact", raw, z, source);
-        if (contact.isShort(ideal, z, shortCompensated))
-            return unclean(recipe, attempt, "short", rb.shortBin(), "short", raw, z, source);
-        if (contact.fixture().negativeBeyondResolution(z))
-            return unclean(recipe, attempt, "negative-r", rb.fault(), "fault", raw, z, source);
+        if (contact.isOpen(recipe.partType(), ideal, z, openCompensated)) return unclean(recipe, attempt, Reason.OPEN_CONTACT, m);
+        if (contact.isShort(ideal, z, shortCompensated)) return unclean(recipe, attempt, Reason.SHORT, m);
+        if (contact.fixture().negativeBeyondResolution(z)) return unclean(recipe, attempt, Reason.NEGATIVE_R, m);
 
         PrimaryParam param = recipe.primaryParam();
-        EquivalentModel model = recipe.equivalentModel();
         double value = z.value(param);
         double dev = (value - recipe.nominal()) * 100 / recipe.nominal(); // exact at decimal edges: 930 of 1000 is −7 %
-        if (!(value > 0) || !Double.isFinite(value))
-            return done(rb.low(), "low", Verdict.FAIL, "wrong-sign", model, param, value, dev, raw, z, source);
-        if (!recipe.plausible().admits(z))
-            return done(rb.gate(), "gate", Verdict.FAIL, "phase-implausible", model, param, value, dev, raw, z, source);
-        String gate = recipe.gates().firstFailure(z);
-        if (gate != null)
-            return done(rb.gate(), "gate", Verdict.FAIL, gate, model, param, value, dev, raw, z, source);
-        return byValue(recipe, dev, model, param, value, raw, z, source);
+        Grading.Value v = new Grading.Value(recipe.equivalentModel(), param, value, dev);
+        if (!(value > 0) || !Double.isFinite(value)) return rejected(recipe, Reason.WRONG_SIGN, false, m, v);
+        if (!recipe.plausible().admits(z)) return rejected(recipe, Reason.PHASE_IMPLAUSIBLE, false, m, v);
+        Reason gate = recipe.gates().firstFailure(z);
+        if (gate != null) return rejected(recipe, gate, false, m, v);
+        return byValue(recipe, m, v);
     }
 
     /**
@@ -99,88 +88,68 @@ public final class Grader {
      * Re-creates the grading of a reading that was not clean, from its reason code alone (replay
      * of a record whose reading is missing). Unknown codes count as a fault.
      */
-    public static Grading byReason(Recipe recipe, String reason, int attempt) {
-        RejectBins rb = recipe.reject();
-        for (FaultKind k : FaultKind.values()) if (k.reason().equals(reason)) return fault(recipe, k, attempt);
-        return switch (reason) {
-            case "open-contact" -> unclean(recipe, attempt, reason, rb.contact(), "contact", null, null, CompensationSource.NONE);
-            case "short" -> unclean(recipe, attempt, reason, rb.shortBin(), "short", null, null, CompensationSource.NONE);
-            case NOT_MEASURED_PAUSED, NOT_MEASURED_FAULTED -> notMeasured(recipe, reason);
-            default -> unclean(recipe, attempt, reason, rb.fault(), "fault", null, null, CompensationSource.NONE);
+    public static Grading byReason(Recipe recipe, String code, int attempt) {
+        Reason reason;
+        try {
+            reason = Reason.parse(code);
+        } catch (IllegalArgumentException e) {
+            reason = Reason.METER_ERROR;
+        }
+        return switch (reason.kind()) {
+            case NOT_MEASURED -> notMeasured(recipe, reason);
+            case UNCLEAN -> unclean(recipe, attempt, reason, null);
+            default -> unclean(recipe, attempt, Reason.METER_ERROR, null); // a value reason without a value: not clean
         };
     }
 
-    /** Reason code: the line was paused, the part was not measured. */
-    public static final String NOT_MEASURED_PAUSED = "line-paused";
-    /** Reason code: the line is in fault (meter link down), the part was not measured. */
-    public static final String NOT_MEASURED_FAULTED = "line-fault";
-
-    private static Grading byValue(Recipe r, double dev, EquivalentModel model, PrimaryParam param, double value,
-                                   Reading reading, Impedance z, CompensationSource source) {
+    private static Grading byValue(Recipe r, Grading.Measurement m, Grading.Value v) {
         GuardBand gb = r.guard();
+        double dev = v.devPct();
         var grades = r.grades();
         Grade first = grades.get(0), last = grades.get(grades.size() - 1);
         if (r.mode() == GradingMode.CONCENTRIC) {
-            for (Grade g : grades)
-                if (g.accepts(dev, gb))
-                    return done(g.bin(), g.name(), Verdict.PASS, "in-grade", model, param, value, dev, reading, z, source);
-            if (dev < last.lowPct() || dev > last.highPct())
-                return outside(r, dev < last.lowPct(), model, param, value, dev, reading, z, source);
-            return guarded(r, dev < (last.lowPct() + last.highPct()) / 2, model, param, value, dev, reading, z, source);
+            for (Grade g : grades) if (g.accepts(dev, gb)) return passed(g, m, v);
+            if (dev < last.lowPct() || dev > last.highPct()) return rejected(r, dev < last.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false, m, v);
+            return rejected(r, Reason.GUARD_BAND, dev < (last.lowPct() + last.highPct()) / 2, m, v);
         }
-        if (dev < first.lowPct() || dev > last.highPct())
-            return outside(r, dev < first.lowPct(), model, param, value, dev, reading, z, source);
+        if (dev < first.lowPct() || dev > last.highPct()) return rejected(r, dev < first.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false, m, v);
         // Adjacent ranges, every edge guarded; at an unguarded inner edge the upper range takes the part.
-        for (int i = grades.size() - 1; i >= 0; i--) {
-            Grade g = grades.get(i);
-            if (g.accepts(dev, gb))
-                return done(g.bin(), g.name(), Verdict.PASS, "in-grade", model, param, value, dev, reading, z, source);
-        }
+        for (int i = grades.size() - 1; i >= 0; i--) if (grades.get(i).accepts(dev, gb)) return passed(grades.get(i), m, v);
         boolean lowSide = dev < first.acceptLowPct(gb) || dev <= last.acceptHighPct(gb) && dev < 0;
-        return guarded(r, lowSide, model, param, value, dev, reading, z, source);
+        return rejected(r, Reason.GUARD_BAND, lowSide, m, v);
     }
 
-    private static Grading guarded(Recipe r, boolean lowSide, EquivalentModel model, PrimaryParam param, double value,
-                                   double dev, Reading reading, Impedance z, CompensationSource source) {
-        return done(r.reject().guardBin(lowSide), lowSide ? "low" : "high", Verdict.FAIL, "guard-band", model, param,
-                value, dev, reading, z, source);
+    private static Grading passed(Grade g, Grading.Measurement m, Grading.Value v) {
+        return new Grading(new Grading.Outcome(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE), m, v);
     }
 
-    private static Grading outside(Recipe r, boolean low, EquivalentModel model, PrimaryParam param, double value,
-                                   double dev, Reading reading, Impedance z, CompensationSource source) {
-        return done(low ? r.reject().low() : r.reject().high(), low ? "low" : "high", Verdict.FAIL,
-                low ? "value-low" : "value-high", model, param, value, dev, reading, z, source);
+    /** A clean reading that failed: its reject bin; a guard-band reject on the low or high side. */
+    private static Grading rejected(Recipe r, Reason reason, boolean lowSide, Grading.Measurement m, Grading.Value v) {
+        RejectBins rb = r.reject();
+        int bin = reason == Reason.GUARD_BAND ? rb.guardBin(lowSide) : rb.bin(reason.rejectClass());
+        String cls = reason == Reason.GUARD_BAND ? (lowSide ? "low" : "high") : reason.rejectClass().key();
+        return new Grading(new Grading.Outcome(bin, cls, Verdict.FAIL, reason), m, v);
     }
 
     /** A part that could not be measured at all (meter failure): retest, then the fault or overload bin. */
     public static Grading fault(Recipe recipe, FaultKind kind, int attempt) {
-        int bin = kind == FaultKind.OVERLOAD ? recipe.reject().overload() : recipe.reject().fault();
-        String cls = kind == FaultKind.OVERLOAD ? "overload" : "fault";
-        return unclean(recipe, attempt, kind.reason(), bin, cls, null, null, CompensationSource.NONE);
+        return unclean(recipe, attempt, kind.reason(), null);
     }
 
     /**
-     * A part that is not measured for a reason outside the part (line paused, meter faulted):
-     * always sent back, never counted against the retest limit.
+     * A part that is not measured for a reason outside the part (line paused, meter faulted, line
+     * busy): always sent back, never counted against the retest limit.
      */
-    public static Grading notMeasured(Recipe recipe, String reason) {
-        return new Grading(recipe.retest().bin(), "retest", Verdict.RETEST, reason, null, null, Double.NaN, Double.NaN,
-                recipe.freqHz(), Double.NaN, Double.NaN, Double.NaN, Double.NaN, CompensationSource.NONE);
+    public static Grading notMeasured(Recipe recipe, Reason reason) {
+        if (reason.kind() != Reason.Kind.NOT_MEASURED) throw new IllegalArgumentException(reason + " is not a not-measured reason");
+        return new Grading(new Grading.Outcome(recipe.retest().bin(), "retest", Verdict.RETEST, reason), null, null);
     }
 
-    private static Grading unclean(Recipe recipe, int attempt, String reason, int rejectBin, String cls,
-                                   Reading reading, Impedance z, CompensationSource source) {
+    /** No clean reading: retest while the recipe allows, then the reason's reject bin. No value, ever. */
+    private static Grading unclean(Recipe recipe, int attempt, Reason reason, Grading.Measurement m) {
         boolean again = attempt < recipe.retest().count();
-        return done(again ? recipe.retest().bin() : rejectBin, again ? "retest" : cls,
-                again ? Verdict.RETEST : Verdict.FAIL, reason, null, null, Double.NaN, Double.NaN,
-                reading == null ? new Reading(recipe.freqHz(), Double.NaN, Double.NaN) : reading, z, source);
-    }
-
-    private static Grading done(int bin, String grade, Verdict verdict, String reason, EquivalentModel model,
-                                PrimaryParam param, double value, double dev, Reading reading, Impedance z,
-                                CompensationSource source) {
-        return new Grading(bin, grade, verdict, reason, model, param, value, dev, reading.freqHz(),
-                z == null ? Double.NaN : z.rOhm(), z == null ? Double.NaN : z.xOhm(),
-                reading.rOhm(), reading.xOhm(), source);
+        int bin = again ? recipe.retest().bin() : recipe.reject().bin(reason.rejectClass());
+        String grade = again ? "retest" : reason.rejectClass().key();
+        return new Grading(new Grading.Outcome(bin, grade, again ? Verdict.RETEST : Verdict.FAIL, reason), m, null);
     }
 }

@@ -1,41 +1,83 @@
 package net.zbin.core;
 
 /**
- * The outcome of grading one reading: what the handler gets (bin, verdict) and what explains it.
- * Quantities that do not exist for this outcome are NaN; payload writers turn NaN into JSON null. D, Q,
- * ESR and θ exist only where a value was computed (a graded part, or one failed on its value, phase or
- * gates): an open contact, a short or a fault carries its R and X for diagnosis, but no loss figures,
- * since they would describe the fixture, not a part.
- *
- * @param bin       handler bin number
- * @param grade     grade name for a pass, the reject class otherwise ("low", "high", "gate", …)
- * @param verdict   pass, fail or retest
- * @param reason    kebab-case reason code (see README)
- * @param model     equivalent model used, or null when no value was computed
- * @param param     graded parameter, or null
- * @param value     value of {@code param} in SI units
- * @param devPct    deviation from nominal in percent
- * @param freqHz    test frequency in Hz
- * @param rOhm      compensated R
- * @param xOhm      compensated X
- * @param rawROhm   R as read
- * @param rawXOhm   X as read
- * @param comp      compensation source applied
+ * The outcome of grading one reading, in three parts: what the handler gets ({@link Outcome}), what
+ * was measured ({@link Measurement}, absent when nothing was), and the value graded ({@link Value},
+ * absent when no value was computed). Absent parts are null, never NaN-filled; the accessors below
+ * give NaN (JSON null) for a quantity that does not exist for this outcome. D, Q, ESR and θ exist only
+ * where a value was computed: an open contact, a short or a fault carries its R and X for diagnosis,
+ * but no loss figures, since they would describe the fixture, not a part.
  */
-public record Grading(int bin, String grade, Verdict verdict, String reason, EquivalentModel model, PrimaryParam param,
-                      double value, double devPct, double freqHz, double rOhm, double xOhm,
-                      double rawROhm, double rawXOhm, CompensationSource comp) {
-    private boolean hasZ() { return Double.isFinite(rOhm) && Double.isFinite(xOhm) && freqHz > 0; }
+public record Grading(Outcome outcome, Measurement measured, Value graded) {
+    /**
+     * @param bin     handler bin number
+     * @param grade   grade name for a pass, the reject class otherwise ("low", "gate", "retest", …)
+     * @param verdict pass, fail or retest
+     * @param reason  why
+     */
+    public record Outcome(int bin, String grade, Verdict verdict, Reason reason) {
+        public Outcome {
+            if (grade == null || verdict == null || reason == null) throw new IllegalArgumentException("grade, verdict and reason are required");
+        }
+    }
 
-    private boolean hasValue() { return param != null && hasZ(); }
+    /**
+     * @param freqHz  test frequency in Hz
+     * @param z       the compensated impedance, or null when the reading was not finite or not correctable
+     * @param rawROhm R as the meter read it (NaN when not finite)
+     * @param rawXOhm X as the meter read it
+     * @param comp    compensation applied to z
+     */
+    public record Measurement(double freqHz, Impedance z, double rawROhm, double rawXOhm, CompensationSource comp) {
+        public Measurement {
+            if (comp == null) comp = CompensationSource.NONE;
+        }
+
+        public static Measurement of(Reading raw, Impedance z, CompensationSource comp) {
+            return new Measurement(raw.freqHz(), z, raw.rOhm(), raw.xOhm(), comp);
+        }
+    }
+
+    /**
+     * @param model  equivalent model
+     * @param param  graded parameter
+     * @param value  its value in SI units
+     * @param devPct deviation from nominal in percent
+     */
+    public record Value(EquivalentModel model, PrimaryParam param, double value, double devPct) {}
+
+    public Grading {
+        if (outcome == null) throw new IllegalArgumentException("outcome is required");
+    }
+
+    public int bin() { return outcome.bin(); }
+    public String grade() { return outcome.grade(); }
+    public Verdict verdict() { return outcome.verdict(); }
+    public Reason reason() { return outcome.reason(); }
+
+    public EquivalentModel model() { return graded == null ? null : graded.model(); }
+    public PrimaryParam param() { return graded == null ? null : graded.param(); }
+    public double value() { return graded == null ? Double.NaN : graded.value(); }
+    public double devPct() { return graded == null ? Double.NaN : graded.devPct(); }
+    public String unit() { return graded == null ? null : graded.param().unit(); }
+
+    /** Test frequency in Hz, NaN when nothing was measured. */
+    public double freqHz() { return measured == null ? Double.NaN : measured.freqHz(); }
 
     /** The compensated impedance, or null when there is none. */
-    public Impedance impedance() { return hasZ() ? new Impedance(freqHz, rOhm, xOhm) : null; }
+    public Impedance impedance() { return measured == null ? null : measured.z(); }
+
+    public double rOhm() { return impedance() == null ? Double.NaN : impedance().rOhm(); }
+    public double xOhm() { return impedance() == null ? Double.NaN : impedance().xOhm(); }
+    public double zOhm() { return impedance() == null ? Double.NaN : impedance().zOhm(); }
+    public double rawROhm() { return measured == null ? Double.NaN : measured.rawROhm(); }
+    public double rawXOhm() { return measured == null ? Double.NaN : measured.rawXOhm(); }
+    public CompensationSource comp() { return measured == null ? CompensationSource.NONE : measured.comp(); }
+
+    private boolean hasValue() { return graded != null && impedance() != null; }
 
     public double d() { return hasValue() ? impedance().d() : Double.NaN; }
     public double q() { return hasValue() ? impedance().q() : Double.NaN; }
-    public double esrOhm() { return hasValue() ? rOhm : Double.NaN; }
+    public double esrOhm() { return hasValue() ? impedance().rOhm() : Double.NaN; }
     public double thetaDeg() { return hasValue() ? impedance().thetaDeg() : Double.NaN; }
-    public double zOhm() { return hasZ() ? impedance().zOhm() : Double.NaN; }
-    public String unit() { return param == null ? null : param.unit(); }
 }

@@ -34,6 +34,20 @@ public record RejectBins(int low, int high, int gate, int contact, int shortBin,
                 : new int[] {low, high, gate, contact, shortBin, overload, fault, guard};
     }
 
+    /** The bin of a reject class; a guard-band reject without its own bin goes high (use {@link #guardBin}). */
+    public int bin(Reason.RejectClass c) {
+        return switch (c) {
+            case LOW -> low;
+            case HIGH -> high;
+            case GATE -> gate;
+            case CONTACT -> contact;
+            case SHORT -> shortBin;
+            case OVERLOAD -> overload;
+            case FAULT -> fault;
+            case GUARD -> guardBin(false);
+        };
+    }
+
     /** The bin of a guard-band reject on the low or high side. */
     public int guardBin(boolean lowSide) { return guard >= 0 ? guard : lowSide ? low : high; }
 }

@@ -19,13 +19,14 @@ import net.zbin.io.meter.MeterProfile;
  * @param stateDir        folder for compensation data and other state
  * @param records         record-log settings
  * @param deadlineMs      handler's index time: a decision later than this counts as late
+ * @param repeatWindowMs  a trigger with the seq, part and lot of a decided presentation within this is a repeat
  * @param dashboardMs     period of the dashboard publish
  * @param fixture         plausibility limits for compensation captures
  * @param checks          drift limits for the handler's open/short check presentations
  * @param bounds          what the fixture itself reads, for telling an open or short from a part
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
-                         Path stateDir, RecordSettings records, int deadlineMs, int dashboardMs, FixtureLimits fixture,
+                         Path stateDir, RecordSettings records, int deadlineMs, int repeatWindowMs, int dashboardMs, FixtureLimits fixture,
                          FixtureCheck.Limits checks, FixtureBounds bounds) {
 
     /**

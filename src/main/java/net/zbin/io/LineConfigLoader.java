@@ -83,6 +83,8 @@ public final class LineConfigLoader {
         SpecNode h = n.child("handler");
         int deadline = h.optInteger("deadline_ms", 150);
         if (deadline < 1) throw h.error("deadline_ms", "must be >= 1 (was " + deadline + ")");
+        int repeatWindow = h.optInteger("repeat_window_ms", 5000);
+        if (repeatWindow < 0 || repeatWindow > 600_000) throw h.error("repeat_window_ms", "must be 0..600000 (was " + repeatWindow + ")");
         h.finish();
         SpecNode d = n.child("dashboard");
         double interval = d.optNumber("interval_s", 5, Unit.SECOND);
@@ -104,7 +106,7 @@ public final class LineConfigLoader {
         n.finish();
         return new LineConfig(file, line, new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive),
                 profile, recipeDir, active, state, new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024),
-                onFail.equals("pause")), deadline, (int) Math.round(interval * 1000), fl, checks, bounds);
+                onFail.equals("pause")), deadline, repeatWindow, (int) Math.round(interval * 1000), fl, checks, bounds);
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

@@ -9,9 +9,7 @@ import java.util.List;
 public final class RecordColumns {
     private RecordColumns() {}
 
-    public static final List<String> ALL = List.of("time", "line", "lot", "seq", "part", "kind", "recipe", "freq_hz",
-            "r_ohm", "x_ohm", "raw_r_ohm", "raw_x_ohm", "model", "param", "value", "dev_pct", "d", "q", "esr_ohm",
-            "theta_deg", "bin", "grade", "verdict", "reason", "latency_ms", "comp", "attempt");
+    public static final List<String> ALL = DecisionFields.COLUMNS;
 
     /** The columns a replay input must have, by name. */
     public static final List<String> REPLAY_REQUIRED = List.of("freq_hz", "r_ohm", "x_ohm");

@@ -15,37 +15,30 @@ import java.time.Instant;
 import java.time.LocalDate;
 import java.time.ZoneOffset;
 import java.util.ArrayDeque;
-import java.util.ArrayList;
-import java.util.List;
-import java.util.concurrent.LinkedBlockingQueue;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
-import net.zbin.core.Decision;
-import net.zbin.core.Grading;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVPrinter;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * The record log (contract, see the README's record log section): one CSV row per decision, appended by its own thread so
- * that the handler's answer never waits on the disk. Rows are flushed and forced to disk at least
- * every {@code flushMs}, so a kill -9 loses at most that interval. A torn last line (the process
- * died mid-row) is cut off when the file is reopened, so no row ever reads back wrong. Files rotate
- * by UTC day and by size: {@code <line>-<yyyy-mm-dd>.csv}, then {@code .1.csv}, {@code .2.csv}, …
- * When writing fails, rows are kept in memory and retried; the listener hears of the failure and
- * of the recovery.
+ * The record log (contract, see the README's record log section): one CSV row per decision. A row is
+ * written to the operating system by {@link #append} before its decision is published — a cheap write,
+ * not an fsync — so a kill -9 of the process loses no row the handler acted on; a timer thread forces
+ * the file to disk every {@code flushMs}, so a power cut loses at most that interval. A torn last line
+ * (the machine died mid-row) is cut off when the file is reopened, so no row ever reads back wrong.
+ * Files rotate by UTC day and by size: {@code <line>-<yyyy-mm-dd>.csv}, then {@code .1.csv}, {@code .2.csv}, …
+ * When writing fails, rows are kept in memory and retried by the timer; the listener hears of the
+ * failure and of the recovery. Thread-safe: the measuring thread and the overflow answerer append.
  */
 public final class RecordLog implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(RecordLog.class);
-    private static final int QUEUE = 1 << 20;
+    private static final int MAX_PENDING = 1 << 20;
     private static final CSVFormat FORMAT = CSVFormat.DEFAULT.builder().setRecordSeparator("\n").get();
     private static final String HEADER = String.join(",", RecordColumns.ALL) + "\n";
 
-    /** One decision with when it was made. */
-    public record Row(Instant time, String line, Decision decision) {}
-
-    /** Told when the log stops being writable, and when it is again. Called on the log thread. */
+    /** Told when the log stops being writable, and when it is again. Must not block. */
     public interface Listener {
         void failed(String message);
 
@@ -55,92 +48,99 @@ public final class RecordLog implements AutoCloseable {
     private final LineConfig.RecordSettings settings;
     private final String line;
     private final Listener listener;
-    private final LinkedBlockingQueue<Row> queue = new LinkedBlockingQueue<>(QUEUE);
-    private final ArrayDeque<Row> pending = new ArrayDeque<>();
+    private final ArrayDeque<DecisionFields.Entry> pending = new ArrayDeque<>();
     private final AtomicLong written = new AtomicLong();
     private final AtomicLong dropped = new AtomicLong();
-    private final Thread thread;
-    private volatile boolean running = true;
+    private final java.util.concurrent.ScheduledExecutorService timer;
     private FileChannel channel;
     private CSVPrinter printer;
     private Path current;
     private LocalDate day;
-    private boolean failing;
+    private boolean failing, dirty, closed;
 
     public RecordLog(LineConfig.RecordSettings settings, String line, Listener listener) {
         this.settings = settings;
         this.line = line;
         this.listener = listener;
-        this.thread = new Thread(this::run, "record-log");
-        thread.setDaemon(true);
+        this.timer = java.util.concurrent.Executors.newSingleThreadScheduledExecutor(r -> {
+            Thread t = new Thread(r, "record-log-" + line);
+            t.setDaemon(true);
+            return t;
+        });
     }
 
-    public void start() { thread.start(); }
+    public void start() {
+        long period = Math.max(1, settings.flushMs());
+        timer.scheduleWithFixedDelay(this::sync, period, period, TimeUnit.MILLISECONDS);
+    }
 
-    /** Queues a row; never blocks. False (and counted) only when a million rows are already waiting. */
-    public boolean offer(Row r) {
-        if (queue.offer(r)) return true;
-        dropped.incrementAndGet();
-        return false;
+    /**
+     * Writes a row through to the operating system. False when the log is failing: the row is then
+     * kept in memory (counted as backlog) and written on recovery; beyond a million it is dropped and counted.
+     */
+    public synchronized boolean append(DecisionFields.Entry r) {
+        if (closed) throw new IllegalStateException("record log closed");
+        if (!pending.isEmpty() || failing) {
+            if (pending.size() >= MAX_PENDING) {
+                dropped.incrementAndGet();
+                return false;
+            }
+            pending.add(r);
+            return false;
+        }
+        try {
+            writeOne(r);
+            dirty = true;
+            return true;
+        } catch (IOException | RuntimeException e) {
+            pending.add(r);
+            fail(e);
+            return false;
+        }
     }
 
     public long written() { return written.get(); }
 
     public long dropped() { return dropped.get(); }
 
-    /** Rows accepted but not yet on disk. */
-    public int backlog() { return queue.size() + pending.size(); }
+    /** Rows accepted but not yet written. */
+    public synchronized int backlog() { return pending.size(); }
 
-    private void run() {
-        long lastFlush = System.nanoTime();
-        List<Row> batch = new ArrayList<>();
-        while (running || !queue.isEmpty()) {
-            try {
-                Row first = queue.poll(Math.max(1, settings.flushMs()), TimeUnit.MILLISECONDS);
-                if (first != null) {
-                    pending.add(first);
-                    queue.drainTo(batch);
-                    pending.addAll(batch);
-                    batch.clear();
-                }
-            } catch (InterruptedException e) {
-                running = false;
-            }
-            long now = System.nanoTime();
-            if (!pending.isEmpty() && (settings.flushMs() == 0 || now - lastFlush >= settings.flushMs() * 1_000_000L || !running)) {
-                writePending();
-                lastFlush = now;
-            }
-        }
-        writePending();
-        closeFile();
+    /** Writes one row through to the operating system (no fsync); rotates past the size limit. */
+    private void writeOne(DecisionFields.Entry r) throws IOException {
+        ensureFile(r.time());
+        printer.printRecord((Object[]) values(r));
+        printer.flush();
+        written.incrementAndGet();
+        if (channel.size() >= settings.rotateBytes()) closeFile();
     }
 
-    private void writePending() {
-        if (pending.isEmpty()) return;
+    /** The timer: retries kept rows, then forces written rows to disk. */
+    synchronized void sync() {
         try {
             while (!pending.isEmpty()) {
-                Row r = pending.peek();
-                ensureFile(r.time());
-                printer.printRecord(values(r));
+                writeOne(pending.peek());
                 pending.poll();
-                written.incrementAndGet();
+                dirty = true;
             }
-            printer.flush();
-            channel.force(false);
-            if (channel.size() >= settings.rotateBytes()) closeFile();
+            if (printer != null && dirty) channel.force(false);
+            dirty = false;
             if (failing) {
                 failing = false;
                 LOG.info("record log writable again: {}", current);
                 listener.recovered();
             }
         } catch (IOException | RuntimeException e) {
-            closeFile();
-            if (!failing) {
-                failing = true;
-                LOG.error("record log cannot be written: {}", e.toString());
-                listener.failed("record log cannot be written in " + settings.dir() + ": " + e.getMessage());
-            }
+            fail(e);
+        }
+    }
+
+    private void fail(Exception e) {
+        closeFile();
+        if (!failing) {
+            failing = true;
+            LOG.error("record log cannot be written: {}", e.toString());
+            listener.failed("record log cannot be written in " + settings.dir() + ": " + e.getMessage());
         }
     }
 
@@ -223,51 +223,21 @@ public final class RecordLog implements AutoCloseable {
         channel = null;
     }
 
-    static List<Object> values(Row r) {
-        Decision d = r.decision();
-        Grading g = d.grading();
-        List<Object> v = new ArrayList<>(RecordColumns.ALL.size());
-        v.add(r.time().toString());
-        v.add(r.line());
-        v.add(d.lot());
-        v.add(d.seq());
-        v.add(d.part());
-        v.add(d.kind());
-        v.add(d.recipe());
-        v.add(num(g.freqHz()));
-        v.add(num(g.rOhm()));
-        v.add(num(g.xOhm()));
-        v.add(num(g.rawROhm()));
-        v.add(num(g.rawXOhm()));
-        v.add(g.model() == null ? "" : g.model().key());
-        v.add(g.param() == null ? "" : g.param().label());
-        v.add(num(g.value()));
-        v.add(num(g.devPct()));
-        v.add(num(g.d()));
-        v.add(num(g.q()));
-        v.add(num(g.esrOhm()));
-        v.add(num(g.thetaDeg()));
-        v.add(g.bin());
-        v.add(g.grade());
-        v.add(g.verdict().key());
-        v.add(g.reason());
-        v.add(num(d.latencyMs()));
-        v.add(g.comp().key());
-        v.add(d.attempt());
-        return v;
-    }
+    static String[] values(DecisionFields.Entry r) { return DecisionFields.row(r); }
 
-    private static String num(double v) { return Double.isFinite(v) ? Double.toString(v) : ""; }
-
-    /** Stops after writing everything queued. */
+    /** Stops after writing and forcing everything kept. */
     @Override
     public void close() {
-        running = false;
+        timer.shutdown();
         try {
-            thread.join(10_000);
+            timer.awaitTermination(5, TimeUnit.SECONDS);
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
         }
+        synchronized (this) {
+            sync();
+            closeFile();
+            closed = true;
+        }
     }
-
 }

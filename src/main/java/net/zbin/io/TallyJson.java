@@ -8,8 +8,18 @@ import net.zbin.core.BinTally;
 public final class TallyJson {
     private TallyJson() {}
 
-    /** Adds {@code bins: [{bin, grade, verdict, count, pct}]} and {@code reasons: {code: n}} to n. */
+    /**
+     * Adds {@code parts, passed, yield_pct, retests, presentations, fixture_checks, bins: [{bin, grade,
+     * verdict, count, pct}]} (final decisions), {@code reasons: {code: n}} (final decisions) and
+     * {@code retest_reasons} to n.
+     */
     public static void put(ObjectNode n, BinTally.Snapshot s) {
+        n.put("parts", s.parts());
+        n.put("passed", s.passed());
+        Json.num(n, "yield_pct", s.yieldPct());
+        n.put("retests", s.retests());
+        n.put("presentations", s.presentations());
+        n.put("fixture_checks", s.checks());
         ArrayNode bins = n.putArray("bins");
         for (BinTally.BinCount b : s.bins()) {
             ObjectNode o = bins.addObject();
@@ -21,5 +31,7 @@ public final class TallyJson {
         }
         ObjectNode reasons = n.putObject("reasons");
         s.reasons().forEach(reasons::put);
+        ObjectNode interim = n.putObject("retest_reasons");
+        s.retestReasons().forEach(interim::put);
     }
 }

@@ -49,14 +49,14 @@ class EarnedBinsTest {
         assertTrue(r.needsOpenCompensation());
         Reading emptyFixture = new Reading(1e6, 2.6418, -72343);
         Grading g = Grader.grade(r, emptyFixture, null, 0);
-        assertEquals("no-compensation", g.reason());
+        assertEquals("no-compensation", g.reason().code());
         assertNotEquals(Verdict.PASS, g.verdict());
         // With the open stored, the same reading is the fixture: open contact.
         Compensation c = comp(1e6, new Impedance(1e6, 2.6418, -72343), new Impedance(1e6, 0.01, 0.02));
-        assertEquals("open-contact", Grader.grade(r, emptyFixture, c, 0).reason());
+        assertEquals("open-contact", Grader.grade(r, emptyFixture, c, 0).reason().code());
         // A reading within open_check_f of the stored open is still the fixture.
         double y = 2 * Math.PI * 1e6 * (2.2e-12 + 0.3e-12);
-        assertEquals("open-contact", Grader.grade(r, new Reading(1e6, 0, -1 / y), c, 0).reason());
+        assertEquals("open-contact", Grader.grade(r, new Reading(1e6, 0, -1 / y), c, 0).reason().code());
     }
 
     @Test
@@ -65,9 +65,9 @@ class EarnedBinsTest {
         assertTrue(r.needsShortCompensation());
         assertTrue(r.unreachable() != null, "on the default fixture a 25 mΩ part is within the short's band");
         Reading bar = new Reading(1000, 0.025, 0.0005);
-        assertEquals("no-compensation", Grader.grade(r, bar, null, 0).reason());
+        assertEquals("no-compensation", Grader.grade(r, bar, null, 0).reason().code());
         Compensation c = comp(1000, new Impedance(1000, 0, -1e9), new Impedance(1000, 0.025, 0.0005));
-        assertEquals("short", Grader.grade(r, bar, c, 0).reason());
+        assertEquals("short", Grader.grade(r, bar, c, 0).reason().code());
         assertEquals(Verdict.FAIL, Grader.grade(r, bar, c, 1).verdict());
     }
 
@@ -79,13 +79,13 @@ class EarnedBinsTest {
         double x = -1 / (2 * Math.PI * 100e3 * 1000e-6);
         Compensation c = comp(100e3, new Impedance(100e3, 0, -1e6), new Impedance(100e3, 0, 0));
         Grading g = Grader.grade(big, new Reading(100e3, 0.020, x), c, 0);
-        assertEquals("phase-implausible", g.reason());
+        assertEquals("phase-implausible", g.reason().code());
         assertEquals(9, g.bin());
         // 10 µH with 1 Ω winding resistance at 1 kHz: D ≈ 16.
         Recipe ind = simple(PartType.INDUCTOR, 10e-6, 1000, FixtureBounds.DEFAULT);
         double xl = 2 * Math.PI * 1000 * 10e-6;
         Compensation c2 = comp(1000, new Impedance(1000, 0, -1e9), new Impedance(1000, 0, 0));
-        assertEquals("phase-implausible", Grader.grade(ind, new Reading(1000, 1.0, xl), c2, 0).reason());
+        assertEquals("phase-implausible", Grader.grade(ind, new Reading(1000, 1.0, xl), c2, 0).reason().code());
     }
 
     @Test
@@ -95,7 +95,7 @@ class EarnedBinsTest {
         double g = 1 / 200.0, b = 2 * Math.PI * 1000 * 100e-9, y2 = g * g + b * b;
         Impedance z = new Impedance(1000, g / y2, -b / y2);
         Grading leaky = Grader.grade(r, Reading.of(z), null, 0);
-        assertEquals("phase-implausible", leaky.reason());
+        assertEquals("phase-implausible", leaky.reason().code());
         assertEquals(Verdict.FAIL, leaky.verdict());
         // A recipe may widen the window explicitly, and then the part is graded on its Cp.
         Recipe wide = new Recipe("t", PartType.CAPACITOR, 100e-9, r.test(), r.model(), PrimaryParam.CP, r.mode(), r.grades(),
@@ -120,7 +120,7 @@ class EarnedBinsTest {
         // R below −d_resolution·|Z| is stale compensation: retest, then the fault bin, never a value bin.
         Reading negative = new Reading(1000, -5, x);
         Grading first = Grader.grade(dGate, negative, null, 0), last = Grader.grade(dGate, negative, null, 1);
-        assertEquals("negative-r", first.reason());
+        assertEquals("negative-r", first.reason().code());
         assertEquals(Verdict.RETEST, first.verdict());
         assertEquals(13, last.bin());
         assertTrue(Double.isNaN(last.d()) && Double.isNaN(last.value()));
@@ -155,9 +155,9 @@ class EarnedBinsTest {
         assertEquals("A", Grader.grade(plain, new Reading(1000, 800, 0), null, 0).grade(), "outer edges are closed");
         assertEquals("C", Grader.grade(plain, new Reading(1000, 1200, 0), null, 0).grade());
         Grading inner = Grader.grade(guarded, new Reading(1000, 931, 0), null, 0);
-        assertEquals("guard-band", inner.reason(), "−6.9 % is within 0.5 % of the −7 % edge");
+        assertEquals("guard-band", inner.reason().code(), "−6.9 % is within 0.5 % of the −7 % edge");
         assertEquals(7, inner.bin(), "below nominal: the low bin");
-        assertEquals("guard-band", Grader.grade(guarded, new Reading(1000, 1069, 0), null, 0).reason());
+        assertEquals("guard-band", Grader.grade(guarded, new Reading(1000, 1069, 0), null, 0).reason().code());
         assertEquals(8, Grader.grade(guarded, new Reading(1000, 1069, 0), null, 0).bin());
         assertEquals("B", Grader.grade(guarded, new Reading(1000, 1000, 0), null, 0).grade());
     }
@@ -166,7 +166,7 @@ class EarnedBinsTest {
     void faultDecisions_carryNoLossFigures() {
         Recipe r = simple(PartType.CAPACITOR, 100e-9, 1000, FixtureBounds.DEFAULT);
         Grading open = Grader.grade(r, new Reading(1000, 3e4, -8e7), null, 0);
-        assertEquals("open-contact", open.reason());
+        assertEquals("open-contact", open.reason().code());
         for (double v : new double[] {open.d(), open.q(), open.esrOhm(), open.thetaDeg(), open.value(), open.devPct()})
             assertTrue(Double.isNaN(v), open.toString());
         assertTrue(Double.isFinite(open.rOhm()), "R and X stay for diagnosis");

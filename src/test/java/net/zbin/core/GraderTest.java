@@ -35,9 +35,9 @@ class GraderTest {
         assertEquals("K", Grader.grade(r, capReading(-7, 0.01), null, 0).grade());
         assertEquals("M", Grader.grade(r, capReading(15, 0.01), null, 0).grade());
         Grading high = Grader.grade(r, capReading(25, 0.01), null, 0);
-        assertEquals("value-high", high.reason());
+        assertEquals("value-high", high.reason().code());
         assertEquals(8, high.bin());
-        assertEquals("value-low", Grader.grade(r, capReading(-25, 0.01), null, 0).reason());
+        assertEquals("value-low", Grader.grade(r, capReading(-25, 0.01), null, 0).reason().code());
     }
 
     @Test
@@ -53,7 +53,7 @@ class GraderTest {
     void dGate_rejectsALossyPartWhateverItsValue() {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, new Gates(0.025, null, null, null, null));
         Grading g = Grader.grade(r, capReading(0, 0.04), null, 0);
-        assertEquals("d-high", g.reason());
+        assertEquals("d-high", g.reason().code());
         assertEquals(9, g.bin());
         assertEquals(Verdict.FAIL, g.verdict());
     }
@@ -64,7 +64,7 @@ class GraderTest {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, new GuardBand(0.5, true), Gates.NONE);
         assertEquals("K", Grader.grade(r, capReading(4.8, 0.01), null, 0).grade(), "inside J's guard band → next grade");
         Grading g = Grader.grade(r, capReading(19.8, 0.01), null, 0);
-        assertEquals("guard-band", g.reason());
+        assertEquals("guard-band", g.reason().code());
         assertEquals(8, g.bin());
     }
 
@@ -74,7 +74,7 @@ class GraderTest {
         double x = -1 / (W * 2e-12); // only the fixture's 2 pF stray
         Grading g = Grader.grade(r, new Reading(F, 0, x), null, 0);
         assertEquals(Verdict.RETEST, g.verdict());
-        assertEquals("open-contact", g.reason());
+        assertEquals("open-contact", g.reason().code());
         Grading last = Grader.grade(r, new Reading(F, 0, x), null, 1);
         assertEquals(Verdict.FAIL, last.verdict());
         assertEquals(10, last.bin());
@@ -85,20 +85,20 @@ class GraderTest {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
         Impedance open = new Impedance(F, 100, -79.6e6);
         Compensation c = new Compensation(F, CompensationSource.USER, Instant.EPOCH, open, null, null, null);
-        assertEquals("open-contact", Grader.grade(r, Reading.of(open), c, 5).reason());
+        assertEquals("open-contact", Grader.grade(r, Reading.of(open), c, 5).reason().code());
     }
 
     @Test
     void shortOverloadNonFiniteAndMeterFaults_neverGetValueGrades() {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
-        assertEquals("short", Grader.grade(r, new Reading(F, 0.002, -0.001), null, 0).reason());
+        assertEquals("short", Grader.grade(r, new Reading(F, 0.002, -0.001), null, 0).reason().code());
         assertEquals(12, Grader.fault(r, FaultKind.OVERLOAD, 1).bin());
         assertEquals(Verdict.RETEST, Grader.fault(r, FaultKind.OVERLOAD, 0).verdict());
-        assertEquals("non-finite", Grader.grade(r, new Reading(F, Double.NaN, -1591), null, 0).reason());
-        assertEquals("non-finite", Grader.grade(r, new Reading(F, 1, Double.NEGATIVE_INFINITY), null, 0).reason());
-        assertEquals("frequency-mismatch", Grader.grade(r, new Reading(2 * F, 1, -1591), null, 0).reason());
+        assertEquals("non-finite", Grader.grade(r, new Reading(F, Double.NaN, -1591), null, 0).reason().code());
+        assertEquals("non-finite", Grader.grade(r, new Reading(F, 1, Double.NEGATIVE_INFINITY), null, 0).reason().code());
+        assertEquals("frequency-mismatch", Grader.grade(r, new Reading(2 * F, 1, -1591), null, 0).reason().code());
         assertEquals(13, Grader.fault(r, FaultKind.TIMEOUT, 1).bin());
-        assertEquals(Verdict.RETEST, Grader.notMeasured(r, Grader.NOT_MEASURED_PAUSED).verdict());
+        assertEquals(Verdict.RETEST, Grader.notMeasured(r, Reason.LINE_PAUSED).verdict());
     }
 
     @Test
@@ -106,9 +106,9 @@ class GraderTest {
         Recipe base = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
         Recipe r = new Recipe(base.name(), base.partType(), base.nominal(), base.test(), base.model(), base.primary(),
                 base.mode(), base.grades(), base.guard(), base.gates(), base.plausible(), base.reject(), base.retest(), base.contact(), true);
-        assertEquals("no-compensation", Grader.grade(r, capReading(0, 0.01), null, 0).reason());
+        assertEquals("no-compensation", Grader.grade(r, capReading(0, 0.01), null, 0).reason().code());
         Compensation other = new Compensation(2 * F, CompensationSource.USER, Instant.EPOCH, new Impedance(2 * F, 0, -1e8), null, null, null);
-        assertEquals("compensation-mismatch", Grader.grade(r, capReading(0, 0.01), other, 0).reason());
+        assertEquals("compensation-mismatch", Grader.grade(r, capReading(0, 0.01), other, 0).reason().code());
     }
 
     @Test
@@ -156,7 +156,7 @@ class GraderTest {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
         Reading live = capReading(3, 0.01);
         Grading first = Grader.grade(r, live, null, 0);
-        RecordedReading row = new RecordedReading(2, F, live.rOhm(), live.xOhm(), live.rOhm(), live.xOhm(), first.reason(), 0,
+        RecordedReading row = new RecordedReading(2, F, live.rOhm(), live.xOhm(), live.rOhm(), live.xOhm(), first.reason().code(), 0,
                 CompensationSource.NONE, "part");
         assertEquals(first.bin(), Grader.regrade(r, row).bin());
         // A meter timeout on a retest left no reading: its reason and attempt alone give the fault bin.

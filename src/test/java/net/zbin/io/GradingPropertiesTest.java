@@ -115,8 +115,8 @@ class GradingPropertiesTest {
         // The graded value is the part's value in the recipe's one model: no jump where |Z| crosses a threshold.
         assertEquals(lo, a.devPct(), 1e-6 * (1 + Math.abs(lo)), "graded on the recipe's model: " + a);
         assertEquals(hi, b.devPct(), 1e-6 * (1 + Math.abs(hi)), "graded on the recipe's model: " + b);
-        if (a.reason().equals("value-high")) assertEquals("value-high", b.reason(), "above the top stays above");
-        if (b.reason().equals("value-low")) assertEquals("value-low", a.reason(), "below the bottom stays below");
+        if (a.reason().code().equals("value-high")) assertEquals("value-high", b.reason().code(), "above the top stays above");
+        if (b.reason().code().equals("value-low")) assertEquals("value-low", a.reason().code(), "below the bottom stays below");
         if (a.verdict() == Verdict.PASS && b.verdict() == Verdict.PASS) {
             int ia = index(r, a), ib = index(r, b), im = index(r, mid);
             if (r.mode() == GradingMode.LADDER) {

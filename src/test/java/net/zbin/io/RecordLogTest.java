@@ -16,6 +16,10 @@ import net.zbin.core.Grading;
 import net.zbin.core.PrimaryParam;
 import net.zbin.core.RecordedReading;
 import net.zbin.core.Verdict;
+import net.zbin.core.Impedance;
+import net.zbin.core.Reason;
+import net.zbin.core.Trigger;
+import net.zbin.io.mqtt.Payloads;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
@@ -24,12 +28,52 @@ class RecordLogTest {
     Path dir;
 
     static Decision decision(long seq) {
-        Grading g = new Grading(1, "J", Verdict.PASS, "in-grade", EquivalentModel.SERIES, PrimaryParam.CS, 1.0e-7, 0.5, 1000,
-                16.0, -1591.5, 16.1, -1590.0, CompensationSource.USER);
-        return new Decision(seq, "P-" + seq, "LOT-1", "part", "mlcc-x7r-100n", g, 1.25, false, 0);
+        Grading g = new Grading(new Grading.Outcome(1, "J", Verdict.PASS, Reason.IN_GRADE),
+                new Grading.Measurement(1000, new Impedance(1000, 16.0, -1591.5), 16.1, -1590.0, CompensationSource.USER),
+                new Grading.Value(EquivalentModel.SERIES, PrimaryParam.CS, 1.0e-7, 0.5));
+        return new Decision(seq, "P-" + seq, "LOT-1", Trigger.Kind.PART, "mlcc-x7r-100n", g, 1.25, false, 0);
     }
 
-    static RecordLog.Row row(long seq, Instant t) { return new RecordLog.Row(t, "l1", decision(seq)); }
+    static DecisionFields.Entry row(long seq, Instant t) { return new DecisionFields.Entry(t, "l1", decision(seq)); }
+
+    /** The record-log columns as published in the README; new ones only ever come after these. */
+    static final List<String> PUBLISHED = List.of("time", "line", "lot", "seq", "part", "kind", "recipe", "freq_hz",
+            "r_ohm", "x_ohm", "raw_r_ohm", "raw_x_ohm", "model", "param", "value", "dev_pct", "d", "q", "esr_ohm",
+            "theta_deg", "bin", "grade", "verdict", "reason", "latency_ms", "comp", "attempt");
+
+    @Test
+    void columns_areOnlyEverAppended() {
+        assertEquals(PUBLISHED, RecordColumns.ALL.subList(0, PUBLISHED.size()));
+    }
+
+    @Test
+    void aRow_reachesTheFileWhenAppended_beforeAnyFlushInterval() throws Exception {
+        Path recs = dir.resolve("r");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 60_000, 1 << 20, true), "l1", null)) {
+            log.start();
+            assertTrue(log.append(row(7, Instant.parse("2026-11-30T10:00:00Z"))));
+            List<String> lines = Files.readAllLines(recs.resolve("l1-2026-11-30.csv"));
+            assertEquals(2, lines.size(), "the row is with the operating system before its decision is published");
+        }
+    }
+
+    @Test
+    void rowsReadBack_asTheDecisionsTheyRecorded() throws Exception {
+        Path recs = dir.resolve("r");
+        Instant t = Instant.parse("2026-11-30T10:00:00Z");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < 5; i++) log.append(row(i, t));
+        }
+        List<DecisionFields.Entry> back = new java.util.ArrayList<>();
+        RecordLogReader.read(recs, "l1", t, back::add);
+        assertEquals(5, back.size());
+        for (int i = 0; i < 5; i++) {
+            assertEquals(row(i, t), back.get(i));
+            assertEquals(Payloads.text(Payloads.bytes(DecisionFields.json(decision(i)))),
+                    Payloads.text(Payloads.bytes(DecisionFields.json(back.get(i).decision()))), "the same payload again");
+        }
+    }
 
     static List<Path> files(Path d) throws Exception {
         try (Stream<Path> s = Files.list(d)) {
@@ -42,7 +86,7 @@ class RecordLogTest {
         Path recs = dir.resolve("r");
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 20, 1 << 20, true), "l1", null)) {
             log.start();
-            for (int i = 0; i < 100; i++) log.offer(row(i, Instant.parse("2026-11-30T10:00:00Z")));
+            for (int i = 0; i < 100; i++) log.append(row(i, Instant.parse("2026-11-30T10:00:00Z")));
         }
         Path f = recs.resolve("l1-2026-11-30.csv");
         List<String> lines = Files.readAllLines(f);
@@ -66,14 +110,14 @@ class RecordLogTest {
         Instant t = Instant.parse("2026-11-30T10:00:00Z");
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
             log.start();
-            for (int i = 0; i < 3; i++) log.offer(row(i, t));
+            for (int i = 0; i < 3; i++) log.append(row(i, t));
         }
         Path f = recs.resolve("l1-2026-11-30.csv");
         String whole = Files.readString(f);
         Files.writeString(f, whole + "2026-11-30T10:00:01Z,l1,LOT-1,3,P-3,part,mlcc-x7r-100n,1000.0,16"); // killed mid-row
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
             log.start();
-            log.offer(row(4, t));
+            log.append(row(4, t));
         }
         List<String> lines = Files.readAllLines(f);
         assertEquals(5, lines.size(), "header + 3 rows + the new one; the torn row is gone");
@@ -87,10 +131,10 @@ class RecordLogTest {
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 2_000, true), "l1", null)) {
             log.start();
             for (int i = 0; i < 40; i++) {
-                log.offer(row(i, Instant.parse("2026-11-30T23:59:00Z")));
+                log.append(row(i, Instant.parse("2026-11-30T23:59:00Z")));
                 Thread.sleep(2);
             }
-            log.offer(row(40, Instant.parse("2026-12-01T00:00:01Z")));
+            log.append(row(40, Instant.parse("2026-12-01T00:00:01Z")));
         }
         List<String> names = files(recs).stream().map(p -> p.getFileName().toString()).toList();
         assertTrue(names.contains("l1-2026-11-30.csv") && names.contains("l1-2026-11-30.1.csv"), names.toString());
@@ -111,7 +155,7 @@ class RecordLogTest {
             public void recovered() { recovered.incrementAndGet(); }
         })) {
             log.start();
-            for (int i = 0; i < 10; i++) log.offer(row(i, Instant.parse("2026-11-30T10:00:00Z")));
+            for (int i = 0; i < 10; i++) log.append(row(i, Instant.parse("2026-11-30T10:00:00Z")));
             long end = System.currentTimeMillis() + 5000;
             while (failed.get() == 0 && System.currentTimeMillis() < end) Thread.sleep(5);
             assertEquals(1, failed.get(), "reported once, not per retry");

@@ -25,11 +25,14 @@ import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
  * its deadline as a real handler does (one part on the contacts at a time). Retest verdicts are
  * re-presented with {@code retest_of}; every {@code checkEvery} parts an open, a short and a
  * reference check go through; every {@code repeatEvery} parts a trigger is sent twice on purpose.
- * It counts missing, duplicate, late and contradictory decisions, and stops feeding while the
- * state topic says the line is offline.
+ * It counts missing, duplicate, late and contradictory decisions, and answers that are not about the
+ * part on the contacts (stale: another part's decision, or a repeat answer to a new presentation), and
+ * stops feeding while the state topic says the line is offline. It may restart its seq counter mid-run,
+ * as a rebooted handler does. Its memory is bounded: the last {@value #REMEMBERED} presentations.
  */
 public final class HandlerSim implements AutoCloseable {
     private static final ObjectMapper JSON = new ObjectMapper();
+    static final int REMEMBERED = 20_000;
 
     /**
      * @param broker      broker URL
@@ -47,29 +50,51 @@ public final class HandlerSim implements AutoCloseable {
      * @param username    null for anonymous
      * @param password    null for none
      * @param offlineWaitMs how long to wait for the line to come (back) online before giving up
+     * @param seqRestartEvery restart the seq counter at 0 after every this many parts (0: never), as a rebooted handler does
      */
     public record Options(String broker, String topicRoot, String line, long parts, double ratePerS, int deadlineMs,
                           int missingMs, int checkEvery, int repeatEvery, int maxRetests, String clientId,
-                          SocketFactory sockets, String username, char[] password, long offlineWaitMs) {}
+                          SocketFactory sockets, String username, char[] password, long offlineWaitMs, long seqRestartEvery) {
+        public Options(String broker, String topicRoot, String line, long parts, double ratePerS, int deadlineMs,
+                       int missingMs, int checkEvery, int repeatEvery, int maxRetests, String clientId,
+                       SocketFactory sockets, String username, char[] password, long offlineWaitMs) {
+            this(broker, topicRoot, line, parts, ratePerS, deadlineMs, missingMs, checkEvery, repeatEvery, maxRetests, clientId,
+                    sockets, username, password, offlineWaitMs, 0);
+        }
+
+        public Options withSeqRestartEvery(long n) {
+            return new Options(broker, topicRoot, line, parts, ratePerS, deadlineMs, missingMs, checkEvery, repeatEvery, maxRetests,
+                    clientId, sockets, username, password, offlineWaitMs, n);
+        }
+    }
 
     /** Live progress, for a progress line. */
     public record Progress(long parts, long decided, double uph, double yieldPct, int lastBin, String lastGrade) {}
 
-    /** Final counts. {@code bins} holds the final bin of each part. */
+    /**
+     * Final counts. {@code bins} and {@code reasons} hold the final decision of each finished part; a part
+     * is finished when its last decision is pass or fail (not missing, not still a retest).
+     */
     public record Summary(long parts, long triggers, long decisions, Map<Integer, Long> bins, Map<String, Long> reasons,
                           long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
                           long retests, long checksPassed, long checksFailed, double p50Ms, double p99Ms, double maxMs,
-                          long offlinePauses) {
-        public double yieldPct() { return parts == 0 ? Double.NaN : 100.0 * passed / parts; }
+                          long offlinePauses, long finished, long stale, long seqRestarts, Map<Integer, String> grades) {
+        /** Parts passed / parts finished, the same figure the dashboard and a replay of the record log give. */
+        public double yieldPct() { return finished == 0 ? Double.NaN : 100.0 * passed / finished; }
     }
 
     private final Options o;
     private final Scenario scenario;
     private final PartLoader loader;
     private final MqttAsyncClient client;
-    private final Map<Long, CompletableFuture<JsonNode>> waiting = new ConcurrentHashMap<>();
-    private final Map<Long, JsonNode> answered = new ConcurrentHashMap<>();
-    private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong();
+    private final Map<String, CompletableFuture<JsonNode>> waiting = new ConcurrentHashMap<>();
+    /** Decisions by presentation (seq and part), the last {@value #REMEMBERED}. */
+    private final Map<String, JsonNode> answered = java.util.Collections.synchronizedMap(new java.util.LinkedHashMap<>() {
+        @Override
+        protected boolean removeEldestEntry(Map.Entry<String, JsonNode> e) { return size() > REMEMBERED; }
+    });
+    private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
+            stale = new AtomicLong();
     private final Object stateLock = new Object();
     private volatile boolean online;
     private long seq;
@@ -120,7 +145,12 @@ public final class HandlerSim implements AutoCloseable {
         }
         long s = n.path("seq").asLong(-1);
         boolean repeat = n.path("repeat").asBoolean(false);
-        JsonNode first = answered.putIfAbsent(s, n);
+        String key = s + "/" + n.path("part").asText();
+        JsonNode first = answered.putIfAbsent(key, n);
+        if (first == null && repeat) {
+            stale.incrementAndGet(); // a repeat answer to a presentation never decided: it is about another part
+            return;
+        }
         if (first != null) {
             if (!repeat) duplicate.incrementAndGet();
             else {
@@ -130,7 +160,7 @@ public final class HandlerSim implements AutoCloseable {
             }
             return;
         }
-        CompletableFuture<JsonNode> f = waiting.get(s);
+        CompletableFuture<JsonNode> f = waiting.get(key);
         if (f != null) f.complete(n);
     }
 
@@ -147,8 +177,10 @@ public final class HandlerSim implements AutoCloseable {
 
     private JsonNode trigger(String kind, String part, long retestOf) throws Exception {
         long s = seq++;
+        String key = s + "/" + part;
+        answered.remove(key); // a reused seq: whatever was answered to it before was for another presentation
         CompletableFuture<JsonNode> f = new CompletableFuture<>();
-        waiting.put(s, f);
+        waiting.put(key, f);
         ObjectNode t = JSON.createObjectNode();
         t.put("seq", s);
         t.put("part", part);
@@ -157,11 +189,13 @@ public final class HandlerSim implements AutoCloseable {
         if (retestOf >= 0) t.put("retest_of", retestOf);
         client.publish(o.topicRoot() + "/" + o.line() + "/trigger", JSON.writeValueAsBytes(t), 1, false);
         try {
-            return f.get(o.missingMs(), TimeUnit.MILLISECONDS);
+            JsonNode d = f.get(o.missingMs(), TimeUnit.MILLISECONDS);
+            if (!part.equals(d.path("part").asText())) stale.incrementAndGet();
+            return d;
         } catch (TimeoutException e) {
             return null;
         } finally {
-            waiting.remove(s);
+            waiting.remove(key);
         }
     }
 
@@ -172,12 +206,18 @@ public final class HandlerSim implements AutoCloseable {
         Map<String, Long> reasons = new TreeMap<>();
         Histogram lat = new Histogram(60_000_000L, 3);
         long triggers = 0, decisions = 0, passed = 0, missing = 0, late = 0, retests = 0, checksOk = 0, checksBad = 0, pauses = 0;
+        long finished = 0, restarts = 0;
+        Map<Integer, String> grades = new TreeMap<>();
         long periodNs = o.ratePerS() > 0 ? (long) (1e9 / o.ratePerS()) : 0;
         long next = System.nanoTime(), start = next;
         for (long i = 0; i < o.parts(); i++) {
             if (!online) {
                 pauses++;
                 awaitOnline();
+            }
+            if (o.seqRestartEvery() > 0 && i > 0 && i % o.seqRestartEvery() == 0) {
+                seq = 0; // the handler rebooted: its counter starts again
+                restarts++;
             }
             LotGenerator.SimPart p = gen.next();
             long retestOf = -1;
@@ -196,10 +236,14 @@ public final class HandlerSim implements AutoCloseable {
                 retestOf = d.path("seq").asLong();
                 if (attempt < o.maxRetests()) retests++;
             }
-            if (d != null) {
+            if (d != null && !"retest".equals(d.path("verdict").asText())) {
+                finished++;
                 bins.merge(d.path("bin").asInt(), 1L, Long::sum);
+                grades.putIfAbsent(d.path("bin").asInt(), d.path("grade").asText());
                 reasons.merge(d.path("reason").asText(), 1L, Long::sum);
                 if ("pass".equals(d.path("verdict").asText())) passed++;
+            }
+            if (d != null) {
                 if (o.repeatEvery() > 0 && (i + 1) % o.repeatEvery() == 0) {
                     JsonNode again = repeatLast(d);
                     triggers++;
@@ -214,7 +258,7 @@ public final class HandlerSim implements AutoCloseable {
                 missing += ok[2];
             }
             double elapsedH = (System.nanoTime() - start) / 3.6e12;
-            progress.accept(new Progress(i + 1, decisions, elapsedH > 0 ? (i + 1) / elapsedH : 0, 100.0 * passed / (i + 1),
+            progress.accept(new Progress(i + 1, decisions, elapsedH > 0 ? (i + 1) / elapsedH : 0, finished == 0 ? Double.NaN : 100.0 * passed / finished,
                     d == null ? -1 : d.path("bin").asInt(), d == null ? "missing" : d.path("grade").asText()));
             next += periodNs;
             long wait = next - System.nanoTime();
@@ -226,7 +270,7 @@ public final class HandlerSim implements AutoCloseable {
         return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicate.get(), late,
                 contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses);
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades);
     }
 
     /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */

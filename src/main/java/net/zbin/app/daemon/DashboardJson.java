@@ -1,38 +1,51 @@
 package net.zbin.app.daemon;
 
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.util.Collection;
 import net.zbin.io.Json;
 import net.zbin.io.TallyJson;
-import net.zbin.io.mqtt.Payloads;
 
-/** The retained dashboard payload: rolling figures of the line since the last counter reset. */
+/**
+ * The retained dashboard payload: the lot's figures (since it started, or since reset-counters),
+ * throughput, latency and the health of the line. Numbers for people are rounded (percentages to
+ * 0.01, UPH to whole parts, milliseconds to 0.01); the record log keeps full precision.
+ */
 final class DashboardJson {
     private DashboardJson() {}
 
-    static byte[] encode(String line, String lot, String recipe, Mode mode, LineStats.Snapshot s, long recordBacklog,
-                         long recordDropped) {
+    static ObjectNode encode(String line, String recipe, Mode mode, LineStats.Snapshot s, Collection<String> alarms,
+                             long recordBacklog, long recordDropped, long mqttBuffered) {
         ObjectNode n = Json.object();
         n.put("line", line);
-        n.put("lot", lot);
+        n.put("lot", s.lot());
         n.put("recipe", recipe);
         n.put("mode", mode.key());
-        n.put("total", s.tally().total());
-        n.put("passed", s.tally().passed());
-        Json.num(n, "yield_pct", s.tally().yieldPct());
-        Json.num(n, "yield_low_pct", s.yieldLowPct());
-        Json.num(n, "yield_high_pct", s.yieldHighPct());
-        Json.num(n, "uph", s.uph());
-        TallyJson.put(n, s.tally());
+        n.put("online", mode != Mode.OFFLINE);
+        TallyJson.put(n, s.lotTally());
+        round(n, "yield_pct", s.lotTally().yieldPct(), 100);
+        round(n, "yield_low_pct", s.yieldLowPct(), 100);
+        round(n, "yield_high_pct", s.yieldHighPct(), 100);
+        round(n, "uph", s.uphMinute(), 1);
+        round(n, "uph_hour", s.uphHour(), 1);
         ObjectNode lat = n.putObject("latency_ms");
-        Json.num(lat, "p50", s.p50Ms());
-        Json.num(lat, "p99", s.p99Ms());
-        Json.num(lat, "max", s.maxMs());
+        round(lat, "p50", s.p50Ms(), 100);
+        round(lat, "p99", s.p99Ms(), 100);
+        round(lat, "max", s.maxMs(), 100);
         n.put("late", s.late());
         n.put("repeats", s.repeats());
         n.put("rejected", s.rejected());
+        n.put("seq_reused", s.reusedSeqs());
+        n.put("busy", s.busy());
+        n.put("decisions", s.decisions());
+        n.putArray("alarms").addAll(alarms.stream().sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
         n.put("record_backlog", recordBacklog);
         n.put("record_dropped", recordDropped);
-        n.put("since", s.since().toString());
-        return Payloads.bytes(n);
+        n.put("mqtt_buffered", mqttBuffered);
+        n.put("since", s.lotSince().toString());
+        return n;
+    }
+
+    private static void round(ObjectNode n, String key, double v, double per) {
+        Json.num(n, key, Double.isFinite(v) ? Math.round(v * per) / per : v);
     }
 }

@@ -5,7 +5,12 @@ import java.util.ArrayList;
 import java.util.List;
 import java.util.Locale;
 import net.zbin.core.Impedance;
+import java.time.Clock;
 import net.zbin.core.Recipe;
+import net.zbin.io.meter.MeterSession;
+import net.zbin.io.mqtt.Payloads;
+import net.zbin.io.mqtt.Publisher;
+import net.zbin.io.mqtt.Topics;
 import net.zbin.core.SiValue;
 import net.zbin.io.ConfigException;
 import net.zbin.io.meter.CompensationCapture;
@@ -19,12 +24,33 @@ import net.zbin.io.mqtt.TriggerCodec;
  * command with a {@code cmd} gets a {@code command/result}; an unusable one also a {@code rejected}.
  */
 final class LineCommands {
-    private final Daemon line;
+    private final Topics topics;
+    private final Publisher out;
+    private final LineSetup setup;
+    private final LineMode mode;
+    private final LineStats stats;
+    private final TriggerPath path;
+    private final MeterSession meter;
+    private final Clock clock;
 
-    LineCommands(Daemon line) { this.line = line; }
+    LineCommands(Topics topics, Publisher out, LineSetup setup, LineMode mode, LineStats stats, TriggerPath path,
+                 MeterSession meter, Clock clock) {
+        this.topics = topics;
+        this.out = out;
+        this.setup = setup;
+        this.mode = mode;
+        this.stats = stats;
+        this.path = path;
+        this.meter = meter;
+        this.clock = clock;
+    }
+
+    private void publishResult(String id, String cmd, boolean ok, String message) {
+        out.publish(topics.commandResult(), Payloads.commandResult(id, cmd, ok, message), 1, false);
+    }
 
     void handle(byte[] payload) {
-        String commandTopic = line.topics().command();
+        String commandTopic = topics.command();
         JsonNode n;
         String cmd, id;
         try {
@@ -33,16 +59,16 @@ final class LineCommands {
             id = TriggerCodec.text(n, "id");
             if (cmd == null) throw new PayloadException("cmd is missing");
         } catch (PayloadException e) {
-            line.reject(commandTopic, e.getMessage());
+            path.reject(commandTopic, e.getMessage());
             return;
         }
         try {
-            line.publishResult(id, cmd, true, run(cmd, n));
+            publishResult(id, cmd, true, run(cmd, n));
         } catch (PayloadException e) {
-            line.reject(commandTopic, e.getMessage());
-            line.publishResult(id, cmd, false, e.getMessage());
+            path.reject(commandTopic, e.getMessage());
+            publishResult(id, cmd, false, e.getMessage());
         } catch (ConfigException | CompensationCapture.ImplausibleException | MeterException | java.io.IOException e) {
-            line.publishResult(id, cmd, false, e.getMessage());
+            publishResult(id, cmd, false, e.getMessage());
         }
     }
 
@@ -50,21 +76,23 @@ final class LineCommands {
             CompensationCapture.ImplausibleException, java.io.IOException {
         switch (cmd) {
             case "pause":
-                line.setOperatorPaused(true);
+                mode.setOperatorPaused(true);
                 return "paused";
             case "resume":
-                line.setOperatorPaused(false);
-                return "resumed; mode " + line.mode().key();
+                mode.setOperatorPaused(false);
+                return "resumed; mode " + mode.mode().key();
             case "recipe":
-                return line.switchRecipe(TriggerCodec.text(n, "name"));
+                String done = setup.switchRecipe(TriggerCodec.text(n, "name"));
+                mode.publishState();
+                return done;
             case "lot": {
                 String l = TriggerCodec.text(n, "lot");
                 if (l == null) throw new PayloadException("lot is missing");
-                line.setLot(l);
+                path.enterLot(l, clock.instant());
                 return "lot " + l;
             }
             case "reset-counters":
-                line.resetCounters();
+                stats.reset();
                 return "counters reset";
             case "compensate":
                 return compensate(n);
@@ -82,14 +110,14 @@ final class LineCommands {
         } catch (IllegalArgumentException e) {
             throw new PayloadException("kind must be open, short or load (was '" + kind + "')");
         }
-        Recipe r = line.recipe();
+        Recipe r = setup.recipe();
         List<Impedance> std = new ArrayList<>();
         if (k == CompensationCapture.Kind.LOAD) {
             JsonNode sr = n.get("std_r"), sx = n.get("std_x");
             if (sr == null || !sr.isNumber()) throw new PayloadException("std_r (number, ohm) is required for load");
             std.add(new Impedance(r.freqHz(), sr.asDouble(), sx != null && sx.isNumber() ? sx.asDouble() : 0));
         }
-        Impedance z = line.capture(k, List.of(r.test()), std).get(0);
+        Impedance z = setup.capture(meter, clock, k, List.of(r.test()), std).get(0);
         return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + CompensationCapture.describe(k, z);
     }
 }

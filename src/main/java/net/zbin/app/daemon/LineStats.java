@@ -1,67 +1,121 @@
 package net.zbin.app.daemon;
 
+import java.time.Clock;
 import java.time.Instant;
-import java.util.ArrayDeque;
 import net.zbin.core.BinTally;
-import net.zbin.core.Decision;
+import net.zbin.core.Trigger;
+import net.zbin.core.Verdict;
 import net.zbin.core.Wilson;
+import net.zbin.io.DecisionFields;
 import org.HdrHistogram.Histogram;
 
 /**
- * Running figures of one line since the last reset: bins, reasons, yield, throughput, latency.
- * Fed by the measuring thread, read by the dashboard thread; {@link #snapshot} is the only view out.
+ * The line's running figures, fed as a {@link DecisionListener}. Counts only grow; the lot's figures
+ * (and "since reset-counters") are the difference of the running tally and the snapshot taken when the
+ * lot started or the counters were reset. Throughput is the parts finished in the last minute and the
+ * last hour (a ring of per-second counts, so memory does not grow with the lot). Writers: the measuring
+ * thread; reader: the dashboard thread, through {@link #snapshot}.
  */
-final class LineStats {
-    private static final long UPH_WINDOW_MS = 60_000;
+final class LineStats implements DecisionListener {
+    private static final int RING_S = 3600;
 
+    private final Clock clock;
+    private final int deadlineMs;
     private final BinTally tally = new BinTally();
     private final Histogram latencyUs = new Histogram(60_000_000L, 3);
-    private final ArrayDeque<Long> recentMs = new ArrayDeque<>();
-    private long late, repeats, rejected;
-    private Instant since;
-    private long sinceMs;
+    private final long[] ringCount = new long[RING_S];
+    private final long[] ringSecond = new long[RING_S];
+    private BinTally.Snapshot base = BinTally.Snapshot.EMPTY;
+    private String lot = "";
+    private Instant lotSince;
+    private final Instant started;
+    private long decisions, late, repeats, rejected, reusedSeqs, busy;
 
-    LineStats(Instant now) { reset(now); }
+    LineStats(Clock clock, int deadlineMs) {
+        this.clock = clock;
+        this.deadlineMs = deadlineMs;
+        this.started = clock.instant();
+        this.lotSince = started;
+    }
 
-    /** Immutable figures for the dashboard. Yield counts parts only (checks and repeats excluded). */
-    record Snapshot(BinTally.Snapshot tally, double yieldLowPct, double yieldHighPct, double uph,
-                    double p50Ms, double p99Ms, double maxMs, long late, long repeats, long rejected, Instant since) {}
+    /**
+     * Everything people read on the dashboard.
+     *
+     * @param lot        the lot the figures are for
+     * @param lotTally   the lot since it started (or since reset-counters)
+     * @param yieldLowPct  Wilson 95 % interval of the lot's yield, low end
+     * @param yieldHighPct high end
+     * @param uphMinute  parts finished in the last minute × 60
+     * @param uphHour    parts finished in the last hour (scaled up while the daemon has run less than an hour)
+     */
+    record Snapshot(String lot, Instant lotSince, BinTally.Snapshot lotTally, BinTally.Snapshot total, double yieldLowPct,
+                    double yieldHighPct, double uphMinute, double uphHour, double p50Ms, double p99Ms, double maxMs,
+                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy) {}
 
-    synchronized void decided(Decision d, boolean isLate, long nowMs) {
-        if ("part".equals(d.kind())) tally.add(d.grading());
-        latencyUs.recordValue(Math.max(0, Math.min(60_000_000L, Math.round(d.latencyMs() * 1000))));
-        if (isLate) late++;
-        recentMs.addLast(nowMs);
-        trim(nowMs);
+    @Override
+    public synchronized void decided(DecisionFields.Entry e) {
+        var d = e.decision();
+        var g = d.grading();
+        decisions++;
+        tally.add(g, d.kind() == Trigger.Kind.PART);
+        if (Double.isFinite(d.latencyMs())) {
+            latencyUs.recordValue(Math.max(0, Math.min(60_000_000L, Math.round(d.latencyMs() * 1000))));
+            if (d.latencyMs() > deadlineMs) late++;
+        }
+        if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) countFinished(e.time().getEpochSecond());
+    }
+
+    private void countFinished(long second) {
+        int i = (int) Math.floorMod(second, (long) RING_S);
+        if (ringSecond[i] != second) {
+            ringSecond[i] = second;
+            ringCount[i] = 0;
+        }
+        ringCount[i]++;
+    }
+
+    private long finishedSince(long fromSecond, long nowSecond) {
+        long n = 0;
+        for (int i = 0; i < RING_S; i++) if (ringSecond[i] > fromSecond && ringSecond[i] <= nowSecond) n += ringCount[i];
+        return n;
     }
 
     synchronized void repeated() { repeats++; }
 
     synchronized void rejected() { rejected++; }
 
-    synchronized void reset(Instant now) {
-        tally.reset();
+    synchronized void seqReused() { reusedSeqs++; }
+
+    synchronized void busy() { busy++; }
+
+    /** A new lot: its figures start from here. */
+    synchronized void startLot(String l, Instant when) {
+        lot = l;
+        lotSince = when;
+        base = tally.snapshot();
+    }
+
+    /** reset-counters: the lot's figures start again from here (totals keep counting). */
+    synchronized void reset() {
+        base = tally.snapshot();
+        lotSince = clock.instant();
         latencyUs.reset();
-        recentMs.clear();
-        late = repeats = rejected = 0;
-        since = now;
-        sinceMs = now.toEpochMilli();
     }
 
-    private void trim(long nowMs) {
-        while (!recentMs.isEmpty() && recentMs.peekFirst() < nowMs - UPH_WINDOW_MS) recentMs.pollFirst();
-    }
+    synchronized String lot() { return lot; }
 
-    synchronized Snapshot snapshot(long nowMs) {
-        trim(nowMs);
-        BinTally.Snapshot s = tally.snapshot();
-        double[] ci = Wilson.interval(s.passed(), s.total(), Wilson.Z95);
-        long window = Math.min(UPH_WINDOW_MS, Math.max(1, nowMs - sinceMs));
-        double uph = recentMs.size() * 3_600_000.0 / window;
+    synchronized Snapshot snapshot() {
+        BinTally.Snapshot all = tally.snapshot();
+        BinTally.Snapshot l = all.minus(base);
+        double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
+        long now = clock.instant().getEpochSecond();
+        long ranS = Math.max(1, now - started.getEpochSecond());
+        double minute = finishedSince(now - 60, now) * 60.0;
+        double hour = finishedSince(now - 3600, now) * 3600.0 / Math.min(3600, ranS);
         boolean any = latencyUs.getTotalCount() > 0;
-        return new Snapshot(s, ci[0] * 100, ci[1] * 100, uph,
+        return new Snapshot(lot, lotSince, l, all, ci[0] * 100, ci[1] * 100, minute, hour,
                 any ? latencyUs.getValueAtPercentile(50) / 1000.0 : Double.NaN,
                 any ? latencyUs.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, late, repeats, rejected, since);
+                any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, decisions, late, repeats, rejected, reusedSeqs, busy);
     }
 }

@@ -18,19 +18,37 @@ import org.slf4j.LoggerFactory;
 
 /**
  * The daemon's MQTT connection (Paho mqttv3 async). Pitfalls handled: memory persistence (no files
- * in the working folder), in-flight window well above the default 10, automatic reconnect with a
- * short maximum delay, resubscribe on every connect without blocking the callback thread, a
- * retained Will, TCP_NODELAY sockets. {@code messageArrived} only hands the message on.
+ * in the working folder), in-flight window well above the default 10, resubscribe on every connect
+ * without blocking the callback thread, a retained Will, TCP_NODELAY sockets. {@code messageArrived}
+ * only hands the message on.
+ *
+ * <p>Session policy: a clean session under a client id that is stable per line. Nothing is queued for
+ * zbin at the broker while it is away, so no trigger sent before a reconnect is delivered afterwards,
+ * when its part may have moved; the handler's retry is the trigger that counts, and it is answered
+ * from the decision book if it was decided, or measured now (the part is still on the contacts, the
+ * handler is waiting for it). No decision is discarded: a full in-flight window makes the publisher
+ * wait, and while the broker is away publishes go to a bounded offline buffer that is delivered on
+ * reconnect (a full buffer makes the publisher wait too). After a lost connection a reconnect is tried
+ * every {@value #RECONNECT_EVERY_MS} ms, so the line is subscribed again a fraction of a second after
+ * the broker returns.
  */
-public final class MqttLink implements AutoCloseable {
+public final class MqttLink implements Publisher, AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(MqttLink.class);
     public static final int MAX_INFLIGHT = 1000;
+    /** Messages held while the broker is away. */
+    public static final int OFFLINE_BUFFER = 50_000;
+    static final long RECONNECT_EVERY_MS = 100;
 
     private final MqttAsyncClient client;
     private final MqttConnectOptions options;
     private final List<String> subscriptions;
     private final BiConsumer<String, byte[]> onMessage;
     private volatile Runnable onConnect = () -> { };
+    private final Object window = new Object();
+    private final java.util.concurrent.ScheduledExecutorService redial;
+    private final java.util.concurrent.atomic.AtomicLong waits = new java.util.concurrent.atomic.AtomicLong();
+    private final java.util.concurrent.atomic.AtomicLong notOffered = new java.util.concurrent.atomic.AtomicLong();
+    private volatile boolean closing;
 
     /**
      * @param onMessage receives (topic, payload) on Paho's thread: must not block
@@ -44,7 +62,7 @@ public final class MqttLink implements AutoCloseable {
         options.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         options.setCleanSession(true);
         options.setAutomaticReconnect(true);
-        options.setMaxReconnectDelay(2000);
+        options.setMaxReconnectDelay(1000);
         options.setConnectionTimeout(10);
         options.setKeepAliveInterval(s.keepAliveS());
         options.setMaxInflight(MAX_INFLIGHT);
@@ -57,6 +75,17 @@ public final class MqttLink implements AutoCloseable {
         } else {
             options.setSocketFactory(NoDelaySockets.plain());
         }
+        org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions buffer = new org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions();
+        buffer.setBufferEnabled(true);
+        buffer.setBufferSize(OFFLINE_BUFFER);
+        buffer.setPersistBuffer(false);
+        buffer.setDeleteOldestMessages(false);
+        client.setBufferOpts(buffer);
+        redial = java.util.concurrent.Executors.newSingleThreadScheduledExecutor(r -> {
+            Thread t = new Thread(r, "mqtt-redial");
+            t.setDaemon(true);
+            return t;
+        });
         client.setCallback(new MqttCallbackExtended() {
             @Override
             public void connectComplete(boolean reconnect, String uri) {
@@ -66,7 +95,10 @@ public final class MqttLink implements AutoCloseable {
             }
 
             @Override
-            public void connectionLost(Throwable cause) { LOG.warn("broker connection lost: {}", cause.toString()); }
+            public void connectionLost(Throwable cause) {
+                LOG.warn("broker connection lost: {}", cause.toString());
+                if (!closing) redial.schedule(MqttLink.this::redial, RECONNECT_EVERY_MS, java.util.concurrent.TimeUnit.MILLISECONDS);
+            }
 
             @Override
             public void messageArrived(String topic, MqttMessage message) {
@@ -78,7 +110,11 @@ public final class MqttLink implements AutoCloseable {
             }
 
             @Override
-            public void deliveryComplete(IMqttDeliveryToken token) { }
+            public void deliveryComplete(IMqttDeliveryToken token) {
+                synchronized (window) {
+                    window.notifyAll();
+                }
+            }
         });
     }
 
@@ -105,18 +141,70 @@ public final class MqttLink implements AutoCloseable {
 
     public boolean isConnected() { return client.isConnected(); }
 
-    /** Publishes without waiting for the broker's acknowledgement. */
+    /** Tries to reconnect now and again every {@value #RECONNECT_EVERY_MS} ms until connected or closed. */
+    private void redial() {
+        if (closing || client.isConnected()) return;
+        try {
+            client.reconnect();
+        } catch (MqttException e) {
+            LOG.debug("reconnect: {}", e.toString()); // already connecting, or the broker is not back yet
+        }
+        redial.schedule(this::redial, RECONNECT_EVERY_MS, java.util.concurrent.TimeUnit.MILLISECONDS);
+    }
+
+    @Override
     public void publish(String topic, byte[] payload, int qos, boolean retained) {
+        while (true) {
+            try {
+                client.publish(topic, payload, qos, retained);
+                return;
+            } catch (MqttException e) {
+                int code = e.getReasonCode();
+                boolean full = code == MqttException.REASON_CODE_MAX_INFLIGHT || code == MqttException.REASON_CODE_DISCONNECTED_BUFFER_FULL
+                        || code == MqttException.REASON_CODE_CLIENT_NOT_CONNECTED || code == MqttException.REASON_CODE_CLIENT_DISCONNECTING;
+                if (!full || closing) {
+                    LOG.warn("publish to {} failed: {}", topic, e.toString());
+                    notOffered.incrementAndGet();
+                    return;
+                }
+                waits.incrementAndGet();
+                synchronized (window) {
+                    try {
+                        window.wait(20);
+                    } catch (InterruptedException ie) {
+                        Thread.currentThread().interrupt();
+                        notOffered.incrementAndGet();
+                        return;
+                    }
+                }
+            }
+        }
+    }
+
+    @Override
+    public boolean offer(String topic, byte[] payload, int qos, boolean retained) {
         try {
             client.publish(topic, payload, qos, retained);
+            return true;
         } catch (MqttException e) {
-            LOG.warn("publish to {} failed: {}", topic, e.toString());
+            notOffered.incrementAndGet();
+            LOG.warn("publish to {} not possible now: {}", topic, e.toString());
+            return false;
         }
     }
 
     public void publish(String topic, String payload, int qos, boolean retained) {
         publish(topic, payload.getBytes(StandardCharsets.UTF_8), qos, retained);
     }
+
+    /** Times a publish had to wait for the in-flight window or the offline buffer. */
+    public long waits() { return waits.get(); }
+
+    /** Messages that could not be handed to the client (only when closing, or offered from its own thread). */
+    public long notOffered() { return notOffered.get(); }
+
+    /** Messages held for the broker's return. */
+    public int buffered() { return client.getBufferedMessageCount(); }
 
     /** Publishes and waits until the broker acknowledged it (used for the final offline state). */
     public void publishAndWait(String topic, byte[] payload, int qos, boolean retained, long timeoutMs) {
@@ -129,6 +217,8 @@ public final class MqttLink implements AutoCloseable {
 
     @Override
     public void close() {
+        closing = true;
+        redial.shutdownNow();
         try {
             if (client.isConnected()) client.disconnect(2000).waitForCompletion(3000);
         } catch (MqttException e) {

@@ -1,0 +1,177 @@
+package net.zbin.app.daemon;
+
+import java.time.Clock;
+import java.util.List;
+import net.zbin.core.Decision;
+import net.zbin.core.FaultKind;
+import net.zbin.core.FixtureCheck;
+import net.zbin.core.Grader;
+import net.zbin.core.Grading;
+import net.zbin.core.Reason;
+import net.zbin.core.Recipe;
+import net.zbin.core.Trigger;
+import net.zbin.io.DecisionFields;
+import net.zbin.io.LineConfig;
+import net.zbin.io.RecordLog;
+import net.zbin.io.meter.MeterException;
+import net.zbin.io.meter.MeterReading;
+import net.zbin.io.meter.MeterSession;
+import net.zbin.io.mqtt.PayloadException;
+import net.zbin.io.mqtt.Payloads;
+import net.zbin.io.mqtt.Publisher;
+import net.zbin.io.mqtt.Topics;
+import net.zbin.io.mqtt.TriggerCodec;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * One trigger, start to end, on the measuring thread: decode, answer a repeat from the book, measure,
+ * grade, write the record row through to the operating system, publish the decision, tell the
+ * listeners. The row is written before the publish, so every decision the handler gets has its row
+ * even after a kill -9; the fsync is the record log's own timer, off this path.
+ */
+final class TriggerPath {
+    private static final Logger LOG = LoggerFactory.getLogger(TriggerPath.class);
+
+    private final LineConfig cfg;
+    private final Topics topics;
+    private final LineSetup setup;
+    private final MeterSession meter;
+    private final Publisher out;
+    private final RecordLog records;
+    private final LineMode mode;
+    private final LineStats stats;
+    private final DecisionBook book;
+    private final List<DecisionListener> listeners;
+    private final Clock clock;
+    private String lastReusedWarning = null;
+
+    TriggerPath(LineConfig cfg, Topics topics, LineSetup setup, MeterSession meter, Publisher out, RecordLog records,
+                LineMode mode, LineStats stats, DecisionBook book, List<DecisionListener> listeners, Clock clock) {
+        this.cfg = cfg;
+        this.topics = topics;
+        this.setup = setup;
+        this.meter = meter;
+        this.out = out;
+        this.records = records;
+        this.mode = mode;
+        this.stats = stats;
+        this.book = book;
+        this.listeners = List.copyOf(listeners);
+        this.clock = clock;
+    }
+
+    void onTrigger(byte[] payload, long arrivedNanos) {
+        Trigger t = decode(payload);
+        if (t == null) return;
+        String lotId = lotOf(t);
+        long now = clock.millis();
+        DecisionBook.Lookup found = book.find(t, lotId, now);
+        if (found instanceof DecisionBook.Repeat r) {
+            out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
+            stats.repeated();
+            return;
+        }
+        if (((DecisionBook.Fresh) found).reusedSeq()) seqReused(t, lotId);
+        int attempt = book.attemptFor(t, lotId);
+        Recipe r = setup.recipe();
+        Grading g = decide(t, r, attempt);
+        Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
+        book.put(d, now);
+        deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
+    }
+
+    /** Overflow thread: the work queue is full, so the part is not measured; the handler hears so at once. */
+    void busy(byte[] payload, long arrivedNanos) {
+        Trigger t = decode(payload);
+        if (t == null) return;
+        Recipe r = setup.recipe();
+        Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
+                Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
+        stats.busy();
+        deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
+    }
+
+    private synchronized void deliver(DecisionFields.Entry e) {
+        records.append(e);
+        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(e.decision())), 1, false);
+        for (DecisionListener l : listeners) {
+            try {
+                l.decided(e);
+            } catch (RuntimeException ex) {
+                LOG.error("decision listener failed", ex);
+            }
+        }
+    }
+
+    private Trigger decode(byte[] payload) {
+        try {
+            return TriggerCodec.decode(payload);
+        } catch (PayloadException e) {
+            reject(topics.trigger(), e.getMessage());
+            return null;
+        }
+    }
+
+    void reject(String topic, String reason) {
+        stats.rejected();
+        out.publish(topics.rejected(), Payloads.rejected(topic, reason), 1, false);
+    }
+
+    /** The trigger's lot, or the line's; a lot different from the book's starts a fresh book and lot figures. */
+    private String lotOf(Trigger t) {
+        String l = t.lot().isEmpty() ? book.lot() : t.lot();
+        enterLot(l, clock.instant());
+        return l;
+    }
+
+    /** The {@code lot} command, a trigger of another lot, or a lot found in the record log at start. */
+    void enterLot(String l, java.time.Instant when) {
+        if (book.enterLot(l)) {
+            stats.startLot(l, when);
+            lastReusedWarning = null;
+        }
+    }
+
+    private void seqReused(Trigger t, String lotId) {
+        stats.seqReused();
+        if (!lotId.equals(lastReusedWarning)) {
+            lastReusedWarning = lotId;
+            LOG.warn("lot '{}': seq {} came back as another presentation (part '{}'): measured as new; "
+                    + "the handler reuses seqs (counted as seq_reused on the dashboard, logged once per lot)", lotId, t.seq(), t.part());
+        }
+    }
+
+    private Grading decide(Trigger t, Recipe r, int attempt) {
+        if (mode.mode() == Mode.PAUSED) return Grader.notMeasured(r, Reason.LINE_PAUSED);
+        MeterReading mr;
+        try {
+            meter.apply(r.test());
+            mr = meter.measure();
+        } catch (MeterException e) {
+            LOG.debug("seq {}: {}", t.seq(), e.getMessage());
+            if (e.kind() == FaultKind.DISCONNECTED) {
+                boolean wasDown = mode.linkDown();
+                mode.setLinkDown(true, e.getMessage());
+                if (wasDown) return Grader.notMeasured(r, Reason.LINE_FAULT);
+            }
+            return Grader.fault(r, e.kind(), attempt);
+        }
+        if (mode.linkDown()) mode.setLinkDown(false, null);
+        var comp = setup.compensation();
+        return switch (t.kind()) {
+            case PART -> Grader.grade(r, mr.reading(), comp, attempt);
+            case OPEN -> FixtureCheck.open(r, mr.reading(), comp, cfg.checks());
+            case SHORT -> FixtureCheck.shortBar(r, mr.reading(), comp, cfg.checks());
+            case REFERENCE -> FixtureCheck.reference(r, mr.reading(), comp, attempt);
+        };
+    }
+
+    /** Puts back what the record log says was decided before a restart: the book and the lot's figures. */
+    void recovered(DecisionFields.Entry e, long bookFromMs) {
+        Decision d = e.decision();
+        enterLot(d.lot(), e.time());
+        if (e.time().toEpochMilli() >= bookFromMs) book.put(d, e.time().toEpochMilli());
+        stats.decided(e);
+    }
+}

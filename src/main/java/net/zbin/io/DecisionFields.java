@@ -1,0 +1,98 @@
+package net.zbin.io;
+
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.time.Instant;
+import java.util.List;
+import java.util.function.Function;
+import net.zbin.core.Decision;
+import net.zbin.core.Grading;
+
+/**
+ * The fields of a decision, described once: each drives the MQTT decision payload, the record-log
+ * header and the record-log row (contract, see the README's MQTT table and record log section). Record
+ * columns come in this order and new ones are only ever appended at the end of the record part; a test
+ * holds the order against the published list.
+ */
+public final class DecisionFields {
+    private DecisionFields() {}
+
+    /** A decision with when it was made and on which line. */
+    public record Entry(Instant time, String line, Decision decision) {
+        Grading g() { return decision.grading(); }
+    }
+
+    /** Where a field goes. */
+    enum Use { RECORD, PAYLOAD, BOTH }
+
+    /**
+     * @param name  column and JSON key
+     * @param use   record log, payload or both
+     * @param value String, Long, Integer, Double (non-finite → empty/null), Boolean, or null
+     */
+    record Field(String name, Use use, Function<Entry, Object> value) {}
+
+    static final List<Field> ALL = List.of(
+            new Field("time", Use.RECORD, e -> e.time().toString()),
+            new Field("line", Use.RECORD, Entry::line),
+            new Field("lot", Use.BOTH, e -> e.decision().lot()),
+            new Field("seq", Use.BOTH, e -> e.decision().seq() >= 0 ? (Object) e.decision().seq() : null),
+            new Field("part", Use.BOTH, e -> e.decision().part()),
+            new Field("kind", Use.BOTH, e -> e.decision().kind().key()),
+            new Field("recipe", Use.BOTH, e -> e.decision().recipe()),
+            new Field("freq_hz", Use.BOTH, e -> e.g().freqHz()),
+            new Field("r_ohm", Use.BOTH, e -> e.g().rOhm()),
+            new Field("x_ohm", Use.BOTH, e -> e.g().xOhm()),
+            new Field("raw_r_ohm", Use.BOTH, e -> e.g().rawROhm()),
+            new Field("raw_x_ohm", Use.BOTH, e -> e.g().rawXOhm()),
+            new Field("model", Use.BOTH, e -> e.g().model() == null ? null : e.g().model().key()),
+            new Field("param", Use.BOTH, e -> e.g().param() == null ? null : e.g().param().label()),
+            new Field("value", Use.BOTH, e -> e.g().value()),
+            new Field("dev_pct", Use.BOTH, e -> e.g().devPct()),
+            new Field("d", Use.BOTH, e -> e.g().d()),
+            new Field("q", Use.BOTH, e -> e.g().q()),
+            new Field("esr_ohm", Use.BOTH, e -> e.g().esrOhm()),
+            new Field("theta_deg", Use.BOTH, e -> e.g().thetaDeg()),
+            new Field("bin", Use.BOTH, e -> e.g().bin()),
+            new Field("grade", Use.BOTH, e -> e.g().grade()),
+            new Field("verdict", Use.BOTH, e -> e.g().verdict().key()),
+            new Field("reason", Use.BOTH, e -> e.g().reason().code()),
+            new Field("latency_ms", Use.BOTH, e -> e.decision().latencyMs()),
+            new Field("comp", Use.BOTH, e -> e.g().comp().key()),
+            new Field("attempt", Use.BOTH, e -> e.decision().attempt()),
+            // payload only
+            new Field("unit", Use.PAYLOAD, e -> e.g().unit()),
+            new Field("z_ohm", Use.PAYLOAD, e -> e.g().zOhm()),
+            new Field("repeat", Use.PAYLOAD, e -> e.decision().repeat()));
+
+    /** The record-log columns, in order. */
+    public static final List<String> COLUMNS = ALL.stream().filter(f -> f.use() != Use.PAYLOAD).map(Field::name).toList();
+
+    /** The decision payload. */
+    public static ObjectNode json(Decision d) {
+        Entry e = new Entry(null, null, d);
+        ObjectNode n = Json.object();
+        for (Field f : ALL) {
+            if (f.use() == Use.RECORD) continue;
+            Object v = f.value().apply(e);
+            if (v == null) n.putNull(f.name());
+            else if (v instanceof Double x) Json.num(n, f.name(), x);
+            else if (v instanceof Long x) n.put(f.name(), x);
+            else if (v instanceof Integer x) n.put(f.name(), x);
+            else if (v instanceof Boolean x) n.put(f.name(), x);
+            else n.put(f.name(), v.toString());
+        }
+        return n;
+    }
+
+    /** One record-log row, as text per column (empty for absent or non-finite). */
+    public static String[] row(Entry e) {
+        String[] out = new String[COLUMNS.size()];
+        int i = 0;
+        for (Field f : ALL) {
+            if (f.use() == Use.PAYLOAD) continue;
+            Object v = f.value().apply(e);
+            out[i++] = v == null ? "" : v instanceof Double x ? (Double.isFinite(x) ? Double.toString(x) : "") : v.toString();
+        }
+        return out;
+    }
+}
