@@ -92,7 +92,8 @@ class HandlerSimIT {
         Cli r = Cli.run("replay", "--recipe", "config/recipes/inductor-pwr-4u7.yaml", "--in", lot.toString(), "--json");
         assertEquals(0, r.exit(), r.err());
         var json = new com.fasterxml.jackson.databind.ObjectMapper().readTree(r.out());
-        assertEquals(3000, json.path("total").asLong());
+        assertEquals(3000, json.path("presentations").asLong(), "each simulated part presented once");
+        assertEquals(3000 - json.path("retests").asLong(), json.path("total").asLong(), "unclean first presentations are retests");
         assertTrue(json.path("yield_pct").asDouble() > 50, r.out());
         assertTrue(json.path("reasons").has("q-low"), "the lot's low-Q tail is caught by the Q gate: " + r.out());
     }

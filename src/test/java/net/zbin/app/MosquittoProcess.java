@@ -11,12 +11,15 @@ import java.util.concurrent.TimeUnit;
 /** A Mosquitto broker started by the test from a generated config on a free port (never the system service). */
 public final class MosquittoProcess implements AutoCloseable {
     public final int port;
-    private final Process process;
+    private final Path dir;
+    private final Path conf;
+    private Process process;
 
     /** @param extraConfig further mosquitto.conf lines (password_file, acl_file, …) */
     public MosquittoProcess(Path dir, String extraConfig) throws IOException, InterruptedException {
         port = freePort();
-        Path conf = dir.resolve("mosquitto-" + port + ".conf");
+        this.dir = dir;
+        conf = dir.resolve("mosquitto-" + port + ".conf");
         Files.writeString(conf, "listener " + port + " 127.0.0.1\n"
                 + "set_tcp_nodelay true\n"
                 + "persistence false\n"
@@ -24,8 +27,13 @@ public final class MosquittoProcess implements AutoCloseable {
                 + "log_dest stderr\n"
                 + (extraConfig.contains("allow_anonymous") ? "" : "allow_anonymous true\n")
                 + extraConfig);
+        start();
+    }
+
+    /** Starts (again) on the same port from the same config, and waits until it listens. */
+    public void start() throws IOException, InterruptedException {
         process = new ProcessBuilder("mosquitto", "-c", conf.toString()).redirectErrorStream(true)
-                .redirectOutput(dir.resolve("mosquitto-" + port + ".log").toFile()).start();
+                .redirectOutput(ProcessBuilder.Redirect.appendTo(dir.resolve("mosquitto-" + port + ".log").toFile())).start();
         long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(10);
         while (true) {
             try (Socket s = new Socket()) {
@@ -40,6 +48,12 @@ public final class MosquittoProcess implements AutoCloseable {
     }
 
     public String url() { return "tcp://127.0.0.1:" + port; }
+
+    /** Kills the broker at once (SIGKILL), as a crash or a power cut of its host would. */
+    public void kill() throws InterruptedException {
+        process.destroyForcibly();
+        process.waitFor(5, TimeUnit.SECONDS);
+    }
 
     static int freePort() throws IOException {
         try (ServerSocket s = new ServerSocket(0)) {

@@ -42,7 +42,10 @@ class ReplayLargeIT {
         p.waitFor(5, TimeUnit.MINUTES);
         assertEquals(0, p.exitValue());
         JsonNode s = new ObjectMapper().readTree(out);
-        assertEquals(1_000_000, s.get("total").asLong());
+        long retests = expected.getOrDefault(0, 0L); // open contacts at their first presentation: retests, not finished parts
+        expected.remove(0);
+        assertEquals(1_000_000 - retests, s.get("total").asLong());
+        assertEquals(1_000_000, s.get("presentations").asLong());
         assertEquals(expected, ReplayCommandTest.countsOf(s));
     }
 }

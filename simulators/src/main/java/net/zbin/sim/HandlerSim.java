@@ -15,7 +15,6 @@ import javax.net.SocketFactory;
 import org.HdrHistogram.Histogram;
 import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
 import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
-import org.eclipse.paho.client.mqttv3.MqttCallback;
 import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
 import org.eclipse.paho.client.mqttv3.MqttMessage;
 import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
@@ -94,7 +93,13 @@ public final class HandlerSim implements AutoCloseable {
         protected boolean removeEldestEntry(Map.Entry<String, JsonNode> e) { return size() > REMEMBERED; }
     });
     private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
-            stale = new AtomicLong();
+            stale = new AtomicLong(), resent = new AtomicLong();
+    /** Presentations whose trigger was sent again (no answer in time): a repeat answer to them is expected. */
+    private final java.util.Set<String> retried = java.util.Collections.newSetFromMap(java.util.Collections.synchronizedMap(
+            new java.util.LinkedHashMap<>() {
+                @Override
+                protected boolean removeEldestEntry(Map.Entry<String, Boolean> e) { return size() > REMEMBERED; }
+            }));
     private final Object stateLock = new Object();
     private volatile boolean online;
     private long seq;
@@ -104,13 +109,28 @@ public final class HandlerSim implements AutoCloseable {
         this.scenario = scenario;
         this.loader = loader;
         this.client = new MqttAsyncClient(o.broker(), o.clientId(), new MemoryPersistence());
-        client.setCallback(new MqttCallback() {
+        String base = o.topicRoot() + "/" + o.line() + "/";
+        client.setCallback(new org.eclipse.paho.client.mqttv3.MqttCallbackExtended() {
             public void connectionLost(Throwable cause) { setOnline(false); }
+
+            public void connectComplete(boolean reconnect, String uri) {
+                if (!reconnect) return;
+                try {
+                    client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}); // clean session: again
+                } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
+                    setOnline(false);
+                }
+            }
 
             public void messageArrived(String topic, MqttMessage m) { onMessage(topic, m.getPayload()); }
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });
+        org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions buffer = new org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions();
+        buffer.setBufferEnabled(true);
+        buffer.setBufferSize(10_000);
+        buffer.setDeleteOldestMessages(false);
+        client.setBufferOpts(buffer);
         MqttConnectOptions c = new MqttConnectOptions();
         c.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         c.setCleanSession(true);
@@ -121,7 +141,6 @@ public final class HandlerSim implements AutoCloseable {
         if (o.username() != null) c.setUserName(o.username());
         if (o.password() != null) c.setPassword(o.password());
         client.connect(c).waitForCompletion(10_000);
-        String base = o.topicRoot() + "/" + o.line() + "/";
         client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}).waitForCompletion(10_000);
     }
 
@@ -147,8 +166,8 @@ public final class HandlerSim implements AutoCloseable {
         boolean repeat = n.path("repeat").asBoolean(false);
         String key = s + "/" + n.path("part").asText();
         JsonNode first = answered.putIfAbsent(key, n);
-        if (first == null && repeat) {
-            stale.incrementAndGet(); // a repeat answer to a presentation never decided: it is about another part
+        if (first == null && repeat && !retried.contains(key)) {
+            stale.incrementAndGet(); // a repeat answer to a presentation sent once and never answered: it is about another part
             return;
         }
         if (first != null) {
@@ -187,17 +206,47 @@ public final class HandlerSim implements AutoCloseable {
         t.put("lot", scenario.lot().id());
         t.put("kind", kind);
         if (retestOf >= 0) t.put("retest_of", retestOf);
-        client.publish(o.topicRoot() + "/" + o.line() + "/trigger", JSON.writeValueAsBytes(t), 1, false);
+        byte[] msg = JSON.writeValueAsBytes(t);
+        String topic = o.topicRoot() + "/" + o.line() + "/trigger";
+        send(topic, msg);
+        long end = System.currentTimeMillis() + o.missingMs();
+        long retryMs = Math.max(500, 4L * o.deadlineMs());
         try {
-            JsonNode d = f.get(o.missingMs(), TimeUnit.MILLISECONDS);
-            if (!part.equals(d.path("part").asText())) stale.incrementAndGet();
-            return d;
-        } catch (TimeoutException e) {
-            return null;
+            while (true) {
+                long left = end - System.currentTimeMillis();
+                if (left <= 0) return null;
+                try {
+                    JsonNode d = f.get(Math.min(left, retryMs), TimeUnit.MILLISECONDS);
+                    if (!part.equals(d.path("part").asText())) stale.incrementAndGet();
+                    return d;
+                } catch (TimeoutException e) {
+                    // no answer within the handler's patience: send the same trigger again, as a handler does
+                    retried.add(key);
+                    resent.incrementAndGet();
+                    send(topic, msg);
+                }
+            }
         } finally {
             waiting.remove(key);
         }
     }
+
+    /** Publishes, riding out a broker that is away (the client buffers while it reconnects). */
+    private void send(String topic, byte[] msg) throws Exception {
+        long end = System.currentTimeMillis() + o.offlineWaitMs();
+        while (true) {
+            try {
+                client.publish(topic, msg, 1, false);
+                return;
+            } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
+                if (System.currentTimeMillis() > end) throw e;
+                Thread.sleep(50);
+            }
+        }
+    }
+
+    /** Triggers sent again because no answer came in time. */
+    public long resent() { return resent.get(); }
 
     /** Runs the lot; the progress consumer is called after each part. */
     public Summary run(Consumer<Progress> progress) throws Exception {

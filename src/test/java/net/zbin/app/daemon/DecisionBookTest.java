@@ -1,0 +1,98 @@
+package net.zbin.app.daemon;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertInstanceOf;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.List;
+import net.zbin.core.ContactCheck;
+import net.zbin.core.Decision;
+import net.zbin.core.Grade;
+import net.zbin.core.Grader;
+import net.zbin.core.GradingMode;
+import net.zbin.core.GuardBand;
+import net.zbin.core.ModelPolicy;
+import net.zbin.core.PartType;
+import net.zbin.core.PrimaryParam;
+import net.zbin.core.Reading;
+import net.zbin.core.Reason;
+import net.zbin.core.Recipe;
+import net.zbin.core.RejectBins;
+import net.zbin.core.RetestPolicy;
+import net.zbin.core.TestConditions;
+import net.zbin.core.Trigger;
+import org.junit.jupiter.api.Test;
+
+/** The book answers a repeat only for the same presentation, and never for another part. No broker needed. */
+class DecisionBookTest {
+    static final Recipe R = new Recipe("t", PartType.CAPACITOR, 100e-9, new TestConditions(1000, 1, "medium", 1), ModelPolicy.DEFAULT,
+            PrimaryParam.CS, GradingMode.CONCENTRIC, List.of(new Grade("J", 1, -5, 5)), GuardBand.NONE, null, null,
+            new RejectBins(7, 8, 9, 10, 10, 11, 11), new RetestPolicy(2, 0), ContactCheck.DEFAULT, false);
+
+    static Decision decided(long seq, String part, String lot, int attempt) {
+        return new Decision(seq, part, lot, Trigger.Kind.PART, "t", Grader.grade(R, new Reading(1000, 1, -1591.5), null, attempt),
+                1, false, attempt);
+    }
+
+    static Trigger trigger(long seq, String part) { return new Trigger(seq, part, "", Trigger.Kind.PART, -1); }
+
+    @Test
+    void sameSeqPartAndLot_withinTheWindow_isARepeat() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(decided(3, "P3", "L1", 0), 1000);
+        var found = b.find(trigger(3, "P3"), "L1", 5000);
+        assertEquals(3, assertInstanceOf(DecisionBook.Repeat.class, found).decision().seq());
+    }
+
+    @Test
+    void aSeqThatComesBackWithAnotherPart_orAfterTheWindow_isANewPresentation() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(decided(0, "P0", "L1", 0), 1000);
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P9"), "L1", 1001)).reusedSeq(), "handler restarted its counter");
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L1", 6001)).reusedSeq(), "after the window");
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L2", 1001)).reusedSeq(), "another lot");
+        assertEquals(3, b.reusedSeqs());
+        assertEquals(false, assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(1, "P1"), "L1", 1001)).reusedSeq());
+    }
+
+    @Test
+    void aNewLot_startsAFreshBook() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(decided(0, "P0", "L1", 0), 1000);
+        assertTrue(b.enterLot("L2"));
+        assertEquals(0, b.size());
+        assertEquals(false, b.enterLot("L2"));
+    }
+
+    @Test
+    void retest_countsAttemptsOfTheSamePart_only() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(decided(4, "P4", "L1", 1), 1000);
+        assertEquals(2, b.attemptFor(new Trigger(5, "P4", "", Trigger.Kind.PART, 4), "L1"));
+        assertEquals(1, b.attemptFor(new Trigger(5, "P8", "", Trigger.Kind.PART, 4), "L1"), "retest_of names another part");
+        assertEquals(1, b.attemptFor(new Trigger(5, "P4", "", Trigger.Kind.PART, 99), "L1"), "unknown earlier presentation");
+        assertEquals(0, b.attemptFor(trigger(6, "P6"), "L1"));
+    }
+
+    @Test
+    void aPartNotMeasured_isMeasuredWhenItsTriggerComesAgain_andItsRetestIsNotCounted() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        Decision paused = new Decision(2, "P2", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.LINE_PAUSED), 1, false, 0);
+        b.put(paused, 1000);
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001));
+        assertEquals(0, b.attemptFor(new Trigger(3, "P2", "", Trigger.Kind.PART, 2), "L1"));
+    }
+
+    @Test
+    void theBook_isBoundedByCount() {
+        DecisionBook b = new DecisionBook(5000, 10);
+        b.enterLot("L1");
+        for (int i = 0; i < 1000; i++) b.put(decided(i, "P" + i, "L1", 0), i);
+        assertEquals(10, b.size());
+    }
+}

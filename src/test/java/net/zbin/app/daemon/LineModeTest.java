@@ -1,0 +1,76 @@
+package net.zbin.app.daemon;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.time.Clock;
+import java.time.Instant;
+import java.time.ZoneOffset;
+import net.zbin.io.mqtt.Topics;
+import org.junit.jupiter.api.Test;
+
+/** Mode changes, the retained state and the alarms that go with them, without a broker. */
+class LineModeTest {
+    final Topics topics = new Topics("zbin", "l1");
+    final RecordingPublisher out = new RecordingPublisher();
+
+    LineMode mode(boolean pauseOnLogFailure) {
+        LineMode m = new LineMode(Clock.fixed(Instant.parse("2026-12-01T08:00:00Z"), ZoneOffset.UTC), topics, pauseOnLogFailure, () -> "r1");
+        m.attach(out);
+        return m;
+    }
+
+    @Test
+    void meterLinkDown_faultsTheLine_raisesOneAlarm_andItClearsWhenTheLinkIsBack() {
+        LineMode m = mode(true);
+        m.publishState();
+        m.setLinkDown(true, "connection refused");
+        m.setLinkDown(true, "again");
+        assertEquals(Mode.FAULT, m.mode());
+        m.setLinkDown(false, null);
+        m.drain(2000);
+        var alarms = out.on(topics.alarm());
+        assertEquals(2, alarms.size(), "raised once, cleared once: " + alarms);
+        assertTrue(alarms.get(0).payload().contains("\"active\":true") && alarms.get(0).payload().contains("connection refused"));
+        assertTrue(alarms.get(1).payload().contains("\"active\":false"));
+        var states = out.on(topics.state());
+        assertEquals(3, states.size(), states.toString());
+        assertTrue(states.get(1).payload().contains("\"mode\":\"fault\"") && states.get(1).retained());
+        assertTrue(states.get(2).payload().contains("\"mode\":\"ready\""));
+    }
+
+    @Test
+    void recordLogFailure_pausesTheLine_onlyWhenConfiguredTo() {
+        LineMode pausing = mode(true);
+        pausing.setLogFailing(true, "disk full");
+        assertEquals(Mode.PAUSED, pausing.mode());
+        pausing.setLogFailing(false, null);
+        assertEquals(Mode.READY, pausing.mode());
+        LineMode continuing = mode(false);
+        continuing.setLogFailing(true, "disk full");
+        assertEquals(Mode.READY, continuing.mode());
+    }
+
+    @Test
+    void operatorPause_winsOverFault_andResumeReturnsToWhatTheLinkSays() {
+        LineMode m = mode(true);
+        m.setLinkDown(true, "gone");
+        m.setOperatorPaused(true);
+        assertEquals(Mode.PAUSED, m.mode());
+        m.setOperatorPaused(false);
+        assertEquals(Mode.FAULT, m.mode());
+    }
+
+    @Test
+    void afterAReconnect_theStateAndEveryActiveAlarmAreSentAgain() {
+        LineMode m = mode(true);
+        m.setLinkDown(true, "gone");
+        m.drain(2000);
+        int alarmsBefore = out.on(topics.alarm()).size();
+        LineMode again = mode(true);
+        again.setLinkDown(true, "gone");
+        again.announce();
+        again.drain(2000);
+        assertEquals(alarmsBefore + 2, out.on(topics.alarm()).size(), "the active alarm is announced again");
+    }
+}
