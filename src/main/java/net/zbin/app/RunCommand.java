@@ -28,6 +28,19 @@ public final class RunCommand implements Callable<Integer> {
     @picocli.CommandLine.Spec
     picocli.CommandLine.Model.CommandSpec spec;
 
+    /** The whole cause chain in one line: a TLS refusal says which certificate check failed, not just "MqttException". */
+    static String why(Throwable e) {
+        StringBuilder b = new StringBuilder();
+        java.util.Set<Throwable> seen = new java.util.HashSet<>();
+        for (Throwable t = e; t != null && seen.add(t); t = t.getCause()) {
+            String m = t.getMessage();
+            if (m == null || m.isBlank() || b.indexOf(m) >= 0) continue;
+            if (b.length() > 0) b.append(": ");
+            b.append(m);
+        }
+        return b.length() == 0 ? e.toString() : b.toString();
+    }
+
     @Override
     public Integer call() throws Exception {
         LineConfig cfg = LineConfigLoader.load(config);
@@ -40,7 +53,7 @@ public final class RunCommand implements Callable<Integer> {
         try {
             d.start(connectTimeoutMs);
         } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
-            spec.commandLine().getErr().println("zbin: cannot connect to " + cfg.mqtt().broker() + ": " + e.getMessage());
+            spec.commandLine().getErr().println("zbin: cannot connect to " + cfg.mqtt().broker() + ": " + why(e));
             return Main.EXIT_RUNTIME;
         }
         spec.commandLine().getOut().println("zbin: line " + cfg.line() + " running on " + cfg.mqtt().broker() + " (" + d.topics().base() + "…)");

@@ -13,7 +13,7 @@ import org.junit.jupiter.api.io.TempDir;
 
 /**
  * The shipped Mosquitto config and ACL, run in a real Mosquitto (paths and port rewritten to the
- * test's), with the real daemon logging in as zbin-daemon: each role can do what it should, no more.
+ * test's), with the real daemon logging in as zbin-acl: each role can do what it should, no more, and a handler only on its own line.
  */
 class BrokerAclIT {
     @TempDir
@@ -23,7 +23,7 @@ class BrokerAclIT {
     void shippedAcl_handlerTriggers_operatorReads_engineerCommands() throws Exception {
         Path pw = dir.resolve("zbin.passwd");
         boolean first = true;
-        for (String u : new String[] {"zbin-daemon", "handler", "operator", "engineer"}) {
+        for (String u : new String[] {"zbin-acl", "handler-acl", "handler-other", "operator", "engineer"}) {
             ProcessBuilder pb = first ? new ProcessBuilder("mosquitto_passwd", "-c", "-b", pw.toString(), u, u + "-secret")
                     : new ProcessBuilder("mosquitto_passwd", "-b", pw.toString(), u, u + "-secret");
             Process p = pb.redirectErrorStream(true).start();
@@ -31,7 +31,10 @@ class BrokerAclIT {
             assertEquals(0, p.exitValue(), "mosquitto_passwd for " + u + ": " + new String(p.getInputStream().readAllBytes()));
             first = false;
         }
-        Files.copy(Path.of("config/mosquitto/zbin.acl"), dir.resolve("zbin.acl"));
+        // The shipped ACL with its example line renamed to the test's line, plus the same blocks for a second line.
+        String acl = Files.readString(Path.of("config/mosquitto/zbin.acl"));
+        Files.writeString(dir.resolve("zbin.acl"), acl.replace("hg-line-2", "acl") + "\n"
+                + acl.substring(acl.indexOf("user zbin-hg-line-2"), acl.indexOf("# The line operator")).replace("hg-line-2", "other"));
         StringBuilder conf = new StringBuilder();
         for (String l : Files.readAllLines(Path.of("config/mosquitto/zbin.conf"))) {
             if (l.startsWith("listener ")) continue; // the test's own listener on a free port
@@ -45,10 +48,11 @@ class BrokerAclIT {
         for (Path f : new Path[] {pw, dir.resolve("zbin.acl")})
             Files.setPosixFilePermissions(f, java.nio.file.attribute.PosixFilePermissions.fromString("rw-r--r--"));
         try (MosquittoProcess broker = new MosquittoProcess(dir, conf.toString())) {
-            Files.writeString(dir.resolve("daemon.pass"), "zbin-daemon-secret\n");
+            Files.writeString(dir.resolve("daemon.pass"), "zbin-acl-secret\n");
             Scenario sc = LineRig.quietMeter(Scenario.builtIn());
             try (LineRig rig = new LineRigWithLogin(dir, broker.url(), sc);
-                 Tap handler = Tap.login(broker.url(), "handler", "handler-secret", "zbin/acl/decision", "zbin/acl/state");
+                 Tap handler = Tap.login(broker.url(), "handler-acl", "handler-acl-secret", "zbin/acl/decision", "zbin/acl/state");
+                 Tap otherHandler = Tap.login(broker.url(), "handler-other", "handler-other-secret", "zbin/acl/decision");
                  Tap operator = Tap.login(broker.url(), "operator", "operator-secret", "zbin/acl/#");
                  Tap engineer = Tap.login(broker.url(), "engineer", "engineer-secret", "zbin/acl/#")) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
@@ -68,14 +72,18 @@ class BrokerAclIT {
                 operator.publish("zbin/acl/trigger", "{\"seq\": 2}");                       // operator may not trigger
                 Thread.sleep(500);
                 assertEquals(1, handler.on("/decision").size(), "no decision for the operator's trigger");
+                otherHandler.publish("zbin/acl/trigger", "{\"seq\": 3}");                  // another line's handler may not trigger here
+                Thread.sleep(500);
+                assertEquals(1, handler.on("/decision").size(), "no decision for another line's handler");
+                assertEquals(0, otherHandler.on("/decision").size(), "another line's handler reads nothing of this line");
             }
         }
     }
 
-    /** A line rig whose daemon logs in as zbin-daemon with a password file. */
+    /** A line rig whose daemon logs in as zbin-acl with a password file. */
     static final class LineRigWithLogin extends LineRig {
         LineRigWithLogin(Path dir, String broker, Scenario sc) throws Exception {
-            super(dir, "acl", broker, sc, "mlcc-x7r-100n", "", "topic_root: zbin, username: zbin-daemon, password_file: daemon.pass}");
+            super(dir, "acl", broker, sc, "mlcc-x7r-100n", "", "topic_root: zbin, username: zbin-acl, password_file: daemon.pass}");
         }
     }
 }

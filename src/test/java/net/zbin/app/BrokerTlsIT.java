@@ -63,6 +63,7 @@ class BrokerTlsIT {
             assertTrue(run.waitFor(60, TimeUnit.SECONDS));
             assertEquals(1, run.exitValue(), out);
             assertTrue(out.contains("cannot connect to " + url), out);
+            assertTrue(out.toLowerCase(java.util.Locale.ROOT).contains("certif"), "the refusal says why (the certificate check): " + out);
         }
     }
 }

@@ -24,7 +24,7 @@ final class MosquittoAndSystemdFiles {
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("password_file ")), name + " names a password_file");
             }
             case "zbin.acl" -> {
-                for (String u : List.of("zbin-daemon", "handler", "operator", "engineer"))
+                for (String u : List.of("zbin-hg-line-2", "handler-hg-line-2", "operator", "engineer"))
                     assertTrue(lines.contains("user " + u), name + " has user " + u);
                 assertTrue(lines.stream().allMatch(l -> l.startsWith("user ") || l.startsWith("topic ")), name + ": only user/topic lines");
             }

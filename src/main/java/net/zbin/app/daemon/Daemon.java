@@ -3,19 +3,13 @@ package net.zbin.app.daemon;
 import java.time.Clock;
 import java.time.Duration;
 import java.util.List;
-import java.util.concurrent.ArrayBlockingQueue;
-import java.util.concurrent.ExecutorService;
 import java.util.concurrent.Executors;
-import java.util.concurrent.RejectedExecutionException;
 import java.util.concurrent.ScheduledExecutorService;
-import java.util.concurrent.ThreadPoolExecutor;
 import java.util.concurrent.TimeUnit;
-import java.util.concurrent.atomic.AtomicBoolean;
 import net.zbin.io.ConfigException;
 import net.zbin.io.LineConfig;
 import net.zbin.io.RecordLog;
 import net.zbin.io.RecordLogReader;
-import net.zbin.io.meter.MeterException;
 import net.zbin.io.meter.MeterSession;
 import net.zbin.io.mqtt.MqttLink;
 import net.zbin.io.mqtt.Payloads;
@@ -25,15 +19,11 @@ import org.slf4j.LoggerFactory;
 
 /**
  * The sorting daemon of one line: wiring only. Paho's thread hands triggers and commands to one
- * measuring thread through a bounded queue (a trigger beyond it is answered {@code line-busy} at once by
- * the overflow thread); the {@link TriggerPath} decides; listeners hear of each decision; a ticker
- * publishes the dashboard and heals the meter link.
+ * measuring thread ({@link Dispatch}); the {@link TriggerPath} decides; listeners hear of each decision;
+ * a ticker publishes the dashboard and heals the meter link.
  */
 public final class Daemon implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(Daemon.class);
-    /** Triggers and commands waiting for the measuring thread at most. */
-    static final int QUEUE = 10_000;
-
     private final LineConfig cfg;
     private final MeterSession meter;
     private final Clock clock;
@@ -43,9 +33,9 @@ public final class Daemon implements AutoCloseable {
     private final LineStats stats;
     private final RecordLog records;
     private final DecisionBook book;
-    private final ThreadPoolExecutor work, overflow;
+    private final Dispatch dispatch;
     private final ScheduledExecutorService ticker = Executors.newSingleThreadScheduledExecutor(r -> named(r, "ticker"));
-    private final AtomicBoolean probing = new AtomicBoolean();
+    private final MeterWatch watch;
     private MqttLink mqtt;
     private TriggerPath path;
     private LineCommands commands;
@@ -64,13 +54,11 @@ public final class Daemon implements AutoCloseable {
 
             public void recovered() { mode.setLogFailing(false, null); }
         });
-        this.overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE * 5),
-                r -> named(r, "overflow-" + cfg.line()), (r, ex) -> LOG.error("overflow queue full: a trigger got no answer"));
-        this.work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
-                r -> named(r, "line-" + cfg.line()), (r, ex) -> overflowed(r));
+        this.dispatch = new Dispatch(cfg.line());
+        this.watch = new MeterWatch(meter, mode, setup::recipe);
     }
 
-    private static Thread named(Runnable r, String name) {
+    static Thread named(Runnable r, String name) {
         Thread t = new Thread(r, name);
         t.setDaemon(true);
         return t;
@@ -90,75 +78,33 @@ public final class Daemon implements AutoCloseable {
         Warmup.run(setup.recipe(), setup.compensation(), 20_000);
         LOG.info("decision path warm in {} ms; {} presentations of lot '{}' recovered from the record log",
                 (System.nanoTime() - t0) / 1_000_000, book.size(), book.lot());
-        probeMeter();
+        watch.probe();
         mode.attach(mqtt);
         mqtt.onConnect(mode::announce);
         mqtt.connect(connectTimeoutMs);
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
-        ticker.scheduleWithFixedDelay(this::healMeter, 200, 200, TimeUnit.MILLISECONDS);
+        ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
 
     /** Paho's thread: only hand the message over. */
     private void route(String topic, byte[] payload) {
-        long arrived = System.nanoTime();
-        try {
-            if (topic.equals(topics.trigger())) work.execute(new Work(new Job(payload, arrived, true)));
-            else if (topic.equals(topics.command())) work.execute(new Work(new Job(payload, arrived, false)));
-        } catch (RejectedExecutionException e) {
-            LOG.debug("stopping: {} dropped", topic);
-        }
+        if (topic.equals(topics.trigger())) dispatch.submit(triggers, payload);
+        else if (topic.equals(topics.command())) dispatch.submit(commandsIn, payload);
     }
 
-    private record Job(byte[] payload, long arrived, boolean trigger) {}
+    private final Dispatch.Handler triggers = new Dispatch.Handler() {
+        public void handle(byte[] p, long at) { path.onTrigger(p, at); }
 
-    private class Work implements Runnable {
-        private final Job job;
+        public void overflow(byte[] p, long at) { path.busy(p, at); }
+    };
 
-        Work(Job job) { this.job = job; }
+    private final Dispatch.Handler commandsIn = new Dispatch.Handler() {
+        public void handle(byte[] p, long at) { commands.handle(p); }
 
-        public void run() {
-            if (job.trigger()) path.onTrigger(job.payload(), job.arrived());
-            else commands.handle(job.payload());
-        }
-    }
-
-    private void overflowed(Runnable r) {
-        if (work.isShutdown()) return;
-        Job j = ((Work) r).job;
-        overflow.execute(() -> {
-            if (j.trigger()) path.busy(j.payload(), j.arrived());
-            else path.reject(topics.command(), "line busy: " + QUEUE + " messages are waiting; send the command again");
-        });
-    }
-
-    /** While the meter link is down, tries it again in the background (the session keeps its own backoff). */
-    private void healMeter() {
-        if (!mode.linkDown() || !probing.compareAndSet(false, true)) return;
-        try {
-            work.execute(new Work(new Job(null, 0, false)) {
-                @Override
-                public void run() {
-                    probeMeter();
-                    probing.set(false);
-                }
-            });
-        } catch (RejectedExecutionException e) {
-            probing.set(false);
-        }
-    }
-
-    private void probeMeter() {
-        try {
-            meter.apply(setup.recipe().test());
-            LOG.info("meter: {}", meter.identify());
-            mode.setLinkDown(false, null);
-        } catch (MeterException e) {
-            LOG.debug("meter not ready: {}", e.getMessage());
-            mode.setLinkDown(true, e.getMessage());
-        }
-    }
+        public void overflow(byte[] p, long at) { path.reject(topics.command(), "line busy: send the command again"); }
+    };
 
     private void publishDashboard() {
         try {
@@ -181,14 +127,7 @@ public final class Daemon implements AutoCloseable {
     /** Clean stop: finish queued work, publish the final dashboard and offline, force the record log. */
     @Override
     public void close() {
-        work.shutdown();
-        overflow.shutdown();
-        try {
-            if (!work.awaitTermination(10, TimeUnit.SECONDS)) work.shutdownNow();
-            overflow.awaitTermination(5, TimeUnit.SECONDS);
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-        }
+        dispatch.close();
         ticker.shutdownNow();
         mode.drain(3000);
         if (mqtt != null) {

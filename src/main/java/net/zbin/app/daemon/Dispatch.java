@@ -1,0 +1,72 @@
+package net.zbin.app.daemon;
+
+import java.util.concurrent.ArrayBlockingQueue;
+import java.util.concurrent.RejectedExecutionException;
+import java.util.concurrent.ThreadPoolExecutor;
+import java.util.concurrent.TimeUnit;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The hand-over from Paho's thread to the one measuring thread, through a bounded queue. A trigger
+ * beyond the queue is answered at once ({@code line-busy}, not measured) by the overflow thread, so the
+ * handler always gets an answer and memory stays bounded whatever a client sends.
+ */
+final class Dispatch {
+    private static final Logger LOG = LoggerFactory.getLogger(Dispatch.class);
+    /** Triggers and commands waiting for the measuring thread at most. */
+    static final int QUEUE = 10_000;
+
+    /** What a message becomes on the measuring thread, and on the overflow thread when the queue is full. */
+    interface Handler {
+        void handle(byte[] payload, long arrivedNanos);
+
+        void overflow(byte[] payload, long arrivedNanos);
+    }
+
+    private final ThreadPoolExecutor work, overflow;
+
+    Dispatch(String line) {
+        overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE * 5),
+                r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
+        work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
+                r -> Daemon.named(r, "line-" + line), (r, ex) -> {
+                    if (!ex.isShutdown() && r instanceof Job j) overflow.execute(() -> j.handler.overflow(j.payload, j.arrived));
+                });
+    }
+
+    private record Job(Handler handler, byte[] payload, long arrived) implements Runnable {
+        public void run() { handler.handle(payload, arrived); }
+    }
+
+    /** Paho's thread: hands over, never blocks. */
+    void submit(Handler h, byte[] payload) {
+        try {
+            work.execute(new Job(h, payload, System.nanoTime()));
+        } catch (RejectedExecutionException e) {
+            LOG.debug("stopping: message dropped");
+        }
+    }
+
+    /** Runs a task on the measuring thread, between parts; false when the queue is full or stopping. */
+    boolean onMeasuringThread(Runnable r) {
+        try {
+            work.execute(r);
+            return true;
+        } catch (RejectedExecutionException e) {
+            return false;
+        }
+    }
+
+    /** Finishes what is queued, then stops. */
+    void close() {
+        work.shutdown();
+        overflow.shutdown();
+        try {
+            if (!work.awaitTermination(10, TimeUnit.SECONDS)) work.shutdownNow();
+            overflow.awaitTermination(5, TimeUnit.SECONDS);
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+    }
+}
