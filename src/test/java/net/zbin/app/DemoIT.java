@@ -1,6 +1,7 @@
 package net.zbin.app;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.charset.StandardCharsets;
@@ -21,12 +22,27 @@ class DemoIT {
         String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
         assertTrue(p.waitFor(5, TimeUnit.MINUTES));
         assertEquals(0, p.exitValue(), out);
-        assertTrue(out.contains("2000 parts"), out);
+        assertTrue(out.contains("of 2000 presented"), out);
         assertTrue(out.contains("latency p50"), out);
-        assertTrue(out.contains("missing 0, duplicate 0, contradictory 0"), out);
+        assertTrue(out.contains("missing 0, duplicate 0, contradictory 0, stale 0"), out);
         assertTrue(out.contains("demo ok"), out);
-        Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/mlcc-x7r-100n.yaml").toString(), "--in",
-                dir.resolve("records").toFile().listFiles()[0].toString(), "--json");
-        assertEquals(0, replay.exit(), replay.err());
+        assertFalse(out.contains("\r"), "no carriage returns into a pipe");
+        long parts = 0, passed = 0;
+        for (java.io.File f : dir.resolve("records").toFile().listFiles()) { // one file, two if the run crossed midnight UTC
+            Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/mlcc-x7r-100n.yaml").toString(), "--in", f.toString(), "--json");
+            assertEquals(0, replay.exit(), replay.err());
+            var j = new com.fasterxml.jackson.databind.ObjectMapper().readTree(replay.out());
+            parts += j.path("parts").asLong();
+            passed += j.path("passed").asLong();
+        }
+        // One yield: the handler's summary, the line's own figures and a replay of the record log agree to the last digit.
+        java.util.regex.Matcher handler = java.util.regex.Pattern.compile("presented; yield ([0-9.]+) %").matcher(out);
+        java.util.regex.Matcher line = java.util.regex.Pattern.compile("the line's own figures for lot \\S+: (\\d+) parts finished, (\\d+) passed, yield ([0-9.]+) %").matcher(out);
+        assertTrue(handler.find() && line.find(), out);
+        String replayed = String.format(java.util.Locale.ROOT, "%.2f", 100.0 * passed / parts);
+        assertEquals(replayed, handler.group(1), "handler summary = replay");
+        assertEquals(replayed, line.group(3), "line's figures = replay");
+        assertEquals(parts, Long.parseLong(line.group(1)));
+        assertEquals(passed, Long.parseLong(line.group(2)));
     }
 }
