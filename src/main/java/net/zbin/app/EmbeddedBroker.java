@@ -34,10 +34,22 @@ public final class EmbeddedBroker implements AutoCloseable {
 
     private final int port;
 
-    /** Moquette binds asynchronously: getPort() is 0 until the listener is up. */
+    /**
+     * Moquette binds asynchronously: getPort() is 0 until the listener is up, and while its acceptor
+     * registers the listener it may throw ConcurrentModificationException (read again).
+     */
+    private int currentPort() {
+        try {
+            return server.getPort();
+        } catch (java.util.ConcurrentModificationException e) {
+            return 0;
+        }
+    }
+
     private int boundPort() throws IOException {
         long end = System.nanoTime() + 10_000_000_000L;
-        while (server.getPort() == 0) {
+        int bound;
+        while ((bound = currentPort()) == 0) {
             if (System.nanoTime() > end) {
                 server.stopServer();
                 throw new IOException("embedded broker did not bind a port within 10 s");
@@ -49,7 +61,7 @@ public final class EmbeddedBroker implements AutoCloseable {
                 throw new IOException("interrupted while the broker started", e);
             }
         }
-        return server.getPort();
+        return bound;
     }
 
     public int port() { return port; }

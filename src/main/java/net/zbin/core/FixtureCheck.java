@@ -3,7 +3,9 @@ package net.zbin.core;
 /**
  * Grading of the handler's check presentations: an empty fixture (open), the short bar, or the
  * reference part. They are compared with the stored compensation or the recipe; the answer's bin
- * is the retest bin (there is no part to sort) and its verdict says whether the check passed.
+ * is the retest bin (there is no part to sort) and its verdict says whether the check passed. An open
+ * or short check carries, as its compensated R/X, the residual beyond the stored open (1/(Y − Yopen):
+ * its Cp is the stray that appeared) or short (Z − Zshort), so the record log keeps the trend.
  */
 public final class FixtureCheck {
     private FixtureCheck() {}
@@ -22,20 +24,24 @@ public final class FixtureCheck {
     }
 
     public static Grading open(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite()) return result(r, rd, "open-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
-        if (comp == null || comp.open() == null) return result(r, rd, "open-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
+        if (!rd.isFinite()) return result(r, rd, null, "open-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
+        if (comp == null || comp.open() == null) return result(r, rd, null, "open-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
         Impedance now = new Impedance(rd.freqHz(), rd.rOhm(), rd.xOhm());
-        double delta = now.cpF() - comp.open().cpF();
-        boolean ok = Math.abs(delta) <= lim.openDriftMaxF();
-        return result(r, rd, "open-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
+        // The residual admittance beyond the stored open, kept as the check's compensated R/X: 1 / (Ynow − Yopen).
+        Cplx yres = new Cplx(now.rOhm(), now.xOhm()).reciprocal().sub(new Cplx(comp.open().rOhm(), comp.open().xOhm()).reciprocal());
+        Cplx zres = yres.re() == 0 && yres.im() == 0 ? new Cplx(1e305, 0) : yres.reciprocal();
+        Impedance residual = new Impedance(rd.freqHz(), zres.re(), zres.im());
+        boolean ok = Math.abs(yres.im() / now.omega()) <= lim.openDriftMaxF();
+        return result(r, rd, residual, "open-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
     }
 
     public static Grading shortBar(Recipe r, Reading rd, Compensation comp, Limits lim) {
-        if (!rd.isFinite()) return result(r, rd, "short-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
-        if (comp == null || comp.shortZ() == null) return result(r, rd, "short-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
-        double delta = Math.hypot(rd.rOhm() - comp.shortZ().rOhm(), rd.xOhm() - comp.shortZ().xOhm());
-        boolean ok = delta <= lim.shortDriftMaxOhm();
-        return result(r, rd, "short-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
+        if (!rd.isFinite()) return result(r, rd, null, "short-check", Verdict.FAIL, Reason.NON_FINITE, CompensationSource.NONE);
+        if (comp == null || comp.shortZ() == null) return result(r, rd, null, "short-check", Verdict.FAIL, Reason.NO_COMPENSATION, CompensationSource.NONE);
+        // The residual beyond the stored short, kept as the check's compensated R/X: Znow − Zshort.
+        Impedance residual = new Impedance(rd.freqHz(), rd.rOhm() - comp.shortZ().rOhm(), rd.xOhm() - comp.shortZ().xOhm());
+        boolean ok = residual.zOhm() <= lim.shortDriftMaxOhm();
+        return result(r, rd, residual, "short-check", ok ? Verdict.PASS : Verdict.FAIL, ok ? Reason.FIXTURE_OK : Reason.FIXTURE_DRIFT, comp.source());
     }
 
     /** The reference part: graded as a part; it passes when it lands in the recipe's first grade. */
@@ -46,9 +52,8 @@ public final class FixtureCheck {
                 ok ? Reason.REFERENCE_OK : Reason.REFERENCE_OFF), g.measured(), g.graded());
     }
 
-    /** The check's raw reading is kept as measured (R, X), uncompensated: it is the fixture itself. */
-    private static Grading result(Recipe r, Reading rd, String grade, Verdict v, Reason reason, CompensationSource src) {
-        Impedance z = rd.isFinite() ? new Impedance(rd.freqHz(), rd.rOhm(), rd.xOhm()) : null;
-        return new Grading(new Grading.Outcome(r.retest().bin(), grade, v, reason), Grading.Measurement.of(rd, z, src), null);
+    /** The raw reading as measured, and as "compensated" R/X the residual beyond the stored fixture (null without one). */
+    private static Grading result(Recipe r, Reading rd, Impedance residual, String grade, Verdict v, Reason reason, CompensationSource src) {
+        return new Grading(new Grading.Outcome(r.retest().bin(), grade, v, reason), Grading.Measurement.of(rd, residual, src), null);
     }
 }

@@ -28,6 +28,16 @@ import net.zbin.io.meter.MeterProfile;
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
                          Path stateDir, RecordSettings records, int deadlineMs, int repeatWindowMs, int dashboardMs, FixtureLimits fixture,
                          FixtureCheck.Limits checks, FixtureBounds bounds) {
+    public LineConfig {
+        if (line == null || !line.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
+            throw new net.zbin.core.SpecException("line", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + line + "')");
+        if (deadlineMs < 1) throw new net.zbin.core.SpecException("handler.deadline_ms", "must be >= 1 (was " + deadlineMs + ")");
+        if (repeatWindowMs < 0 || repeatWindowMs > 600_000)
+            throw new net.zbin.core.SpecException("handler.repeat_window_ms", "must be 0..600000 (was " + repeatWindowMs + ")");
+        if (dashboardMs < 100) throw new net.zbin.core.SpecException("dashboard.interval_s", "must be >= 0.1 (was " + dashboardMs / 1000.0 + ")");
+        for (Object o : new Object[] {mqtt, meter, recipeDir, activeRecipe, stateDir, records, fixture, checks, bounds})
+            if (o == null) throw new IllegalArgumentException("every part of a line config is required");
+    }
 
     /**
      * @param broker        tcp://host:port or ssl://host:port
@@ -55,5 +65,11 @@ public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile
      * @param rotateBytes a file is closed and a new one started past this size
      * @param pauseOnFailure true: the line pauses when the log cannot be written
      */
-    public record RecordSettings(Path dir, int flushMs, long rotateBytes, boolean pauseOnFailure) {}
+    public record RecordSettings(Path dir, int flushMs, long rotateBytes, boolean pauseOnFailure) {
+        public RecordSettings {
+            if (dir == null) throw new net.zbin.core.SpecException("records.dir", "is required");
+            if (flushMs < 0 || flushMs > 60_000) throw new net.zbin.core.SpecException("records.flush_ms", "must be 0..60000 (was " + flushMs + ")");
+            if (rotateBytes < 1024) throw new net.zbin.core.SpecException("records.rotate_mb", "must be at least 1 KiB (was " + rotateBytes + " bytes)");
+        }
+    }
 }

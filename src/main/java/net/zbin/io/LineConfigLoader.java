@@ -104,9 +104,12 @@ public final class LineConfigLoader {
         FixtureCheck.Limits checks = fx.build(null, () -> new FixtureCheck.Limits(oChk, sChk));
         FixtureBounds bounds = fx.build(null, () -> new FixtureBounds(oMax, gMax, sMax, oChk, sChk, dRes));
         n.finish();
-        return new LineConfig(file, line, new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive),
-                profile, recipeDir, active, state, new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024),
-                onFail.equals("pause")), deadline, repeatWindow, (int) Math.round(interval * 1000), fl, checks, bounds);
+        var mqtt = new LineConfig.MqttSettings(broker, root, clientId, user, password, ca, cert, key, keepAlive);
+        var meterProfile = profile;
+        boolean pause = onFail.equals("pause");
+        return n.build(null, () -> new LineConfig(file, line, mqtt, meterProfile, recipeDir, active, state,
+                new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024), pause), deadline, repeatWindow,
+                (int) Math.round(interval * 1000), fl, checks, bounds));
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

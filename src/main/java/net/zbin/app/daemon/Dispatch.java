@@ -27,7 +27,7 @@ final class Dispatch {
     private final ThreadPoolExecutor work, overflow;
 
     Dispatch(String line) {
-        overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE * 5),
+        overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "line-" + line), (r, ex) -> {

@@ -1,0 +1,296 @@
+package net.zbin.core;
+
+import java.time.Duration;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.EnumMap;
+import java.util.List;
+import java.util.Map;
+
+/**
+ * The line monitor of one lot: capability of the graded value, drift of the value and of the loss,
+ * rolling rates, and the compensation watchdog (open/short check residuals, reference part, age, missing
+ * compensation, negative-R rate, and the population check that tells an additive offset from the
+ * fixture from a proportional shift of the parts). Pure: time comes with each observation. Single owner;
+ * {@link #snapshot} is the immutable view.
+ */
+public final class LineMonitor {
+    /** What the population check concluded at the last value-drift alarm. */
+    public enum Cause { NONE, ADDITIVE, PROPORTIONAL, UNKNOWN }
+
+    private final MonitorSettings s;
+    private final FixtureCheck.Limits checkLimits;
+    private Recipe recipe;
+    private DriftChart value, loss;
+    private final RunningStats dev = new RunningStats();
+    private final Window window;
+    private final EnumMap<AlarmCode, String> active = new EnumMap<>(AlarmCode.class);
+    private Cause cause = Cause.NONE;
+    private String causeText = "";
+    private double openResidual = Double.NaN, openStart = Double.NaN, openG = Double.NaN;
+    private double shortR = Double.NaN, shortX = Double.NaN, shortStartR = Double.NaN, shortStartX = Double.NaN;
+    private double refAbs = Double.NaN, refStart = Double.NaN;
+    private int refOffRun, refOkRun;
+    private Compensation comp;
+    private boolean compNeeded;
+    private long parts;
+
+    public LineMonitor(MonitorSettings s, FixtureCheck.Limits checkLimits, Recipe recipe) {
+        this.s = s;
+        this.checkLimits = checkLimits;
+        this.window = new Window(s.windowParts());
+        startLot(recipe);
+    }
+
+    /** A new lot (or recipe): figures and charts start again. Alarms of the fixture stay as they are. */
+    public void startLot(Recipe r) {
+        recipe = r;
+        value = new DriftChart(s);
+        loss = new DriftChart(s);
+        dev.reset();
+        window.clear();
+        cause = Cause.NONE;
+        causeText = "";
+        parts = 0;
+        openStart = openResidual;
+        shortStartR = shortR;
+        shortStartX = shortX;
+        refStart = refAbs;
+    }
+
+    /** The compensation now in force at the recipe's frequency (null: none), and whether the recipe needs it. */
+    public List<AlarmCode.Change> compensation(Compensation c, boolean needed, Instant now) {
+        comp = c;
+        compNeeded = needed;
+        return tick(now);
+    }
+
+    /** Age and presence of the compensation; call every few seconds. */
+    public List<AlarmCode.Change> tick(Instant now) {
+        List<AlarmCode.Change> out = new ArrayList<>();
+        boolean applied = comp != null && comp.isApplied();
+        set(out, AlarmCode.COMPENSATION_MISSING, compNeeded && !applied,
+                "recipe " + recipe.name() + " grades nothing without compensation at " + SiValue.format(recipe.freqHz(), "Hz") + ", and none is stored");
+        if (applied && comp.takenAt() != null) {
+            double ageH = Duration.between(comp.takenAt(), now).toSeconds() / 3600.0;
+            set(out, AlarmCode.COMPENSATION_OLD, ageH > s.compMaxAgeH(),
+                    String.format(java.util.Locale.ROOT, "compensation is %.1f h old (limit %.1f h)", ageH, s.compMaxAgeH()));
+        } else set(out, AlarmCode.COMPENSATION_OLD, false, "");
+        return out;
+    }
+
+    /** One decision. Returns the alarms it raised or cleared. */
+    public List<AlarmCode.Change> observe(Decision d) {
+        List<AlarmCode.Change> out = new ArrayList<>();
+        Grading g = d.grading();
+        switch (d.kind()) {
+            case PART -> part(g, out);
+            case OPEN -> open(g, out);
+            case SHORT -> shortBar(g, out);
+            case REFERENCE -> reference(g, out);
+        }
+        return out;
+    }
+
+    private void part(Grading g, List<AlarmCode.Change> out) {
+        window.add(g);
+        double neg = window.pct(Reason.NEGATIVE_R);
+        if (window.size() >= Math.min(100, s.windowParts()))
+            set(out, AlarmCode.NEGATIVE_R_RATE, neg > s.maxNegativeRPct() || active.containsKey(AlarmCode.NEGATIVE_R_RATE) && neg > s.maxNegativeRPct() / 2,
+                    String.format(java.util.Locale.ROOT, "%.2f %% of the last %d parts read R below zero after compensation (limit %.2f %%): stale compensation?",
+                            neg, window.size(), s.maxNegativeRPct()));
+        if (g.verdict() == Verdict.RETEST || g.graded() == null || !Double.isFinite(g.devPct())) return;
+        parts++;
+        dev.add(g.devPct());
+        int v = value.add(g.devPct());
+        if (v == 1 || v == -1) {
+            classify();
+            set(out, AlarmCode.VALUE_DRIFT, true, String.format(java.util.Locale.ROOT, "%s drifted %+.3f %% from the lot's baseline %+.3f %% (σ %.3f %%): %s",
+                    g.param().label(), value.shift(), value.baselineMean(), value.baselineSigma(), causeText));
+            set(out, AlarmCode.COMPENSATION_OFFSET, cause == Cause.ADDITIVE, "the shift is an additive offset from the fixture: " + causeText);
+        } else if (v == 2) {
+            set(out, AlarmCode.VALUE_DRIFT, false, "value back at its baseline");
+            set(out, AlarmCode.COMPENSATION_OFFSET, false, "value back at its baseline");
+        }
+        double l = lossOf(g);
+        int lv = loss.add(l);
+        if (lv == 1 || lv == -1)
+            set(out, AlarmCode.LOSS_DRIFT, true, String.format(java.util.Locale.ROOT, "%s drifted %s by %.4g from the lot's baseline %.4g (σ %.4g): contacts or parts?",
+                    lossName(), lv > 0 ? "up" : "down", loss.shift(), loss.baselineMean(), loss.baselineSigma()));
+        else if (lv == 2) set(out, AlarmCode.LOSS_DRIFT, false, lossName() + " back at its baseline");
+    }
+
+    /** D for capacitors, ESR for inductors and resistors (series R in Ω). */
+    private double lossOf(Grading g) { return recipe.partType() == PartType.CAPACITOR ? g.d() : g.esrOhm(); }
+
+    private String lossName() { return recipe.partType() == PartType.CAPACITOR ? "D" : "ESR"; }
+
+    /**
+     * Additive or proportional? The population shift in the value's own unit is compared with what the
+     * fixture checks saw since the lot started: an open check (C) or short check (L, R) that moved by the
+     * same amount, or a reference part that moved with the parts, says the fixture; checks that did not
+     * move while the parts did say the parts changed.
+     */
+    private void classify() {
+        double shiftAbs = value.shift() / 100 * recipe.nominal();
+        double se = value.shiftError() / 100 * recipe.nominal();
+        double evidence = fixtureMove();
+        double ref = Double.isNaN(refAbs) || Double.isNaN(refStart) ? Double.NaN : refAbs - refStart;
+        String unit = recipe.partType().unit();
+        String moved = SiValue.format(shiftAbs, unit);
+        if (Double.isNaN(evidence) && Double.isNaN(ref)) {
+            cause = Cause.UNKNOWN;
+            causeText = "every part reads " + moved + " off; no fixture check since the lot started to tell the fixture from the parts";
+            return;
+        }
+        double e = Double.isNaN(evidence) ? ref : evidence;
+        double tol = Math.max(0.5 * Math.abs(shiftAbs), 3 * se);
+        if (Math.abs(e - shiftAbs) <= tol && Math.abs(e) > 0.25 * Math.abs(shiftAbs)) {
+            cause = Cause.ADDITIVE;
+            causeText = "additive offset: every part reads " + moved + " off and the " + (Double.isNaN(evidence) ? "reference part" : "fixture check")
+                    + " moved " + SiValue.format(e, unit) + " too — the compensation is stale, compensate again";
+        } else if (Math.abs(e) <= 0.25 * Math.abs(shiftAbs) + 3 * se) {
+            cause = Cause.PROPORTIONAL;
+            causeText = "proportional shift of the parts (" + String.format(java.util.Locale.ROOT, "%+.3f %%", value.shift())
+                    + "): the fixture checks did not move (" + SiValue.format(e, unit) + "), so the parts themselves changed";
+        } else {
+            cause = Cause.UNKNOWN;
+            causeText = "every part reads " + moved + " off; the fixture checks moved " + SiValue.format(e, unit) + ", which explains it only in part";
+        }
+    }
+
+    /** How far the fixture moved since the lot started, in the value's unit (NaN without checks). */
+    private double fixtureMove() {
+        return switch (recipe.partType()) {
+            case CAPACITOR -> Double.isNaN(openResidual) || Double.isNaN(openStart) ? Double.NaN : openResidual - openStart;
+            case INDUCTOR -> Double.isNaN(shortX) || Double.isNaN(shortStartX) ? Double.NaN : (shortX - shortStartX) / (2 * Math.PI * recipe.freqHz());
+            case RESISTOR -> Double.isNaN(shortR) || Double.isNaN(shortStartR) ? Double.NaN : shortR - shortStartR;
+        };
+    }
+
+    /** An open check: its R/X are the residual after the stored open (1 / (Ycheck − Yopen)). */
+    private void open(Grading g, List<AlarmCode.Change> out) {
+        Impedance z = g.impedance();
+        if (z == null || g.reason() == Reason.NO_COMPENSATION) return;
+        openResidual = z.zOhm() > 1e300 ? 0 : z.cpF();
+        openG = z.zOhm() > 1e300 ? 0 : z.gS();
+        if (Double.isNaN(openStart)) openStart = openResidual;
+        double lim = checkLimits.openDriftMaxF();
+        boolean on = Math.abs(openResidual) > lim || active.containsKey(AlarmCode.OPEN_RESIDUAL) && Math.abs(openResidual) > lim / 2;
+        set(out, AlarmCode.OPEN_RESIDUAL, on, "the open check reads " + SiValue.format(openResidual, "F") + " (and "
+                + SiValue.format(openG, "S") + ") beyond the stored open (limit " + SiValue.format(lim, "F") + ")");
+    }
+
+    /** A short check: its R/X are the residual after the stored short (Zcheck − Zshort). */
+    private void shortBar(Grading g, List<AlarmCode.Change> out) {
+        Impedance z = g.impedance();
+        if (z == null || g.reason() == Reason.NO_COMPENSATION) return;
+        shortR = z.rOhm();
+        shortX = z.xOhm();
+        if (Double.isNaN(shortStartR)) {
+            shortStartR = shortR;
+            shortStartX = shortX;
+        }
+        double lim = checkLimits.shortDriftMaxOhm();
+        boolean on = z.zOhm() > lim || active.containsKey(AlarmCode.SHORT_RESIDUAL) && z.zOhm() > lim / 2;
+        set(out, AlarmCode.SHORT_RESIDUAL, on, "the short check reads " + SiValue.format(shortR, "ohm") + " and "
+                + SiValue.format(z.lsH(), "H") + " beyond the stored short (limit " + SiValue.format(lim, "ohm") + ")");
+    }
+
+    private void reference(Grading g, List<AlarmCode.Change> out) {
+        if (Double.isFinite(g.devPct())) {
+            refAbs = g.devPct() / 100 * recipe.nominal();
+            if (Double.isNaN(refStart)) refStart = refAbs;
+        }
+        boolean off = g.reason() == Reason.REFERENCE_OFF;
+        refOffRun = off ? refOffRun + 1 : 0;
+        refOkRun = off ? 0 : refOkRun + 1;
+        if (refOffRun >= 2) set(out, AlarmCode.REFERENCE_OFF, true, "the reference part read outside its grade twice in a row ("
+                + (Double.isFinite(g.devPct()) ? String.format(java.util.Locale.ROOT, "%+.3f %%", g.devPct()) : g.reason().code()) + ")");
+        else if (refOkRun >= 2) set(out, AlarmCode.REFERENCE_OFF, false, "the reference part reads right again");
+    }
+
+    private void set(List<AlarmCode.Change> out, AlarmCode code, boolean on, String message) {
+        if (on == active.containsKey(code)) return;
+        if (on) active.put(code, message);
+        else active.remove(code);
+        out.add(new AlarmCode.Change(code, on, message));
+    }
+
+    /** Immutable figures of the lot. */
+    public record Snapshot(long parts, double devMeanPct, double devSigmaPct, double cp, double cpk, DriftChart.View value,
+                           DriftChart.View loss, String lossName, Window.View window, Cause cause, String causeText,
+                           double openResidualF, double openResidualGS, double shortResidualOhm, double shortResidualH,
+                           double referenceOffset, String compSource, double compAgeH, double compFreqHz,
+                           Map<AlarmCode, String> active) {}
+
+    public Snapshot snapshot(Instant now) {
+        Grade widest = recipe.mode() == GradingMode.CONCENTRIC ? recipe.grades().get(recipe.grades().size() - 1) : null;
+        double lsl = widest != null ? widest.lowPct() : recipe.grades().get(0).lowPct();
+        double usl = widest != null ? widest.highPct() : recipe.grades().get(recipe.grades().size() - 1).highPct();
+        double sd = dev.stdDev();
+        boolean applied = comp != null && comp.isApplied();
+        return new Snapshot(parts, dev.mean(), sd, Capability.cp(lsl, usl, sd), Capability.cpk(lsl, usl, dev.mean(), sd), value.view(),
+                loss.view(), lossName(), window.view(), cause, causeText, openResidual, openG, shortR,
+                Double.isNaN(shortX) ? Double.NaN : shortX / (2 * Math.PI * recipe.freqHz()), Double.isNaN(refAbs) ? Double.NaN : refAbs,
+                applied ? comp.source().key() : "none",
+                applied && comp.takenAt() != null ? Duration.between(comp.takenAt(), now).toSeconds() / 3600.0 : Double.NaN,
+                comp == null ? Double.NaN : comp.freqHz(), Map.copyOf(active));
+    }
+
+    /** The last {@code size} part presentations: rates of outcomes. */
+    public static final class Window {
+        private final byte[] reasons;
+        private final boolean[] passed, finished;
+        private int next, size;
+
+        public record View(int presentations, double yieldPct, double retestPct, double openContactPct, double shortPct,
+                           double faultPct, double negativeRPct) {}
+
+        Window(int capacity) {
+            reasons = new byte[capacity];
+            passed = new boolean[capacity];
+            finished = new boolean[capacity];
+        }
+
+        void clear() {
+            next = 0;
+            size = 0;
+        }
+
+        void add(Grading g) {
+            reasons[next] = (byte) g.reason().ordinal();
+            passed[next] = g.verdict() == Verdict.PASS;
+            finished[next] = g.verdict() != Verdict.RETEST;
+            next = (next + 1) % reasons.length;
+            size = Math.min(size + 1, reasons.length);
+        }
+
+        int size() { return size; }
+
+        double pct(Reason r) {
+            if (size == 0) return 0;
+            int n = 0;
+            for (int i = 0; i < size; i++) if (reasons[i] == r.ordinal()) n++;
+            return 100.0 * n / size;
+        }
+
+        View view() {
+            int fin = 0, pass = 0, retest = 0, open = 0, sh = 0, fault = 0, neg = 0;
+            Reason[] all = Reason.values();
+            for (int i = 0; i < size; i++) {
+                Reason r = all[reasons[i]];
+                if (finished[i]) fin++;
+                else retest++;
+                if (passed[i]) pass++;
+                if (r == Reason.OPEN_CONTACT) open++;
+                if (r == Reason.SHORT) sh++;
+                if (r == Reason.NEGATIVE_R) neg++;
+                if (r.rejectClass() == Reason.RejectClass.FAULT || r.rejectClass() == Reason.RejectClass.OVERLOAD) fault++;
+            }
+            double n = Math.max(1, size);
+            return new View(size, fin == 0 ? Double.NaN : 100.0 * pass / fin, 100 * retest / n, 100 * open / n, 100 * sh / n,
+                    100 * fault / n, 100 * neg / n);
+        }
+    }
+}

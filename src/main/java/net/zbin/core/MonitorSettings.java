@@ -1,0 +1,34 @@
+package net.zbin.core;
+
+/**
+ * How the line monitor watches a lot. Defaults (common practice): the baseline is learned over the
+ * first 200 parts of a lot; the charts take means of subgroups of 25 parts; EWMA λ 0.10, L 2.814 (in-control
+ * ARL 500 subgroups, Lucas & Saccucci 1990); tabular CUSUM k 0.5, h 5 (in-control ARL 465 subgroups, Lucas
+ * & Crosier 1982); an alarm clears after 500 parts without a signal; windows of the last 1 000 presentations.
+ *
+ * @param learnParts     parts of a lot the baseline is learned from (≥ 10)
+ * @param subgroup       consecutive parts averaged into one chart point (1 = every part)
+ * @param ewmaLambda     EWMA weight
+ * @param ewmaL          EWMA limit width
+ * @param cusumK         CUSUM allowance in σ
+ * @param cusumH         CUSUM decision interval in σ
+ * @param clearAfter     parts without a signal before a drift alarm clears
+ * @param windowParts    presentations in the rolling window
+ * @param maxNegativeRPct negative-r share of the window that raises negative-r-rate, in %
+ * @param compMaxAgeH    compensation older than this raises compensation-old, in hours
+ */
+public record MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
+                              int windowParts, double maxNegativeRPct, double compMaxAgeH) {
+    public static final MonitorSettings DEFAULT = new MonitorSettings(200, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8);
+
+    public MonitorSettings {
+        if (learnParts < 10 || learnParts > 100_000) throw new SpecException("monitor.learn_parts", "must be 10..100000 (was " + learnParts + ")");
+        if (subgroup < 1 || subgroup > 1000) throw new SpecException("monitor.subgroup", "must be 1..1000 (was " + subgroup + ")");
+        new EwmaChart(ewmaLambda, ewmaL);
+        new CusumChart(cusumK, cusumH);
+        if (clearAfter < 1) throw new SpecException("monitor.clear_after", "must be >= 1 (was " + clearAfter + ")");
+        if (windowParts < 10 || windowParts > 1_000_000) throw new SpecException("monitor.window_parts", "must be 10..1000000 (was " + windowParts + ")");
+        if (!(maxNegativeRPct > 0 && maxNegativeRPct <= 100)) throw new SpecException("monitor.max_negative_r_pct", "must be > 0 and <= 100 (was " + maxNegativeRPct + ")");
+        if (!(compMaxAgeH > 0)) throw new SpecException("monitor.compensation_max_age_h", "must be > 0 (was " + compMaxAgeH + ")");
+    }
+}
