@@ -6,14 +6,24 @@ import java.io.PrintWriter;
 import java.nio.file.Path;
 import java.util.Locale;
 import java.util.concurrent.Callable;
+import java.util.ArrayList;
+import java.util.List;
+import net.zbin.core.AlarmCode;
 import net.zbin.core.BinTally;
+import net.zbin.core.Decision;
+import net.zbin.core.FixtureCheck;
+import net.zbin.core.Grading;
+import net.zbin.core.LineMonitor;
+import net.zbin.core.Trigger;
+import net.zbin.io.MonitorJson;
 import net.zbin.core.Grader;
 import net.zbin.core.Recipe;
 import net.zbin.core.RecordedReading;
 import net.zbin.io.Json;
 import net.zbin.io.TallyJson;
 import net.zbin.io.ReadingSource;
-import net.zbin.io.RecipeLoader;import picocli.CommandLine.Command;
+import net.zbin.io.RecipeLoader;
+import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.Spec;
 import picocli.CommandLine.Model.CommandSpec;
@@ -44,6 +54,9 @@ public final class ReplayCommand implements Callable<Integer> {
         Recipe recipe = RecipeLoader.load(recipeFile);
         PrintWriter err = spec.commandLine().getErr();
         BinTally tally = new BinTally();
+        // The line monitor, fed the same decisions in the same order as it was live: the same figures and alarm points.
+        LineMonitor monitor = new LineMonitor(recipe.monitor(), FixtureCheck.Limits.DEFAULT, recipe);
+        List<AlarmPoint> points = new ArrayList<>();
         long[] badRows = {0};
         ReadingSource.BadRow[] firstBad = {null};
         try (ReadingSource src = ReadingSource.open(in, b -> {
@@ -53,8 +66,10 @@ public final class ReplayCommand implements Callable<Integer> {
             RecordedReading row;
             while ((row = src.next()) != null) {
                 if (strict && firstBad[0] != null) break;
-                if (row.isCheck()) tally.addCheck("fixture-ok".equals(row.reason()) || "reference-ok".equals(row.reason()));
-                else tally.add(Grader.regrade(recipe, row), true);
+                Grading g = Grader.recorded(recipe, row);
+                tally.add(g, !row.isCheck());
+                Decision d = new Decision(row.line(), "", "", Trigger.Kind.parse(row.kind()), recipe.name(), g, Double.NaN, false, row.attempt());
+                for (AlarmCode.Change c : monitor.observe(d)) points.add(new AlarmPoint(row.line(), c));
             }
         } catch (IOException e) {
             throw new UsageException(e.getMessage());
@@ -63,10 +78,41 @@ public final class ReplayCommand implements Callable<Integer> {
             throw new UsageException(in + ": line " + firstBad[0].line() + ": " + firstBad[0].message() + " (--strict)");
         if (badRows[0] > maxShown) err.println("zbin: " + in + ": " + badRows[0] + " bad rows in all (skipped)");
         BinTally.Snapshot s = tally.snapshot();
+        LineMonitor.Snapshot m = monitor.snapshot(java.time.Instant.now());
         PrintWriter out = spec.commandLine().getOut();
-        if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(s, badRows[0])));
-        else printTable(out, s, recipe, badRows[0]);
+        if (json) {
+            ObjectNode n = toJson(s, badRows[0]);
+            n.set("monitor", MonitorJson.encode(m));
+            var arr = n.putArray("alarm_points");
+            for (AlarmPoint p : points)
+                arr.addObject().put("line", p.line()).put("code", p.change().code().code()).put("active", p.change().active())
+                        .put("message", p.change().message());
+            out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(n));
+        } else {
+            printTable(out, s, recipe, badRows[0]);
+            printMonitor(out, m, points);
+        }
         return Main.EXIT_OK;
+    }
+
+    /** An alarm raised or cleared at a line of the input. */
+    record AlarmPoint(long line, AlarmCode.Change change) {}
+
+    static void printMonitor(PrintWriter out, LineMonitor.Snapshot m, List<AlarmPoint> points) {
+        out.printf(Locale.ROOT, "  monitor: deviation mean %+.4f %%, σ %.4f %%, Cp %.3g, Cpk %.3g over %d graded parts%n",
+                m.devMeanPct(), m.devSigmaPct(), m.cp(), m.cpk(), m.parts());
+        var v = m.value();
+        out.printf(Locale.ROOT, "    value drift: %s; baseline %+.4f %% σ %.4f %%; EWMA %+.3f (limit ±%.3f), CUSUM %.2f / %.2f (h %.1f)%n",
+                v.learning() ? "learning (" + v.learned() + " parts)" : v.alarm() ? "ALARM" : "in control", v.baselineMean(), v.baselineSigma(),
+                v.ewma(), v.ewmaLimit(), v.cusumHigh(), v.cusumLow(), v.cusumH());
+        var l = m.loss();
+        out.printf(Locale.ROOT, "    %s drift: %s; baseline %.4g σ %.4g%n", m.lossName(),
+                l.learning() ? "learning (" + l.learned() + " parts)" : l.alarm() ? "ALARM" : "in control", l.baselineMean(), l.baselineSigma());
+        if (!m.causeText().isEmpty()) out.println("    population check: " + m.causeText());
+        if (points.isEmpty()) out.println("    alarms: none would have fired");
+        else for (AlarmPoint p : points)
+            out.printf(Locale.ROOT, "    line %d: %s %s — %s%n", p.line(), p.change().code().code(), p.change().active() ? "raised" : "cleared",
+                    p.change().message());
     }
 
     static ObjectNode toJson(BinTally.Snapshot s, long skipped) {

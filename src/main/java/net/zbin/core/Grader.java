@@ -85,6 +85,32 @@ public final class Grader {
     }
 
     /**
+     * A recorded row of any kind as the line graded it: parts regraded ({@link #regrade}); an open or short
+     * check as its recorded residual and outcome; a reference presentation regraded, with its recorded
+     * check outcome.
+     */
+    public static Grading recorded(Recipe recipe, RecordedReading row) {
+        Trigger.Kind kind = Trigger.Kind.parse(row.kind());
+        if (kind == Trigger.Kind.PART) return regrade(recipe, row);
+        Reason reason;
+        try {
+            reason = row.reason() == null ? Reason.FIXTURE_OK : Reason.parse(row.reason());
+        } catch (IllegalArgumentException e) {
+            reason = Reason.FIXTURE_DRIFT;
+        }
+        boolean ok = reason == Reason.FIXTURE_OK || reason == Reason.REFERENCE_OK;
+        Grading.Outcome o = new Grading.Outcome(recipe.retest().bin(), kind.key() + "-check", ok ? Verdict.PASS : Verdict.FAIL, reason);
+        if (kind == Trigger.Kind.REFERENCE) {
+            Grading g = regrade(recipe, new RecordedReading(row.line(), row.freqHz(), row.rOhm(), row.xOhm(), row.rawROhm(), row.rawXOhm(),
+                    null, 0, row.comp(), "part"));
+            return new Grading(new Grading.Outcome(o.bin(), "reference", o.verdict(), o.reason()), g.measured(), g.graded());
+        }
+        boolean hasZ = Double.isFinite(row.rOhm()) && Double.isFinite(row.xOhm()) && row.freqHz() > 0;
+        Impedance z = hasZ ? new Impedance(row.freqHz(), row.rOhm(), row.xOhm()) : null;
+        return new Grading(o, new Grading.Measurement(row.freqHz(), z, row.rawROhm(), row.rawXOhm(), row.comp()), null);
+    }
+
+    /**
      * Re-creates the grading of a reading that was not clean, from its reason code alone (replay
      * of a record whose reading is missing). Unknown codes count as a fault.
      */

@@ -102,6 +102,9 @@ public final class LineMonitor {
         if (g.verdict() == Verdict.RETEST || g.graded() == null || !Double.isFinite(g.devPct())) return;
         parts++;
         dev.add(g.devPct());
+        // The charts watch the parts that passed: a lossy or out-of-tolerance outlier is the grader's business,
+        // not a drift of the process, and one of them would otherwise move a subgroup mean by several σ.
+        if (g.verdict() != Verdict.PASS) return;
         int v = value.add(g.devPct());
         if (v == 1 || v == -1) {
             classify();

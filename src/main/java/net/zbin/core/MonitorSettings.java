@@ -2,7 +2,7 @@ package net.zbin.core;
 
 /**
  * How the line monitor watches a lot. Defaults (common practice): the baseline is learned over the
- * first 200 parts of a lot; the charts take means of subgroups of 25 parts; EWMA λ 0.10, L 2.814 (in-control
+ * first 2 000 parts of a lot (80 chart points, so the baseline itself does not shorten the in-control run length much); the charts take means of subgroups of 25 parts; EWMA λ 0.10, L 2.814 (in-control
  * ARL 500 subgroups, Lucas & Saccucci 1990); tabular CUSUM k 0.5, h 5 (in-control ARL 465 subgroups, Lucas
  * & Crosier 1982); an alarm clears after 500 parts without a signal; windows of the last 1 000 presentations.
  *
@@ -19,7 +19,7 @@ package net.zbin.core;
  */
 public record MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
                               int windowParts, double maxNegativeRPct, double compMaxAgeH) {
-    public static final MonitorSettings DEFAULT = new MonitorSettings(200, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8);
+    public static final MonitorSettings DEFAULT = new MonitorSettings(2000, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8);
 
     public MonitorSettings {
         if (learnParts < 10 || learnParts > 100_000) throw new SpecException("monitor.learn_parts", "must be 10..100000 (was " + learnParts + ")");

@@ -25,10 +25,12 @@ import java.util.Set;
  * @param retest      retest count and bin
  * @param contact     open/short detection
  * @param compensationRequired true: without matching compensation nothing is graded
+ * @param monitor     how the line monitor watches lots of this recipe (null: the defaults)
  */
 public record Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model,
                      PrimaryParam primary, GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates,
-                     PhaseWindow plausible, RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
+                     PhaseWindow plausible, RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired,
+                     MonitorSettings monitor) {
     public Recipe {
         if (name == null || !name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new SpecException("recipe", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + name + "')");
@@ -44,11 +46,20 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         if (gates == null) gates = Gates.NONE;
         if (plausible == null) plausible = PhaseWindow.defaultFor(partType);
         if (contact == null) contact = ContactCheck.DEFAULT;
+        if (monitor == null) monitor = MonitorSettings.DEFAULT;
         if (reject == null) throw new SpecException("reject", "is required (bins for low, high, gate, contact, short, overload, fault)");
         if (retest == null) throw new SpecException("retest", "is required (count and bin)");
         checkPrimary(partType, primary, model, gates);
         checkGrades(grades, mode, guard);
         checkBins(grades, reject, retest);
+    }
+
+    /** With the monitor's defaults. */
+    public Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model, PrimaryParam primary,
+                  GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates, PhaseWindow plausible, RejectBins reject,
+                  RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
+        this(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest, contact,
+                compensationRequired, null);
     }
 
     private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model, Gates gates) {
@@ -183,6 +194,6 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
     /** This recipe on a fixture with other bounds (the line config's). */
     public Recipe withFixture(FixtureBounds f) {
         return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject,
-                retest, contact.withFixture(f), compensationRequired);
+                retest, contact.withFixture(f), compensationRequired, monitor);
     }
 }

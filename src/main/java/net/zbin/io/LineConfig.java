@@ -24,11 +24,27 @@ import net.zbin.io.meter.MeterProfile;
  * @param fixture         plausibility limits for compensation captures
  * @param checks          drift limits for the handler's open/short check presentations
  * @param bounds          what the fixture itself reads, for telling an open or short from a part
+ * @param monitor         the line's monitor settings: alarms that pause the line, compensation age limit
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
                          Path stateDir, RecordSettings records, int deadlineMs, int repeatWindowMs, int dashboardMs, FixtureLimits fixture,
-                         FixtureCheck.Limits checks, FixtureBounds bounds) {
+                         FixtureCheck.Limits checks, FixtureBounds bounds, Monitor monitor) {
+    /**
+     * @param pauseOn     alarm codes that pause the line while active (default none)
+     * @param compMaxAgeH compensation age limit in hours for every recipe of the line, NaN: each recipe's own
+     */
+    public record Monitor(java.util.Set<net.zbin.core.AlarmCode> pauseOn, double compMaxAgeH) {
+        public static final Monitor DEFAULT = new Monitor(java.util.Set.of(), Double.NaN);
+
+        public Monitor {
+            pauseOn = java.util.Set.copyOf(pauseOn);
+            if (!Double.isNaN(compMaxAgeH) && !(compMaxAgeH > 0))
+                throw new net.zbin.core.SpecException("monitor.compensation_max_age_h", "must be > 0 (was " + compMaxAgeH + ")");
+        }
+    }
+
     public LineConfig {
+        if (monitor == null) monitor = Monitor.DEFAULT;
         if (line == null || !line.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new net.zbin.core.SpecException("line", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + line + "')");
         if (deadlineMs < 1) throw new net.zbin.core.SpecException("handler.deadline_ms", "must be >= 1 (was " + deadlineMs + ")");

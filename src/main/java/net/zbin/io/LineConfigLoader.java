@@ -6,6 +6,7 @@ import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.List;
 import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
 import net.zbin.io.meter.MeterProfile;
@@ -100,6 +101,11 @@ public final class LineConfigLoader {
         double sChk = fx.optNumber("short_check_ohm", FixtureCheck.Limits.DEFAULT.shortDriftMaxOhm(), Unit.OHM);
         double dRes = fx.optNumber("d_resolution", FixtureBounds.DEFAULT.dResolution(), Unit.RATIO);
         fx.finish();
+        SpecNode mo = n.child("monitor");
+        List<net.zbin.core.AlarmCode> pauseOn = mo.values("pause_on", net.zbin.core.AlarmCode::parse);
+        double maxAge = mo.optNumber("compensation_max_age_h", Double.NaN, Unit.RATIO);
+        mo.finish();
+        LineConfig.Monitor monitor = mo.build(null, () -> new LineConfig.Monitor(new java.util.HashSet<>(pauseOn), maxAge));
         FixtureLimits fl = fx.build(null, () -> new FixtureLimits(oMax, gMax, sMax, lMax, reps));
         FixtureCheck.Limits checks = fx.build(null, () -> new FixtureCheck.Limits(oChk, sChk));
         FixtureBounds bounds = fx.build(null, () -> new FixtureBounds(oMax, gMax, sMax, oChk, sChk, dRes));
@@ -109,7 +115,7 @@ public final class LineConfigLoader {
         boolean pause = onFail.equals("pause");
         return n.build(null, () -> new LineConfig(file, line, mqtt, meterProfile, recipeDir, active, state,
                 new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024), pause), deadline, repeatWindow,
-                (int) Math.round(interval * 1000), fl, checks, bounds));
+                (int) Math.round(interval * 1000), fl, checks, bounds, monitor));
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

@@ -10,6 +10,7 @@ import net.zbin.core.GradingMode;
 import net.zbin.core.GuardBand;
 import net.zbin.core.MarkingCode;
 import net.zbin.core.ModelPolicy;
+import net.zbin.core.MonitorSettings;
 import net.zbin.core.PartType;
 import net.zbin.core.PhaseWindow;
 import net.zbin.core.SiValue;
@@ -97,9 +98,22 @@ public final class RecipeLoader {
         SpecNode cp = n.child("compensation");
         boolean required = cp.optBool("required", false);
         cp.finish();
+        MonitorSettings monitor = monitor(n.child("monitor"), MonitorSettings.DEFAULT);
         n.finish();
         return n.build(null, () -> new Recipe(name, type, nominal, test, model, primary, mode, grades, guard,
-                gates, plausible, reject, retest, check, required));
+                gates, plausible, reject, retest, check, required, monitor));
+    }
+
+    /** The monitor's settings of a recipe ({@code monitor:}), each key optional. */
+    static MonitorSettings monitor(SpecNode m, MonitorSettings d) throws ConfigException {
+        int learn = m.optInteger("learn_parts", d.learnParts()), sub = m.optInteger("subgroup", d.subgroup());
+        double lambda = m.optNumber("ewma_lambda", d.ewmaLambda(), Unit.RATIO), l = m.optNumber("ewma_l", d.ewmaL(), Unit.RATIO);
+        double k = m.optNumber("cusum_k", d.cusumK(), Unit.RATIO), h = m.optNumber("cusum_h", d.cusumH(), Unit.RATIO);
+        int clear = m.optInteger("clear_after", d.clearAfter()), window = m.optInteger("window_parts", d.windowParts());
+        double neg = m.optNumber("max_negative_r_pct", d.maxNegativeRPct(), Unit.PERCENT);
+        double age = m.optNumber("compensation_max_age_h", d.compMaxAgeH(), Unit.RATIO);
+        m.finish();
+        return m.build(null, () -> new MonitorSettings(learn, sub, lambda, l, k, h, clear, window, neg, age));
     }
 
     private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {

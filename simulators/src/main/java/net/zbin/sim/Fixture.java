@@ -12,15 +12,21 @@ import org.apache.commons.math3.complex.Complex;
  * @param residualROhm     series residual resistance in ohms
  * @param residualLH       series residual inductance in henries
  * @param driftFPerHour    change of stray capacitance per hour, in farads
+ * @param rDriftOhmPerHour change of the series residual (contact) resistance per hour, in ohms, as worn contacts do
  */
-public record Fixture(double strayF, double strayGS, double residualROhm, double residualLH, double driftFPerHour) {
+public record Fixture(double strayF, double strayGS, double residualROhm, double residualLH, double driftFPerHour,
+                      double rDriftOhmPerHour) {
     public static final Fixture IDEAL = new Fixture(0, 0, 0, 0, 0);
 
-    public Fixture withStray(double f) { return new Fixture(f, strayGS, residualROhm, residualLH, driftFPerHour); }
+    public Fixture(double strayF, double strayGS, double residualROhm, double residualLH, double driftFPerHour) {
+        this(strayF, strayGS, residualROhm, residualLH, driftFPerHour, 0);
+    }
 
-    public Fixture withDrift(double fph) { return new Fixture(strayF, strayGS, residualROhm, residualLH, fph); }
+    public Fixture withStray(double f) { return new Fixture(f, strayGS, residualROhm, residualLH, driftFPerHour, rDriftOhmPerHour); }
 
-    private Complex series(double w) { return new Complex(residualROhm, w * residualLH); }
+    public Fixture withDrift(double fph) { return new Fixture(strayF, strayGS, residualROhm, residualLH, fph, rDriftOhmPerHour); }
+
+    private Complex series(double w, double hours) { return new Complex(residualROhm + rDriftOhmPerHour * hours, w * residualLH); }
 
     private Complex shunt(double w, double hours) { return new Complex(strayGS, w * (strayF + driftFPerHour * hours)); }
 
@@ -28,16 +34,16 @@ public record Fixture(double strayF, double strayGS, double residualROhm, double
     public Complex read(Complex zdut, double freqHz, double hours) {
         double w = 2 * Math.PI * freqHz;
         Complex y = shunt(w, hours).add(zdut.reciprocal());
-        return series(w).add(y.reciprocal());
+        return series(w, hours).add(y.reciprocal());
     }
 
     /** Reading with nothing on the contacts. */
     public Complex readOpen(double freqHz, double hours) {
         double w = 2 * Math.PI * freqHz;
         Complex y = shunt(w, hours);
-        return y.abs() == 0 ? new Complex(1e15, 0) : series(w).add(y.reciprocal());
+        return y.abs() == 0 ? new Complex(1e15, 0) : series(w, hours).add(y.reciprocal());
     }
 
     /** Reading with the contacts bridged. */
-    public Complex readShort(double freqHz) { return series(2 * Math.PI * freqHz); }
+    public Complex readShort(double freqHz, double hours) { return series(2 * Math.PI * freqHz, hours); }
 }

@@ -52,9 +52,10 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
                               @JsonProperty("stray_g_s") @JsonDeserialize(using = SiNumber.class) Double strayGS,
                               @JsonProperty("residual_r_ohm") @JsonDeserialize(using = SiNumber.class) Double residualROhm,
                               @JsonProperty("residual_l_h") @JsonDeserialize(using = SiNumber.class) Double residualLH,
-                              @JsonProperty("drift_per_hour") @JsonDeserialize(using = SiNumber.class) Double driftPerHour) {
+                              @JsonProperty("drift_per_hour") @JsonDeserialize(using = SiNumber.class) Double driftPerHour,
+                              @JsonProperty("residual_r_drift_per_hour") @JsonDeserialize(using = SiNumber.class) Double rDriftPerHour) {
         public Fixture toFixture() {
-            return new Fixture(z(stray), z(strayGS), z(residualROhm), z(residualLH), z(driftPerHour));
+            return new Fixture(z(stray), z(strayGS), z(residualROhm), z(residualLH), z(driftPerHour), z(rDriftPerHour));
         }
     }
 

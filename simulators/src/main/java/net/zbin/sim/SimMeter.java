@@ -96,7 +96,7 @@ public final class SimMeter {
         Contacts.Presented p = contacts.now();
         return switch (p.state()) {
             case OPEN -> fixture.readOpen(freqHz, hours());
-            case SHORT -> fixture.readShort(freqHz);
+            case SHORT -> fixture.readShort(freqHz, hours());
             case PART -> fixture.read(p.part().impedance(freqHz), freqHz, hours());
         };
     }

@@ -36,6 +36,7 @@ public final class Daemon implements AutoCloseable {
     private final Dispatch dispatch;
     private final ScheduledExecutorService ticker = Executors.newSingleThreadScheduledExecutor(r -> named(r, "ticker"));
     private final MeterWatch watch;
+    private final MonitorListener monitor;
     private MqttLink mqtt;
     private TriggerPath path;
     private LineCommands commands;
@@ -46,7 +47,9 @@ public final class Daemon implements AutoCloseable {
         this.clock = clock;
         this.topics = new Topics(cfg.mqtt().topicRoot(), cfg.line());
         this.setup = new LineSetup(cfg);
-        this.mode = new LineMode(clock, topics, cfg.records().pauseOnFailure(), () -> setup.recipe().name());
+        this.mode = new LineMode(clock, topics, cfg.records().pauseOnFailure(), () -> setup.recipe().name(), cfg.monitor().pauseOn(),
+                cfg.stateDir().resolve("alarms-" + cfg.line() + ".jsonl"));
+        this.monitor = new MonitorListener(cfg, mode, clock, setup.recipe());
         this.stats = new LineStats(clock, cfg.deadlineMs());
         this.book = new DecisionBook(cfg.repeatWindowMs(), 100_000);
         this.records = new RecordLog(cfg.records(), cfg.line(), new RecordLog.Listener() {
@@ -69,10 +72,13 @@ public final class Daemon implements AutoCloseable {
     /** Recovers from the record log, warms up, connects and serves; waits up to {@code connectTimeoutMs} for the broker. */
     public void start(long connectTimeoutMs) throws Exception {
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
-        path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats), clock);
-        commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock);
+        path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
+        commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor);
         long from = clock.millis() - cfg.repeatWindowMs();
+        monitor.recovering(true);
         RecordLogReader.read(cfg.records().dir(), cfg.line(), clock.instant().minus(Duration.ofDays(1)), e -> path.recovered(e, from));
+        monitor.recovering(false);
+        monitor.compensation(setup.compensation());
         records.start();
         long t0 = System.nanoTime();
         Warmup.run(setup.recipe(), setup.compensation(), 20_000);
@@ -108,6 +114,7 @@ public final class Daemon implements AutoCloseable {
 
     private void publishDashboard() {
         try {
+            monitor.tick();
             mqtt.publish(topics.dashboard(), dashboard(mode.mode()), 0, true);
         } catch (RuntimeException e) {
             LOG.warn("dashboard: {}", e.toString());
@@ -115,11 +122,14 @@ public final class Daemon implements AutoCloseable {
     }
 
     private byte[] dashboard(Mode m) {
-        return Payloads.bytes(DashboardJson.encode(cfg.line(), setup.recipe().name(), m, stats.snapshot(), mode.activeAlarms().keySet(),
-                records.backlog(), records.dropped(), mqtt.buffered()));
+        return Payloads.bytes(DashboardJson.encode(cfg.line(), setup.recipe().name(), m, stats.snapshot(), monitor.snapshot(),
+                mode.activeAlarms().keySet(), records.backlog(), records.dropped(), mqtt.buffered()));
     }
 
     public long recordsWritten() { return records.written(); }
+
+    /** The monitor's figures now, as the dashboard shows them. */
+    public net.zbin.core.LineMonitor.Snapshot monitorFigures() { return monitor.snapshot(); }
 
     /** The current lot's figures, as the dashboard shows them. */
     public net.zbin.core.BinTally.Snapshot lotFigures() { return stats.snapshot().lotTally(); }

@@ -13,8 +13,8 @@ import net.zbin.io.TallyJson;
 final class DashboardJson {
     private DashboardJson() {}
 
-    static ObjectNode encode(String line, String recipe, Mode mode, LineStats.Snapshot s, Collection<String> alarms,
-                             long recordBacklog, long recordDropped, long mqttBuffered) {
+    static ObjectNode encode(String line, String recipe, Mode mode, LineStats.Snapshot s, net.zbin.core.LineMonitor.Snapshot monitor,
+                             Collection<String> alarms, long recordBacklog, long recordDropped, long mqttBuffered) {
         ObjectNode n = Json.object();
         n.put("line", line);
         n.put("lot", s.lot());
@@ -42,6 +42,7 @@ final class DashboardJson {
         n.put("record_dropped", recordDropped);
         n.put("mqtt_buffered", mqttBuffered);
         n.put("since", s.lotSince().toString());
+        n.set("monitor", net.zbin.io.MonitorJson.encode(monitor));
         return n;
     }
 

@@ -33,8 +33,11 @@ final class LineCommands {
     private final MeterSession meter;
     private final Clock clock;
 
+    private final MonitorListener monitor;
+
     LineCommands(Topics topics, Publisher out, LineSetup setup, LineMode mode, LineStats stats, TriggerPath path,
-                 MeterSession meter, Clock clock) {
+                 MeterSession meter, Clock clock, MonitorListener monitor) {
+        this.monitor = monitor;
         this.topics = topics;
         this.out = out;
         this.setup = setup;
@@ -83,6 +86,7 @@ final class LineCommands {
                 return "resumed; mode " + mode.mode().key();
             case "recipe":
                 String done = setup.switchRecipe(TriggerCodec.text(n, "name"));
+                monitor.recipe(setup.recipe(), setup.compensation());
                 mode.publishState();
                 return done;
             case "lot": {
@@ -118,6 +122,7 @@ final class LineCommands {
             std.add(new Impedance(r.freqHz(), sr.asDouble(), sx != null && sx.isNumber() ? sx.asDouble() : 0));
         }
         Impedance z = setup.capture(meter, clock, k, List.of(r.test()), std).get(0);
+        monitor.compensation(setup.compensation());
         return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + CompensationCapture.describe(k, z);
     }
 }

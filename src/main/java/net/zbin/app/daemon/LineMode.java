@@ -5,6 +5,7 @@ import java.time.Instant;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.function.Supplier;
+import net.zbin.core.AlarmCode;
 import net.zbin.io.mqtt.Payloads;
 import net.zbin.io.mqtt.Publisher;
 import net.zbin.io.mqtt.Topics;
@@ -26,6 +27,8 @@ final class LineMode {
     private final boolean pauseOnLogFailure;
     private final Supplier<String> recipe;
     private final Map<String, Alarm> active = new ConcurrentHashMap<>();
+    private final java.util.Set<AlarmCode> pauseOn;
+    private final java.nio.file.Path history;
     private volatile Publisher out;
     private final java.util.concurrent.ExecutorService sender = java.util.concurrent.Executors.newSingleThreadExecutor(r -> {
         Thread t = new Thread(r, "line-state");
@@ -39,6 +42,17 @@ final class LineMode {
     record Alarm(String code, String severity, String message, Instant since) {}
 
     LineMode(Clock clock, Topics topics, boolean pauseOnLogFailure, Supplier<String> recipe) {
+        this(clock, topics, pauseOnLogFailure, recipe, java.util.Set.of(), null);
+    }
+
+    /**
+     * @param pauseOn alarm codes that pause the line while they are active
+     * @param history file each raised and cleared alarm is appended to (one JSON object a line), or null
+     */
+    LineMode(Clock clock, Topics topics, boolean pauseOnLogFailure, Supplier<String> recipe, java.util.Set<AlarmCode> pauseOn,
+             java.nio.file.Path history) {
+        this.pauseOn = java.util.Set.copyOf(pauseOn);
+        this.history = history;
         this.clock = clock;
         this.topics = topics;
         this.pauseOnLogFailure = pauseOnLogFailure;
@@ -51,6 +65,7 @@ final class LineMode {
 
     synchronized Mode mode() {
         if (operatorPaused || (logFailing && pauseOnLogFailure)) return Mode.PAUSED;
+        for (AlarmCode c : pauseOn) if (active.containsKey(c.code())) return Mode.PAUSED;
         if (linkDown) return Mode.FAULT;
         return Mode.READY;
     }
@@ -65,15 +80,15 @@ final class LineMode {
     synchronized void setLinkDown(boolean down, String message) {
         if (down == linkDown) return;
         linkDown = down;
-        alarm("meter-link-down", "critical", down, down ? message : "meter link restored");
+        alarm(AlarmCode.METER_LINK_DOWN, down, down ? message : "meter link restored", true);
         changed();
     }
 
     synchronized void setLogFailing(boolean failing, String message) {
         if (failing == logFailing) return;
         logFailing = failing;
-        alarm("record-log-failed", "critical", failing, failing ? message + (pauseOnLogFailure ? "; line paused"
-                : "; sorting continues without a record") : "record log writable again");
+        alarm(AlarmCode.RECORD_LOG_FAILED, failing, failing ? message + (pauseOnLogFailure ? "; line paused"
+                : "; sorting continues without a record") : "record log writable again", true);
         changed();
     }
 
@@ -118,21 +133,44 @@ final class LineMode {
         }
     }
 
-    /** Raises or clears an alarm; a repeat of the same state says nothing. */
-    synchronized void alarm(String code, String severity, boolean on, String message) {
+    /**
+     * Raises or clears an alarm; a repeat of the same state says nothing. {@code record} false while the
+     * record log is replayed at start: the alarm is known again, but not written to the history twice.
+     */
+    synchronized void alarm(AlarmCode code, boolean on, String message, boolean record) {
         Instant when;
+        String key = code.code();
         if (on) {
-            if (active.containsKey(code)) return;
+            if (active.containsKey(key)) return;
             when = clock.instant();
-            active.put(code, new Alarm(code, severity, message, when));
-            LOG.warn("alarm {}: {}", code, message);
+            active.put(key, new Alarm(key, code.severity().key(), message, when));
+            LOG.warn("alarm {}: {}", key, message);
         } else {
-            Alarm a = active.remove(code);
+            Alarm a = active.remove(key);
             if (a == null) return;
             when = a.since();
-            LOG.info("alarm {} cleared: {}", code, message);
+            LOG.info("alarm {} cleared: {}", key, message);
         }
-        send(topics.alarm(), Payloads.alarm(code, severity, on, message, when), false);
+        byte[] b = Payloads.alarm(key, code.severity().key(), on, message, when);
+        send(topics.alarm(), b, false);
+        if (record && history != null) appendHistory(b);
+        if (pauseOn.contains(code)) changed();
+    }
+
+    private void appendHistory(byte[] payload) {
+        try {
+            sender.execute(() -> {
+                try {
+                    java.nio.file.Files.createDirectories(history.getParent());
+                    java.nio.file.Files.write(history, (Payloads.text(payload) + "\n").getBytes(java.nio.charset.StandardCharsets.UTF_8),
+                            java.nio.file.StandardOpenOption.CREATE, java.nio.file.StandardOpenOption.APPEND);
+                } catch (java.io.IOException e) {
+                    LOG.warn("alarm history {}: {}", history, e.toString());
+                }
+            });
+        } catch (java.util.concurrent.RejectedExecutionException e) {
+            LOG.debug("stopping: alarm history not written");
+        }
     }
 
     Map<String, Alarm> activeAlarms() { return Map.copyOf(active); }

@@ -172,6 +172,6 @@ final class TriggerPath {
         Decision d = e.decision();
         enterLot(d.lot(), e.time());
         if (e.time().toEpochMilli() >= bookFromMs) book.put(d, e.time().toEpochMilli());
-        stats.decided(e);
+        for (DecisionListener l : listeners) l.decided(e);
     }
 }

@@ -1,0 +1,75 @@
+package net.zbin.app.daemon;
+
+import java.time.Clock;
+import java.util.List;
+import net.zbin.core.AlarmCode;
+import net.zbin.core.Compensation;
+import net.zbin.core.LineMonitor;
+import net.zbin.core.MonitorSettings;
+import net.zbin.core.Recipe;
+import net.zbin.io.DecisionFields;
+import net.zbin.io.LineConfig;
+
+/**
+ * The line monitor on the daemon's decisions: a {@link DecisionListener} that feeds the core monitor and
+ * turns its alarm changes into alarms of the line. A new lot or recipe starts the monitor's lot figures
+ * again; the compensation in force is told to it when it changes. Thread-safe (the measuring thread
+ * writes, the ticker reads and ticks).
+ */
+final class MonitorListener implements DecisionListener {
+    private final LineConfig cfg;
+    private final LineMode mode;
+    private final Clock clock;
+    private LineMonitor monitor;
+    private Recipe recipe;
+    private String lot;
+    private boolean recovering;
+
+    MonitorListener(LineConfig cfg, LineMode mode, Clock clock, Recipe recipe) {
+        this.cfg = cfg;
+        this.mode = mode;
+        this.clock = clock;
+        this.recipe = recipe;
+        this.monitor = new LineMonitor(settings(recipe), cfg.checks(), recipe);
+    }
+
+    private MonitorSettings settings(Recipe r) {
+        MonitorSettings m = r.monitor();
+        double age = Double.isNaN(cfg.monitor().compMaxAgeH()) ? m.compMaxAgeH() : cfg.monitor().compMaxAgeH();
+        return new MonitorSettings(m.learnParts(), m.subgroup(), m.ewmaLambda(), m.ewmaL(), m.cusumK(), m.cusumH(), m.clearAfter(),
+                m.windowParts(), m.maxNegativeRPct(), age);
+    }
+
+    @Override
+    public synchronized void decided(DecisionFields.Entry e) {
+        var d = e.decision();
+        if (!d.lot().equals(lot) || !d.recipe().equals(recipe.name())) {
+            lot = d.lot();
+            monitor.startLot(recipe);
+        }
+        forward(monitor.observe(d));
+    }
+
+    /** While true, alarms are known again but not written to the alarm history (the record log is being replayed). */
+    synchronized void recovering(boolean r) { recovering = r; }
+
+    /** A recipe change: a new monitor with its settings. */
+    synchronized void recipe(Recipe r, Compensation comp) {
+        recipe = r;
+        monitor = new LineMonitor(settings(r), cfg.checks(), r);
+        compensation(comp);
+    }
+
+    synchronized void compensation(Compensation comp) {
+        forward(monitor.compensation(comp, recipe.compensationRequired() || recipe.needsOpenCompensation()
+                || recipe.needsShortCompensation(), clock.instant()));
+    }
+
+    synchronized void tick() { forward(monitor.tick(clock.instant())); }
+
+    synchronized LineMonitor.Snapshot snapshot() { return monitor.snapshot(clock.instant()); }
+
+    private void forward(List<AlarmCode.Change> changes) {
+        for (AlarmCode.Change c : changes) mode.alarm(c.code(), c.active(), c.message(), !recovering);
+    }
+}
