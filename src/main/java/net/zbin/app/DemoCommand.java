@@ -92,6 +92,16 @@ public final class DemoCommand implements Callable<Integer> {
             var lotFigures = daemon.lotFigures();
             o.printf(Locale.ROOT, "  the line's own figures for lot %s: %d parts finished, %d passed, yield %.2f %%, %d retests, %d fixture checks%n",
                     sc.lot().id(), lotFigures.parts(), lotFigures.passed(), lotFigures.yieldPct(), lotFigures.retests(), lotFigures.checks());
+            MonitorText.figures(o, daemon.monitorFigures());
+            Path history = dir.resolve("state").resolve("alarms-demo.jsonl");
+            if (Files.exists(history)) {
+                o.println("  alarms during the run:");
+                for (String a : Files.readAllLines(history)) {
+                    var j = Json.mapper().readTree(a);
+                    o.printf(Locale.ROOT, "    %s %s %s: %s%n", j.path("active").asBoolean() ? j.path("since").asText() : "        (cleared)",
+                            j.path("code").asText(), j.path("active").asBoolean() ? "raised" : "cleared", j.path("message").asText());
+                }
+            } else o.println("  alarms during the run: none");
             o.printf(Locale.ROOT, "  record log: %d rows in %s%n", daemon.recordsWritten(), dir.resolve("records"));
             o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv%n",
                     dir.resolve("recipes").resolve(recipe + ".yaml"), dir);
@@ -122,7 +132,7 @@ public final class DemoCommand implements Callable<Integer> {
     static void unpackConfig(Path dir) throws IOException {
         Files.createDirectories(dir.resolve("recipes"));
         Files.createDirectories(dir.resolve("meters"));
-        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml",
+        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml", "recipes/mlcc-c0g-100p.yaml",
                 "meters/zbin-sim.yaml")) {
             try (InputStream in = DemoCommand.class.getResourceAsStream("/zbin-config/" + name)) {
                 if (in == null) throw new IOException("jar lacks /zbin-config/" + name);

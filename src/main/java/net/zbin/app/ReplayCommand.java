@@ -99,16 +99,7 @@ public final class ReplayCommand implements Callable<Integer> {
     record AlarmPoint(long line, AlarmCode.Change change) {}
 
     static void printMonitor(PrintWriter out, LineMonitor.Snapshot m, List<AlarmPoint> points) {
-        out.printf(Locale.ROOT, "  monitor: deviation mean %+.4f %%, σ %.4f %%, Cp %.3g, Cpk %.3g over %d graded parts%n",
-                m.devMeanPct(), m.devSigmaPct(), m.cp(), m.cpk(), m.parts());
-        var v = m.value();
-        out.printf(Locale.ROOT, "    value drift: %s; baseline %+.4f %% σ %.4f %%; EWMA %+.3f (limit ±%.3f), CUSUM %.2f / %.2f (h %.1f)%n",
-                v.learning() ? "learning (" + v.learned() + " parts)" : v.alarm() ? "ALARM" : "in control", v.baselineMean(), v.baselineSigma(),
-                v.ewma(), v.ewmaLimit(), v.cusumHigh(), v.cusumLow(), v.cusumH());
-        var l = m.loss();
-        out.printf(Locale.ROOT, "    %s drift: %s; baseline %.4g σ %.4g%n", m.lossName(),
-                l.learning() ? "learning (" + l.learned() + " parts)" : l.alarm() ? "ALARM" : "in control", l.baselineMean(), l.baselineSigma());
-        if (!m.causeText().isEmpty()) out.println("    population check: " + m.causeText());
+        MonitorText.figures(out, m);
         if (points.isEmpty()) out.println("    alarms: none would have fired");
         else for (AlarmPoint p : points)
             out.printf(Locale.ROOT, "    line %d: %s %s — %s%n", p.line(), p.change().code().code(), p.change().active() ? "raised" : "cleared",

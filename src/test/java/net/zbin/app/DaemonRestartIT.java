@@ -91,11 +91,13 @@ class DaemonRestartIT {
             assertEquals(0, s.stale());
 
             Map<String, Integer> rowBin = new HashMap<>();
+            long graded = 0;
             Path records = dir.resolve("records-crash");
             try (var files = Files.list(records)) {
                 for (Path p : files.sorted().toList()) {
                     try (var csv = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(p))) {
                         for (CSVRecord r : csv) {
+                            if (r.get("kind").equals("part") && !r.get("verdict").equals("retest") && !r.get("param").isEmpty()) graded++;
                             Integer was = rowBin.put(r.get("seq") + "/" + r.get("part"), Integer.parseInt(r.get("bin")));
                             assertTrue(was == null, "one row per presentation: " + r);
                         }
@@ -115,6 +117,7 @@ class DaemonRestartIT {
             List<Tap.Msg> dashboards = tap.on("/dashboard");
             JsonNode dash = dashboards.get(dashboards.size() - 1).json();
             assertEquals(s.finished(), dash.path("parts").asLong(), "the dashboard continued the lot across restarts: " + dash);
+            assertEquals(graded, dash.path("monitor").path("parts").asLong(), "the monitor continued the lot too: no reset, no double count");
             long parts = 0, passed = 0;
             try (var files = Files.list(records)) {
                 for (Path log : files.sorted().toList()) { // one file, or two if the lot ran over midnight UTC

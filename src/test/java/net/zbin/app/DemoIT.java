@@ -28,12 +28,25 @@ class DemoIT {
         assertTrue(out.contains("demo ok"), out);
         assertFalse(out.contains("\r"), "no carriage returns into a pipe");
         long parts = 0, passed = 0;
-        for (java.io.File f : dir.resolve("records").toFile().listFiles()) { // one file, two if the run crossed midnight UTC
+        java.io.File[] logs = dir.resolve("records").toFile().listFiles();
+        com.fasterxml.jackson.databind.JsonNode monitor = null;
+        for (java.io.File f : logs) { // one file, two if the run crossed midnight UTC
             Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/mlcc-x7r-100n.yaml").toString(), "--in", f.toString(), "--json");
             assertEquals(0, replay.exit(), replay.err());
             var j = new com.fasterxml.jackson.databind.ObjectMapper().readTree(replay.out());
             parts += j.path("parts").asLong();
             passed += j.path("passed").asLong();
+            monitor = j.path("monitor");
+        }
+        if (logs.length == 1) {
+            // The monitor, replayed from the record log, gives the figures the live line printed.
+            java.util.regex.Matcher live = java.util.regex.Pattern.compile(
+                    "monitor: deviation mean ([+-][0-9.]+) %, σ ([0-9.]+) %, Cp ([0-9.]+), Cpk ([0-9.]+) over (\\d+) graded parts").matcher(out);
+            assertTrue(live.find(), out);
+            assertEquals(Double.parseDouble(live.group(1)), monitor.path("dev_mean_pct").asDouble(), 1e-3 * Math.max(1, Math.abs(Double.parseDouble(live.group(1)))));
+            assertEquals(Double.parseDouble(live.group(2)), monitor.path("dev_sigma_pct").asDouble(), 1e-3 * Double.parseDouble(live.group(2)));
+            assertEquals(Double.parseDouble(live.group(4)), monitor.path("cpk").asDouble(), 0.01);
+            assertEquals(Long.parseLong(live.group(5)), monitor.path("parts").asLong());
         }
         // One yield: the handler's summary, the line's own figures and a replay of the record log agree to the last digit.
         java.util.regex.Matcher handler = java.util.regex.Pattern.compile("presented; yield ([0-9.]+) %").matcher(out);
