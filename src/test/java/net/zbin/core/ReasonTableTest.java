@@ -12,7 +12,7 @@ import java.util.regex.Pattern;
 import java.util.stream.Collectors;
 import org.junit.jupiter.api.Test;
 
-/** The README's reason-code table lists exactly the reasons the code knows, so adding one is one constant and one row. */
+/** The README's reason-code and alarm tables list exactly the codes the code knows: adding one is one constant and one row. */
 class ReasonTableTest {
     @Test
     void readmeReasonTable_matchesTheReasonEnum() throws Exception {
@@ -26,6 +26,23 @@ class ReasonTableTest {
             while (m.find()) documented.add(m.group(1));
         }
         Set<String> known = Arrays.stream(Reason.values()).map(Reason::code).collect(Collectors.toCollection(TreeSet::new));
+        assertEquals(known, documented);
+    }
+
+    @Test
+    void readmeAlarmTable_matchesTheAlarmCodes() throws Exception {
+        String readme = Files.readString(Path.of("README.md"));
+        int from = readme.indexOf("| code | severity | raised when | clears when |");
+        Set<String> documented = new TreeSet<>();
+        for (String line : readme.substring(from).split("\n")) {
+            if (line.isBlank()) break;
+            Matcher m = Pattern.compile("^\\| `([a-z-]+)` \\| (warning|critical) \\|").matcher(line);
+            if (m.find()) {
+                documented.add(m.group(1));
+                assertEquals(AlarmCode.parse(m.group(1)).severity().key(), m.group(2), line);
+            }
+        }
+        Set<String> known = Arrays.stream(AlarmCode.values()).map(AlarmCode::code).collect(Collectors.toCollection(TreeSet::new));
         assertEquals(known, documented);
     }
 
