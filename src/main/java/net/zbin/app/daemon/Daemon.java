@@ -78,6 +78,7 @@ public final class Daemon implements AutoCloseable {
         monitor.recovering(true);
         RecordLogReader.read(cfg.records().dir(), cfg.line(), clock.instant().minus(Duration.ofDays(1)), e -> path.recovered(e, from));
         monitor.recovering(false);
+        path.onLotEnd(this::publishDashboard); // the finished lot's last figures, retained until the next dashboard
         monitor.compensation(setup.compensation());
         records.start();
         long t0 = System.nanoTime();

@@ -45,6 +45,7 @@ final class TriggerPath {
     private final List<DecisionListener> listeners;
     private final Clock clock;
     private String lastReusedWarning = null;
+    private volatile Runnable lotEnded = () -> { };
 
     TriggerPath(LineConfig cfg, Topics topics, LineSetup setup, MeterSession meter, Publisher out, RecordLog records,
                 LineMode mode, LineStats stats, DecisionBook book, List<DecisionListener> listeners, Clock clock) {
@@ -126,7 +127,11 @@ final class TriggerPath {
     }
 
     /** The {@code lot} command, a trigger of another lot, or a lot found in the record log at start. */
+    /** Runs on the measuring thread when a lot ends (another starts), before the figures move to the new lot. */
+    void onLotEnd(Runnable r) { lotEnded = r; }
+
     void enterLot(String l, java.time.Instant when) {
+        if (!l.equals(book.lot()) && !book.lot().isEmpty()) lotEnded.run();
         if (book.enterLot(l)) {
             stats.startLot(l, when);
             lastReusedWarning = null;
