@@ -85,6 +85,29 @@ public final class BinTally {
         reasons.computeIfAbsent(g.reason().code(), k -> new long[1])[0]++;
     }
 
+    /** Counts n finished parts of one outcome at once (a sweep's counting by value). */
+    public void addFinished(int bin, String grade, Verdict verdict, Reason reason, long n) {
+        if (n <= 0) return;
+        parts += n;
+        if (verdict == Verdict.PASS) passed += n;
+        bins.computeIfAbsent(new BinKey(bin, grade, verdict), k -> new long[1])[0] += n;
+        reasons.computeIfAbsent(reason.code(), k -> new long[1])[0] += n;
+    }
+
+    /** A copy with the same counts. */
+    public BinTally copy() {
+        BinTally t = new BinTally();
+        bins.forEach((k, v) -> t.bins.put(k, new long[] {v[0]}));
+        reasons.forEach((k, v) -> t.reasons.put(k, new long[] {v[0]}));
+        retestReasons.forEach((k, v) -> t.retestReasons.put(k, new long[] {v[0]}));
+        t.parts = parts;
+        t.passed = passed;
+        t.retests = retests;
+        t.checks = checks;
+        t.checksPassed = checksPassed;
+        return t;
+    }
+
     /** Counts one open, short or reference check presentation. */
     public void addCheck(boolean passed) {
         checks++;

@@ -1,0 +1,237 @@
+package net.zbin.core;
+
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import org.apache.commons.math3.special.Erf;
+
+/**
+ * Evaluates many candidate settings of a recipe on one recorded lot, each exactly as a replay with that
+ * setting would grade it, without grading the lot once per setting where it need not.
+ *
+ * <p>Cost. The rows are read once (by the caller). When every varied quantity only changes the last,
+ * by-value step of grading (grade limits, guard band), the lot is graded once with the base recipe: rows
+ * that end before that step keep their outcome, and the deviations of the others are sorted once,
+ * O(N log N); each setting is then counted by binary searches over the sorted deviations, O(G log N) for
+ * G grades — K settings cost O(N log N + K·G·log N), not K replays. Other quantities (gates, nominal)
+ * change earlier steps, so each of their settings regrades the kept rows, O(K·N), still without reading
+ * the file again. The risk estimates are summed over the deviations grouped in bins of 0.01 % (O(B) a setting).
+ *
+ * <p>Risk. The measurement error of a reading is taken as normal with σ = U/2 of the reading (U the expanded
+ * uncertainty, k = 2, in % of reading), independent from part to part, and the measured deviation as the
+ * part's true one for the purpose of the estimate: false accept = the expected number of accepted parts whose
+ * true value lies outside the limits of the grade that took them, false reject = the expected number of parts
+ * rejected on their value whose true value lies inside the widest limits; both in % of the parts finished.
+ */
+public final class Tuner {
+    private final Recipe base;
+    private final List<RecordedReading> rows;
+    private final double uncertaintyPct;
+
+    /** One setting's outcome. */
+    public record Result(List<Double> values, String label, boolean valid, String problem, BinTally.Snapshot tally,
+                         double falseAcceptPct, double falseRejectPct) {}
+
+    /**
+     * @param rows           the lot's rows, in file order
+     * @param uncertaintyPct the expanded uncertainty U (k = 2) of a reading in % of reading, for the risk estimates
+     */
+    public Tuner(Recipe base, List<RecordedReading> rows, double uncertaintyPct) {
+        this.base = base;
+        this.rows = rows;
+        this.uncertaintyPct = uncertaintyPct;
+    }
+
+    /** Every combination of the sweeps' values (one or two sweeps), in order. */
+    public List<Result> run(List<Sweep> sweeps) {
+        if (sweeps.isEmpty() || sweeps.size() > 2) throw new IllegalArgumentException("give one or two sweeps");
+        boolean fast = sweeps.stream().allMatch(Sweep::byValueOnly);
+        Counted counted = fast ? new Counted(base, rows) : null;
+        List<Result> out = new ArrayList<>();
+        List<List<Double>> combos = new ArrayList<>();
+        for (double a : sweeps.get(0).values())
+            if (sweeps.size() == 1) combos.add(List.of(a));
+            else for (double b : sweeps.get(1).values()) combos.add(List.of(a, b));
+        for (List<Double> v : combos) {
+            StringBuilder label = new StringBuilder();
+            Recipe r;
+            try {
+                r = base;
+                for (int i = 0; i < v.size(); i++) {
+                    r = sweeps.get(i).apply(r, v.get(i));
+                    label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
+                }
+            } catch (IllegalArgumentException e) {
+                for (int i = 0; i < v.size(); i++) label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
+                out.add(new Result(v, label.toString(), false, e.getMessage(), BinTally.Snapshot.EMPTY, Double.NaN, Double.NaN));
+                continue;
+            }
+            BinTally t = fast ? counted.tally(r) : replay(r, rows);
+            double[] risk = fast ? counted.risk(r, uncertaintyPct) : risk(r, devsOf(r, rows), uncertaintyPct);
+            BinTally.Snapshot s = t.snapshot();
+            out.add(new Result(v, label.toString(), true, null, s, s.parts() == 0 ? Double.NaN : 100 * risk[0] / s.parts(),
+                    s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
+        }
+        return out;
+    }
+
+    /** The brute-force replay of one recipe: what {@code zbin replay} counts. */
+    public static BinTally replay(Recipe r, List<RecordedReading> rows) {
+        BinTally t = new BinTally();
+        for (RecordedReading row : rows) t.add(Grader.recorded(r, row), !row.isCheck());
+        return t;
+    }
+
+    private static double[] devsOf(Recipe r, List<RecordedReading> rows) {
+        double[] d = new double[rows.size()];
+        int n = 0;
+        for (RecordedReading row : rows) {
+            if (row.isCheck()) continue;
+            Grading g = Grader.recorded(r, row);
+            if (byValue(g.reason())) d[n++] = g.devPct();
+        }
+        d = Arrays.copyOf(d, n);
+        Arrays.sort(d);
+        return d;
+    }
+
+    static boolean byValue(Reason r) {
+        return r == Reason.IN_GRADE || r == Reason.VALUE_LOW || r == Reason.VALUE_HIGH || r == Reason.GUARD_BAND;
+    }
+
+    /** Rows graded once: the outcomes that end before the by-value step, and the sorted deviations of the rest. */
+    static final class Counted {
+        final BinTally fixed = new BinTally();
+        final double[] devs;
+
+        Counted(Recipe base, List<RecordedReading> rows) {
+            double[] d = new double[rows.size()];
+            int n = 0;
+            for (RecordedReading row : rows) {
+                Grading g = Grader.recorded(base, row);
+                if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) d[n++] = g.devPct();
+                else fixed.add(g, !row.isCheck());
+            }
+            devs = Arrays.copyOf(d, n);
+            Arrays.sort(devs);
+        }
+
+        /** Values x with lo ≤ x ≤ hi (or < / > where not inclusive). */
+        long count(double lo, boolean loIn, double hi, boolean hiIn) {
+            int a = loIn ? lower(lo) : upper(lo), b = hiIn ? upper(hi) : lower(hi);
+            return Math.max(0, b - a);
+        }
+
+        /** First index with devs[i] ≥ x. */
+        int lower(double x) {
+            int lo = 0, hi = devs.length;
+            while (lo < hi) {
+                int m = (lo + hi) >>> 1;
+                if (devs[m] < x) lo = m + 1;
+                else hi = m;
+            }
+            return lo;
+        }
+
+        /** First index with devs[i] > x. */
+        int upper(double x) {
+            int lo = 0, hi = devs.length;
+            while (lo < hi) {
+                int m = (lo + hi) >>> 1;
+                if (devs[m] <= x) lo = m + 1;
+                else hi = m;
+            }
+            return lo;
+        }
+
+        BinTally tally(Recipe r) {
+            BinTally t = fixed.copy();
+            GuardBand gb = r.guard();
+            RejectBins rb = r.reject();
+            List<Grade> gs = r.grades();
+            Grade first = gs.get(0), last = gs.get(gs.size() - 1);
+            double inf = Double.POSITIVE_INFINITY;
+            long passed = 0;
+            if (r.mode() == GradingMode.CONCENTRIC) {
+                long inner = 0;
+                for (Grade g : gs) {
+                    long w = count(g.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
+                    t.addFinished(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE, w - inner);
+                    passed += w - inner;
+                    inner = w;
+                }
+                long low = count(-inf, true, last.lowPct(), false), high = count(last.highPct(), false, inf, true);
+                double mid = (last.lowPct() + last.highPct()) / 2;
+                long guardLow = count(last.lowPct(), true, Math.min(mid, last.acceptLowPct(gb)), false)
+                        + count(last.acceptHighPct(gb), false, mid, false);
+                long guard = devs.length - passed - low - high;
+                t.addFinished(rb.low(), "low", Verdict.FAIL, Reason.VALUE_LOW, low);
+                t.addFinished(rb.high(), "high", Verdict.FAIL, Reason.VALUE_HIGH, high);
+                t.addFinished(rb.guardBin(true), "low", Verdict.FAIL, Reason.GUARD_BAND, guardLow);
+                t.addFinished(rb.guardBin(false), "high", Verdict.FAIL, Reason.GUARD_BAND, guard - guardLow);
+                return t;
+            }
+            for (int i = gs.size() - 1; i >= 0; i--) {
+                Grade g = gs.get(i);
+                long w = count(g.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
+                if (i < gs.size() - 1) {
+                    Grade up = gs.get(i + 1); // a value in both windows (an unguarded edge) goes to the upper range
+                    if (up.acceptLowPct(gb) <= g.acceptHighPct(gb)) w -= count(up.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
+                }
+                t.addFinished(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE, w);
+                passed += w;
+            }
+            long low = count(-inf, true, first.lowPct(), false), high = count(last.highPct(), false, inf, true);
+            long guard = devs.length - passed - low - high;
+            long guardLow = count(first.lowPct(), true, first.acceptLowPct(gb), false);
+            for (int i = 0; i + 1 < gs.size(); i++) {
+                double a = gs.get(i).acceptHighPct(gb), b = gs.get(i + 1).acceptLowPct(gb);
+                double hi = Math.min(b, 0); // an inner guard zone (a, b): below the nominal goes low
+                if (hi > a) guardLow += count(a, false, hi, false);
+            }
+            t.addFinished(rb.low(), "low", Verdict.FAIL, Reason.VALUE_LOW, low);
+            t.addFinished(rb.high(), "high", Verdict.FAIL, Reason.VALUE_HIGH, high);
+            t.addFinished(rb.guardBin(true), "low", Verdict.FAIL, Reason.GUARD_BAND, guardLow);
+            t.addFinished(rb.guardBin(false), "high", Verdict.FAIL, Reason.GUARD_BAND, guard - guardLow);
+            return t;
+        }
+
+        double[] risk(Recipe r, double u) { return Tuner.risk(r, devs, u); }
+    }
+
+    /** [expected false accepts, expected false rejects] over sorted deviations, grouped in bins of 0.01 %. */
+    static double[] risk(Recipe r, double[] devs, double u) {
+        if (!(u > 0) || devs.length == 0) return new double[] {Double.NaN, Double.NaN};
+        double fa = 0, fr = 0;
+        List<Grade> gs = r.grades();
+        double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
+        double specHi = gs.get(gs.size() - 1).highPct();
+        int i = 0;
+        while (i < devs.length) {
+            double start = Math.floor(devs[i] * 100) / 100;
+            int j = i;
+            double sum = 0;
+            while (j < devs.length && devs[j] < start + 0.01) sum += devs[j++];
+            double x = sum / (j - i);
+            long c = j - i;
+            double sigma = u / 2 * (1 + x / 100);
+            Grade g = accepting(r, x);
+            if (g != null) fa += c * (phi((g.lowPct() - x) / sigma) + 1 - phi((g.highPct() - x) / sigma));
+            else fr += c * (phi((specHi - x) / sigma) - phi((specLo - x) / sigma));
+            i = j;
+        }
+        return new double[] {fa, fr};
+    }
+
+    private static Grade accepting(Recipe r, double x) {
+        List<Grade> gs = r.grades();
+        if (r.mode() == GradingMode.CONCENTRIC) {
+            for (Grade g : gs) if (g.accepts(x, r.guard())) return g;
+            return null;
+        }
+        for (int k = gs.size() - 1; k >= 0; k--) if (gs.get(k).accepts(x, r.guard())) return gs.get(k);
+        return null;
+    }
+
+    private static double phi(double z) { return 0.5 * (1 + Erf.erf(z / Math.sqrt(2))); }
+}
