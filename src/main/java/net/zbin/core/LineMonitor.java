@@ -95,8 +95,9 @@ public final class LineMonitor {
     private void part(Grading g, List<AlarmCode.Change> out) {
         window.add(g);
         double neg = window.pct(Reason.NEGATIVE_R);
-        if (window.size() >= Math.min(100, s.windowParts()))
-            set(out, AlarmCode.NEGATIVE_R_RATE, neg > s.maxNegativeRPct() || active.containsKey(AlarmCode.NEGATIVE_R_RATE) && neg > s.maxNegativeRPct() / 2,
+        boolean negOn = neg > s.maxNegativeRPct() || active.containsKey(AlarmCode.NEGATIVE_R_RATE) && neg > s.maxNegativeRPct() / 2;
+        if (window.size() >= Math.min(100, s.windowParts()) && negOn != active.containsKey(AlarmCode.NEGATIVE_R_RATE))
+            set(out, AlarmCode.NEGATIVE_R_RATE, negOn,
                     String.format(java.util.Locale.ROOT, "%.2f %% of the last %d parts read R below zero after compensation (limit %.2f %%): stale compensation?",
                             neg, window.size(), s.maxNegativeRPct()));
         if (g.verdict() == Verdict.RETEST || g.graded() == null || !Double.isFinite(g.devPct())) return;
@@ -241,11 +242,12 @@ public final class LineMonitor {
                 comp == null ? Double.NaN : comp.freqHz(), Map.copyOf(active));
     }
 
-    /** The last {@code size} part presentations: rates of outcomes. */
+    /** The last {@code size} part presentations: rates of outcomes, kept up to date in O(1) a presentation. */
     public static final class Window {
         private final byte[] reasons;
         private final boolean[] passed, finished;
-        private int next, size;
+        private final int[] perReason = new int[Reason.values().length];
+        private int next, size, nPassed, nFinished;
 
         public record View(int presentations, double yieldPct, double retestPct, double openContactPct, double shortPct,
                            double faultPct, double negativeRPct) {}
@@ -259,41 +261,37 @@ public final class LineMonitor {
         void clear() {
             next = 0;
             size = 0;
+            nPassed = 0;
+            nFinished = 0;
+            java.util.Arrays.fill(perReason, 0);
         }
 
         void add(Grading g) {
+            if (size == reasons.length) { // the oldest leaves
+                perReason[reasons[next]]--;
+                if (passed[next]) nPassed--;
+                if (finished[next]) nFinished--;
+            } else size++;
             reasons[next] = (byte) g.reason().ordinal();
             passed[next] = g.verdict() == Verdict.PASS;
             finished[next] = g.verdict() != Verdict.RETEST;
+            perReason[reasons[next]]++;
+            if (passed[next]) nPassed++;
+            if (finished[next]) nFinished++;
             next = (next + 1) % reasons.length;
-            size = Math.min(size + 1, reasons.length);
         }
 
         int size() { return size; }
 
-        double pct(Reason r) {
-            if (size == 0) return 0;
-            int n = 0;
-            for (int i = 0; i < size; i++) if (reasons[i] == r.ordinal()) n++;
-            return 100.0 * n / size;
-        }
+        double pct(Reason r) { return size == 0 ? 0 : 100.0 * perReason[r.ordinal()] / size; }
 
         View view() {
-            int fin = 0, pass = 0, retest = 0, open = 0, sh = 0, fault = 0, neg = 0;
-            Reason[] all = Reason.values();
-            for (int i = 0; i < size; i++) {
-                Reason r = all[reasons[i]];
-                if (finished[i]) fin++;
-                else retest++;
-                if (passed[i]) pass++;
-                if (r == Reason.OPEN_CONTACT) open++;
-                if (r == Reason.SHORT) sh++;
-                if (r == Reason.NEGATIVE_R) neg++;
-                if (r.rejectClass() == Reason.RejectClass.FAULT || r.rejectClass() == Reason.RejectClass.OVERLOAD) fault++;
-            }
+            int fault = 0;
+            for (Reason r : Reason.values())
+                if (r.rejectClass() == Reason.RejectClass.FAULT || r.rejectClass() == Reason.RejectClass.OVERLOAD) fault += perReason[r.ordinal()];
             double n = Math.max(1, size);
-            return new View(size, fin == 0 ? Double.NaN : 100.0 * pass / fin, 100 * retest / n, 100 * open / n, 100 * sh / n,
-                    100 * fault / n, 100 * neg / n);
+            return new View(size, nFinished == 0 ? Double.NaN : 100.0 * nPassed / nFinished, 100 * (size - nFinished) / n,
+                    pct(Reason.OPEN_CONTACT), pct(Reason.SHORT), 100 * fault / n, pct(Reason.NEGATIVE_R));
         }
     }
 }

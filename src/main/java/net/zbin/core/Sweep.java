@@ -87,6 +87,11 @@ public record Sweep(Quantity quantity, String grade, List<Double> values) {
         return name + "=" + BigDecimal.valueOf(v).stripTrailingZeros().toPlainString();
     }
 
+    /** Whether the quantity is one of the D/Q/ESR gates. */
+    public boolean gate() {
+        return quantity == Quantity.D_MAX || quantity == Quantity.Q_MIN || quantity == Quantity.ESR_MAX;
+    }
+
     /** Whether the value changes only what {@link Grader}'s last, by-value step sees (limits, guard). */
     public boolean byValueOnly() {
         return quantity == Quantity.GRADE_HALF_WIDTH || quantity == Quantity.GRADE_LOW || quantity == Quantity.GRADE_HIGH

@@ -47,6 +47,7 @@ public final class Tuner {
         if (sweeps.isEmpty() || sweeps.size() > 2) throw new IllegalArgumentException("give one or two sweeps");
         boolean fast = sweeps.stream().allMatch(Sweep::byValueOnly);
         Counted counted = fast ? new Counted(base, rows) : null;
+        GateCounted gated = !fast && sweeps.size() == 1 && sweeps.get(0).gate() ? new GateCounted(base, rows, sweeps.get(0).quantity(), uncertaintyPct) : null;
         List<Result> out = new ArrayList<>();
         List<List<Double>> combos = new ArrayList<>();
         for (double a : sweeps.get(0).values())
@@ -66,8 +67,9 @@ public final class Tuner {
                 out.add(new Result(v, label.toString(), false, e.getMessage(), BinTally.Snapshot.EMPTY, Double.NaN, Double.NaN));
                 continue;
             }
-            BinTally t = fast ? counted.tally(r) : replay(r, rows);
-            double[] risk = fast ? counted.risk(r, uncertaintyPct) : risk(r, devsOf(r, rows), uncertaintyPct);
+            BinTally t = fast ? counted.tally(r) : gated != null ? gated.tally(r, v.get(0)) : replay(r, rows);
+            double[] risk = fast ? counted.risk(r, uncertaintyPct) : gated != null ? gated.risk(v.get(0))
+                    : risk(r, devsOf(r, rows), uncertaintyPct);
             BinTally.Snapshot s = t.snapshot();
             out.add(new Result(v, label.toString(), true, null, s, s.parts() == 0 ? Double.NaN : 100 * risk[0] / s.parts(),
                     s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
@@ -196,29 +198,150 @@ public final class Tuner {
             return t;
         }
 
-        double[] risk(Recipe r, double u) { return Tuner.risk(r, devs, u); }
+        private double[][] bins;
+
+        double[] risk(Recipe r, double u) {
+            if (bins == null) bins = bin(devs);
+            return Tuner.risk(r, bins, u);
+        }
     }
 
-    /** [expected false accepts, expected false rejects] over sorted deviations, grouped in bins of 0.01 %. */
-    static double[] risk(Recipe r, double[] devs, double u) {
-        if (!(u > 0) || devs.length == 0) return new double[] {Double.NaN, Double.NaN};
-        double fa = 0, fr = 0;
-        List<Grade> gs = r.grades();
-        double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
-        double specHi = gs.get(gs.size() - 1).highPct();
-        int i = 0;
+    /** Sorted deviations grouped in bins of 0.01 %: [means, counts]. O(N) once. */
+    static double[][] bin(double[] devs) {
+        double[] mean = new double[devs.length], count = new double[devs.length];
+        int b = 0, i = 0;
         while (i < devs.length) {
             double start = Math.floor(devs[i] * 100) / 100;
             int j = i;
             double sum = 0;
             while (j < devs.length && devs[j] < start + 0.01) sum += devs[j++];
-            double x = sum / (j - i);
-            long c = j - i;
+            mean[b] = sum / (j - i);
+            count[b++] = j - i;
+            i = j;
+        }
+        return new double[][] {java.util.Arrays.copyOf(mean, b), java.util.Arrays.copyOf(count, b)};
+    }
+
+    /**
+     * A single gate swept (d_max, q_min, esr_max): the lot is graded once without that gate; a row that
+     * reached the gates is then failed by the swept gate exactly when its D (or ESR) lies above the setting,
+     * and otherwise ends as it did without the gate. With the rows sorted by D or ESR, each setting is a
+     * binary search and prefix sums per outcome: O(N log N + K·(log N + outcomes)).
+     */
+    static final class GateCounted {
+        final BinTally fixed = new BinTally();
+        final Sweep.Quantity q;
+        final double[] metric;
+        final int[][] prefix; // prefix[k][i]: rows among the first i (by metric) whose outcome is key k
+        final List<Grading.Outcome> keys = new ArrayList<>();
+        final double[] faPrefix, frPrefix;
+        final RejectBins rb;
+
+        GateCounted(Recipe base, List<RecordedReading> rows, Sweep.Quantity q, double u) {
+            this.q = q;
+            this.rb = base.reject();
+            Gates g = base.gates();
+            Gates without = switch (q) {
+                case D_MAX -> new Gates(null, g.qMin(), g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
+                case Q_MIN -> new Gates(g.dMax(), null, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
+                default -> new Gates(g.dMax(), g.qMin(), null, g.thetaMinDeg(), g.thetaMaxDeg());
+            };
+            Recipe r0 = new Recipe(base.name(), base.partType(), base.nominal(), base.test(), base.model(), base.primary(), base.mode(),
+                    base.grades(), base.guard(), without, base.plausible(), base.reject(), base.retest(), base.contact(),
+                    base.compensationRequired(), base.monitor());
+            List<double[]> reached = new ArrayList<>(); // {metric, key, faContribution, frContribution}
+            double[][] oneBin = new double[2][1];
+            for (RecordedReading row : rows) {
+                Grading gr = Grader.recorded(r0, row);
+                if (row.isCheck() || !affected(gr.reason(), q)) {
+                    fixed.add(gr, !row.isCheck());
+                    continue;
+                }
+                Impedance z = gr.impedance();
+                double m = q == Sweep.Quantity.ESR_MAX ? z.esrOhm() : z.d();
+                int k = keys.indexOf(gr.outcome());
+                if (k < 0) {
+                    keys.add(gr.outcome());
+                    k = keys.size() - 1;
+                }
+                double fa = 0, fr = 0;
+                if (byValue(gr.reason()) && u > 0) {
+                    oneBin[0][0] = gr.devPct();
+                    oneBin[1][0] = 1;
+                    double[] rk = Tuner.risk(r0, oneBin, u);
+                    fa = rk[0];
+                    fr = rk[1];
+                }
+                reached.add(new double[] {Double.isNaN(m) ? Double.POSITIVE_INFINITY : m, k, fa, fr});
+            }
+            reached.sort(java.util.Comparator.comparingDouble(a -> a[0]));
+            int n = reached.size();
+            metric = new double[n];
+            prefix = new int[keys.size()][n + 1];
+            faPrefix = new double[n + 1];
+            frPrefix = new double[n + 1];
+            for (int i = 0; i < n; i++) {
+                double[] a = reached.get(i);
+                metric[i] = a[0];
+                for (int k = 0; k < keys.size(); k++) prefix[k][i + 1] = prefix[k][i] + ((int) a[1] == k ? 1 : 0);
+                faPrefix[i + 1] = faPrefix[i] + a[2];
+                frPrefix[i + 1] = frPrefix[i] + a[3];
+            }
+        }
+
+        /** Whether a row with this outcome (without the swept gate) meets the swept gate at all. */
+        private static boolean affected(Reason r, Sweep.Quantity q) {
+            if (byValue(r) || r == Reason.THETA_OUT || r == Reason.ESR_HIGH) return q != Sweep.Quantity.ESR_MAX || r != Reason.ESR_HIGH;
+            if (r == Reason.Q_LOW) return q == Sweep.Quantity.D_MAX;
+            return false;
+        }
+
+        /** Rows whose metric passes the setting: metric ≤ threshold, the gate's own comparison. */
+        private int passing(double v) {
+            double t = q == Sweep.Quantity.Q_MIN ? 1 / v : v;
+            int lo = 0, hi = metric.length;
+            while (lo < hi) {
+                int m = (lo + hi) >>> 1;
+                if (metric[m] <= t) lo = m + 1;
+                else hi = m;
+            }
+            return lo;
+        }
+
+        BinTally tally(Recipe r, double v) {
+            BinTally t = fixed.copy();
+            int p = passing(v);
+            for (int k = 0; k < keys.size(); k++) {
+                Grading.Outcome o = keys.get(k);
+                t.addFinished(o.bin(), o.grade(), o.verdict(), o.reason(), prefix[k][p]);
+            }
+            Reason fail = q == Sweep.Quantity.D_MAX ? Reason.D_HIGH : q == Sweep.Quantity.Q_MIN ? Reason.Q_LOW : Reason.ESR_HIGH;
+            t.addFinished(r.reject().gate(), "gate", Verdict.FAIL, fail, metric.length - p);
+            return t;
+        }
+
+        double[] risk(double v) {
+            int p = passing(v);
+            return new double[] {faPrefix[p], frPrefix[p]};
+        }
+    }
+
+    /** [expected false accepts, expected false rejects] over sorted deviations, grouped in bins of 0.01 %. */
+    static double[] risk(Recipe r, double[] devs, double u) { return risk(r, bin(devs), u); }
+
+    /** The same over pre-grouped bins [means, counts]: O(B). */
+    static double[] risk(Recipe r, double[][] bins, double u) {
+        if (!(u > 0) || bins[0].length == 0) return new double[] {u > 0 ? 0 : Double.NaN, u > 0 ? 0 : Double.NaN};
+        double fa = 0, fr = 0;
+        List<Grade> gs = r.grades();
+        double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
+        double specHi = gs.get(gs.size() - 1).highPct();
+        for (int b = 0; b < bins[0].length; b++) {
+            double x = bins[0][b], c = bins[1][b];
             double sigma = u / 2 * (1 + x / 100);
             Grade g = accepting(r, x);
             if (g != null) fa += c * (phi((g.lowPct() - x) / sigma) + 1 - phi((g.highPct() - x) / sigma));
             else fr += c * (phi((specHi - x) / sigma) - phi((specLo - x) / sigma));
-            i = j;
         }
         return new double[] {fa, fr};
     }

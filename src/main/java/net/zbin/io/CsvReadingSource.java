@@ -1,62 +1,73 @@
 package net.zbin.io;
 
-import java.io.BufferedReader;
+import ch.randelshofer.fastdoubleparser.JavaDoubleParser;
+import de.siegmar.fastcsv.reader.CsvParseException;
+import de.siegmar.fastcsv.reader.CsvReader;
+import de.siegmar.fastcsv.reader.CsvRecord;
 import java.io.IOException;
 import java.io.RandomAccessFile;
 import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
-import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
+import java.util.HashMap;
 import java.util.Iterator;
 import java.util.Map;
+import java.util.Set;
 import java.util.function.Consumer;
-import net.zbin.core.RecordedReading;
-import org.apache.commons.csv.CSVFormat;
-import org.apache.commons.csv.CSVParser;
-import org.apache.commons.csv.CSVRecord;
 import net.zbin.core.CompensationSource;
+import net.zbin.core.RecordedReading;
 
 /**
  * Streams a CSV whose header names at least {@code freq_hz,r_ohm,x_ohm}; other columns are used
  * when known and ignored otherwise. A last line without its newline is a torn write (the logger
  * was killed mid-row): it is reported and skipped, never parsed as data. Memory use does not grow
- * with file size.
+ * with file size. FastCSV splits the rows and FastDoubleParser reads the numbers, so a replay runs close
+ * to the speed of merely reading the file.
  */
 final class CsvReadingSource implements ReadingSource {
+    private static final Set<String> KINDS = Set.of("part", "open", "short", "reference");
+
     private final Path file;
     private final Consumer<BadRow> bad;
-    private final CSVParser parser;
-    private final Iterator<CSVRecord> it;
-    private final Map<String, Integer> header;
+    private final CsvReader<CsvRecord> reader;
+    private final Iterator<CsvRecord> it;
+    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind;
     private final boolean tornTail;
 
     CsvReadingSource(Path file, Consumer<BadRow> bad) throws IOException, ConfigException {
         this.file = file;
         this.bad = bad;
-        BufferedReader reader;
-        try {
-            reader = Files.newBufferedReader(file, StandardCharsets.UTF_8);
-        } catch (NoSuchFileException e) {
-            throw new ConfigException(file, null, "file not found");
-        }
+        if (!Files.exists(file)) throw new ConfigException(file, null, "file not found");
         this.tornTail = endsWithoutNewline(file);
-        CSVFormat fmt = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).setIgnoreEmptyLines(true)
-                .setTrim(true).get();
+        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).ofCsvRecord(file, StandardCharsets.UTF_8);
+        this.it = reader.iterator();
+        Map<String, Integer> header = new HashMap<>();
         try {
-            this.parser = CSVParser.parse(reader, fmt);
-        } catch (IOException | IllegalArgumentException | UncheckedIOException e) {
+            if (it.hasNext()) {
+                CsvRecord h = it.next();
+                for (int i = 0; i < h.getFieldCount(); i++) header.putIfAbsent(h.getField(i).trim(), i);
+            }
+        } catch (CsvParseException | UncheckedIOException e) {
             reader.close();
             throw new ConfigException(file, "line 1", "unreadable CSV header: " + e.getMessage());
         }
-        this.header = parser.getHeaderMap();
         for (String col : RecordColumns.REPLAY_REQUIRED)
-            if (header == null || !header.containsKey(col)) {
-                parser.close();
+            if (!header.containsKey(col)) {
+                reader.close();
                 throw new ConfigException(file, "line 1", "header lacks column '" + col + "' (needs at least "
                         + String.join(",", RecordColumns.REPLAY_REQUIRED) + ")");
             }
-        this.it = parser.iterator();
+        width = header.size();
+        fFreq = header.get("freq_hz");
+        fR = header.get("r_ohm");
+        fX = header.get("x_ohm");
+        fRawR = header.getOrDefault("raw_r_ohm", -1);
+        fRawX = header.getOrDefault("raw_x_ohm", -1);
+        fReason = header.getOrDefault("reason", -1);
+        fAttempt = header.getOrDefault("attempt", -1);
+        fComp = header.getOrDefault("comp", -1);
+        fKind = header.getOrDefault("kind", -1);
     }
 
     private static boolean endsWithoutNewline(Path file) throws IOException {
@@ -72,14 +83,14 @@ final class CsvReadingSource implements ReadingSource {
     @Override
     public RecordedReading next() throws IOException {
         while (true) {
-            CSVRecord rec;
+            CsvRecord rec;
             try {
                 if (!it.hasNext()) return null;
                 rec = it.next();
-            } catch (UncheckedIOException | IllegalStateException e) {
-                throw new IOException(file + ": line " + parser.getCurrentLineNumber() + ": unreadable CSV: " + e.getMessage(), e);
+            } catch (CsvParseException | UncheckedIOException e) {
+                throw new IOException(file + ": unreadable CSV: " + e.getMessage(), e);
             }
-            long line = parser.getCurrentLineNumber();
+            long line = rec.getStartingLineNumber();
             if (tornTail && !it.hasNext()) {
                 bad.accept(new BadRow(line, "torn last line (no newline at end of file), skipped"));
                 return null;
@@ -92,14 +103,14 @@ final class CsvReadingSource implements ReadingSource {
         }
     }
 
-    private RecordedReading row(CSVRecord rec, long line) {
-        if (!rec.isConsistent()) throw new IllegalArgumentException("has " + rec.size() + " fields, header has " + header.size());
-        String reason = opt(rec, "reason");
-        double f = number(rec, "freq_hz", false);
-        if (!(f > 0)) throw new IllegalArgumentException("freq_hz must be > 0 (was " + rec.get("freq_hz") + ")");
+    private RecordedReading row(CsvRecord rec, long line) {
+        if (rec.getFieldCount() != width) throw new IllegalArgumentException("has " + rec.getFieldCount() + " fields, header has " + width);
+        String reason = text(rec, fReason);
+        double f = number(rec, fFreq, "freq_hz", false);
+        if (!(f > 0)) throw new IllegalArgumentException("freq_hz must be > 0 (was " + rec.getField(fFreq).trim() + ")");
         boolean mayBeBlank = reason != null && !reason.isEmpty();
-        double r = number(rec, "r_ohm", mayBeBlank), x = number(rec, "x_ohm", mayBeBlank);
-        String attempt = opt(rec, "attempt");
+        double r = number(rec, fR, "r_ohm", mayBeBlank), x = number(rec, fX, "x_ohm", mayBeBlank);
+        String attempt = text(rec, fAttempt);
         int att;
         try {
             att = attempt == null || attempt.isEmpty() ? 0 : Integer.parseInt(attempt);
@@ -107,43 +118,34 @@ final class CsvReadingSource implements ReadingSource {
             throw new IllegalArgumentException("attempt is not a whole number ('" + attempt + "')");
         }
         if (att < 0) throw new IllegalArgumentException("attempt must be >= 0 (was " + att + ")");
-        String comp = opt(rec, "comp");
+        String comp = text(rec, fComp);
         CompensationSource cs = comp == null || comp.isEmpty() ? CompensationSource.NONE : CompensationSource.parse(comp);
-        String kind = opt(rec, "kind");
+        String kind = text(rec, fKind);
         if (kind == null || kind.isEmpty()) kind = "part";
-        if (!java.util.Set.of("part", "open", "short", "reference").contains(kind))
-            throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
-        return new RecordedReading(line, f, r, x, optNumber(rec, "raw_r_ohm"), optNumber(rec, "raw_x_ohm"),
-                mayBeBlank ? reason : null, att, cs, kind);
+        if (!KINDS.contains(kind)) throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
+        return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
+                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind);
     }
 
-    private String opt(CSVRecord rec, String col) {
-        return header.containsKey(col) && rec.isSet(col) ? rec.get(col) : null;
-    }
+    private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }
 
-    private double number(CSVRecord rec, String col, boolean blankOk) {
-        String s = rec.get(col);
-        if (s.isEmpty()) {
+    private static double number(CsvRecord rec, int i, String col, boolean blankOk) {
+        String s = rec.getField(i);
+        if (s.isEmpty() || s.isBlank()) {
             if (blankOk) return Double.NaN;
             throw new IllegalArgumentException(col + " is empty");
         }
         try {
-            return Double.parseDouble(s);
+            return JavaDoubleParser.parseDouble(s);
         } catch (NumberFormatException e) {
-            throw new IllegalArgumentException(col + " is not a number ('" + s + "')");
-        }
-    }
-
-    private double optNumber(CSVRecord rec, String col) {
-        String s = opt(rec, col);
-        if (s == null || s.isEmpty()) return Double.NaN;
-        try {
-            return Double.parseDouble(s);
-        } catch (NumberFormatException e) {
-            throw new IllegalArgumentException(col + " is not a number ('" + s + "')");
+            try {
+                return JavaDoubleParser.parseDouble(s.trim());
+            } catch (NumberFormatException e2) {
+                throw new IllegalArgumentException(col + " is not a number ('" + s.trim() + "')");
+            }
         }
     }
 
     @Override
-    public void close() throws IOException { parser.close(); }
+    public void close() throws IOException { reader.close(); }
 }

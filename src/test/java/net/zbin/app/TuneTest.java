@@ -71,7 +71,10 @@ class TuneTest {
     void gateAndNominalSettings_countExactlyAsReplays() throws Exception {
         Recipe mlcc = RecipeLoader.load(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
         List<RecordedReading> rows = rows(Path.of("simulators/lots/lot-mlcc-100n.csv"));
-        assertLikeReplays(mlcc, rows, List.of(Sweep.parse("d_max=0.015:0.035:0.005", mlcc.partType())));
+        assertLikeReplays(mlcc, rows, List.of(Sweep.parse("d_max=0.015:0.035:0.0025", mlcc.partType())));
+        assertLikeReplays(mlcc, rows, List.of(Sweep.parse("q_min=20:60:5", mlcc.partType())));
+        assertLikeReplays(mlcc, rows, List.of(Sweep.parse("esr_max=10:40:2.5", mlcc.partType())));
+        assertLikeReplays(mlcc, rows, List.of(Sweep.parse("d_max=0.02,0.03", mlcc.partType()), Sweep.parse("grade.J=4,5", mlcc.partType())));
         assertLikeReplays(mlcc, rows, List.of(Sweep.parse("nominal=98n:102n:1n", mlcc.partType()), Sweep.parse("grade.J=4,5", mlcc.partType())));
     }
 
