@@ -74,15 +74,15 @@ public final class TuneCommand implements Callable<Integer> {
             throw new UsageException("--uncertainty-pct must be > 0 (was " + u + ")");
         if (csv != null && csv.toAbsolutePath().getParent() != null && !Files.isDirectory(csv.toAbsolutePath().getParent()))
             throw new UsageException("--csv: folder " + csv.toAbsolutePath().getParent() + " does not exist");
-        List<RecordedReading> rows = new ArrayList<>();
+        Tuner tuner = new Tuner(recipe, sweeps, u);
         PrintWriter err = spec.commandLine().getErr();
         try (ReadingSource src = ReadingSource.open(in, b -> err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)"))) {
             RecordedReading r;
-            while ((r = src.next()) != null) rows.add(r);
+            while ((r = src.next()) != null) tuner.add(r);
         } catch (IOException e) {
             throw new UsageException(e.getMessage());
         }
-        List<Tuner.Result> results = new Tuner(recipe, rows, u).run(sweeps);
+        List<Tuner.Result> results = tuner.results();
         Optional<Tuner.Result> pick = targetFalseAccept == null ? Optional.empty() : results.stream().filter(Tuner.Result::valid)
                 .filter(x -> x.falseAcceptPct() <= targetFalseAccept)
                 .max(Comparator.comparingDouble((Tuner.Result x) -> x.tally().yieldPct()).thenComparingDouble(x -> -x.falseAcceptPct())

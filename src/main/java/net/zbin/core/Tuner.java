@@ -25,29 +25,42 @@ import org.apache.commons.math3.special.Erf;
  */
 public final class Tuner {
     private final Recipe base;
-    private final List<RecordedReading> rows;
+    private final List<Sweep> sweeps;
     private final double uncertaintyPct;
+    private final Counted counted;
+    private final GateCounted gated;
+    private final List<RecordedReading> kept;
 
     /** One setting's outcome. */
     public record Result(List<Double> values, String label, boolean valid, String problem, BinTally.Snapshot tally,
                          double falseAcceptPct, double falseRejectPct) {}
 
     /**
-     * @param rows           the lot's rows, in file order
+     * @param sweeps         one or two quantities and their values
      * @param uncertaintyPct the expanded uncertainty U (k = 2) of a reading in % of reading, for the risk estimates
      */
-    public Tuner(Recipe base, List<RecordedReading> rows, double uncertaintyPct) {
+    public Tuner(Recipe base, List<Sweep> sweeps, double uncertaintyPct) {
+        if (sweeps.isEmpty() || sweeps.size() > 2) throw new IllegalArgumentException("give one or two sweeps");
         this.base = base;
-        this.rows = rows;
+        this.sweeps = List.copyOf(sweeps);
         this.uncertaintyPct = uncertaintyPct;
+        boolean fast = sweeps.stream().allMatch(Sweep::byValueOnly);
+        counted = fast ? new Counted(base) : null;
+        gated = !fast && sweeps.size() == 1 && sweeps.get(0).gate() ? new GateCounted(base, sweeps.get(0).quantity(), uncertaintyPct) : null;
+        kept = counted == null && gated == null ? new ArrayList<>() : null;
     }
 
-    /** Every combination of the sweeps' values (one or two sweeps), in order. */
-    public List<Result> run(List<Sweep> sweeps) {
-        if (sweeps.isEmpty() || sweeps.size() > 2) throw new IllegalArgumentException("give one or two sweeps");
-        boolean fast = sweeps.stream().allMatch(Sweep::byValueOnly);
-        Counted counted = fast ? new Counted(base, rows) : null;
-        GateCounted gated = !fast && sweeps.size() == 1 && sweeps.get(0).gate() ? new GateCounted(base, rows, sweeps.get(0).quantity(), uncertaintyPct) : null;
+    /** One row of the lot, in file order. The fast paths keep only numbers, not the rows. */
+    public void add(RecordedReading row) {
+        if (counted != null) counted.add(row);
+        else if (gated != null) gated.add(row);
+        else kept.add(row);
+    }
+
+    /** Every combination of the sweeps' values, in order. */
+    public List<Result> results() {
+        if (counted != null) counted.seal();
+        if (gated != null) gated.seal();
         List<Result> out = new ArrayList<>();
         List<List<Double>> combos = new ArrayList<>();
         for (double a : sweeps.get(0).values())
@@ -55,26 +68,53 @@ public final class Tuner {
             else for (double b : sweeps.get(1).values()) combos.add(List.of(a, b));
         for (List<Double> v : combos) {
             StringBuilder label = new StringBuilder();
-            Recipe r;
+            for (int i = 0; i < v.size(); i++) label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
+            Recipe r = base;
             try {
-                r = base;
-                for (int i = 0; i < v.size(); i++) {
-                    r = sweeps.get(i).apply(r, v.get(i));
-                    label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
-                }
+                for (int i = 0; i < v.size(); i++) r = sweeps.get(i).apply(r, v.get(i));
             } catch (IllegalArgumentException e) {
-                for (int i = 0; i < v.size(); i++) label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
                 out.add(new Result(v, label.toString(), false, e.getMessage(), BinTally.Snapshot.EMPTY, Double.NaN, Double.NaN));
                 continue;
             }
-            BinTally t = fast ? counted.tally(r) : gated != null ? gated.tally(r, v.get(0)) : replay(r, rows);
-            double[] risk = fast ? counted.risk(r, uncertaintyPct) : gated != null ? gated.risk(v.get(0))
-                    : risk(r, devsOf(r, rows), uncertaintyPct);
+            BinTally t = counted != null ? counted.tally(r) : gated != null ? gated.tally(r, v.get(0)) : replay(r, kept);
+            double[] risk = counted != null ? counted.risk(r, uncertaintyPct) : gated != null ? gated.risk(v.get(0))
+                    : risk(r, devsOf(r, kept), uncertaintyPct);
             BinTally.Snapshot s = t.snapshot();
             out.add(new Result(v, label.toString(), true, null, s, s.parts() == 0 ? Double.NaN : 100 * risk[0] / s.parts(),
                     s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
         }
         return out;
+    }
+
+    /** The indices 0..n−1 ordered by their key (a stable merge sort on primitives: no boxing of a million indices). */
+    static int[] order(double[] key, int n) {
+        int[] a = new int[n], tmp = new int[n];
+        for (int i = 0; i < n; i++) a[i] = i;
+        for (int width = 1; width < n; width *= 2) {
+            for (int lo = 0; lo < n; lo += 2 * width) {
+                int mid = Math.min(lo + width, n), hi = Math.min(lo + 2 * width, n), i = lo, j = mid, k = lo;
+                while (i < mid && j < hi) tmp[k++] = key[a[j]] < key[a[i]] ? a[j++] : a[i++];
+                while (i < mid) tmp[k++] = a[i++];
+                while (j < hi) tmp[k++] = a[j++];
+            }
+            int[] t = a;
+            a = tmp;
+            tmp = t;
+        }
+        return a;
+    }
+
+    /** A growable array of doubles. */
+    static final class Doubles {
+        double[] a = new double[1024];
+        int n;
+
+        void add(double v) {
+            if (n == a.length) a = java.util.Arrays.copyOf(a, n * 2);
+            a[n++] = v;
+        }
+
+        double[] trimmed() { return java.util.Arrays.copyOf(a, n); }
     }
 
     /** The brute-force replay of one recipe: what {@code zbin replay} counts. */
@@ -104,17 +144,21 @@ public final class Tuner {
     /** Rows graded once: the outcomes that end before the by-value step, and the sorted deviations of the rest. */
     static final class Counted {
         final BinTally fixed = new BinTally();
-        final double[] devs;
+        private final Recipe base;
+        private final Doubles collected = new Doubles();
+        double[] devs;
 
-        Counted(Recipe base, List<RecordedReading> rows) {
-            double[] d = new double[rows.size()];
-            int n = 0;
-            for (RecordedReading row : rows) {
-                Grading g = Grader.recorded(base, row);
-                if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) d[n++] = g.devPct();
-                else fixed.add(g, !row.isCheck());
-            }
-            devs = Arrays.copyOf(d, n);
+        Counted(Recipe base) { this.base = base; }
+
+        void add(RecordedReading row) {
+            Grading g = Grader.recorded(base, row);
+            if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) collected.add(g.devPct());
+            else fixed.add(g, !row.isCheck());
+        }
+
+        void seal() {
+            if (devs != null) return;
+            devs = collected.trimmed();
             Arrays.sort(devs);
         }
 
@@ -231,14 +275,22 @@ public final class Tuner {
     static final class GateCounted {
         final BinTally fixed = new BinTally();
         final Sweep.Quantity q;
-        final double[] metric;
-        final int[][] prefix; // prefix[k][i]: rows among the first i (by metric) whose outcome is key k
+        double[] metric;
+        int[][] prefix; // prefix[k][i]: rows among the first i (by metric) whose outcome is key k
         final List<Grading.Outcome> keys = new ArrayList<>();
-        final double[] faPrefix, frPrefix;
+        double[] faPrefix, frPrefix;
         final RejectBins rb;
 
-        GateCounted(Recipe base, List<RecordedReading> rows, Sweep.Quantity q, double u) {
+        private final Recipe r0;
+        private final double u;
+        private final Doubles mCol = new Doubles(), kCol = new Doubles(), faCol = new Doubles(), frCol = new Doubles();
+        private final double[][] oneBin = new double[2][1];
+        private final java.util.Map<Long, double[]> riskByBin = new java.util.HashMap<>();
+        private boolean sealed;
+
+        GateCounted(Recipe base, Sweep.Quantity q, double u) {
             this.q = q;
+            this.u = u;
             this.rb = base.reject();
             Gates g = base.gates();
             Gates without = switch (q) {
@@ -246,46 +298,58 @@ public final class Tuner {
                 case Q_MIN -> new Gates(g.dMax(), null, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
                 default -> new Gates(g.dMax(), g.qMin(), null, g.thetaMinDeg(), g.thetaMaxDeg());
             };
-            Recipe r0 = new Recipe(base.name(), base.partType(), base.nominal(), base.test(), base.model(), base.primary(), base.mode(),
+            r0 = new Recipe(base.name(), base.partType(), base.nominal(), base.test(), base.model(), base.primary(), base.mode(),
                     base.grades(), base.guard(), without, base.plausible(), base.reject(), base.retest(), base.contact(),
                     base.compensationRequired(), base.monitor());
-            List<double[]> reached = new ArrayList<>(); // {metric, key, faContribution, frContribution}
-            double[][] oneBin = new double[2][1];
-            for (RecordedReading row : rows) {
-                Grading gr = Grader.recorded(r0, row);
-                if (row.isCheck() || !affected(gr.reason(), q)) {
-                    fixed.add(gr, !row.isCheck());
-                    continue;
-                }
-                Impedance z = gr.impedance();
-                double m = q == Sweep.Quantity.ESR_MAX ? z.esrOhm() : z.d();
-                int k = keys.indexOf(gr.outcome());
-                if (k < 0) {
-                    keys.add(gr.outcome());
-                    k = keys.size() - 1;
-                }
-                double fa = 0, fr = 0;
-                if (byValue(gr.reason()) && u > 0) {
-                    oneBin[0][0] = gr.devPct();
-                    oneBin[1][0] = 1;
-                    double[] rk = Tuner.risk(r0, oneBin, u);
-                    fa = rk[0];
-                    fr = rk[1];
-                }
-                reached.add(new double[] {Double.isNaN(m) ? Double.POSITIVE_INFINITY : m, k, fa, fr});
+        }
+
+        void add(RecordedReading row) {
+            Grading gr = Grader.recorded(r0, row);
+            if (row.isCheck() || !affected(gr.reason(), q)) {
+                fixed.add(gr, !row.isCheck());
+                return;
             }
-            reached.sort(java.util.Comparator.comparingDouble(a -> a[0]));
-            int n = reached.size();
+            Impedance z = gr.impedance();
+            double m = q == Sweep.Quantity.ESR_MAX ? z.esrOhm() : z.d();
+            int k = keys.indexOf(gr.outcome());
+            if (k < 0) {
+                keys.add(gr.outcome());
+                k = keys.size() - 1;
+            }
+            double fa = 0, fr = 0;
+            if (byValue(gr.reason()) && u > 0) {
+                // The risk of a deviation, computed once per 0.01 % bin (as the limit sweeps do) and looked up.
+                long bin = (long) Math.floor(gr.devPct() * 100);
+                double[] rk = riskByBin.computeIfAbsent(bin, b -> {
+                    oneBin[0][0] = (b + 0.5) / 100;
+                    oneBin[1][0] = 1;
+                    return Tuner.risk(r0, oneBin, u);
+                });
+                fa = rk[0];
+                fr = rk[1];
+            }
+            mCol.add(Double.isNaN(m) ? Double.POSITIVE_INFINITY : m);
+            kCol.add(k);
+            faCol.add(fa);
+            frCol.add(fr);
+        }
+
+        void seal() {
+            if (sealed) return;
+            sealed = true;
+            int n = mCol.n;
+            double[] mm = mCol.a;
+            int[] order = order(mm, n);
             metric = new double[n];
             prefix = new int[keys.size()][n + 1];
             faPrefix = new double[n + 1];
             frPrefix = new double[n + 1];
-            for (int i = 0; i < n; i++) {
-                double[] a = reached.get(i);
-                metric[i] = a[0];
-                for (int k = 0; k < keys.size(); k++) prefix[k][i + 1] = prefix[k][i] + ((int) a[1] == k ? 1 : 0);
-                faPrefix[i + 1] = faPrefix[i] + a[2];
-                frPrefix[i + 1] = frPrefix[i] + a[3];
+            for (int j = 0; j < n; j++) {
+                int i = order[j];
+                metric[j] = mm[i];
+                for (int k = 0; k < keys.size(); k++) prefix[k][j + 1] = prefix[k][j] + ((int) kCol.a[i] == k ? 1 : 0);
+                faPrefix[j + 1] = faPrefix[j] + faCol.a[i];
+                frPrefix[j + 1] = frPrefix[j] + frCol.a[i];
             }
         }
 

@@ -33,7 +33,9 @@ class TuneTest {
     }
 
     static void assertLikeReplays(Recipe base, List<RecordedReading> rows, List<Sweep> sweeps) {
-        for (Tuner.Result r : new Tuner(base, rows, 0.3).run(sweeps)) {
+        Tuner tuner = new Tuner(base, sweeps, 0.3);
+        rows.forEach(tuner::add);
+        for (Tuner.Result r : tuner.results()) {
             if (!r.valid()) continue;
             Recipe set = base;
             for (int i = 0; i < sweeps.size(); i++) set = sweeps.get(i).apply(set, r.values().get(i));
