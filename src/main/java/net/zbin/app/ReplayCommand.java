@@ -43,6 +43,12 @@ public final class ReplayCommand implements Callable<Integer> {
     boolean json;
     @Option(names = "--strict", description = "stop at the first bad row (exit 2)")
     boolean strict;
+    @Option(names = "--report", paramLabel = "FILE.html", description = "also write a self-contained HTML report with plots")
+    Path report;
+    @Option(names = "--quiet", description = "no progress on stderr")
+    boolean quiet;
+    @Option(names = "--progress", description = "progress on stderr even when it is not a terminal")
+    boolean progress;
     @Option(names = "--max-errors-shown", paramLabel = "N", defaultValue = "20", description = "bad rows listed before only counting (default ${DEFAULT-VALUE})")
     int maxShown;
 
@@ -57,6 +63,10 @@ public final class ReplayCommand implements Callable<Integer> {
         // The line monitor, fed the same decisions in the same order as it was live: the same figures and alarm points.
         LineMonitor monitor = new LineMonitor(recipe.monitor(), FixtureCheck.Limits.DEFAULT, recipe);
         List<AlarmPoint> points = new ArrayList<>();
+        if (report != null && report.toAbsolutePath().getParent() != null && !java.nio.file.Files.isDirectory(report.toAbsolutePath().getParent()))
+            throw new UsageException("--report: folder " + report.toAbsolutePath().getParent() + " does not exist");
+        net.zbin.app.report.LotPlots plots = report == null ? null : new net.zbin.app.report.LotPlots(recipe);
+        RowProgress bar = java.nio.file.Files.exists(in) ? new RowProgress(err, in, quiet, progress) : null;
         long[] badRows = {0};
         ReadingSource.BadRow[] firstBad = {null};
         try (ReadingSource src = ReadingSource.open(in, b -> {
@@ -69,8 +79,14 @@ public final class ReplayCommand implements Callable<Integer> {
                 Grading g = Grader.recorded(recipe, row);
                 tally.add(g, !row.isCheck());
                 Decision d = new Decision(row.line(), "", "", Trigger.Kind.parse(row.kind()), recipe.name(), g, Double.NaN, false, row.attempt());
-                for (AlarmCode.Change c : monitor.observe(d)) points.add(new AlarmPoint(row.line(), c));
+                if (plots != null && !row.isCheck()) plots.add(g);
+                for (AlarmCode.Change c : monitor.observe(d)) {
+                    points.add(new AlarmPoint(row.line(), c));
+                    if (plots != null) plots.alarm(c);
+                }
+                if (bar != null) bar.row();
             }
+            if (bar != null) bar.done();
         } catch (IOException e) {
             throw new UsageException(e.getMessage());
         }
@@ -91,6 +107,13 @@ public final class ReplayCommand implements Callable<Integer> {
         } else {
             printTable(out, s, recipe, badRows[0]);
             printMonitor(out, m, points);
+        }
+        if (plots != null) {
+            new net.zbin.app.report.HtmlReport("zbin replay: " + recipe.name() + " on " + in.getFileName())
+                    .para("Recipe " + recipe.name() + ", input " + in.getFileName() + ".").heading("Summary").summary(recipe, s)
+                    .heading("Line monitor").monitor(m).heading("Deviation").deviationHistogram(plots).heading("Loss").lossHistogram(plots)
+                    .heading("Run chart").runChart(plots).write(report);
+            if (!json) out.println("  report: " + report);
         }
         return Main.EXIT_OK;
     }

@@ -36,17 +36,41 @@ public final class SimLotCommand implements Callable<Integer> {
     String speed;
     @Option(names = "--out", required = true, paramLabel = "FILE.csv", description = "where to write the lot")
     Path out;
+    @Option(names = "--spread-x", defaultValue = "1", paramLabel = "K", description = "what if the parts' spread were K times the scenario's")
+    double spreadX;
+    @Option(names = "--offset-pct", paramLabel = "PCT", description = "what if the parts' mean were this far from nominal (%)")
+    Double offsetPct;
+    @Option(names = "--stray-drift", paramLabel = "F_PER_H", converter = SiConverter.Farad.class, description = "what if the fixture's stray C drifted this much per hour (e.g. 0.5p)")
+    Double strayDrift;
+    @Option(names = "--contact-wear", paramLabel = "OHM_PER_H", converter = SiConverter.Ohm.class, description = "what if the contacts gained this resistance per hour")
+    Double contactWear;
+    @Option(names = "--noise-x", defaultValue = "1", paramLabel = "K", description = "what if the meter were K times as noisy")
+    double noiseX;
+    @Option(names = "--seconds-per-part", paramLabel = "S", description = "simulated time between parts, for drifts (default: 1 / the scenario's rate)")
+    Double secondsPerPart;
 
     @picocli.CommandLine.Spec
     picocli.CommandLine.Model.CommandSpec spec;
 
     @Override
     public Integer call() throws Exception {
-        Scenario sc = lot.scenario();
+        if (!(spreadX >= 0)) throw new UsageException("--spread-x must be >= 0 (was " + spreadX + ")");
+        if (!(noiseX >= 0)) throw new UsageException("--noise-x must be >= 0 (was " + noiseX + ")");
+        Scenario sc = lot.scenario().whatIf(spreadX, offsetPct == null ? Double.NaN : offsetPct, strayDrift == null ? Double.NaN : strayDrift,
+                contactWear == null ? Double.NaN : contactWear);
         long parts = lot.parts;
         double f = freq != null ? freq : sc.part().testFreq();
+        double dt = secondsPerPart != null ? secondsPerPart : 1 / Math.max(1e-6, sc.handler().ratePerS());
+        if (!(dt >= 0)) throw new UsageException("--seconds-per-part must be >= 0 (was " + dt + ")");
         Contacts contacts = new Contacts();
-        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        Instant[] now = {Instant.parse("2026-12-01T06:00:00Z")};
+        Clock simulated = new Clock() { // simulated time, so that drifts per hour act per part, however fast the lot is written
+            public java.time.ZoneId getZone() { return java.time.ZoneOffset.UTC; }
+            public Clock withZone(java.time.ZoneId z) { return this; }
+            public Instant instant() { return now[0]; }
+        };
+        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), simulated, sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        meter.noiseFactor(noiseX);
         expectNone(meter.handle("CONF:FREQ " + f));
         expectNone(meter.handle("CONF:PACE " + speed));
         contacts.open();
@@ -61,6 +85,7 @@ public final class SimLotCommand implements Callable<Integer> {
              CSVPrinter csv = new CSVPrinter(w, CSVFormat.DEFAULT.builder().setHeader("lot", "seq", "part", "kind", "freq_hz",
                      "r_ohm", "x_ohm", "raw_r_ohm", "raw_x_ohm", "comp", "true_value", "contact").get())) {
             for (long i = 0; i < parts; i++) {
+                now[0] = now[0].plusNanos((long) (dt * 1e9));
                 LotGenerator.SimPart p = gen.next();
                 LotGenerator.present(p, contacts);
                 double[] raw = read(meter);

@@ -83,6 +83,21 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
 
     private static double z(Double d) { return d == null ? 0 : d; }
 
+    /**
+     * The same scenario with what-if changes: the parts' spread times {@code spreadFactor}, their offset (NaN: as
+     * is), the fixture's stray drift and contact-resistance drift per hour (NaN: as is).
+     */
+    public Scenario whatIf(double spreadFactor, double offsetPct, double driftFPerHour, double rDriftOhmPerHour) {
+        Part p = part;
+        Part np = new Part(p.type(), p.nominal(), p.testFreq(), Double.isNaN(offsetPct) ? p.offsetPct() : offsetPct, p.spreadPct() * spreadFactor,
+                p.lossMean(), p.lossSigma(), p.lossyRate(), p.lossyLoss(), p.seriesOhm(), p.parasitic());
+        FixtureSpec f = fixture;
+        FixtureSpec nf = new FixtureSpec(f.stray(), f.strayGS(), f.residualROhm(), f.residualLH(),
+                Double.isNaN(driftFPerHour) ? f.driftPerHour() : Double.valueOf(driftFPerHour),
+                Double.isNaN(rDriftOhmPerHour) ? f.rDriftPerHour() : Double.valueOf(rDriftOhmPerHour));
+        return new Scenario(scenario, description, seed, lot, np, nf, contact, meterFaults, handler);
+    }
+
     public Scenario {
         if (lot == null || part == null || fixture == null) throw new IllegalArgumentException("scenario needs lot, part and fixture");
         if (part.nominal() == null || !(part.nominal() > 0)) throw new IllegalArgumentException("part.nominal must be > 0");

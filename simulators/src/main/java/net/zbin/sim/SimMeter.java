@@ -69,6 +69,14 @@ public final class SimMeter {
 
     public synchronized double freqHz() { return freqHz; }
 
+    private double noiseFactor = 1;
+
+    /** Multiplies the meter's noise (a what-if: a noisier meter). */
+    public synchronized void noiseFactor(double k) {
+        if (!(k >= 0) || !Double.isFinite(k)) throw new IllegalArgumentException("noise factor must be >= 0 (was " + k + ")");
+        noiseFactor = k;
+    }
+
     /** Relative noise (σ of R and of X, as a fraction of |Z|) at the current pace and averaging. */
     public synchronized double noiseRel() {
         double base = switch (pace) {
@@ -76,7 +84,7 @@ public final class SimMeter {
             case "FINE" -> 5e-5;
             default -> 2e-4;
         };
-        return base / Math.sqrt(averaging);
+        return noiseFactor * base / Math.sqrt(averaging);
     }
 
     /** Stated time of one measurement in milliseconds. */
