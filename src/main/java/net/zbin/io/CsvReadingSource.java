@@ -43,10 +43,12 @@ final class CsvReadingSource implements ReadingSource {
         this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).ofCsvRecord(file, StandardCharsets.UTF_8);
         this.it = reader.iterator();
         Map<String, Integer> header = new HashMap<>();
+        int fields = 0;
         try {
             if (it.hasNext()) {
                 CsvRecord h = it.next();
-                for (int i = 0; i < h.getFieldCount(); i++) header.putIfAbsent(h.getField(i).trim(), i);
+                fields = h.getFieldCount();
+                for (int i = 0; i < fields; i++) header.putIfAbsent(h.getField(i).trim(), i);
             }
         } catch (CsvParseException | UncheckedIOException e) {
             reader.close();
@@ -58,7 +60,7 @@ final class CsvReadingSource implements ReadingSource {
                 throw new ConfigException(file, "line 1", "header lacks column '" + col + "' (needs at least "
                         + String.join(",", RecordColumns.REPLAY_REQUIRED) + ")");
             }
-        width = header.size();
+        width = fields; // the header's own field count: a repeated column name does not shorten the rows
         fFreq = header.get("freq_hz");
         fR = header.get("r_ohm");
         fX = header.get("x_ohm");

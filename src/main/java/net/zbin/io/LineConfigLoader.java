@@ -49,6 +49,13 @@ public final class LineConfigLoader {
         tls.finish();
         if (broker.startsWith("ssl://") && ca == null) throw m.error("tls.ca_file", "is required for an ssl:// broker");
         if ((cert == null) != (key == null)) throw m.error("tls.cert_file", "cert_file and key_file go together");
+        // Fail closed: a TLS file that is named but cannot be loaded stops the start, naming the key.
+        if (ca != null && net.zbin.io.mqtt.TlsFiles.certificateProblem(ca) != null)
+            throw m.error("tls.ca_file", ca + " " + net.zbin.io.mqtt.TlsFiles.certificateProblem(ca));
+        if (cert != null && net.zbin.io.mqtt.TlsFiles.certificateProblem(cert) != null)
+            throw m.error("tls.cert_file", cert + " " + net.zbin.io.mqtt.TlsFiles.certificateProblem(cert));
+        if (key != null && net.zbin.io.mqtt.TlsFiles.keyProblem(key) != null)
+            throw m.error("tls.key_file", key + " " + net.zbin.io.mqtt.TlsFiles.keyProblem(key));
         int keepAlive = m.optInteger("keepalive_s", 10);
         if (keepAlive < 2 || keepAlive > 600) throw m.error("keepalive_s", "must be 2..600 (was " + keepAlive + ")");
         m.finish();
@@ -56,7 +63,12 @@ public final class LineConfigLoader {
         SpecNode me = n.child("meter");
         if (!n.has("meter")) throw n.error("meter", "is required (profile and optionally transport)");
         Path profileFile = base.resolve(me.text("profile"));
-        MeterProfile profile = MeterProfileLoader.load(profileFile);
+        MeterProfile profile;
+        try {
+            profile = MeterProfileLoader.load(profileFile);
+        } catch (ConfigException e) {
+            throw me.error("profile", e.getMessage()); // the config's key first, then the profile's own file and key
+        }
         if (me.has("transport")) profile = profile.withTransport(TransportSpecs.parse(me.child("transport")));
         me.finish();
 
@@ -66,7 +78,11 @@ public final class LineConfigLoader {
         String active = r.text("active");
         Path activeFile = recipeDir.resolve(active + ".yaml");
         if (!Files.exists(activeFile)) throw r.error("active", "no recipe file " + activeFile);
-        RecipeLoader.load(activeFile);
+        try {
+            RecipeLoader.load(activeFile);
+        } catch (ConfigException e) {
+            throw r.error("active", e.getMessage());
+        }
         r.finish();
 
         Path state = base.resolve(n.optText("state_dir", "state")).normalize();

@@ -92,4 +92,15 @@ class ReplayCommandTest {
         assertTrue(c.out().contains("parts finished") && c.out().contains("2000 presentations"), c.out());
         assertTrue(c.out().contains("in-grade"), c.out());
     }
+
+    @Test
+    void aRepeatedColumnName_doesNotShortenTheRows() throws Exception {
+        // Found by fuzzing: a header naming a column twice once made the reader index past the row.
+        Path f = dir.resolve("dup.csv");
+        Files.writeString(f, "freq_hz,r_ohm,x_ohm,note,note\n1000,16,-1591.5,a,b\n1000,16,-1591.5,a\n");
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", f.toString(), "--json");
+        assertEquals(0, c.exit(), c.err());
+        assertEquals(1, M.readTree(c.out()).get("total").asLong());
+        assertTrue(c.err().contains("line 3: has 4 fields, header has 5"), c.err());
+    }
 }

@@ -116,6 +116,24 @@ public final class ProfileMeterSession implements MeterSession {
     }
 
     private Reading parse(String reply) throws MeterException {
+        Parsed p = parse(profile, separator, reply);
+        String q = profile.measureQuery();
+        if (p.status() != null && !p.status().equals(profile.statusOk())) {
+            if (profile.statusOverload().contains(p.status()))
+                throw new MeterException(FaultKind.OVERLOAD, q, reply, "meter reports overload (status " + p.status() + ")");
+            throw new MeterException(FaultKind.INSTRUMENT_ERROR, q, reply, "meter status " + p.status() + errorQueue());
+        }
+        return new Reading(wanted.freqHz(), p.rOhm(), p.xOhm());
+    }
+
+    /** The fields of one measure reply as the profile names them. */
+    record Parsed(double rOhm, double xOhm, String status) {}
+
+    /**
+     * Splits and reads one measure reply by the profile's fields; a reply that does not fit is a typed
+     * GARBLED failure carrying the query and the reply, never another exception.
+     */
+    static Parsed parse(MeterProfile profile, java.util.regex.Pattern separator, String reply) throws MeterException {
         String q = profile.measureQuery();
         String[] parts = separator.split(reply.trim(), -1);
         List<MeterProfile.Field> fields = profile.fields();
@@ -129,24 +147,19 @@ public final class ProfileMeterSession implements MeterSession {
             switch (fields.get(i)) {
                 case STATUS -> status = p;
                 case IGNORE -> { }
-                case R_OHM -> r = number(p, reply);
-                case X_OHM -> x = number(p, reply);
-                case Z_OHM -> z = number(p, reply);
-                case THETA_DEG -> theta = number(p, reply);
-                case THETA_RAD -> { theta = number(p, reply); radians = true; }
+                case R_OHM -> r = number(q, p, reply);
+                case X_OHM -> x = number(q, p, reply);
+                case Z_OHM -> z = number(q, p, reply);
+                case THETA_DEG -> theta = number(q, p, reply);
+                case THETA_RAD -> { theta = number(q, p, reply); radians = true; }
             }
-        }
-        if (status != null && !status.equals(profile.statusOk())) {
-            if (profile.statusOverload().contains(status))
-                throw new MeterException(FaultKind.OVERLOAD, q, reply, "meter reports overload (status " + status + ")");
-            throw new MeterException(FaultKind.INSTRUMENT_ERROR, q, reply, "meter status " + status + errorQueue());
         }
         if (Double.isNaN(r)) {
             double t = radians ? theta : Math.toRadians(theta);
             r = z * Math.cos(t);
             x = z * Math.sin(t);
         }
-        return new Reading(wanted.freqHz(), r, x);
+        return new Parsed(r, x, status);
     }
 
     private String errorQueue() {
@@ -159,11 +172,11 @@ public final class ProfileMeterSession implements MeterSession {
         }
     }
 
-    private double number(String p, String reply) throws MeterException {
+    private static double number(String query, String p, String reply) throws MeterException {
         try {
             return Double.parseDouble(p);
         } catch (NumberFormatException e) {
-            throw new MeterException(FaultKind.GARBLED, profile.measureQuery(), reply, "field '" + p + "' is not a number");
+            throw new MeterException(FaultKind.GARBLED, query, reply, "field '" + p + "' is not a number");
         }
     }
 
