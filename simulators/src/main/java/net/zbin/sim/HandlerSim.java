@@ -31,7 +31,7 @@ import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
  */
 public final class HandlerSim implements AutoCloseable {
     private static final ObjectMapper JSON = new ObjectMapper();
-    static final int REMEMBERED = 20_000;
+    static final int REMEMBERED = 10_000;
 
     /**
      * @param broker      broker URL
@@ -87,10 +87,13 @@ public final class HandlerSim implements AutoCloseable {
     private final PartLoader loader;
     private final MqttAsyncClient client;
     private final Map<String, CompletableFuture<JsonNode>> waiting = new ConcurrentHashMap<>();
-    /** Decisions by presentation (seq and part), the last {@value #REMEMBERED}. */
-    private final Map<String, JsonNode> answered = java.util.Collections.synchronizedMap(new java.util.LinkedHashMap<>() {
+    /** What a presentation was answered: enough to tell a contradictory repeat. */
+    private record Answer(int bin, String verdict) {}
+
+    /** Answers by presentation (seq and part), the last {@value #REMEMBERED}: bounded, and small per entry. */
+    private final Map<String, Answer> answered = java.util.Collections.synchronizedMap(new java.util.LinkedHashMap<>() {
         @Override
-        protected boolean removeEldestEntry(Map.Entry<String, JsonNode> e) { return size() > REMEMBERED; }
+        protected boolean removeEldestEntry(Map.Entry<String, Answer> e) { return size() > REMEMBERED; }
     });
     private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
             stale = new AtomicLong(), resent = new AtomicLong();
@@ -165,7 +168,7 @@ public final class HandlerSim implements AutoCloseable {
         long s = n.path("seq").asLong(-1);
         boolean repeat = n.path("repeat").asBoolean(false);
         String key = s + "/" + n.path("part").asText();
-        JsonNode first = answered.putIfAbsent(key, n);
+        Answer first = answered.putIfAbsent(key, new Answer(n.path("bin").asInt(), n.path("verdict").asText()));
         if (first == null && repeat && !retried.contains(key)) {
             stale.incrementAndGet(); // a repeat answer to a presentation sent once and never answered: it is about another part
             return;
@@ -174,7 +177,7 @@ public final class HandlerSim implements AutoCloseable {
             if (!repeat) duplicate.incrementAndGet();
             else {
                 repeatsAnswered.incrementAndGet();
-                if (first.path("bin").asInt() != n.path("bin").asInt() || !first.path("verdict").asText().equals(n.path("verdict").asText()))
+                if (first.bin() != n.path("bin").asInt() || !first.verdict().equals(n.path("verdict").asText()))
                     contradictory.incrementAndGet();
             }
             return;

@@ -51,7 +51,7 @@ public final class Daemon implements AutoCloseable {
                 cfg.stateDir().resolve("alarms-" + cfg.line() + ".jsonl"));
         this.monitor = new MonitorListener(cfg, mode, clock, setup.recipe());
         this.stats = new LineStats(clock, cfg.deadlineMs());
-        this.book = new DecisionBook(cfg.repeatWindowMs(), 100_000);
+        this.book = new DecisionBook(cfg.repeatWindowMs(), 20_000);
         this.records = new RecordLog(cfg.records(), cfg.line(), new RecordLog.Listener() {
             public void failed(String message) { mode.setLogFailing(true, message); }
 

@@ -76,6 +76,13 @@ final class DecisionBook {
     void put(Decision d, long atMs) {
         bySeq.remove(d.seq());
         bySeq.put(d.seq(), new Entry(d, atMs));
+        // Presentations older than the repeat window and a minute for retests are of no further use: memory stays flat.
+        var it = bySeq.values().iterator();
+        while (it.hasNext()) {
+            Entry oldest = it.next();
+            if (atMs - oldest.atMs() <= Math.max(windowMs, 60_000)) break;
+            it.remove();
+        }
     }
 
     /** Seqs that came back as another presentation, since start. */

@@ -1,0 +1,233 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.io.BufferedReader;
+import java.io.InputStreamReader;
+import java.io.OutputStream;
+import java.net.Socket;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicLong;
+import net.zbin.io.Json;
+import net.zbin.io.mqtt.NoDelaySockets;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import org.HdrHistogram.Histogram;
+import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
+import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
+import org.eclipse.paho.client.mqttv3.MqttCallback;
+import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
+import org.eclipse.paho.client.mqttv3.MqttException;
+import org.eclipse.paho.client.mqttv3.MqttMessage;
+import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * The line end to end through a Mosquitto it starts itself, side by side with its floor in the same run:
+ * trigger → decision latency at a handler's pace against a bare MQTT echo through the same broker plus
+ * one request/response with the meter simulator at zero measurement time; the first 100 decisions after
+ * start against the handler's deadline; and open-loop rates with lost and duplicated decisions counted.
+ * Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
+ */
+class LineBench {
+    static final int PACE = 200, SAMPLES = 3000;
+
+    @TempDir
+    Path dir;
+
+    static MqttAsyncClient client(String url, Map<String, CompletableFuture<Long>> waiting, String... subs) throws Exception {
+        MqttAsyncClient c = new MqttAsyncClient(url, "bench-" + System.nanoTime(), new MemoryPersistence());
+        c.setCallback(new MqttCallback() {
+            public void connectionLost(Throwable t) { }
+
+            public void messageArrived(String topic, MqttMessage m) {
+                String p = new String(m.getPayload(), StandardCharsets.UTF_8);
+                int a = p.indexOf("\"seq\"");
+                if (a < 0) return;
+                int s = p.indexOf(':', a) + 1, e = s;
+                while (e < p.length() && (Character.isDigit(p.charAt(e)) || p.charAt(e) == ' ')) e++;
+                CompletableFuture<Long> f = waiting.get(p.substring(s, e).trim());
+                if (f != null) f.complete(System.nanoTime());
+            }
+
+            public void deliveryComplete(IMqttDeliveryToken t) { }
+        });
+        MqttConnectOptions o = new MqttConnectOptions();
+        o.setCleanSession(true);
+        o.setMaxInflight(5000);
+        o.setSocketFactory(NoDelaySockets.plain());
+        c.connect(o).waitForCompletion(10_000);
+        if (subs.length > 0) c.subscribe(subs, new int[subs.length]).waitForCompletion(10_000);
+        return c;
+    }
+
+    /** Request/response at a handler's pace: one message, wait for its answer, next slot. */
+    static Histogram paced(MqttAsyncClient c, Map<String, CompletableFuture<Long>> waiting, String topic, String prefix, int n, int rate, long seq0)
+            throws Exception {
+        Histogram h = new Histogram(60_000_000_000L, 3);
+        long period = 1_000_000_000L / rate, next = System.nanoTime();
+        for (int i = 0; i < n; i++) {
+            String seq = Long.toString(seq0 + i);
+            CompletableFuture<Long> f = new CompletableFuture<>();
+            waiting.put(seq, f);
+            long t0 = System.nanoTime();
+            c.publish(topic, ("{\"seq\": " + seq + prefix + "}").getBytes(StandardCharsets.UTF_8), 1, false);
+            long t1 = f.get(10, TimeUnit.SECONDS);
+            waiting.remove(seq);
+            h.recordValue(Math.max(1, t1 - t0));
+            next += period;
+            long wait = next - System.nanoTime();
+            if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+            else next = System.nanoTime();
+        }
+        return h;
+    }
+
+    static ObjectNode json(Histogram h) {
+        ObjectNode n = Json.object();
+        for (double p : new double[] {50, 99, 99.9}) n.put("p" + (p == 99.9 ? "999" : Integer.toString((int) p)) + "_ms", h.getValueAtPercentile(p) / 1e6);
+        n.put("max_ms", h.getMaxValue() / 1e6);
+        return n;
+    }
+
+    @Test
+    void theLine_againstItsFloor() throws Exception {
+        ObjectNode out = Json.object();
+        out.put("machine", Runtime.getRuntime().availableProcessors() + " cores, " + System.getProperty("java.vm.name") + " " + System.getProperty("java.version"));
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n")) {
+            // Floor 1: a bare MQTT echo through the same broker.
+            Map<String, CompletableFuture<Long>> echoWaiting = new ConcurrentHashMap<>();
+            MqttAsyncClient echo = client(broker.url(), new ConcurrentHashMap<>());
+            echo.setCallback(new MqttCallback() {
+                public void connectionLost(Throwable t) { }
+
+                public void messageArrived(String topic, MqttMessage m) throws MqttException { echo.publish("bench/resp", m.getPayload(), 1, false); }
+
+                public void deliveryComplete(IMqttDeliveryToken t) { }
+            });
+            echo.subscribe("bench/req", 1).waitForCompletion(10_000);
+            MqttAsyncClient req = client(broker.url(), echoWaiting, "bench/resp");
+            paced(req, echoWaiting, "bench/req", "", 500, PACE, 0);
+            Histogram echoH = paced(req, echoWaiting, "bench/req", "", SAMPLES, PACE, 1_000_000);
+
+            try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
+                    "handler: {deadline_ms: 150}\n")) {
+                rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+                // Floor 2: one request/response with the meter simulator at zero measurement time.
+                Histogram meterH = new Histogram(60_000_000_000L, 3);
+                try (Socket s = new Socket("127.0.0.1", rig.meterServer.port())) {
+                    s.setTcpNoDelay(true);
+                    OutputStream o = s.getOutputStream();
+                    BufferedReader in = new BufferedReader(new InputStreamReader(s.getInputStream(), StandardCharsets.US_ASCII));
+                    for (int i = 0; i < SAMPLES + 500; i++) {
+                        long t0 = System.nanoTime();
+                        o.write("TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII));
+                        o.flush();
+                        in.readLine();
+                        if (i >= 500) meterH.recordValue(Math.max(1, System.nanoTime() - t0));
+                    }
+                }
+                // The first 100 decisions after start, then the line at a handler's pace.
+                Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
+                MqttAsyncClient handler = client(broker.url(), waiting, "zbin/bench/decision");
+                Histogram first = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"F\"", 100, PACE, 0);
+                paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 500, PACE, 10_000);
+                Histogram line = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", SAMPLES, PACE, 100_000);
+                double floorP50 = (echoH.getValueAtPercentile(50) + meterH.getValueAtPercentile(50)) / 1e6;
+                double floorP99 = (echoH.getValueAtPercentile(99) + meterH.getValueAtPercentile(99)) / 1e6;
+                out.set("echo", json(echoH));
+                out.set("meter", json(meterH));
+                out.put("floor_p50_ms", floorP50);
+                out.put("floor_p99_ms", floorP99);
+                out.set("line_at_" + PACE + "_per_s", json(line));
+                out.set("first_100_after_start", json(first));
+                System.out.printf(Locale.ROOT, "%n  %-46s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
+                for (var e : new Object[][] {{"floor: MQTT echo", echoH}, {"floor: meter request/response", meterH}, {"trigger -> decision", line},
+                        {"first 100 decisions after start", first}}) {
+                    Histogram h = (Histogram) e[1];
+                    System.out.printf(Locale.ROOT, "  %-46s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
+                            h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
+                }
+                System.out.printf(Locale.ROOT, "  floor (echo + meter): p50 %.3f ms, p99 %.3f ms; targets p50 <= %.3f, p99 <= %.3f%n", floorP50, floorP99,
+                        floorP50 + 0.2, 1.5 * floorP99);
+
+                // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
+                ObjectNode rates = out.putObject("open_loop");
+                AtomicLong answered = new AtomicLong(), dup = new AtomicLong();
+                Map<String, Boolean> seen = new ConcurrentHashMap<>();
+                MqttAsyncClient counter = new MqttAsyncClient(broker.url(), "bench-count-" + System.nanoTime(), new MemoryPersistence());
+                counter.setCallback(new MqttCallback() {
+                    public void connectionLost(Throwable t) { }
+
+                    public void messageArrived(String topic, MqttMessage m) {
+                        String p = new String(m.getPayload(), StandardCharsets.UTF_8);
+                        int a = p.indexOf("\"part\"");
+                        String part = p.substring(a, p.indexOf(',', a));
+                        if (seen.putIfAbsent(part, true) != null) dup.incrementAndGet();
+                        answered.incrementAndGet();
+                    }
+
+                    public void deliveryComplete(IMqttDeliveryToken t) { }
+                });
+                MqttConnectOptions co = new MqttConnectOptions();
+                co.setSocketFactory(NoDelaySockets.plain());
+                co.setMaxInflight(5000);
+                counter.connect(co).waitForCompletion(10_000);
+                counter.subscribe("zbin/bench/decision", 1).waitForCompletion(10_000);
+                int seconds = Integer.getInteger("zbin.bench.seconds", 10);
+                long seq = 1_000_000;
+                for (int rate : new int[] {1000, 2000, 3000, 4000}) {
+                    answered.set(0);
+                    dup.set(0);
+                    seen.clear();
+                    long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
+                    for (long i = 0; i < n; i++, seq++) {
+                        while (true) {
+                            try {
+                                handler.publish("zbin/bench/trigger", ("{\"seq\": " + seq + ", \"part\": \"R" + rate + "-" + i + "\", \"lot\": \"BENCH\"}")
+                                        .getBytes(StandardCharsets.UTF_8), 1, false);
+                                break;
+                            } catch (MqttException e) {
+                                if (e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT) throw e;
+                                Thread.onSpinWait();
+                            }
+                        }
+                        next += period;
+                        long wait = next - System.nanoTime();
+                        if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+                    }
+                    double sendS = (System.nanoTime() - start) / 1e9;
+                    long end = System.currentTimeMillis() + 20_000;
+                    while (answered.get() < n && System.currentTimeMillis() < end) Thread.sleep(20);
+                    double doneS = (System.nanoTime() - start) / 1e9;
+                    long busy = 0;
+                    ObjectNode r = rates.putObject(Integer.toString(rate));
+                    r.put("sent", n);
+                    r.put("answered", answered.get());
+                    r.put("duplicated", dup.get());
+                    r.put("send_s", sendS);
+                    r.put("all_answered_after_s", doneS);
+                    System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated), all answered after %.1f s%n",
+                            rate, seconds, n, sendS, answered.get(), dup.get(), doneS);
+                    assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
+                    assertEquals(0, dup.get());
+                }
+                counter.disconnect().waitForCompletion(5000);
+                handler.disconnect().waitForCompletion(5000);
+            }
+            req.disconnect().waitForCompletion(5000);
+            echo.disconnect().waitForCompletion(5000);
+        }
+        Files.createDirectories(Path.of("target/bench"));
+        Files.writeString(Path.of("target/bench/line.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
+    }
+}
