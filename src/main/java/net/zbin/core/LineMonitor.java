@@ -45,7 +45,7 @@ public final class LineMonitor {
     /** A new lot (or recipe): figures and charts start again. Alarms of the fixture stay as they are. */
     public void startLot(Recipe r) {
         recipe = r;
-        value = new DriftChart(s);
+        value = s.statedBaseline() ? new DriftChart(s, s.baselineMeanPct(), s.baselineSigmaPct()) : new DriftChart(s);
         loss = new DriftChart(s);
         dev.reset();
         window.clear();

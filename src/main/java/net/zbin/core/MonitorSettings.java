@@ -16,10 +16,21 @@ package net.zbin.core;
  * @param windowParts    presentations in the rolling window
  * @param maxNegativeRPct negative-r share of the window that raises negative-r-rate, in %
  * @param compMaxAgeH    compensation older than this raises compensation-old, in hours
+ * @param baselineMeanPct the value's baseline deviation in % when stated by the recipe (NaN: learned from the lot)
+ * @param baselineSigmaPct its σ per part in % (NaN: learned)
  */
 public record MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
-                              int windowParts, double maxNegativeRPct, double compMaxAgeH) {
-    public static final MonitorSettings DEFAULT = new MonitorSettings(2000, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8);
+                              int windowParts, double maxNegativeRPct, double compMaxAgeH, double baselineMeanPct, double baselineSigmaPct) {
+    public static final MonitorSettings DEFAULT = new MonitorSettings(2000, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8, Double.NaN, Double.NaN);
+
+    /** With the value's baseline learned from each lot. */
+    public MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
+                           int windowParts, double maxNegativeRPct, double compMaxAgeH) {
+        this(learnParts, subgroup, ewmaLambda, ewmaL, cusumK, cusumH, clearAfter, windowParts, maxNegativeRPct, compMaxAgeH, Double.NaN, Double.NaN);
+    }
+
+    /** Whether the recipe states the value's baseline. */
+    public boolean statedBaseline() { return !Double.isNaN(baselineSigmaPct); }
 
     public MonitorSettings {
         if (learnParts < 10 || learnParts > 100_000) throw new SpecException("monitor.learn_parts", "must be 10..100000 (was " + learnParts + ")");
@@ -30,5 +41,9 @@ public record MonitorSettings(int learnParts, int subgroup, double ewmaLambda, d
         if (windowParts < 10 || windowParts > 1_000_000) throw new SpecException("monitor.window_parts", "must be 10..1000000 (was " + windowParts + ")");
         if (!(maxNegativeRPct > 0 && maxNegativeRPct <= 100)) throw new SpecException("monitor.max_negative_r_pct", "must be > 0 and <= 100 (was " + maxNegativeRPct + ")");
         if (!(compMaxAgeH > 0)) throw new SpecException("monitor.compensation_max_age_h", "must be > 0 (was " + compMaxAgeH + ")");
+        if (Double.isNaN(baselineMeanPct) != Double.isNaN(baselineSigmaPct))
+            throw new SpecException("monitor.baseline_sigma_pct", "give baseline_mean_pct and baseline_sigma_pct together");
+        if (!Double.isNaN(baselineSigmaPct) && !(baselineSigmaPct > 0))
+            throw new SpecException("monitor.baseline_sigma_pct", "must be > 0 (was " + baselineSigmaPct + ")");
     }
 }

@@ -112,8 +112,9 @@ public final class RecipeLoader {
         int clear = m.optInteger("clear_after", d.clearAfter()), window = m.optInteger("window_parts", d.windowParts());
         double neg = m.optNumber("max_negative_r_pct", d.maxNegativeRPct(), Unit.PERCENT);
         double age = m.optNumber("compensation_max_age_h", d.compMaxAgeH(), Unit.RATIO);
+        double bMean = m.optNumber("baseline_mean_pct", Double.NaN, Unit.PERCENT), bSigma = m.optNumber("baseline_sigma_pct", Double.NaN, Unit.PERCENT);
         m.finish();
-        return m.build(null, () -> new MonitorSettings(learn, sub, lambda, l, k, h, clear, window, neg, age));
+        return m.build(null, () -> new MonitorSettings(learn, sub, lambda, l, k, h, clear, window, neg, age, bMean, bSigma));
     }
 
     private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {

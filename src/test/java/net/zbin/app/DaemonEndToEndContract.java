@@ -77,6 +77,8 @@ abstract class DaemonEndToEndContract {
             assertEquals(s.finished(), dash.path("parts").asLong(), "the handler finished as many parts as the line counted");
             assertEquals(s.yieldPct(), dash.path("yield_pct").asDouble(), 0.005, "one yield: handler and dashboard");
             assertEquals("offline", dash.path("mode").asText(), "the retained dashboard says offline after a clean stop");
+            assertEquals(parts, dash.path("last_hour").path("parts").asLong(), "a lot of less than an hour: all of it in the rolling hour");
+            assertTrue(dash.path("last_10_min").path("parts").asLong() > 0 && dash.path("last_10_min").has("yield_low_pct"), dash.toString());
             assertEquals(100, dash.path("repeats").asLong());
             double y = dash.path("yield_pct").asDouble();
             assertTrue(dash.path("yield_low_pct").asDouble() < y && y < dash.path("yield_high_pct").asDouble(), dash.toString());

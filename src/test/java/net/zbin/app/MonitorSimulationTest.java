@@ -174,4 +174,24 @@ class MonitorSimulationTest {
                 .findFirst().orElseThrow().change();
         assertTrue(drift.message().contains("proportional"), drift.message());
     }
+
+    @Test
+    void aBaselineStatedByTheRecipe_watchesFromTheFirstPart() throws Exception {
+        Scenario sc = scenario("harrowgate-c0g-100p-stable");
+        Line line = new Line(sc, sc.fixture().toFixture(), "mlcc-c0g-100p");
+        var m = line.recipe.monitor();
+        // The lot sits at +0.1 % with σ 0.6 % (the scenario); state a baseline 1 % off and the charts signal at once.
+        LineMonitor stated = new LineMonitor(new net.zbin.core.MonitorSettings(m.learnParts(), m.subgroup(), m.ewmaLambda(), m.ewmaL(),
+                m.cusumK(), m.cusumH(), m.clearAfter(), m.windowParts(), m.maxNegativeRPct(), m.compMaxAgeH(), -0.9, 0.6),
+                FixtureCheck.Limits.DEFAULT, line.recipe);
+        assertTrue(!stated.snapshot(line.clock.instant()).value().learning(), "no learning phase with a stated baseline");
+        List<AlarmCode.Change> changes = new ArrayList<>();
+        for (int i = 0; i < 1000; i++) {
+            LotGenerator.SimPart p = line.gen.next();
+            LotGenerator.present(p, line.contacts);
+            changes.addAll(stated.observe(new Decision(i, "P", "L", Trigger.Kind.PART, line.recipe.name(),
+                    Grader.grade(line.recipe, line.read(), line.comp, 1), 1, false, 0)));
+        }
+        assertTrue(changes.stream().anyMatch(c -> c.code() == AlarmCode.VALUE_DRIFT && c.active()), "signalled within the first 1 000 parts");
+    }
 }

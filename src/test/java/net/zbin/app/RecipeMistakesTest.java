@@ -106,6 +106,9 @@ class RecipeMistakesTest {
                 Arguments.of("Z graded without a phase window", GOOD.replace("part: capacitor", "part: resistor").replace("nominal: 100n", "nominal: 1k")
                         .replace("primary: Cs", "primary: Z").replace("d_max: 0.025", "esr_max_ohm: 2k"), "theta_min_deg"),
                 Arguments.of("plausible window inverted", GOOD + "plausible: {theta_min_deg: -40, theta_max_deg: -60}\n", "plausible.theta_min_deg"),
+                Arguments.of("monitor baseline half given", GOOD + "monitor: {baseline_mean_pct: 0.5}\n", "monitor.baseline_sigma_pct"),
+                Arguments.of("monitor subgroup out of range", GOOD + "monitor: {subgroup: 0}\n", "monitor.subgroup"),
+                Arguments.of("monitor key misspelled", GOOD + "monitor: {cusum_hh: 5}\n", "monitor.cusum_hh"),
                 Arguments.of("guard bin reused as pass bin", GOOD.replace("fault: 11}", "fault: 11, guard: 1}"), "reject.guard"),
                 Arguments.of("guard band that leaves an asymmetric grade no room", GOOD.replace("tolerance: J}", "low_pct: -0.5, high_pct: 0.5}")
                         .replace("pct: 0.2", "uncertainty_pct: 0.6"), "guard_band.uncertainty_pct"));

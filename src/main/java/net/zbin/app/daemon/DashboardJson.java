@@ -27,6 +27,8 @@ final class DashboardJson {
         round(n, "yield_high_pct", s.yieldHighPct(), 100);
         round(n, "uph", s.uphMinute(), 1);
         round(n, "uph_hour", s.uphHour(), 1);
+        window(n.putObject("last_10_min"), s.window10Min());
+        window(n.putObject("last_hour"), s.windowHour());
         ObjectNode lat = n.putObject("latency_ms");
         round(lat, "p50", s.p50Ms(), 100);
         round(lat, "p99", s.p99Ms(), 100);
@@ -44,6 +46,16 @@ final class DashboardJson {
         n.put("since", s.lotSince().toString());
         n.set("monitor", net.zbin.io.MonitorJson.encode(monitor));
         return n;
+    }
+
+    /** Parts finished and passed in a rolling time window, with the yield and its Wilson 95 % interval. */
+    private static void window(ObjectNode n, long[] w) {
+        n.put("parts", w[0]);
+        n.put("passed", w[1]);
+        double[] ci = net.zbin.core.Wilson.interval(w[1], w[0], net.zbin.core.Wilson.Z95);
+        round(n, "yield_pct", w[0] == 0 ? Double.NaN : 100.0 * w[1] / w[0], 100);
+        round(n, "yield_low_pct", ci[0] * 100, 100);
+        round(n, "yield_high_pct", ci[1] * 100, 100);
     }
 
     private static void round(ObjectNode n, String key, double v, double per) {

@@ -24,6 +24,7 @@ final class LineStats implements DecisionListener {
     private final BinTally tally = new BinTally();
     private final Histogram latencyUs = new Histogram(60_000_000L, 3);
     private final long[] ringCount = new long[RING_S];
+    private final long[] ringPassed = new long[RING_S];
     private final long[] ringSecond = new long[RING_S];
     private BinTally.Snapshot base = BinTally.Snapshot.EMPTY;
     private String lot = "";
@@ -47,10 +48,12 @@ final class LineStats implements DecisionListener {
      * @param yieldHighPct high end
      * @param uphMinute  parts finished in the last minute × 60
      * @param uphHour    parts finished in the last hour (scaled up while the daemon has run less than an hour)
+     * @param window10Min parts finished and passed in the last 10 minutes (rolling, whatever the lot)
+     * @param windowHour  the same for the last hour
      */
     record Snapshot(String lot, Instant lotSince, BinTally.Snapshot lotTally, BinTally.Snapshot total, double yieldLowPct,
                     double yieldHighPct, double uphMinute, double uphHour, double p50Ms, double p99Ms, double maxMs,
-                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy) {}
+                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy, long[] window10Min, long[] windowHour) {}
 
     @Override
     public synchronized void decided(DecisionFields.Entry e) {
@@ -62,22 +65,29 @@ final class LineStats implements DecisionListener {
             latencyUs.recordValue(Math.max(0, Math.min(60_000_000L, Math.round(d.latencyMs() * 1000))));
             if (d.latencyMs() > deadlineMs) late++;
         }
-        if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) countFinished(e.time().getEpochSecond());
+        if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) countFinished(e.time().getEpochSecond(), g.verdict() == Verdict.PASS);
     }
 
-    private void countFinished(long second) {
+    private void countFinished(long second, boolean passed) {
         int i = (int) Math.floorMod(second, (long) RING_S);
         if (ringSecond[i] != second) {
             ringSecond[i] = second;
             ringCount[i] = 0;
+            ringPassed[i] = 0;
         }
         ringCount[i]++;
+        if (passed) ringPassed[i]++;
     }
 
-    private long finishedSince(long fromSecond, long nowSecond) {
-        long n = 0;
-        for (int i = 0; i < RING_S; i++) if (ringSecond[i] > fromSecond && ringSecond[i] <= nowSecond) n += ringCount[i];
-        return n;
+    /** [parts finished, parts passed] in the seconds (from, now]. */
+    private long[] finishedSince(long fromSecond, long nowSecond) {
+        long n = 0, p = 0;
+        for (int i = 0; i < RING_S; i++)
+            if (ringSecond[i] > fromSecond && ringSecond[i] <= nowSecond) {
+                n += ringCount[i];
+                p += ringPassed[i];
+            }
+        return new long[] {n, p};
     }
 
     synchronized void repeated() { repeats++; }
@@ -110,12 +120,13 @@ final class LineStats implements DecisionListener {
         double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
         long now = clock.instant().getEpochSecond();
         long ranS = Math.max(1, now - started.getEpochSecond());
-        double minute = finishedSince(now - 60, now) * 60.0;
-        double hour = finishedSince(now - 3600, now) * 3600.0 / Math.min(3600, ranS);
+        double minute = finishedSince(now - 60, now)[0] * 60.0;
+        long[] h = finishedSince(now - 3600, now), m10 = finishedSince(now - 600, now);
+        double hour = h[0] * 3600.0 / Math.min(3600, ranS);
         boolean any = latencyUs.getTotalCount() > 0;
         return new Snapshot(lot, lotSince, l, all, ci[0] * 100, ci[1] * 100, minute, hour,
                 any ? latencyUs.getValueAtPercentile(50) / 1000.0 : Double.NaN,
                 any ? latencyUs.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, decisions, late, repeats, rejected, reusedSeqs, busy);
+                any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, decisions, late, repeats, rejected, reusedSeqs, busy, m10, h);
     }
 }

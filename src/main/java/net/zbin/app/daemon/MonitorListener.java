@@ -37,7 +37,7 @@ final class MonitorListener implements DecisionListener {
         MonitorSettings m = r.monitor();
         double age = Double.isNaN(cfg.monitor().compMaxAgeH()) ? m.compMaxAgeH() : cfg.monitor().compMaxAgeH();
         return new MonitorSettings(m.learnParts(), m.subgroup(), m.ewmaLambda(), m.ewmaL(), m.cusumK(), m.cusumH(), m.clearAfter(),
-                m.windowParts(), m.maxNegativeRPct(), age);
+                m.windowParts(), m.maxNegativeRPct(), age, m.baselineMeanPct(), m.baselineSigmaPct());
     }
 
     @Override
