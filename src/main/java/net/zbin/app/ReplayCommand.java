@@ -43,12 +43,8 @@ public final class ReplayCommand implements Callable<Integer> {
     boolean json;
     @Option(names = "--strict", description = "stop at the first bad row (exit 2)")
     boolean strict;
-    @Option(names = "--report", paramLabel = "FILE.html", description = "also write a self-contained HTML report with plots")
-    Path report;
-    @Option(names = "--quiet", description = "no progress on stderr")
-    boolean quiet;
-    @Option(names = "--progress", description = "progress on stderr even when it is not a terminal")
-    boolean progress;
+    @picocli.CommandLine.Mixin
+    ReadOptions reading;
     @Option(names = "--max-errors-shown", paramLabel = "N", defaultValue = "20", description = "bad rows listed before only counting (default ${DEFAULT-VALUE})")
     int maxShown;
 
@@ -63,10 +59,9 @@ public final class ReplayCommand implements Callable<Integer> {
         // The line monitor, fed the same decisions in the same order as it was live: the same figures and alarm points.
         LineMonitor monitor = new LineMonitor(recipe.monitor(), FixtureCheck.Limits.DEFAULT, recipe);
         List<AlarmPoint> points = new ArrayList<>();
-        if (report != null && report.toAbsolutePath().getParent() != null && !java.nio.file.Files.isDirectory(report.toAbsolutePath().getParent()))
-            throw new UsageException("--report: folder " + report.toAbsolutePath().getParent() + " does not exist");
-        net.zbin.app.report.LotPlots plots = report == null ? null : new net.zbin.app.report.LotPlots(recipe);
-        RowProgress bar = java.nio.file.Files.exists(in) ? new RowProgress(err, in, quiet, progress) : null;
+        ReadOptions.folderOf("--report", reading.report);
+        net.zbin.app.report.LotPlots plots = reading.report == null ? null : new net.zbin.app.report.LotPlots(recipe);
+        RowProgress bar = reading.progress(err, in);
         long[] badRows = {0};
         ReadingSource.BadRow[] firstBad = {null};
         try (ReadingSource src = ReadingSource.open(in, b -> {
@@ -112,8 +107,8 @@ public final class ReplayCommand implements Callable<Integer> {
             new net.zbin.app.report.HtmlReport("zbin replay: " + recipe.name() + " on " + in.getFileName())
                     .para("Recipe " + recipe.name() + ", input " + in.getFileName() + ".").heading("Summary").summary(recipe, s)
                     .heading("Line monitor").monitor(m).heading("Deviation").deviationHistogram(plots).heading("Loss").lossHistogram(plots)
-                    .heading("Run chart").runChart(plots).write(report);
-            if (!json) out.println("  report: " + report);
+                    .heading("Run chart").runChart(plots).write(reading.report);
+            if (!json) out.println("  report: " + reading.report);
         }
         return Main.EXIT_OK;
     }

@@ -79,8 +79,7 @@ public final class SimLotCommand implements Callable<Integer> {
         Impedance shortZ = average(meter, f);
         Compensation comp = new Compensation(f, CompensationSource.USER, Instant.now(), open, shortZ, null, null);
         LotGenerator gen = new LotGenerator(sc, sc.seed() + 1);
-        Path folder = out.toAbsolutePath().getParent();
-        if (folder != null && !Files.isDirectory(folder)) throw new UsageException("--out: folder " + folder + " does not exist");
+        ReadOptions.folderOf("--out", out);
         try (BufferedWriter w = Files.newBufferedWriter(out);
              CSVPrinter csv = new CSVPrinter(w, CSVFormat.DEFAULT.builder().setHeader("lot", "seq", "part", "kind", "freq_hz",
                      "r_ohm", "x_ohm", "raw_r_ohm", "raw_x_ohm", "comp", "true_value", "contact").get())) {

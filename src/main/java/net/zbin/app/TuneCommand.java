@@ -53,12 +53,8 @@ public final class TuneCommand implements Callable<Integer> {
     boolean json;
     @Option(names = "--csv", paramLabel = "FILE", description = "also write the table as CSV")
     Path csv;
-    @Option(names = "--report", paramLabel = "FILE.html", description = "also write a self-contained HTML report with plots")
-    Path report;
-    @Option(names = "--quiet", description = "no progress on stderr")
-    boolean quiet;
-    @Option(names = "--progress", description = "progress on stderr even when it is not a terminal")
-    boolean progress;
+    @picocli.CommandLine.Mixin
+    ReadOptions reading;
 
     @Spec
     CommandSpec spec;
@@ -78,14 +74,13 @@ public final class TuneCommand implements Callable<Integer> {
         double u = uncertaintyPct != null ? uncertaintyPct : recipe.guard().fromUncertainty() ? recipe.guard().widthPct() : Double.NaN;
         if (!(u > 0) && !(uncertaintyPct == null && recipe.guard().widthPct() == 0))
             throw new UsageException("--uncertainty-pct must be > 0 (was " + u + ")");
-        for (Path p : new Path[] {csv, report})
-            if (p != null && p.toAbsolutePath().getParent() != null && !Files.isDirectory(p.toAbsolutePath().getParent()))
-                throw new UsageException((p == csv ? "--csv" : "--report") + ": folder " + p.toAbsolutePath().getParent() + " does not exist");
-        net.zbin.app.report.LotPlots plots = report == null ? null : new net.zbin.app.report.LotPlots(recipe);
-        net.zbin.core.LineMonitor monitor = report == null ? null
+        ReadOptions.folderOf("--csv", csv);
+        ReadOptions.folderOf("--report", reading.report);
+        net.zbin.app.report.LotPlots plots = reading.report == null ? null : new net.zbin.app.report.LotPlots(recipe);
+        net.zbin.core.LineMonitor monitor = reading.report == null ? null
                 : new net.zbin.core.LineMonitor(recipe.monitor(), net.zbin.core.FixtureCheck.Limits.DEFAULT, recipe);
         BinTally baseTally = new BinTally();
-        RowProgress bar = Files.exists(in) ? new RowProgress(spec.commandLine().getErr(), in, quiet, progress) : null;
+        RowProgress bar = reading.progress(spec.commandLine().getErr(), in);
         Tuner tuner = new Tuner(recipe, sweeps, u);
         PrintWriter err = spec.commandLine().getErr();
         try (ReadingSource src = ReadingSource.open(in, b -> err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)"))) {
@@ -118,7 +113,7 @@ public final class TuneCommand implements Callable<Integer> {
             writeCsv(w, recipe, results);
         }
         if (targetFalseAccept != null && !json) out.println(why(results, pick, targetFalseAccept));
-        if (report != null) {
+        if (reading.report != null) {
             var h = new net.zbin.app.report.HtmlReport("zbin tune: " + recipe.name() + " on " + in.getFileName())
                     .para("Sweeps: " + String.join(" and ", vary) + ". Risk from U = " + u + " % of reading (k = 2): the measurement error is taken as normal "
                             + "with σ = U/2 of the reading; false accept = expected accepted parts whose true value lies outside their grade's limits, "
@@ -127,8 +122,8 @@ public final class TuneCommand implements Callable<Integer> {
             h.heading("Yield and risk against the setting").tuneCurves(results, sweeps.get(0).label(0).replace("=0", ""))
                     .heading("Every setting").tuneTable(results)
                     .heading("The lot under the recipe as it stands").summary(recipe, baseTally.snapshot())
-                    .deviationHistogram(plots).lossHistogram(plots).runChart(plots).write(report);
-            if (!json) out.println("  report: " + report);
+                    .deviationHistogram(plots).lossHistogram(plots).runChart(plots).write(reading.report);
+            if (!json) out.println("  report: " + reading.report);
         }
         return Main.EXIT_OK;
     }
