@@ -129,7 +129,9 @@ class DaemonPromisesIT {
     @Test
     void theBrokerDiesFiveTimesDuringALot_noTriggerGoesWithoutAnAnswer_noBinContradicts() throws Exception {
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
-             LineRig rig = new LineRig(dir, "outage", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "")) {
+             // A short keep-alive: a connection the broker's death leaves half-open is found within seconds, not minutes.
+             LineRig rig = new LineRig(dir, "outage", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "",
+                     "topic_root: zbin, keepalive_s: 2}")) {
             ExecutorService run = Executors.newSingleThreadExecutor();
             HandlerSim h = new HandlerSim(handler(rig, 2000, 150, 60_000), rig.scenario, PartLoader.direct(rig.contacts));
             Future<HandlerSim.Summary> f = run.submit(() -> h.run(p -> { }));
@@ -150,7 +152,9 @@ class DaemonPromisesIT {
             assertEquals(0, s.contradictory());
             assertEquals(0, s.stale());
             assertEquals(0, s.duplicate());
-            for (double r : readyAfterS) assertTrue(r < 1.5, "subscribed again within a fraction of a second: " + readyAfterS);
+            // Typically 0.4 s (the redial every 100 ms); a connection left half-open by the kill is found by the 2 s keep-alive.
+            for (double r : readyAfterS) assertTrue(r < 5, "subscribed again soon after the broker's return: " + readyAfterS);
+            assertTrue(readyAfterS.stream().filter(r -> r < 1.5).count() >= 3, "mostly within a fraction of a second: " + readyAfterS);
         }
     }
 

@@ -16,6 +16,11 @@ final class Dispatch {
     private static final Logger LOG = LoggerFactory.getLogger(Dispatch.class);
     /** Triggers and commands waiting for the measuring thread at most. */
     static final int QUEUE = 10_000;
+    /**
+     * Messages waiting for their {@code line-busy} answer at most. Larger than {@link #QUEUE}: answering busy costs
+     * a record row and a publish, not a measurement, yet a flood arrives faster than even that.
+     */
+    static final int OVERFLOW = 100_000;
 
     /** What a message becomes on the measuring thread, and on the overflow thread when the queue is full. */
     interface Handler {
@@ -27,7 +32,7 @@ final class Dispatch {
     private final ThreadPoolExecutor work, overflow;
 
     Dispatch(String line) {
-        overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
+        overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(OVERFLOW),
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "line-" + line), (r, ex) -> {

@@ -154,18 +154,23 @@ public final class MqttLink implements Publisher, AutoCloseable {
 
     @Override
     public void publish(String topic, byte[] payload, int qos, boolean retained) {
+        boolean told = false;
         while (true) {
             try {
                 client.publish(topic, payload, qos, retained);
                 return;
             } catch (MqttException e) {
-                int code = e.getReasonCode();
-                boolean full = code == MqttException.REASON_CODE_MAX_INFLIGHT || code == MqttException.REASON_CODE_DISCONNECTED_BUFFER_FULL
-                        || code == MqttException.REASON_CODE_CLIENT_NOT_CONNECTED || code == MqttException.REASON_CODE_CLIENT_DISCONNECTING;
-                if (!full || closing) {
-                    LOG.warn("publish to {} failed: {}", topic, e.toString());
+                // Every refusal of the client here is passing: a full window or offline buffer, or a connection on its
+                // way down or back up (not connected, connecting, disconnecting, lost). Wait and hand it over again;
+                // only a link that is being closed gives up.
+                if (closing) {
+                    LOG.warn("publish to {} not delivered: closing ({})", topic, e.toString());
                     notOffered.incrementAndGet();
                     return;
+                }
+                if (!told && e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT) {
+                    LOG.debug("publish to {} waits: {}", topic, e.toString());
+                    told = true;
                 }
                 waits.incrementAndGet();
                 synchronized (window) {
