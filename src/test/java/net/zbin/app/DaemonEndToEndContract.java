@@ -114,7 +114,9 @@ abstract class DaemonEndToEndContract {
                 assertEquals(topic, m.json().path("topic").asText());
                 assertFalse(m.json().path("reason").asText().isEmpty());
             }
-            assertTrue(rejected.stream().anyMatch(m -> m.json().path("reason").asText().contains("limit 4096")));
+            // every oversize payload (case 3: 5 000+ bytes) is refused for its size, by the size it had
+            List<Tap.Msg> oversize = rejected.stream().filter(m -> m.json().path("reason").asText().matches("payload is 5\\d{3} bytes, limit 4096")).toList();
+            assertEquals(200, oversize.size(), "oversize payloads refused for their size");
             tap.publish(topic, "{\"seq\": 424242, \"part\": \"after-the-storm\"}");
             JsonNode d = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 424242, 1, 10_000).get(0).json();
             assertEquals("J", d.path("grade").asText());
@@ -153,7 +155,8 @@ abstract class DaemonEndToEndContract {
             tap.publish(c, "{\"cmd\":\"reset-counters\",\"id\":\"z1\"}");
             tap.publish(c, "{\"cmd\":\"launch\",\"id\":\"u1\"}");
             tap.publish(c, "not json");
-            // seven commands carry a cmd and get a result; "not json" gets only a rejected notice
+            tap.publish(c, "{\"cmd\":\"pause\",\"id\":\"big\",\"pad\":\"" + "x".repeat(5000) + "\"}");
+            // seven commands carry a cmd and get a result; "not json" and the oversize one get only a rejected notice
             List<Tap.Msg> results = tap.await(m -> m.topic().endsWith("/command/result"), 7, 5000);
             Map<String, JsonNode> byId = new HashMap<>();
             for (Tap.Msg m : results) byId.put(m.json().path("id").asText(), m.json());
@@ -163,6 +166,10 @@ abstract class DaemonEndToEndContract {
             assertTrue(byId.get("z1").path("ok").asBoolean());
             assertFalse(byId.get("u1").path("ok").asBoolean());
             tap.await(m -> m.topic().endsWith("/rejected") && m.json().path("topic").asText().equals(c), 3, 5000);
+            tap.await(m -> m.topic().endsWith("/rejected") && m.json().path("topic").asText().equals(c)
+                    && m.json().path("reason").asText().endsWith("bytes, limit 4096"), 1, 5000);
+            assertTrue(tap.on("/command/result").stream().noneMatch(m -> m.json().path("id").asText().equals("big")),
+                    "an oversize command is not carried out");
             tap.publish(t, "{\"seq\":4}");
             JsonNode withLot = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 4, 1, 5000).get(0).json();
             assertEquals("HG-9", withLot.path("lot").asText());

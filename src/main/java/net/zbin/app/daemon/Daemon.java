@@ -14,6 +14,7 @@ import net.zbin.io.meter.MeterSession;
 import net.zbin.io.mqtt.MqttLink;
 import net.zbin.io.mqtt.Payloads;
 import net.zbin.io.mqtt.Topics;
+import net.zbin.io.mqtt.TriggerCodec;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -95,22 +96,36 @@ public final class Daemon implements AutoCloseable {
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
 
-    /** Paho's thread: only hand the message over. */
+    /**
+     * Paho's thread: only hand the message over. A payload beyond the size any trigger or command may have is
+     * refused in its turn without being kept, so a waiting queue never holds more than that size per message.
+     */
     private void route(String topic, byte[] payload) {
-        if (topic.equals(topics.trigger())) dispatch.submit(triggers, payload);
-        else if (topic.equals(topics.command())) dispatch.submit(commandsIn, payload);
+        boolean trigger = topic.equals(topics.trigger());
+        if (!trigger && !topic.equals(topics.command())) return;
+        if (payload.length > TriggerCodec.MAX_BYTES) dispatch.submit(oversize(topic, payload.length), new byte[0]);
+        else dispatch.submit(trigger ? triggers : commandsIn, payload);
+    }
+
+    private Dispatch.Handler oversize(String topic, int bytes) {
+        Runnable refuse = () -> path.reject(topic, "payload is " + bytes + " bytes, limit " + TriggerCodec.MAX_BYTES);
+        return new Dispatch.Handler() {
+            public void handle(byte[] p, long at) { refuse.run(); }
+
+            public Runnable overflow(byte[] p, long at) { return refuse; }
+        };
     }
 
     private final Dispatch.Handler triggers = new Dispatch.Handler() {
         public void handle(byte[] p, long at) { path.onTrigger(p, at); }
 
-        public void overflow(byte[] p, long at) { path.busy(p, at); }
+        public Runnable overflow(byte[] p, long at) { return path.busy(p, at); }
     };
 
     private final Dispatch.Handler commandsIn = new Dispatch.Handler() {
         public void handle(byte[] p, long at) { commands.handle(p); }
 
-        public void overflow(byte[] p, long at) { path.reject(topics.command(), "line busy: send the command again"); }
+        public Runnable overflow(byte[] p, long at) { return () -> path.reject(topics.command(), "line busy: send the command again"); }
     };
 
     private void publishDashboard() {

@@ -26,7 +26,11 @@ final class Dispatch {
     interface Handler {
         void handle(byte[] payload, long arrivedNanos);
 
-        void overflow(byte[] payload, long arrivedNanos);
+        /**
+         * Called on the submitting (Paho's) thread when the queue is full: reduces the message to the small task
+         * that answers it on the overflow thread, so a waiting answer holds a decoded trigger, not the payload.
+         */
+        Runnable overflow(byte[] payload, long arrivedNanos);
     }
 
     private final ThreadPoolExecutor work, overflow;
@@ -36,7 +40,7 @@ final class Dispatch {
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "line-" + line), (r, ex) -> {
-                    if (!ex.isShutdown() && r instanceof Job j) overflow.execute(() -> j.handler.overflow(j.payload, j.arrived));
+                    if (!ex.isShutdown() && r instanceof Job j) overflow.execute(j.handler.overflow(j.payload, j.arrived));
                 });
     }
 

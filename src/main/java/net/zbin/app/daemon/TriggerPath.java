@@ -82,10 +82,23 @@ final class TriggerPath {
         deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
     }
 
-    /** Overflow thread: the work queue is full, so the part is not measured; the handler hears so at once. */
-    void busy(byte[] payload, long arrivedNanos) {
-        Trigger t = decode(payload);
-        if (t == null) return;
+    /**
+     * The work queue is full, so the part is not measured; the handler hears so from the overflow thread.
+     * Decodes on the caller's thread and returns the answer to send later: {@code line-busy} for a trigger, the
+     * rejection for a malformed one. Holds only the decoded trigger (at most a few hundred bytes) while it waits.
+     */
+    Runnable busy(byte[] payload, long arrivedNanos) {
+        Trigger t;
+        try {
+            t = TriggerCodec.decode(payload);
+        } catch (PayloadException e) {
+            String why = e.getMessage();
+            return () -> reject(topics.trigger(), why);
+        }
+        return () -> answerBusy(t, arrivedNanos);
+    }
+
+    private void answerBusy(Trigger t, long arrivedNanos) {
         Recipe r = setup.recipe();
         Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
                 Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
