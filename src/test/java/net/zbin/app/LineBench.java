@@ -162,7 +162,7 @@ class LineBench {
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
-                AtomicLong answered = new AtomicLong(), dup = new AtomicLong();
+                AtomicLong answered = new AtomicLong(), dup = new AtomicLong(), busy = new AtomicLong();
                 Map<String, Boolean> seen = new ConcurrentHashMap<>();
                 MqttAsyncClient counter = new MqttAsyncClient(broker.url(), "bench-count-" + System.nanoTime(), new MemoryPersistence());
                 counter.setCallback(new MqttCallback() {
@@ -173,6 +173,7 @@ class LineBench {
                         int a = p.indexOf("\"part\"");
                         String part = p.substring(a, p.indexOf(',', a));
                         if (seen.putIfAbsent(part, true) != null) dup.incrementAndGet();
+                        if (p.contains("\"line-busy\"")) busy.incrementAndGet(); // answered, but not measured
                         answered.incrementAndGet();
                     }
 
@@ -188,6 +189,7 @@ class LineBench {
                 for (int rate : new int[] {1000, 2000, 3000, 4000}) {
                     answered.set(0);
                     dup.set(0);
+                    busy.set(0);
                     seen.clear();
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
@@ -209,15 +211,15 @@ class LineBench {
                     long end = System.currentTimeMillis() + 20_000;
                     while (answered.get() < n && System.currentTimeMillis() < end) Thread.sleep(20);
                     double doneS = (System.nanoTime() - start) / 1e9;
-                    long busy = 0;
                     ObjectNode r = rates.putObject(Integer.toString(rate));
                     r.put("sent", n);
                     r.put("answered", answered.get());
                     r.put("duplicated", dup.get());
+                    r.put("line_busy", busy.get());
                     r.put("send_s", sendS);
                     r.put("all_answered_after_s", doneS);
-                    System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated), all answered after %.1f s%n",
-                            rate, seconds, n, sendS, answered.get(), dup.get(), doneS);
+                    System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated, %d line-busy), all answered after %.1f s%n",
+                            rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }
