@@ -18,6 +18,13 @@ final class LineChannel {
     private final Pending pending = new Pending();
     private final String terminatorText;
     private boolean dirty;
+    /**
+     * Sync queries sent whose answers have not been read: a settle that timed out leaves its query in flight,
+     * and its answer must not be taken for the next one's (nor, later, for a reading).
+     */
+    private int syncsOwed;
+    /** Beyond this many unanswered sync queries the meter is taken to have dropped them; only the newest is awaited. */
+    private static final int MAX_SYNCS_OWED = 3;
 
     LineChannel(Transport transport, String terminator) {
         this.transport = transport;
@@ -33,7 +40,8 @@ final class LineChannel {
     /**
      * Brings the link back in step after a failure. With a sync query (e.g. {@code *OPC?}) it is sent
      * and every line before its answer is discarded: a meter answers in order, so a late reply can
-     * only come before it. Without one, whatever arrives within 20 ms is discarded.
+     * only come before it. An earlier settle that timed out still owes its answer, so every sync query sent
+     * is answered before the link counts as in step. Without one, whatever arrives within 20 ms is discarded.
      */
     void settle(String syncQuery, java.util.regex.Pattern syncExpect, int timeoutMs) throws MeterException {
         if (!dirty) return;
@@ -42,17 +50,31 @@ final class LineChannel {
             return;
         }
         pending.reset();
+        if (syncsOwed >= MAX_SYNCS_OWED) syncsOwed = 0;
         write(syncQuery);
+        syncsOwed++;
         long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
         while (true) {
             long left = (deadline - System.nanoTime()) / 1_000_000L;
             if (left <= 0) throw new MeterException(FaultKind.TIMEOUT, syncQuery, null, "meter did not come back in step within " + timeoutMs + " ms");
             String line = readLine(syncQuery, (int) left);
-            if (syncExpect.matcher(line).find()) {
+            if (syncExpect.matcher(line).find() && --syncsOwed == 0) {
                 dirty = false;
                 return;
             }
         }
+    }
+
+    /**
+     * Sends the sync query as a plain exchange (after setup commands). Should it time out, its answer is still
+     * owed, and the next {@link #settle} waits for it too.
+     */
+    String syncQuery(String syncQuery, int timeoutMs) throws MeterException {
+        send(syncQuery);
+        syncsOwed++;
+        String line = readLine(syncQuery, timeoutMs);
+        syncsOwed--;
+        return line;
     }
 
     /** Sends a command that has no reply. */
@@ -179,5 +201,6 @@ final class LineChannel {
     void reset() {
         pending.reset();
         dirty = false;
+        syncsOwed = 0;
     }
 }

@@ -90,7 +90,7 @@ public final class ProfileMeterSession implements MeterSession {
         if (c.equals(applied)) return;
         for (String template : profile.setup()) channel.send(profile.fill(template, c));
         if (profile.syncQuery() != null) {
-            String r = channel.query(profile.syncQuery(), profile.commandTimeoutMs());
+            String r = channel.syncQuery(profile.syncQuery(), profile.commandTimeoutMs());
             if (!profile.syncExpect().matcher(r).find()) {
                 channel.markDirty();
                 throw new MeterException(FaultKind.GARBLED, profile.syncQuery(), r, "setup not confirmed");
