@@ -55,29 +55,31 @@ class LineChannelTest {
         assertEquals("TRIG:RX?", e.sent());
     }
 
+    private static final java.util.regex.Pattern ONE = java.util.regex.Pattern.compile("^1$");
+
+    /** Lets {@code arriving} come in, settles, then checks the next reading is the one sent after it. */
+    private static void settleThenRead(Script link, LineChannel ch, String arriving, String why) throws MeterException {
+        link.whole(arriving);
+        ch.settle("*OPC?", ONE, 20);
+        link.whole("47000,0.01,0\n");
+        assertEquals("47000,0.01,0", ch.query("TRIG:RX?", 20), why);
+    }
+
     @Test
     void aSettleThatTimedOut_stillOwesItsAnswer_soNoSyncAnswerIsTakenForAReading() throws Exception {
         Script link = new Script();
         LineChannel ch = new LineChannel(link, "\n");
-        java.util.regex.Pattern one = java.util.regex.Pattern.compile("^1$");
         assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.query("TRIG:RX?", 20)).kind());
-        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.settle("*OPC?", one, 20)).kind());
+        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.settle("*OPC?", ONE, 20)).kind());
         // the late reading, then the answers to both sync queries, arrive together
-        link.whole("1000,0.01,0\n1\n1\n");
-        ch.settle("*OPC?", one, 20);
-        link.whole("47000,0.01,0\n");
-        assertEquals("47000,0.01,0", ch.query("TRIG:RX?", 20), "the second sync answer is not taken for the reading");
+        settleThenRead(link, ch, "1000,0.01,0\n1\n1\n", "the second sync answer is not taken for the reading");
     }
 
     @Test
     void aSetupConfirmationThatTimedOut_isOwedToo() throws Exception {
         Script link = new Script();
         LineChannel ch = new LineChannel(link, "\n");
-        java.util.regex.Pattern one = java.util.regex.Pattern.compile("^1$");
         assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.syncQuery("*OPC?", 20)).kind());
-        link.whole("1\n1\n");
-        ch.settle("*OPC?", one, 20);
-        link.whole("47000,0.01,0\n");
-        assertEquals("47000,0.01,0", ch.query("TRIG:RX?", 20), "the settle's own sync answer is not taken for the reading");
+        settleThenRead(link, ch, "1\n1\n", "the settle's own sync answer is not taken for the reading");
     }
 }
