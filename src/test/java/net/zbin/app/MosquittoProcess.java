@@ -22,7 +22,7 @@ public final class MosquittoProcess implements AutoCloseable {
         conf = dir.resolve("mosquitto-" + port + ".conf");
         Files.writeString(conf, "listener " + port + " 127.0.0.1\n"
                 + "set_tcp_nodelay true\n"
-                + "persistence false\n"
+                + (extraConfig.contains("persistence") ? "" : "persistence false\n")
                 + "max_queued_messages 20000\n"
                 + "log_dest stderr\n"
                 + (extraConfig.contains("allow_anonymous") ? "" : "allow_anonymous true\n")
@@ -61,9 +61,12 @@ public final class MosquittoProcess implements AutoCloseable {
         }
     }
 
-    @Override
-    public void close() throws InterruptedException {
+    /** Stops the broker the orderly way (SIGTERM): it closes every connection and saves what it persists. */
+    public void stop() throws InterruptedException {
         process.destroy();
         if (!process.waitFor(5, TimeUnit.SECONDS)) process.destroyForcibly();
     }
+
+    @Override
+    public void close() throws InterruptedException { stop(); }
 }

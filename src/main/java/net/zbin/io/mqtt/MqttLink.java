@@ -1,7 +1,12 @@
 package net.zbin.io.mqtt;
 
 import java.nio.charset.StandardCharsets;
+import java.util.ArrayDeque;
 import java.util.List;
+import java.util.concurrent.Executors;
+import java.util.concurrent.ScheduledExecutorService;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicLong;
 import java.util.function.BiConsumer;
 import javax.net.ssl.SSLContext;
 import net.zbin.io.LineConfig;
@@ -27,10 +32,16 @@ import org.slf4j.LoggerFactory;
  * when its part may have moved; the handler's retry is the trigger that counts, and it is answered
  * from the decision book if it was decided, or measured now (the part is still on the contacts, the
  * handler is waiting for it). No decision is discarded: a full in-flight window makes the publisher
- * wait, and while the broker is away publishes go to a bounded offline buffer that is delivered on
- * reconnect (a full buffer makes the publisher wait too). After a lost connection a reconnect is tried
- * every {@value #RECONNECT_EVERY_MS} ms, so the line is subscribed again a fraction of a second after
- * the broker returns.
+ * wait, and while the broker is away publishes go to a bounded outbox of this link that is delivered,
+ * in order, on reconnect (a full outbox makes the publisher wait too).
+ *
+ * <p>This link, not Paho, reconnects and buffers. Paho's own offline buffer can strand messages after a
+ * reconnect (a message that arrives while the buffer is being emptied stays in it, and every later
+ * message, subscriptions included, queues behind it while the client reports itself connected), and
+ * Paho's automatic reconnect retries once a second, and a faster dialler beside it can start two connects at
+ * once (its connect checks the state and acts on it without a lock). So one thread here looks every
+ * {@value #RECONNECT_EVERY_MS} ms and dials when the client is not connected, whether or not a loss was
+ * reported, and the line is subscribed again a fraction of a second after the broker returns.
  */
 public final class MqttLink implements Publisher, AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(MqttLink.class);
@@ -39,16 +50,22 @@ public final class MqttLink implements Publisher, AutoCloseable {
     public static final int OFFLINE_BUFFER = 50_000;
     static final long RECONNECT_EVERY_MS = 100;
 
+    private record Out(String topic, byte[] payload, int qos, boolean retained) { }
+
     private final MqttAsyncClient client;
     private final MqttConnectOptions options;
     private final List<String> subscriptions;
     private final BiConsumer<String, byte[]> onMessage;
     private volatile Runnable onConnect = () -> { };
+    /** Guards {@link #outbox}; notified when the window frees, the outbox changes or the link connects. */
     private final Object window = new Object();
-    private final java.util.concurrent.ScheduledExecutorService redial;
-    private final java.util.concurrent.atomic.AtomicLong waits = new java.util.concurrent.atomic.AtomicLong();
-    private final java.util.concurrent.atomic.AtomicLong notOffered = new java.util.concurrent.atomic.AtomicLong();
+    private final ArrayDeque<Out> outbox = new ArrayDeque<>();
+    private final ScheduledExecutorService redial;
+    private final Thread flusher;
+    private final AtomicLong waits = new AtomicLong();
+    private final AtomicLong notOffered = new AtomicLong();
     private volatile boolean closing;
+    private volatile boolean everConnected;
 
     /**
      * @param onMessage receives (topic, payload) on Paho's thread: must not block
@@ -61,8 +78,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
         options = new MqttConnectOptions();
         options.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         options.setCleanSession(true);
-        options.setAutomaticReconnect(true);
-        options.setMaxReconnectDelay(1000);
+        options.setAutomaticReconnect(false); // this link redials, see the class comment
         options.setConnectionTimeout(10);
         options.setKeepAliveInterval(s.keepAliveS());
         options.setMaxInflight(MAX_INFLIGHT);
@@ -75,29 +91,26 @@ public final class MqttLink implements Publisher, AutoCloseable {
         } else {
             options.setSocketFactory(NoDelaySockets.plain());
         }
-        org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions buffer = new org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions();
-        buffer.setBufferEnabled(true);
-        buffer.setBufferSize(OFFLINE_BUFFER);
-        buffer.setPersistBuffer(false);
-        buffer.setDeleteOldestMessages(false);
-        client.setBufferOpts(buffer);
-        redial = java.util.concurrent.Executors.newSingleThreadScheduledExecutor(r -> {
+        redial = Executors.newSingleThreadScheduledExecutor(r -> {
             Thread t = new Thread(r, "mqtt-redial");
             t.setDaemon(true);
             return t;
         });
+        flusher = new Thread(this::flushOutbox, "mqtt-outbox");
+        flusher.setDaemon(true);
         client.setCallback(new MqttCallbackExtended() {
             @Override
             public void connectComplete(boolean reconnect, String uri) {
-                LOG.info("{} to {}", reconnect ? "reconnected" : "connected", uri);
+                LOG.info("{} to {}", everConnected ? "reconnected" : "connected", uri);
+                everConnected = true;
                 subscribe();
                 onConnect.run();
+                wake();
             }
 
             @Override
             public void connectionLost(Throwable cause) {
-                LOG.warn("broker connection lost: {}", cause.toString());
-                if (!closing) redial.schedule(MqttLink.this::redial, RECONNECT_EVERY_MS, java.util.concurrent.TimeUnit.MILLISECONDS);
+                LOG.warn("broker connection lost: {}", cause.toString()); // the redial thread notices it too
             }
 
             @Override
@@ -111,11 +124,15 @@ public final class MqttLink implements Publisher, AutoCloseable {
 
             @Override
             public void deliveryComplete(IMqttDeliveryToken token) {
-                synchronized (window) {
-                    window.notifyAll();
-                }
+                wake();
             }
         });
+    }
+
+    private void wake() {
+        synchronized (window) {
+            window.notifyAll();
+        }
     }
 
     /** Runs on Paho's thread after each (re)connect, after the subscriptions were requested. Must not block. */
@@ -137,64 +154,101 @@ public final class MqttLink implements Publisher, AutoCloseable {
     public void connect(long timeoutMs) throws MqttException {
         IMqttToken t = client.connect(options);
         t.waitForCompletion(timeoutMs);
+        if (!flusher.isAlive()) {
+            flusher.start();
+            redial.scheduleWithFixedDelay(this::redial, RECONNECT_EVERY_MS, RECONNECT_EVERY_MS, TimeUnit.MILLISECONDS);
+        }
     }
 
     public boolean isConnected() { return client.isConnected(); }
 
-    /** Tries to reconnect now and again every {@value #RECONNECT_EVERY_MS} ms until connected or closed. */
+    /** The only place that reconnects, every {@value #RECONNECT_EVERY_MS} ms while not connected. Never throws (that would end it). */
     private void redial() {
         if (closing || client.isConnected()) return;
         try {
-            client.reconnect();
+            client.connect(options);
         } catch (MqttException e) {
-            LOG.debug("reconnect: {}", e.toString()); // already connecting, or the broker is not back yet
+            LOG.debug("reconnect: {}", e.toString()); // still connecting, or the broker is not back yet
+        } catch (RuntimeException e) {
+            LOG.warn("reconnect failed: {}", e.toString());
         }
-        redial.schedule(this::redial, RECONNECT_EVERY_MS, java.util.concurrent.TimeUnit.MILLISECONDS);
     }
 
     @Override
     public void publish(String topic, byte[] payload, int qos, boolean retained) {
-        boolean told = false;
+        Out m = new Out(topic, payload, qos, retained);
         while (true) {
+            synchronized (window) {
+                if (closing) {
+                    LOG.warn("publish to {} not delivered: closing", topic);
+                    notOffered.incrementAndGet();
+                    return;
+                }
+                if (!outbox.isEmpty() || !client.isConnected()) {
+                    // away, or still delivering what was held while away: queue behind it, in order
+                    if (outbox.size() < OFFLINE_BUFFER) {
+                        outbox.addLast(m);
+                        window.notifyAll();
+                        return;
+                    }
+                    if (!await(20)) return;
+                    continue;
+                }
+            }
             try {
                 client.publish(topic, payload, qos, retained);
                 return;
             } catch (MqttException e) {
-                // Every refusal of the client here is passing: a full window or offline buffer, or a connection on its
-                // way down or back up (not connected, connecting, disconnecting, lost). Wait and hand it over again;
-                // only a link that is being closed gives up.
-                if (closing) {
-                    LOG.warn("publish to {} not delivered: closing ({})", topic, e.toString());
-                    notOffered.incrementAndGet();
-                    return;
-                }
-                if (!told && e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT) {
-                    LOG.debug("publish to {} waits: {}", topic, e.toString());
-                    told = true;
-                }
-                waits.incrementAndGet();
-                synchronized (window) {
-                    try {
-                        window.wait(20);
-                    } catch (InterruptedException ie) {
-                        Thread.currentThread().interrupt();
-                        notOffered.incrementAndGet();
-                        return;
-                    }
-                }
+                // A full window waits for acknowledgements; a connection on its way down makes the next turn queue it.
+                if (e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT) LOG.debug("publish to {} waits: {}", topic, e.toString());
+                if (!await(20)) return;
             }
         }
     }
 
-    @Override
-    public boolean offer(String topic, byte[] payload, int qos, boolean retained) {
-        try {
-            client.publish(topic, payload, qos, retained);
-            return true;
-        } catch (MqttException e) {
-            notOffered.incrementAndGet();
-            LOG.warn("publish to {} not possible now: {}", topic, e.toString());
-            return false;
+    /** Waits for the window or the outbox to move; false (and counted) when the publishing thread was interrupted. */
+    private boolean await(long ms) {
+        waits.incrementAndGet();
+        synchronized (window) {
+            try {
+                window.wait(ms);
+                return true;
+            } catch (InterruptedException ie) {
+                Thread.currentThread().interrupt();
+                notOffered.incrementAndGet();
+                return false;
+            }
+        }
+    }
+
+    /** Hands what was held while the broker was away to the client, oldest first, once connected. */
+    private void flushOutbox() {
+        while (!closing) {
+            Out m;
+            synchronized (window) {
+                try {
+                    while (!closing && (outbox.isEmpty() || !client.isConnected())) window.wait(100);
+                } catch (InterruptedException e) {
+                    return;
+                }
+                if (closing) return;
+                m = outbox.peekFirst();
+            }
+            try {
+                client.publish(m.topic(), m.payload(), m.qos(), m.retained());
+                synchronized (window) {
+                    outbox.pollFirst();
+                    window.notifyAll();
+                }
+            } catch (MqttException e) {
+                synchronized (window) {
+                    try {
+                        window.wait(20); // a full window, or the connection went again
+                    } catch (InterruptedException ie) {
+                        return;
+                    }
+                }
+            }
         }
     }
 
@@ -205,18 +259,32 @@ public final class MqttLink implements Publisher, AutoCloseable {
     /** Times a publish had to wait for the in-flight window or the offline buffer. */
     public long waits() { return waits.get(); }
 
-    /** Messages that could not be handed to the client (only when closing, or offered from its own thread). */
+    /** Messages that could not be handed to the client (only when closing, or when the publisher was interrupted). */
     public long notOffered() { return notOffered.get(); }
 
     /** Messages held for the broker's return. */
-    public int buffered() { return client.getBufferedMessageCount(); }
+    public int buffered() {
+        synchronized (window) {
+            return outbox.size();
+        }
+    }
 
-    /** Publishes and waits until the broker acknowledged it (used for the final offline state). */
+    /**
+     * Lets what is held go out first, then publishes and waits until the broker acknowledged it (the final
+     * dashboard and offline state of a clean stop).
+     */
     public void publishAndWait(String topic, byte[] payload, int qos, boolean retained, long timeoutMs) {
+        long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
         try {
-            client.publish(topic, payload, qos, retained).waitForCompletion(timeoutMs);
+            synchronized (window) {
+                while (!outbox.isEmpty() && client.isConnected() && System.nanoTime() < end) window.wait(20);
+            }
+            long left = Math.max(1, TimeUnit.NANOSECONDS.toMillis(end - System.nanoTime()));
+            client.publish(topic, payload, qos, retained).waitForCompletion(left);
         } catch (MqttException e) {
             LOG.warn("publish to {} failed: {}", topic, e.toString());
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
         }
     }
 
@@ -224,6 +292,12 @@ public final class MqttLink implements Publisher, AutoCloseable {
     public void close() {
         closing = true;
         redial.shutdownNow();
+        wake();
+        int left = buffered();
+        if (left > 0) {
+            LOG.warn("{} held messages not delivered: the broker is away at the stop", left);
+            notOffered.addAndGet(left);
+        }
         try {
             if (client.isConnected()) client.disconnect(2000).waitForCompletion(3000);
         } catch (MqttException e) {

@@ -10,7 +10,4 @@ public interface Publisher {
      * full this waits (back-pressure). Must not be called on the MQTT client's callback thread.
      */
     void publish(String topic, byte[] payload, int qos, boolean retained);
-
-    /** Publishes without waiting, for the MQTT client's own thread; false (and counted) when it could not. */
-    boolean offer(String topic, byte[] payload, int qos, boolean retained);
 }

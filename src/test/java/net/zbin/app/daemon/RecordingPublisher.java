@@ -16,11 +16,5 @@ final class RecordingPublisher implements Publisher {
         sent.add(new Sent(topic, Payloads.text(payload), qos, retained));
     }
 
-    @Override
-    public synchronized boolean offer(String topic, byte[] payload, int qos, boolean retained) {
-        publish(topic, payload, qos, retained);
-        return true;
-    }
-
     synchronized List<Sent> on(String topic) { return sent.stream().filter(s -> s.topic().equals(topic)).toList(); }
 }
