@@ -104,6 +104,12 @@ public final class HandlerSim implements AutoCloseable {
                 protected boolean removeEldestEntry(Map.Entry<String, Boolean> e) { return size() > REMEMBERED; }
             }));
     private final Object stateLock = new Object();
+    private final java.util.concurrent.ScheduledExecutorService redial = java.util.concurrent.Executors.newSingleThreadScheduledExecutor(r -> {
+        Thread t = new Thread(r, "handler-redial");
+        t.setDaemon(true);
+        return t;
+    });
+    private volatile boolean connectedBefore;
     private volatile boolean online;
     private long seq;
 
@@ -117,7 +123,10 @@ public final class HandlerSim implements AutoCloseable {
             public void connectionLost(Throwable cause) { setOnline(false); }
 
             public void connectComplete(boolean reconnect, String uri) {
-                if (!reconnect) return;
+                if (!connectedBefore) {
+                    connectedBefore = true; // the constructor subscribes after the first connect, and waits for it
+                    return;
+                }
                 try {
                     client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}); // clean session: again
                 } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
@@ -129,22 +138,27 @@ public final class HandlerSim implements AutoCloseable {
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });
-        org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions buffer = new org.eclipse.paho.client.mqttv3.DisconnectedBufferOptions();
-        buffer.setBufferEnabled(true);
-        buffer.setBufferSize(10_000);
-        buffer.setDeleteOldestMessages(false);
-        client.setBufferOpts(buffer);
+        // No Paho offline buffer: after a reconnect it can keep every later message, the resubscription too, while
+        // the client says it is connected. A trigger sent while the broker is away is sent again by send().
         MqttConnectOptions c = new MqttConnectOptions();
         c.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         c.setCleanSession(true);
-        c.setAutomaticReconnect(true);
-        c.setMaxReconnectDelay(1000);
+        // Not Paho's automatic reconnect: it retries once a second. The redial thread looks five times a second.
+        c.setAutomaticReconnect(false);
         c.setMaxInflight(1000);
         if (o.sockets() != null) c.setSocketFactory(o.sockets());
         if (o.username() != null) c.setUserName(o.username());
         if (o.password() != null) c.setPassword(o.password());
         client.connect(c).waitForCompletion(10_000);
         client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}).waitForCompletion(10_000);
+        redial.scheduleWithFixedDelay(() -> {
+            if (client.isConnected()) return;
+            try {
+                client.connect(c);
+            } catch (Exception e) {
+                // still connecting, or the broker is not back yet: look again
+            }
+        }, 200, 200, TimeUnit.MILLISECONDS);
     }
 
     private void setOnline(boolean v) {
@@ -234,7 +248,7 @@ public final class HandlerSim implements AutoCloseable {
         }
     }
 
-    /** Publishes, riding out a broker that is away (the client buffers while it reconnects). */
+    /** Publishes, riding out a broker that is away: tries again until the client has reconnected. */
     private void send(String topic, byte[] msg) throws Exception {
         long end = System.currentTimeMillis() + o.offlineWaitMs();
         while (true) {
@@ -359,6 +373,7 @@ public final class HandlerSim implements AutoCloseable {
 
     @Override
     public void close() {
+        redial.shutdownNow();
         try {
             if (client.isConnected()) client.disconnect(1000).waitForCompletion(2000);
             client.close(true);
