@@ -127,8 +127,6 @@ class DaemonPromisesIT {
     }
 
     @Test
-    @org.junit.jupiter.api.Disabled("known defect, open: in about one clean run in three, one of the five broker deaths is never"
-            + " reported by Paho (no connectionLost, even with a 2 s keep-alive) and the line stays offline; to be fixed, not hidden")
     void theBrokerDiesFiveTimesDuringALot_noTriggerGoesWithoutAnAnswer_noBinContradicts() throws Exception {
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
              // A short keep-alive: a connection the broker's death leaves half-open is found within seconds, not minutes.
