@@ -52,6 +52,9 @@ abstract class DaemonEndToEndContract {
             for (JsonNode r : repeats) assertEquals(bySeq.get(r.path("seq").asLong()).get(0).path("bin").asInt(), r.path("bin").asInt());
 
             rig.close();
+            // the broker forwards the final messages to the tap after it acknowledged them to the daemon: wait for them
+            tap.await(m -> m.topic().endsWith("/state") && !m.json().path("online").asBoolean(true), 1, 10_000);
+            tap.await(m -> m.topic().endsWith("/dashboard") && m.json().path("mode").asText().equals("offline"), 1, 10_000);
             assertEquals("false", tap.on("/state").get(tap.on("/state").size() - 1).json().path("online").asText(), "offline on clean stop");
             List<Tap.Msg> dashboards = tap.on("/dashboard");
             JsonNode dash = dashboards.get(dashboards.size() - 1).json();
