@@ -108,10 +108,12 @@ final class CsvReadingSource implements ReadingSource {
     private RecordedReading row(CsvRecord rec, long line) {
         if (rec.getFieldCount() != width) throw new IllegalArgumentException("has " + rec.getFieldCount() + " fields, header has " + width);
         String reason = text(rec, fReason);
-        double f = number(rec, fFreq, "freq_hz", false);
-        if (!(f > 0)) throw new IllegalArgumentException("freq_hz must be > 0 (was " + rec.getField(fFreq).trim() + ")");
+        // A row with a reason may have nothing measured (a meter timeout, a line fault): then R, X and the frequency are blank.
         boolean mayBeBlank = reason != null && !reason.isEmpty();
         double r = number(rec, fR, "r_ohm", mayBeBlank), x = number(rec, fX, "x_ohm", mayBeBlank);
+        boolean measured = Double.isFinite(r) || Double.isFinite(x);
+        double f = number(rec, fFreq, "freq_hz", mayBeBlank && !measured);
+        if (!(f > 0) && !Double.isNaN(f)) throw new IllegalArgumentException("freq_hz must be > 0 (was " + rec.getField(fFreq).trim() + ")");
         String attempt = text(rec, fAttempt);
         int att;
         try {

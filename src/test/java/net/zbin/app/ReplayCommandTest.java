@@ -76,6 +76,35 @@ class ReplayCommandTest {
     }
 
     @Test
+    void rowsWithNothingMeasured_replayAsTheirReason_strictToo() throws Exception {
+        // Found by the combined fault run: the daemon logs a line fault or a meter that answered nothing with blank
+        // freq_hz, r_ohm and x_ohm, and replay --strict refused its own log. Blank values need a reason, and a
+        // measured R/X needs its frequency.
+        Path f = dir.resolve("faults.csv");
+        Files.writeString(f, String.join("\n", List.of(
+                "freq_hz,r_ohm,x_ohm,reason,attempt",
+                "1000,16,-1591.5,,0",
+                ",,,line-fault,0",
+                ",,,meter-timeout,1",
+                "1000,16,-1591.5,,2",
+                ",16,-1591.5,,0",
+                ",,,,0")) + "\n");
+        Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", f.toString(), "--json");
+        assertEquals(0, c.exit(), c.err());
+        JsonNode s = M.readTree(c.out());
+        assertEquals(4, s.get("presentations").asLong(), c.out());
+        assertEquals(1, s.path("retest_reasons").path("line-fault").asLong(), "not measured: a retest, as live: " + c.out());
+        assertEquals(1, s.path("reasons").path("meter-timeout").asLong(), c.out());
+        assertTrue(c.err().contains("line 6: freq_hz is empty"), c.err());
+        assertTrue(c.err().contains("line 7: r_ohm is empty"), c.err());
+        Path clean = dir.resolve("clean.csv");
+        Files.writeString(clean, String.join("\n", List.of(
+                "freq_hz,r_ohm,x_ohm,reason,attempt", "1000,16,-1591.5,,0", ",,,line-fault,0", ",,,meter-timeout,1")) + "\n");
+        Cli strict = Cli.run("replay", "--recipe", RECIPE, "--in", clean.toString(), "--strict", "--json");
+        assertEquals(0, strict.exit(), strict.err());
+    }
+
+    @Test
     void inputWithoutRequiredColumns_exits2NamingTheColumn() throws Exception {
         Path f = dir.resolve("bad.csv");
         Files.writeString(f, "freq,r,x\n1000,1,2\n");
