@@ -1,0 +1,85 @@
+package net.zbin.bench;
+
+import java.nio.file.Path;
+import java.util.concurrent.TimeUnit;
+import java.time.Instant;
+import net.zbin.core.Compensation;
+import net.zbin.core.CompensationSource;
+import net.zbin.core.Impedance;
+import net.zbin.core.Grader;
+import net.zbin.core.Reading;
+import net.zbin.core.RecordedReading;
+import net.zbin.core.Recipe;
+import net.zbin.io.RecipeLoader;
+import net.zbin.io.ReadingSource;
+import org.openjdk.jmh.annotations.Benchmark;
+import org.openjdk.jmh.annotations.BenchmarkMode;
+import org.openjdk.jmh.annotations.Level;
+import org.openjdk.jmh.annotations.Mode;
+import org.openjdk.jmh.annotations.OperationsPerInvocation;
+import org.openjdk.jmh.annotations.OutputTimeUnit;
+import org.openjdk.jmh.annotations.Scope;
+import org.openjdk.jmh.annotations.Setup;
+import org.openjdk.jmh.annotations.State;
+import org.openjdk.jmh.infra.Blackhole;
+
+/**
+ * JMH: the decision core (a raw reading compensated and graded against the MLCC recipe) and replay (a row of
+ * the record-log format parsed and graded). Run by {@link JmhBench}.
+ */
+@State(Scope.Benchmark)
+@BenchmarkMode(Mode.Throughput)
+@OutputTimeUnit(TimeUnit.SECONDS)
+public class DecisionJmh {
+    static final int READINGS = 1024;
+    static final int ROWS = 100_000;
+
+    Recipe recipe;
+    Compensation comp, none;
+    Reading[] readings;
+    Path lot;
+
+    @Setup(Level.Trial)
+    public void setUp() throws Exception {
+        recipe = RecipeLoader.load(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
+        // an open/short pair of a typical fixture (invented): 1.2 pF stray, 20 mΩ + 15 nH residual
+        double f = recipe.freqHz();
+        comp = new Compensation(f, CompensationSource.USER, Instant.EPOCH, Compensation.openFromAdmittance(f, 1.2e-12, 0),
+                new Impedance(f, 0.020, 2 * Math.PI * f * 15e-9), null, null);
+        none = Compensation.none(f);
+        java.util.Random rnd = new java.util.Random(11);
+        double w = 2 * Math.PI * recipe.freqHz();
+        readings = new Reading[READINGS];
+        for (int i = 0; i < READINGS; i++) {
+            double c = 100e-9 * (1 + rnd.nextGaussian() * 0.08), x = -1 / (w * c);
+            readings[i] = new Reading(recipe.freqHz(), Math.abs(rnd.nextGaussian() * 0.012 * x), x);
+        }
+        lot = JmhBench.rows(ROWS);
+    }
+
+    /** One decision: compensation, equivalent circuit, D/Q/ESR/θ, plausibility and grade. */
+    @Benchmark
+    @OperationsPerInvocation(READINGS)
+    public void decide(Blackhole bh) {
+        for (Reading r : readings) bh.consume(Grader.grade(recipe, r, comp, 0));
+    }
+
+    /** One decision without compensation (a fixture with none loaded): the grading alone. */
+    @Benchmark
+    @OperationsPerInvocation(READINGS)
+    public void decideUncompensated(Blackhole bh) {
+        for (Reading r : readings) bh.consume(Grader.grade(recipe, r, none, 0));
+    }
+
+    /** Replay: each row read from the CSV file, parsed and graded (ops/s = rows/s). */
+    @Benchmark
+    @OperationsPerInvocation(ROWS)
+    public void replayRows(Blackhole bh) throws Exception {
+        try (ReadingSource src = ReadingSource.open(lot, bad -> { throw new IllegalStateException(bad.toString()); })) {
+            RecordedReading r;
+            while ((r = src.next()) != null) {
+                bh.consume(Grader.grade(recipe, new Reading(r.freqHz(), r.rOhm(), r.xOhm()), comp, r.attempt()));
+            }
+        }
+    }
+}
