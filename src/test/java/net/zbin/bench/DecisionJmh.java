@@ -54,7 +54,7 @@ public class DecisionJmh {
             double c = 100e-9 * (1 + rnd.nextGaussian() * 0.08), x = -1 / (w * c);
             readings[i] = new Reading(recipe.freqHz(), Math.abs(rnd.nextGaussian() * 0.012 * x), x);
         }
-        lot = JmhBench.rows(ROWS);
+        lot = ReplayBench.lot(ROWS);
     }
 
     /** One decision: compensation, equivalent circuit, D/Q/ESR/θ, plausibility and grade. */

@@ -25,15 +25,18 @@ class ReplayBench {
     static final int ROWS = 1_000_000;
     static final String RECIPE = "config/recipes/mlcc-x7r-100n.yaml";
 
-    static Path lot() throws Exception {
+    static Path lot() throws Exception { return lot(ROWS); }
+
+    /** A record-log-shaped CSV of {@code rows} invented MLCC readings, written once under target/bench. */
+    static Path lot(int rows) throws Exception {
         Path dir = Files.createDirectories(Path.of("target/bench"));
-        Path f = dir.resolve("lot-1m.csv");
+        Path f = dir.resolve(rows == ROWS ? "lot-1m.csv" : "lot-" + rows + ".csv");
         if (Files.exists(f)) return f;
         Random rnd = new Random(64);
         double w = 2 * Math.PI * 1000;
         try (BufferedWriter out = Files.newBufferedWriter(f)) {
             out.write("time,lot,seq,freq_hz,r_ohm,x_ohm,note\n");
-            for (int i = 0; i < ROWS; i++) {
+            for (int i = 0; i < rows; i++) {
                 double c = 100e-9 * (1 + rnd.nextGaussian() * 0.08);
                 if (i % 97 == 0) c = 2e-12;
                 double x = -1 / (w * c), r = Math.abs(rnd.nextGaussian() * 0.012) * Math.abs(x);
