@@ -44,6 +44,9 @@ class LineBench {
     @TempDir
     Path dir;
 
+    /** Inside zbin, per decision of the paced run: its own latency_ms, from the trigger's arrival to the decision made (ns). */
+    static final Histogram INSIDE = new Histogram(60_000_000_000L, 3);
+
     static MqttAsyncClient client(String url, Map<String, CompletableFuture<Long>> waiting, String... subs) throws Exception {
         MqttAsyncClient c = new MqttAsyncClient(url, "bench-" + System.nanoTime(), new MemoryPersistence());
         c.setCallback(new MqttCallback() {
@@ -57,6 +60,14 @@ class LineBench {
                 while (e < p.length() && (Character.isDigit(p.charAt(e)) || p.charAt(e) == ' ')) e++;
                 CompletableFuture<Long> f = waiting.get(p.substring(s, e).trim());
                 if (f != null) f.complete(System.nanoTime());
+                int l = p.indexOf("\"latency_ms\":");
+                if (l >= 0 && p.contains("\"part\":\"P\"")) { // the line's own figure: from the trigger's arrival to the decision made
+                    int ls = l + 13, le = ls;
+                    while (le < p.length() && "0123456789.eE-".indexOf(p.charAt(le)) >= 0) le++;
+                    synchronized (INSIDE) {
+                        INSIDE.recordValue(Math.max(1, Math.round(Double.parseDouble(p.substring(ls, le)) * 1e6)));
+                    }
+                }
             }
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
@@ -150,9 +161,10 @@ class LineBench {
                 out.put("floor_p99_ms", floorP99);
                 out.set("line_at_" + PACE + "_per_s", json(line));
                 out.set("first_100_after_start", json(first));
+                out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 System.out.printf(Locale.ROOT, "%n  %-46s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", echoH}, {"floor: meter request/response", meterH}, {"trigger -> decision", line},
-                        {"first 100 decisions after start", first}}) {
+                        {"first 100 decisions after start", first}, {"  of it inside zbin: arrival -> decided", INSIDE}}) {
                     Histogram h = (Histogram) e[1];
                     System.out.printf(Locale.ROOT, "  %-46s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
                             h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
