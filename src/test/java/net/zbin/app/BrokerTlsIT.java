@@ -31,13 +31,18 @@ class BrokerTlsIT {
         assertEquals(0, p.exitValue(), String.join(" ", cmd) + ": " + out);
     }
 
-    @Test
-    void daemonOverTls_answersTriggers_andAWrongCaIsRefused() throws Exception {
+    /** A test CA (ca.pem, ca.key) and a server certificate for 127.0.0.1 signed by it (server.pem, server.key). */
+    void caAndServerCertificate() throws Exception {
         openssl("req", "-x509", "-newkey", "rsa:2048", "-nodes", "-days", "2", "-subj", "/CN=zbin test CA", "-keyout", "ca.key", "-out", "ca.pem");
         openssl("req", "-newkey", "rsa:2048", "-nodes", "-subj", "/CN=127.0.0.1", "-keyout", "server.key", "-out", "server.csr");
         Files.writeString(dir.resolve("san.ext"), "subjectAltName=IP:127.0.0.1\n");
         openssl("x509", "-req", "-in", "server.csr", "-CA", "ca.pem", "-CAkey", "ca.key", "-CAcreateserial", "-days", "2",
                 "-extfile", "san.ext", "-out", "server.pem");
+    }
+
+    @Test
+    void daemonOverTls_answersTriggers_andAWrongCaIsRefused() throws Exception {
+        caAndServerCertificate();
         openssl("req", "-x509", "-newkey", "rsa:2048", "-nodes", "-days", "2", "-subj", "/CN=some other CA", "-keyout", "other.key", "-out", "other.pem");
         Files.setPosixFilePermissions(dir, PosixFilePermissions.fromString("rwxr-xr-x"));
         for (String f : new String[] {"ca.pem", "server.pem", "server.key"})
@@ -55,7 +60,7 @@ class BrokerTlsIT {
             }
             Path cfg = TestLine.write(dir.resolve("wrong"), "tls2", url, 5025, "");
             Files.copy(dir.resolve("other.pem"), dir.resolve("wrong/other.pem"));
-            Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}", "topic_root: zbin, tls: {ca_file: other.pem}}"));
+            TestLine.mqttKeys(cfg, "tls: {ca_file: other.pem}");
             Cli check = Cli.run("check", "--config", cfg.toString());
             assertEquals(0, check.exit(), "the file itself is valid: " + check.err());
             Process run = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString(), "--connect-timeout", "5000")
@@ -70,11 +75,7 @@ class BrokerTlsIT {
 
     @Test
     void clientCertificateAndPassword_overTls_withAnAcl_andTheSecretNeverInTheLogAtDebug() throws Exception {
-        openssl("req", "-x509", "-newkey", "rsa:2048", "-nodes", "-days", "2", "-subj", "/CN=zbin test CA", "-keyout", "ca.key", "-out", "ca.pem");
-        openssl("req", "-newkey", "rsa:2048", "-nodes", "-subj", "/CN=127.0.0.1", "-keyout", "server.key", "-out", "server.csr");
-        Files.writeString(dir.resolve("san.ext"), "subjectAltName=IP:127.0.0.1\n");
-        openssl("x509", "-req", "-in", "server.csr", "-CA", "ca.pem", "-CAkey", "ca.key", "-CAcreateserial", "-days", "2",
-                "-extfile", "san.ext", "-out", "server.pem");
+        caAndServerCertificate();
         openssl("req", "-newkey", "rsa:2048", "-nodes", "-subj", "/CN=zbin-tlsc", "-keyout", "client.rsa", "-out", "client.csr");
         openssl("x509", "-req", "-in", "client.csr", "-CA", "ca.pem", "-CAkey", "ca.key", "-CAcreateserial", "-days", "2", "-out", "client.pem");
         openssl("pkcs8", "-topk8", "-nocrypt", "-in", "client.rsa", "-out", "client.key");
@@ -102,8 +103,7 @@ class BrokerTlsIT {
             String url = "ssl://127.0.0.1:" + tlsPort;
             Path cfg = TestLine.write(dir, "tlsc", url, sim.port(), "");
             Files.writeString(dir.resolve("daemon.pass"), secret + "\n");
-            Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}",
-                    "topic_root: zbin, username: zbin-tlsc, password_file: daemon.pass, tls: {ca_file: ca.pem, cert_file: client.pem, key_file: client.key}}"));
+            TestLine.mqttKeys(cfg, "username: zbin-tlsc, password_file: daemon.pass, tls: {ca_file: ca.pem, cert_file: client.pem, key_file: client.key}");
             ProcessBuilder pb = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString()).redirectErrorStream(true)
                     .redirectOutput(dir.resolve("daemon.log").toFile());
             pb.environment().put("ZBIN_LOG_LEVEL", "DEBUG");

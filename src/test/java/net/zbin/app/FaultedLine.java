@@ -55,7 +55,7 @@ final class FaultedLine implements AutoCloseable {
         meterPort = meterServer.port();
         cfg = TestLine.write(dir, line, broker.url(), meterPort, "dashboard: {interval_s: 1}\nhandler: {repeat_window_ms: 60000}\n");
         // a short keep-alive: a connection the broker's death leaves half-open is found within seconds
-        Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}", "topic_root: zbin, keepalive_s: 2}"));
+        TestLine.mqttKeys(cfg, "keepalive_s: 2");
         startDaemon();
         untilOnline();
     }

@@ -27,4 +27,11 @@ public final class TestLine {
                 + extra);
         return cfg;
     }
+
+    /** Adds keys to the config's {@code mqtt:} map (written by {@link #write}), e.g. {@code "keepalive_s: 2"}. */
+    public static void mqttKeys(Path cfg, String keys) throws IOException {
+        String text = Files.readString(cfg);
+        if (!text.contains("topic_root: zbin}")) throw new IllegalStateException(cfg + ": not a config written by TestLine.write");
+        Files.writeString(cfg, text.replace("topic_root: zbin}", "topic_root: zbin, " + keys + "}"));
+    }
 }

@@ -18,7 +18,7 @@ class LineConfigSecretsTest {
     void passwordFromFile_isLoadedButNeverShownInText() throws Exception {
         Path cfg = TestLine.write(dir, "sec", "tcp://127.0.0.1:1883", 5025, "");
         Files.writeString(dir.resolve("mqtt.pass"), "s3cret-Harrowgate\n");
-        Files.writeString(cfg, Files.readString(cfg).replace("topic_root: zbin}", "topic_root: zbin, username: zbin-daemon, password_file: mqtt.pass}"));
+        TestLine.mqttKeys(cfg, "username: zbin-daemon, password_file: mqtt.pass");
         LineConfig c = LineConfigLoader.load(cfg);
         assertArrayEquals("s3cret-Harrowgate".toCharArray(), c.mqtt().password());
         assertFalse(c.mqtt().toString().contains("s3cret"), c.mqtt().toString());
