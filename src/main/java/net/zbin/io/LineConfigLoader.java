@@ -9,6 +9,7 @@ import java.nio.file.Path;
 import java.util.List;
 import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
+import net.zbin.io.mqtt.TlsFiles;
 import net.zbin.io.meter.MeterProfile;
 import net.zbin.io.meter.MeterProfileLoader;
 import net.zbin.io.meter.TransportSpecs;
@@ -50,12 +51,10 @@ public final class LineConfigLoader {
         if (broker.startsWith("ssl://") && ca == null) throw m.error("tls.ca_file", "is required for an ssl:// broker");
         if ((cert == null) != (key == null)) throw m.error("tls.cert_file", "cert_file and key_file go together");
         // Fail closed: a TLS file that is named but cannot be loaded stops the start, naming the key.
-        if (ca != null && net.zbin.io.mqtt.TlsFiles.certificateProblem(ca) != null)
-            throw m.error("tls.ca_file", ca + " " + net.zbin.io.mqtt.TlsFiles.certificateProblem(ca));
-        if (cert != null && net.zbin.io.mqtt.TlsFiles.certificateProblem(cert) != null)
-            throw m.error("tls.cert_file", cert + " " + net.zbin.io.mqtt.TlsFiles.certificateProblem(cert));
-        if (key != null && net.zbin.io.mqtt.TlsFiles.keyProblem(key) != null)
-            throw m.error("tls.key_file", key + " " + net.zbin.io.mqtt.TlsFiles.keyProblem(key));
+        String problem;
+        if (ca != null && (problem = TlsFiles.certificateProblem(ca)) != null) throw m.error("tls.ca_file", ca + " " + problem);
+        if (cert != null && (problem = TlsFiles.certificateProblem(cert)) != null) throw m.error("tls.cert_file", cert + " " + problem);
+        if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw m.error("tls.key_file", key + " " + problem);
         int keepAlive = m.optInteger("keepalive_s", 10);
         if (keepAlive < 2 || keepAlive > 600) throw m.error("keepalive_s", "must be 2..600 (was " + keepAlive + ")");
         m.finish();

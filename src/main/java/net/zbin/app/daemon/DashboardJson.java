@@ -2,6 +2,7 @@ package net.zbin.app.daemon;
 
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import java.util.Collection;
+import net.zbin.core.Wilson;
 import net.zbin.io.Json;
 import net.zbin.io.TallyJson;
 
@@ -52,7 +53,7 @@ final class DashboardJson {
     private static void window(ObjectNode n, long[] w) {
         n.put("parts", w[0]);
         n.put("passed", w[1]);
-        double[] ci = net.zbin.core.Wilson.interval(w[1], w[0], net.zbin.core.Wilson.Z95);
+        double[] ci = Wilson.interval(w[1], w[0], Wilson.Z95);
         round(n, "yield_pct", w[0] == 0 ? Double.NaN : 100.0 * w[1] / w[0], 100);
         round(n, "yield_low_pct", ci[0] * 100, 100);
         round(n, "yield_high_pct", ci[1] * 100, 100);
