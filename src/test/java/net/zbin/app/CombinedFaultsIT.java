@@ -1,7 +1,6 @@
 package net.zbin.app;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
-import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Path;
@@ -51,7 +50,6 @@ class CombinedFaultsIT {
             assertEquals(0, s.stale(), "no answer about another part");
             assertEquals(0, s.duplicate(), "no presentation answered twice as new");
             assertEquals(s.finished(), dash.path("parts").asLong(), "the dashboard counted the parts the handler finished");
-            assertTrue(line.brokerKills == 2 && line.daemonKills == 2 && line.meterRestarts == 2);
             line.checkRecords(dash);
         }
     }

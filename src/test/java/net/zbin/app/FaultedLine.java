@@ -44,7 +44,7 @@ final class FaultedLine implements AutoCloseable {
     private final Path cfg;
     private Process daemon;
     private int starts;
-    int brokerKills, daemonKills, meterRestarts;
+    int brokerKills, meterRestarts;
 
     FaultedLine(Path dir, String line) throws Exception {
         this.dir = dir;
@@ -93,7 +93,6 @@ final class FaultedLine implements AutoCloseable {
         daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
         long t0 = System.nanoTime();
         startDaemon();
-        daemonKills++;
         return DaemonPromisesIT.untilOnline(broker.url(), "zbin/" + line + "/state", t0);
     }
 
