@@ -25,6 +25,9 @@ final class ConfigCheck {
         TransportSpec t = c.meter().transport();
         out.printf(Locale.ROOT, "  meter profile %s over %s%n", c.meter().name(),
                 t.serial() != null ? "serial " + t.serial().port() + " " + t.serial().baud() + " baud" : "tcp " + t.tcpHost() + ":" + t.tcpPort());
+        if (!c.meter().confirmReadings())
+            out.printf(Locale.ROOT, "  warning: profile %s confirms no reading with a sync query: a stray line that arrives while a reply is awaited "
+                    + "cannot be told from the reply (only data already waiting before or behind it is caught)%n", c.meter().name());
         CompensationStore store = CompensationStore.load(c.stateDir());
         out.printf(Locale.ROOT, "  recipes in %s:%n", c.recipeDir());
         for (Recipe r : Recipes.all(c.recipeDir(), c.bounds())) {
@@ -38,6 +41,10 @@ final class ConfigCheck {
                         SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.idealZOhm(), "ohm"),
                         net.zbin.core.FixtureBounds.MARGIN, r.needsOpenCompensation() ? "open" : "short");
             if (r.unreachable() != null) out.printf(Locale.ROOT, "        warning: no part can pass: %s%n", r.unreachable());
+            String outside = c.meter().range() == null ? null : c.meter().range().outside(r.test());
+            if (outside != null)
+                out.printf(Locale.ROOT, "        warning: %s (profile %s): the meter will refuse this recipe, and the line grades nothing with it%n",
+                        outside, c.meter().name());
         }
         out.printf(Locale.ROOT, "  state %s; records %s (flush every %d ms, rotate at %.4g MiB, %s on write failure)%n", c.stateDir(),
                 c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,

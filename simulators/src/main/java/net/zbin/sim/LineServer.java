@@ -16,6 +16,24 @@ final class LineServer {
         void disconnect() throws java.io.IOException;
     }
 
+    /** Writes one line; a late reply may write from another thread, so lines never interleave. */
+    private synchronized void send(Sink out, String text) throws java.io.IOException {
+        out.write((text + "\n").getBytes(StandardCharsets.ISO_8859_1));
+    }
+
+    private void later(Sink out, Reply.Later l) {
+        Thread t = new Thread(() -> {
+            try {
+                Thread.sleep(l.delayMs());
+                send(out, l.line());
+            } catch (InterruptedException | java.io.IOException e) {
+                // the link is gone: the late line has nowhere to go
+            }
+        }, "sim-meter-late");
+        t.setDaemon(true);
+        t.start();
+    }
+
     /** Feeds bytes; each complete line is handled and its reply written to the sink. */
     void feed(byte[] buf, int n, Sink out) throws java.io.IOException {
         for (int i = 0; i < n; i++) {
@@ -25,10 +43,14 @@ final class LineServer {
                 line.reset();
                 if (cmd.endsWith("\r")) cmd = cmd.substring(0, cmd.length() - 1);
                 Reply r = meter.handle(cmd);
-                if (r instanceof Reply.Text t) out.write((t.line() + "\n").getBytes(StandardCharsets.ISO_8859_1));
+                if (r instanceof Reply.Text t) send(out, t.line());
+                else if (r instanceof Reply.WithStray w) send(out, w.line() + "\n" + w.stray());
+                else if (r instanceof Reply.Later l) later(out, l);
                 else if (r instanceof Reply.Garbage g) {
-                    out.write(g.bytes());
-                    out.write(new byte[] {'\n'});
+                    synchronized (this) {
+                        out.write(g.bytes());
+                        out.write(new byte[] {'\n'});
+                    }
                 } else if (r instanceof Reply.Disconnect) {
                     out.disconnect();
                     return;

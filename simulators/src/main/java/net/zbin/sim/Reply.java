@@ -14,6 +14,12 @@ public sealed interface Reply {
     /** Injected line noise: bytes that are no valid reply. */
     record Garbage(byte[] bytes) implements Reply {}
 
+    /** A reply line followed by a stray line that answers nothing. */
+    record WithStray(String line, String stray) implements Reply {}
+
+    /** Nothing now; the line is sent after the delay, between whatever exchanges happen by then. */
+    record Later(String line, long delayMs) implements Reply {}
+
     /** Injected link drop: the simulator closes the connection. */
     record Disconnect() implements Reply {}
 

@@ -25,6 +25,8 @@ public final class SimMeter {
     public static final double RANGE_MAX_OHM = 10e9;
     /** Delay of an injected slow reply, in milliseconds: longer than the shipped profile's measure timeout. */
     public static final long SLOW_MS = 2500;
+    /** Delay of an injected late reply, in milliseconds: past the shipped profile's 1500 ms measure timeout. */
+    public static final long LATE_MS = 1700;
 
     private final Contacts contacts;
     private final Clock clock;
@@ -218,8 +220,11 @@ public final class SimMeter {
             status = "FAIL";
             synchronized (this) { errors.add("-240,\"hardware: bridge unbalanced\""); }
         }
-        if (polar) return new Reply.Text(fmt(z.abs()) + "," + fmt(Math.toDegrees(z.getArgument())) + "," + status);
-        return new Reply.Text(fmt(z.getReal()) + "," + fmt(z.getImaginary()) + "," + status);
+        String line = polar ? fmt(z.abs()) + "," + fmt(Math.toDegrees(z.getArgument())) + "," + status
+                : fmt(z.getReal()) + "," + fmt(z.getImaginary()) + "," + status;
+        if (fault == SimFault.STRAY) return new Reply.WithStray(line, line);
+        if (fault == SimFault.LATE) return new Reply.Later(line, LATE_MS);
+        return new Reply.Text(line);
     }
 
     private SimFault randomFault() {

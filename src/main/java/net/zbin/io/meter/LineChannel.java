@@ -7,7 +7,9 @@ import net.zbin.core.FaultKind;
 /**
  * Terminator-framed text over a {@link Transport}: send a line, read one reply line within a
  * deadline. After a failed exchange the link may still deliver a late reply; {@link #settle} must
- * run before the next exchange so that a reply is never matched to the wrong query.
+ * run before the next exchange so that a reply is never matched to the wrong query. Whatever the meter
+ * sent unasked is dropped before each query (and counted), and {@link #queryConfirmed} brackets a query
+ * with the sync query so that a line arriving between the drop and the reply shows as a mismatch.
  */
 final class LineChannel {
     private static final int MAX_LINE = 4096;
@@ -18,6 +20,8 @@ final class LineChannel {
     private final Pending pending = new Pending();
     private final String terminatorText;
     private boolean dirty;
+    /** Bytes the meter sent that answered no query of ours (dropped before a query), for the log and the figures. */
+    private long unaskedBytes;
     /**
      * Sync queries sent whose answers have not been read: a settle that timed out leaves its query in flight,
      * and its answer must not be taken for the next one's (nor, later, for a reading).
@@ -49,18 +53,30 @@ final class LineChannel {
             drain(null);
             return;
         }
-        pending.reset();
+        // what is framed already stays: the owed sync answers may be among it
         if (syncsOwed >= MAX_SYNCS_OWED) syncsOwed = 0;
         write(syncQuery);
         syncsOwed++;
         long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
+        boolean answered = false;
         while (true) {
             long left = (deadline - System.nanoTime()) / 1_000_000L;
-            if (left <= 0) throw new MeterException(FaultKind.TIMEOUT, syncQuery, null, "meter did not come back in step within " + timeoutMs + " ms");
-            String line = readLine(syncQuery, (int) left);
-            if (syncExpect.matcher(line).find() && --syncsOwed == 0) {
-                dirty = false;
-                return;
+            String line;
+            try {
+                if (left <= 0) throw new MeterException(FaultKind.TIMEOUT, syncQuery, null, "meter did not come back in step within " + timeoutMs + " ms");
+                line = readLine(syncQuery, (int) left);
+            } catch (MeterException e) {
+                // The meter answers sync queries, just fewer than were counted as owed (a swallowed query's bracket was
+                // answered and taken for something else): count none owed, and the next settle's own answer ends it.
+                if (answered && e.kind() == FaultKind.TIMEOUT) syncsOwed = 0;
+                throw e;
+            }
+            if (syncExpect.matcher(line).find()) {
+                answered = true;
+                if (--syncsOwed == 0) {
+                    dirty = false;
+                    return;
+                }
             }
         }
     }
@@ -70,6 +86,8 @@ final class LineChannel {
      * owed, and the next {@link #settle} waits for it too.
      */
     String syncQuery(String syncQuery, int timeoutMs) throws MeterException {
+        if (dirty) throw new IllegalStateException("settle the link before the next exchange");
+        dropUnasked(syncQuery);
         send(syncQuery);
         syncsOwed++;
         String line = readLine(syncQuery, timeoutMs);
@@ -92,11 +110,89 @@ final class LineChannel {
         }
     }
 
-    /** Sends a query and returns its reply line without the terminator. */
+    /** Drops what waits unasked, sends a query and returns its reply line without the terminator. */
     String query(String command, int timeoutMs) throws MeterException {
+        if (dirty) throw new IllegalStateException("settle the link before the next exchange");
+        dropUnasked(command);
         send(command);
         return readLine(command, timeoutMs);
     }
+
+    /**
+     * A query proven to be answered by its own reply: what waits unasked is dropped, the query and the sync query
+     * go out together, and the reply counts only when the very next line is the sync answer and nothing follows it.
+     * A meter answers in order, so a stray line (a late reply, a front-panel line) anywhere in the exchange makes
+     * the line after the reply something other than the sync answer: a GARBLED failure, and the link is resynced
+     * before the next exchange. Never is the stray line, or the reply behind it, returned as this query's answer.
+     *
+     * @param timeoutMs     for the reply
+     * @param syncTimeoutMs for the sync answer after it
+     */
+    String queryConfirmed(String command, String syncQuery, java.util.regex.Pattern syncExpect, int timeoutMs, int syncTimeoutMs)
+            throws MeterException {
+        if (dirty) throw new IllegalStateException("settle the link before the next exchange");
+        dropUnasked(command);
+        write(command + terminatorText + syncQuery);
+        syncsOwed++;
+        String reply = readLine(command, timeoutMs);
+        if (syncExpect.matcher(reply).find()) {
+            syncsOwed--; // the sync answer came first: the meter answered the query behind the measure query, not it
+            dirty = true;
+            throw new MeterException(FaultKind.TIMEOUT, command, reply, "the meter answered " + syncQuery + " but not the query before it");
+        }
+        String confirm = readLine(syncQuery, syncTimeoutMs);
+        if (!syncExpect.matcher(confirm).find()) {
+            dirty = true; // the sync answer is still owed: the next settle waits for it too
+            throw new MeterException(FaultKind.GARBLED, command, reply + terminatorText + confirm,
+                    "the reply was not followed by the answer to " + syncQuery + ": a line that answers no query of ours is on the link");
+        }
+        syncsOwed--;
+        failIfMoreFollows(command, reply);
+        return reply;
+    }
+
+    /** After a reply: bytes already waiting behind it answer no query of ours, so the reply is not proven either. */
+    void failIfMoreFollows(String sent, String reply) throws MeterException {
+        int more = waiting(sent);
+        if (more == 0) return;
+        dirty = true;
+        throw new MeterException(FaultKind.GARBLED, sent, reply + terminatorText + pending.text(),
+                "more data followed the reply (" + more + " bytes): the meter sent something no query asked for");
+    }
+
+    /** Bytes received and not taken: what is framed already plus what the transport holds. */
+    private int waiting(String sent) throws MeterException {
+        try {
+            return pending.size() + transport.available();
+        } catch (IOException e) {
+            transport.close();
+            throw new MeterException(FaultKind.DISCONNECTED, sent, null, "read failed on " + transport.describe() + ": " + e.getMessage(), e);
+        }
+    }
+
+    /** Drops what the meter sent unasked before a query, without waiting for more. */
+    private void dropUnasked(String sent) throws MeterException {
+        int dropped = pending.size();
+        pending.reset();
+        try {
+            while (transport.available() > 0) {
+                int n = transport.read(buf, 1);
+                if (n < 0) {
+                    transport.close();
+                    throw new MeterException(FaultKind.DISCONNECTED, sent, null, "the meter closed the link (" + transport.describe() + ")");
+                }
+                if (n == 0) break;
+                dropped += n;
+            }
+        } catch (IOException e) {
+            transport.close();
+            throw new MeterException(FaultKind.DISCONNECTED, sent, null, "read failed on " + transport.describe() + ": " + e.getMessage(), e);
+        }
+        unaskedBytes += dropped;
+    }
+
+    /** Bytes dropped so far because they answered no query of ours. */
+    long unaskedBytes() { return unaskedBytes; }
 
     private String readLine(String sent, int timeoutMs) throws MeterException {
         long deadline = System.nanoTime() + timeoutMs * 1_000_000L;

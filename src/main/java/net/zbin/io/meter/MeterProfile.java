@@ -29,12 +29,49 @@ import java.util.regex.Pattern;
  * @param transport        default link (a line config may override it)
  * @param reconnectInitialMs first reconnect delay
  * @param reconnectMaxMs   largest reconnect delay (doubling from the first)
+ * @param confirmReadings  true: each measure query goes out with the sync query behind it, and a reading counts only
+ *                         when the sync answer follows it (proves the reply answers this query); needs a sync query
+ * @param range            the test conditions the meter can set, for warnings before a line starts (null: not stated)
+ * @param readback         placeholder name (freq_hz, level_v) → query that reads the setting back after a setup
  */
 public record MeterProfile(String name, String terminator, String identifyQuery, Pattern identifyExpect, List<String> setup,
                            Map<String, String> speedNames, String syncQuery, Pattern syncExpect, String measureQuery,
                            int measureTimeoutMs, String separator, List<Field> fields, String statusOk,
                            Set<String> statusOverload, String errorQuery, Pattern errorNone, int commandTimeoutMs,
-                           TransportSpec transport, int reconnectInitialMs, int reconnectMaxMs) {
+                           TransportSpec transport, int reconnectInitialMs, int reconnectMaxMs, boolean confirmReadings,
+                           Range range, Map<String, String> readback) {
+
+    /**
+     * What the meter can set, as its data sheet states it. zbin does not rely on it to catch a refused
+     * setting (the error query and the read-back do that); it lets {@code check} warn before the line starts.
+     *
+     * @param freqMinHz lowest test frequency in Hz
+     * @param freqMaxHz highest test frequency in Hz
+     * @param levelMinV lowest AC test level in volts rms
+     * @param levelMaxV highest AC test level in volts rms
+     */
+    public record Range(double freqMinHz, double freqMaxHz, double levelMinV, double levelMaxV) {
+        public Range {
+            if (!(freqMinHz > 0) || !(freqMaxHz >= freqMinHz))
+                throw new IllegalArgumentException("range.freq_hz must be [min, max] with 0 < min <= max (was [" + freqMinHz + ", " + freqMaxHz + "])");
+            if (!(levelMinV > 0) || !(levelMaxV >= levelMinV))
+                throw new IllegalArgumentException("range.level_v must be [min, max] with 0 < min <= max (was [" + levelMinV + ", " + levelMaxV + "])");
+        }
+
+        /** What of the conditions lies outside the range, or null when all fits. */
+        public String outside(net.zbin.core.TestConditions c) {
+            if (c.freqHz() < freqMinHz || c.freqHz() > freqMaxHz)
+                return "frequency " + net.zbin.core.SiValue.format(c.freqHz(), "Hz") + " is outside the meter's "
+                        + net.zbin.core.SiValue.format(freqMinHz, "Hz") + " .. " + net.zbin.core.SiValue.format(freqMaxHz, "Hz");
+            if (c.levelV() < levelMinV || c.levelV() > levelMaxV)
+                return "level " + net.zbin.core.SiValue.format(c.levelV(), "V") + " is outside the meter's "
+                        + net.zbin.core.SiValue.format(levelMinV, "V") + " .. " + net.zbin.core.SiValue.format(levelMaxV, "V");
+            return null;
+        }
+    }
+
+    /** Settings that can be read back after a setup. */
+    public static final Set<String> READBACK = Set.of("freq_hz", "level_v");
 
     /** What one reply field means. */
     public enum Field {
@@ -83,12 +120,17 @@ public record MeterProfile(String name, String terminator, String identifyQuery,
         if (reconnectInitialMs < 1 || reconnectMaxMs < reconnectInitialMs)
             throw new IllegalArgumentException("reconnect: initial_ms must be >= 1 and max_ms >= initial_ms");
         if (syncQuery != null && syncExpect == null) throw new IllegalArgumentException("sync.expect is required with sync.query");
+        if (confirmReadings && syncQuery == null)
+            throw new IllegalArgumentException("measure.confirm needs sync.query: the sync answer behind a reading is what proves it");
+        readback = Map.copyOf(readback);
+        for (String k : readback.keySet())
+            if (!READBACK.contains(k)) throw new IllegalArgumentException("readback." + k + ": not a setting that can be read back (known: " + READBACK + ")");
     }
 
     public MeterProfile withTransport(TransportSpec t) {
         return new MeterProfile(name, terminator, identifyQuery, identifyExpect, setup, speedNames, syncQuery, syncExpect,
                 measureQuery, measureTimeoutMs, separator, fields, statusOk, statusOverload, errorQuery, errorNone,
-                commandTimeoutMs, t, reconnectInitialMs, reconnectMaxMs);
+                commandTimeoutMs, t, reconnectInitialMs, reconnectMaxMs, confirmReadings, range, readback);
     }
 
     /** A setup template with the test conditions filled in. */

@@ -37,6 +37,7 @@ public final class MeterProfileLoader {
         SpecNode me = n.child("measure");
         String mq = me.text("query");
         int mt = me.optInteger("timeout_ms", 2000);
+        boolean confirm = me.optBool("confirm", syncQ != null);
         me.finish();
         if (!n.has("response")) throw n.error("response", "is required (separator and fields)");
         SpecNode re = n.child("response");
@@ -54,12 +55,36 @@ public final class MeterProfileLoader {
         to.finish();
         if (!n.has("transport")) throw n.error("transport", "is required (tcp: {host, port} or serial: {port, baud, ...})");
         TransportSpec transport = TransportSpecs.parse(n.child("transport"));
+        MeterProfile.Range parsedRange = null;
+        if (n.has("range")) {
+            SpecNode ra = n.child("range");
+            double[] f = pair(ra, "freq_hz", net.zbin.core.Unit.HERTZ);
+            double[] l = pair(ra, "level_v", net.zbin.core.Unit.VOLT);
+            ra.finish();
+            parsedRange = n.build("range", () -> new MeterProfile.Range(f[0], f[1], l[0], l[1]));
+        }
+        MeterProfile.Range range = parsedRange;
+        Map<String, String> readback = new HashMap<>();
+        SpecNode rb = n.child("readback");
+        for (String k : MeterProfile.READBACK) {
+            String q = rb.optText(k, null);
+            if (q != null) readback.put(k, q);
+        }
+        rb.finish();
         SpecNode rc = n.child("reconnect");
         int ri = rc.optInteger("initial_ms", 100), rm = rc.optInteger("max_ms", 5000);
         rc.finish();
         n.finish();
         return n.build(null, () -> new MeterProfile(name, term, idQuery, idExpect, setup, speeds, syncQ, syncE, mq, mt, sep,
-                fields, ok, new HashSet<>(ovl), eq, none, ct, transport, ri, rm));
+                fields, ok, new HashSet<>(ovl), eq, none, ct, transport, ri, rm, confirm, range, readback));
+    }
+
+    /** A [min, max] pair of numbers in the unit, SI prefixes allowed. */
+    private static double[] pair(SpecNode n, String key, net.zbin.core.Unit unit) throws ConfigException {
+        if (!n.has(key)) throw n.error(key, "is required: [min, max]");
+        List<Double> v = n.values(key, t -> net.zbin.core.SiValue.parse(t, unit));
+        if (v.size() != 2) throw n.error(key, "must be [min, max] (was " + v.size() + " values)");
+        return new double[] {v.get(0), v.get(1)};
     }
 
     private static Pattern regex(SpecNode n, String key) throws ConfigException {

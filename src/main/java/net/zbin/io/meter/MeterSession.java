@@ -16,6 +16,9 @@ public interface MeterSession extends AutoCloseable {
     /** Reconnects performed so far (for monitoring and tests). */
     long reconnects();
 
+    /** Bytes the meter sent that answered no query (dropped before a query), for monitoring and tests. */
+    long unaskedBytes();
+
     @Override
     void close();
 }

@@ -83,12 +83,25 @@ public final class ProfileMeterSession implements MeterSession {
         return id;
     }
 
+    /**
+     * Sends the setup when the conditions changed, and proves the meter took it: the error queue is read after
+     * each setup command (entries left from before are read off first and logged), and each setting the profile
+     * can read back is compared with what was asked. A refusal throws {@link FaultKind#SETUP_REFUSED} naming the
+     * command and the meter's words; nothing counts as applied, so no reading is taken under other conditions.
+     */
     @Override
     public void apply(TestConditions c) throws MeterException {
         wanted = c;
         ready("setup");
         if (c.equals(applied)) return;
-        for (String template : profile.setup()) channel.send(profile.fill(template, c));
+        applied = null;
+        clearErrorQueue();
+        for (String template : profile.setup()) {
+            String cmd = profile.fill(template, c);
+            channel.send(cmd);
+            String err = nextError(cmd);
+            if (err != null) throw new MeterException(FaultKind.SETUP_REFUSED, cmd, err, "the meter refused '" + cmd + "': " + err);
+        }
         if (profile.syncQuery() != null) {
             String r = channel.syncQuery(profile.syncQuery(), profile.commandTimeoutMs());
             if (!profile.syncExpect().matcher(r).find()) {
@@ -96,8 +109,46 @@ public final class ProfileMeterSession implements MeterSession {
                 throw new MeterException(FaultKind.GARBLED, profile.syncQuery(), r, "setup not confirmed");
             }
         }
+        for (var rb : profile.readback().entrySet()) readBack(rb.getKey(), rb.getValue(), c);
         applied = c;
     }
+
+    /** Relative difference a read-back setting may show (a meter echoes 1e6 as 1.000000E+06). */
+    private static final double READBACK_REL = 1e-6;
+
+    private void readBack(String setting, String query, TestConditions c) throws MeterException {
+        double want = setting.equals("freq_hz") ? c.freqHz() : c.levelV();
+        String reply = channel.query(query, profile.commandTimeoutMs());
+        double got;
+        try {
+            got = Double.parseDouble(reply.trim());
+        } catch (NumberFormatException e) {
+            channel.markDirty();
+            throw new MeterException(FaultKind.GARBLED, query, reply, setting + " read back is not a number");
+        }
+        if (!(Math.abs(got - want) <= READBACK_REL * Math.abs(want)))
+            throw new MeterException(FaultKind.SETUP_REFUSED, query, reply, "the meter runs at " + setting + " " + reply.trim()
+                    + " where " + num(want) + " was set: the setting did not take");
+    }
+
+    /** Reads off the error queue entries left from before this setup, so that none is taken for a refusal. */
+    private void clearErrorQueue() throws MeterException {
+        for (int i = 0; i < 32; i++) {
+            String e = nextError("setup");
+            if (e == null) return;
+            LOG.info("meter error queue before setup: {}", e);
+        }
+    }
+
+    /** The next error queue entry, or null when the queue says none (or the profile has no error query). */
+    private String nextError(String after) throws MeterException {
+        if (profile.errorQuery() == null) return null;
+        String e = channel.query(profile.errorQuery(), profile.commandTimeoutMs());
+        if (profile.errorNone() == null || profile.errorNone().matcher(e).find()) return null;
+        return e.trim();
+    }
+
+    private static String num(double v) { return v == Math.rint(v) && Math.abs(v) < 1e15 ? Long.toString((long) v) : Double.toString(v); }
 
     @Override
     public MeterReading measure() throws MeterException {
@@ -105,7 +156,14 @@ public final class ProfileMeterSession implements MeterSession {
         ready(profile.measureQuery());
         if (!wanted.equals(applied)) apply(wanted);
         long t0 = System.nanoTime();
-        String reply = channel.query(profile.measureQuery(), profile.measureTimeoutMs());
+        String q = profile.measureQuery();
+        String reply;
+        if (profile.confirmReadings()) {
+            reply = channel.queryConfirmed(q, profile.syncQuery(), profile.syncExpect(), profile.measureTimeoutMs(), profile.commandTimeoutMs());
+        } else {
+            reply = channel.query(q, profile.measureTimeoutMs());
+            channel.failIfMoreFollows(q, reply);
+        }
         double ms = (System.nanoTime() - t0) / 1e6;
         try {
             return new MeterReading(parse(reply), ms);
@@ -182,6 +240,9 @@ public final class ProfileMeterSession implements MeterSession {
 
     @Override
     public long reconnects() { return reconnects; }
+
+    @Override
+    public long unaskedBytes() { return channel.unaskedBytes(); }
 
     @Override
     public void close() { channel.transport().close(); }

@@ -76,6 +76,14 @@ public final class SerialTransport implements Transport {
     }
 
     @Override
+    public int available() throws IOException {
+        if (!isOpen()) throw new IOException("serial port " + settings.port() + " is not open");
+        int n = port.bytesAvailable();
+        if (n < 0) throw new IOException("serial port " + settings.port() + ": cannot read what is waiting (error code " + port.getLastErrorCode() + ")");
+        return n;
+    }
+
+    @Override
     public String describe() { return "serial " + settings.port() + " " + settings.baud() + " baud"; }
 
     @Override

@@ -61,6 +61,12 @@ public final class TcpTransport implements Transport {
     }
 
     @Override
+    public int available() throws IOException {
+        if (!isOpen()) throw new IOException("not connected");
+        return in.available();
+    }
+
+    @Override
     public String describe() { return "tcp " + host + ":" + port; }
 
     @Override

@@ -21,6 +21,12 @@ public interface Transport extends AutoCloseable {
      */
     int read(byte[] buf, int timeoutMs) throws IOException;
 
+    /**
+     * Bytes received and waiting to be read now, without waiting for more. Used to drop what the meter sent
+     * unasked before a query and to notice data that follows a reply.
+     */
+    int available() throws IOException;
+
     /** A short description for logs and messages ("tcp 127.0.0.1:5025", "serial /dev/ttyUSB0"). */
     String describe();
 

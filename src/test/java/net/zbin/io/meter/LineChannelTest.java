@@ -2,6 +2,7 @@ package net.zbin.io.meter;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayDeque;
@@ -11,12 +12,14 @@ import org.junit.jupiter.api.Test;
 
 /** Framing alone, over a scripted link: how the bytes are cut into reads must not matter. */
 class LineChannelTest {
-    /** Hands out the scripted chunks one read at a time, then nothing. */
+    /** A scripted meter: {@link #whole}/{@link #bytewise} arrive now (unasked), {@link #answer} after the next write. */
     static final class Script implements Transport {
         final Deque<byte[]> chunks = new ArrayDeque<>();
+        final Deque<java.util.List<byte[]>> answers = new ArrayDeque<>();
         public void open() { }
         public boolean isOpen() { return true; }
-        public void write(byte[] d) { }
+        public void write(byte[] d) { if (!answers.isEmpty()) chunks.addAll(answers.poll()); }
+        public int available() { return chunks.isEmpty() ? 0 : chunks.peek().length; }
         public int read(byte[] b, int t) {
             byte[] c = chunks.poll();
             if (c == null) return 0;
@@ -28,27 +31,65 @@ class LineChannelTest {
 
         void bytewise(String s) { for (byte x : s.getBytes(StandardCharsets.US_ASCII)) chunks.add(new byte[] {x}); }
         void whole(String s) { chunks.add(s.getBytes(StandardCharsets.US_ASCII)); }
+        void answer(String s) { answers.add(java.util.List.of(s.getBytes(StandardCharsets.US_ASCII))); }
+        void answerBytewise(String s) {
+            java.util.List<byte[]> l = new java.util.ArrayList<>();
+            for (byte x : s.getBytes(StandardCharsets.US_ASCII)) l.add(new byte[] {x});
+            answers.add(l);
+        }
     }
 
     @Test
-    void terminatorSplitAcrossReads_andTwoRepliesInOneRead_areFramedAlike() throws Exception {
+    void terminatorSplitAcrossReads_isFramedAsOneLine() throws Exception {
         Script link = new Script();
         LineChannel ch = new LineChannel(link, "\r\n");
-        link.bytewise("1.5,-2.5,GOOD\r\n");
+        link.answerBytewise("1.5,-2.5,GOOD\r\n");
         assertEquals("1.5,-2.5,GOOD", ch.query("Q", 100));
-        link.whole("first\r\nsecond\r\nthi");
-        link.bytewise("rd\r");
-        link.bytewise("\n");
-        assertEquals("first", ch.query("Q", 100));
-        assertEquals("second", ch.query("Q", 100));
-        assertEquals("third", ch.query("Q", 100));
+        link.answer("first,1");
+        link.answerBytewise(",GOOD\r");
+        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.query("Q", 20)).kind(), "no terminator yet");
+    }
+
+    @Test
+    void aLineThatCameUnasked_isDroppedBeforeTheNextQuery_andCounted() throws Exception {
+        Script link = new Script();
+        LineChannel ch = new LineChannel(link, "\n");
+        link.whole("1000,0.01,GOOD\n"); // a stray line: nobody asked
+        link.answer("47000,0.01,GOOD\n");
+        assertEquals("47000,0.01,GOOD", ch.query("TRIG:RX?", 20), "the answer to this query, not the stray line before it");
+        assertEquals(15, ch.unaskedBytes());
+    }
+
+    @Test
+    void dataBehindAReply_failsTheReplyAsGarbled() {
+        Script link = new Script();
+        LineChannel ch = new LineChannel(link, "\n");
+        link.answer("47000,0.01,GOOD\n1000,0.01,GOOD\n");
+        MeterException e = assertThrows(MeterException.class, () -> ch.failIfMoreFollows("TRIG:RX?", ch.query("TRIG:RX?", 20)));
+        assertEquals(FaultKind.GARBLED, e.kind());
+        assertTrue(ch.dirty(), "out of step until settled");
+    }
+
+    @Test
+    void aConfirmedQuery_refusesAReplyNotFollowedByTheSyncAnswer() throws Exception {
+        Script link = new Script();
+        LineChannel ch = new LineChannel(link, "\n");
+        // a stray reading lands between the drop and the reply: the real reply comes where the sync answer should
+        link.answer("1000,0.01,GOOD\n47000,0.01,GOOD\n1\n");
+        MeterException e = assertThrows(MeterException.class, () -> ch.queryConfirmed("TRIG:RX?", "*OPC?", ONE, 20, 20));
+        assertEquals(FaultKind.GARBLED, e.kind());
+        // in step again once the owed sync answer and the settle's own have come
+        link.answer("1\n");
+        ch.settle("*OPC?", ONE, 20);
+        link.answer("4700,0.01,GOOD\n1\n");
+        assertEquals("4700,0.01,GOOD", ch.queryConfirmed("TRIG:RX?", "*OPC?", ONE, 20, 20));
     }
 
     @Test
     void aReplyWithoutTerminator_timesOutWithWhatCameBack() {
         Script link = new Script();
         LineChannel ch = new LineChannel(link, "\n");
-        link.whole("half a rep");
+        link.answer("half a rep");
         MeterException e = assertThrows(MeterException.class, () -> ch.query("TRIG:RX?", 20));
         assertEquals(FaultKind.TIMEOUT, e.kind());
         assertEquals("half a rep", e.received());
@@ -59,9 +100,9 @@ class LineChannelTest {
 
     /** Lets {@code arriving} come in, settles, then checks the next reading is the one sent after it. */
     private static void settleThenRead(Script link, LineChannel ch, String arriving, String why) throws MeterException {
-        link.whole(arriving);
+        link.answer(arriving);
         ch.settle("*OPC?", ONE, 20);
-        link.whole("47000,0.01,0\n");
+        link.answer("47000,0.01,0\n");
         assertEquals("47000,0.01,0", ch.query("TRIG:RX?", 20), why);
     }
 

@@ -155,6 +155,85 @@ abstract class MeterLinkContract {
         }
     }
 
+    /**
+     * Measures with parts changing each time until {@code ms} of wall time have passed (the late and stray lines
+     * need time to land); every reading that is given must be the part on the contacts now. Returns the successes.
+     */
+    int everyReadingIsThePartOnTheContacts(long ms) throws Exception {
+        PartModel[] parts = {new PartModel.Resistor(1000, 0, 0), new PartModel.Resistor(47_000, 0, 0), new PartModel.Resistor(4700, 0, 0)};
+        long end = System.nanoTime() + ms * 1_000_000L, giveUp = end + 30_000_000_000L;
+        int ok = 0, i = 0;
+        while (System.nanoTime() < end || ok < 5) {
+            assertTrue(System.nanoTime() < giveUp, "link not back in step 30 s after the fault (" + ok + " readings)");
+            PartModel.Resistor p = (PartModel.Resistor) parts[i++ % parts.length];
+            meter.contacts().load(p, 0);
+            try {
+                double r = session.measure().reading().rOhm();
+                assertEquals(p.rOhm(), r, p.rOhm() * 1e-2, "reading " + i + " belongs to the part on the contacts");
+                ok++;
+            } catch (MeterException e) {
+                assertTrue(e.kind() == FaultKind.GARBLED || e.kind() == FaultKind.TIMEOUT, e.getMessage());
+            }
+        }
+        return ok;
+    }
+
+    @Test
+    void strayLineAfterAReply_isNeverTakenForALaterPartsReading() throws Exception {
+        session.apply(COND);
+        meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
+        meter.inject(SimFault.STRAY, 1);
+        try {
+            assertEquals(1000, session.measure().reading().rOhm(), 10);
+        } catch (MeterException e) {
+            assertEquals(FaultKind.GARBLED, e.kind(), "the line behind the reply is noticed: " + e.getMessage());
+        }
+        meter.contacts().load(new PartModel.Resistor(47_000, 0, 0), 0);
+        try {
+            assertEquals(47_000, session.measure().reading().rOhm(), 470, "the stray 1 kΩ line is not this part's reading");
+        } catch (MeterException e) {
+            assertTrue(e.kind() == FaultKind.GARBLED || e.kind() == FaultKind.TIMEOUT, e.getMessage());
+        }
+        everyReadingIsThePartOnTheContacts(200);
+    }
+
+    @Test
+    void lateReplyAfterATimeout_landingMidExchange_isNeverTakenForAReading() throws Exception {
+        session.apply(COND);
+        meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
+        meter.inject(SimFault.LATE, 1);
+        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, session::measure).kind());
+        // the late 1 kΩ line lands LATE_MS after its query, while readings of other parts go on
+        int ok = everyReadingIsThePartOnTheContacts(SimMeter.LATE_MS + 300);
+        assertTrue(ok >= 5);
+    }
+
+    @Test
+    void refusedFrequency_isSetupRefused_namingTheCommandAndTheMetersWords_andNothingIsMeasured() throws Exception {
+        session.apply(COND);
+        meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
+        session.measure();
+        long before = meter.measurements();
+        TestConditions tooHigh = new TestConditions(100e6, 1, "medium", 1); // beyond the simulator's 10 MHz
+        MeterException e = assertThrows(MeterException.class, () -> session.apply(tooHigh));
+        assertEquals(FaultKind.SETUP_REFUSED, e.kind());
+        assertEquals("CONF:FREQ 100000000", e.sent());
+        assertTrue(e.received().startsWith("-222"), "the meter's own words: " + e.received());
+        assertEquals(1000, meter.freqHz(), "the meter goes on at its old frequency");
+        MeterException again = assertThrows(MeterException.class, session::measure);
+        assertEquals(FaultKind.SETUP_REFUSED, again.kind(), "a reading under the old conditions is never taken");
+        assertEquals(before, meter.measurements());
+        session.apply(COND); // a recipe the meter can run: in service again
+        assertGood();
+    }
+
+    @Test
+    void anOldErrorInTheQueue_isNotTakenForARefusal() throws Exception {
+        meter.handle("NOT:A:COMMAND"); // leaves -113 in the error queue
+        session.apply(COND);
+        assertGood();
+    }
+
     void assertGood() throws Exception {
         meter.contacts().load(new PartModel.Resistor(1000, 0, 0), 0);
         Complex truth = meter.truth();

@@ -31,6 +31,7 @@ class ReconnectBackoffTest {
         public boolean isOpen() { return false; }
         public void write(byte[] d) throws IOException { throw new IOException("closed"); }
         public int read(byte[] b, int t) throws IOException { throw new IOException("closed"); }
+        public int available() throws IOException { throw new IOException("closed"); }
         public String describe() { return "dead link"; }
         public void close() { }
     }

@@ -84,6 +84,56 @@ class SecondDialectTest {
                 assertEquals(FaultKind.OVERLOAD, assertThrows(MeterException.class, s::measure).kind());
             }
         }
-        assertEquals(List.of("ID?", "F=1000", "V=0.5", "S=3", "M?", "M?"), heard);
+        // the error queue is read off before the setup and after each setup command
+        assertEquals(List.of("ID?", "E?", "F=1000", "E?", "V=0.5", "E?", "S=3", "E?", "M?", "M?"), heard);
+    }
+
+    static final String SILENT_REFUSER = """
+            meter: quiet-bridge
+            setup: ["F={freq_hz}"]
+            measure: {query: "M?", timeout_ms: 400}
+            response: {separator: ",", fields: [r_ohm, x_ohm]}
+            readback: {freq_hz: "F?"}
+            timeouts: {command_ms: 300}
+            transport: {tcp: {host: 127.0.0.1, port: %d}}
+            """;
+
+    @Test
+    void aMeterThatIgnoresASettingWithoutAnError_isCaughtByTheReadBack() throws Exception {
+        List<String> heard = new CopyOnWriteArrayList<>();
+        try (ServerSocket ss = new ServerSocket(0, 1, InetAddress.getLoopbackAddress())) {
+            Thread t = new Thread(() -> {
+                double freq = 1000;
+                try (Socket s = ss.accept(); BufferedReader in = new BufferedReader(new InputStreamReader(s.getInputStream(), StandardCharsets.US_ASCII));
+                     OutputStream out = s.getOutputStream()) {
+                    String line;
+                    while ((line = in.readLine()) != null) {
+                        heard.add(line);
+                        String reply = null;
+                        if (line.startsWith("F=")) {
+                            double want = Double.parseDouble(line.substring(2));
+                            if (want <= 100_000) freq = want; // beyond its range it keeps the old one and says nothing
+                        } else if (line.equals("F?")) reply = String.format(Locale.ROOT, "%.6E", freq);
+                        else if (line.equals("M?")) reply = "100.0,-1591.5";
+                        if (reply != null) { out.write((reply + "\n").getBytes(StandardCharsets.US_ASCII)); out.flush(); }
+                    }
+                } catch (Exception ignored) {
+                    // test responder ends with the test
+                }
+            });
+            t.setDaemon(true);
+            t.start();
+            Path p = dir.resolve("quiet.yaml");
+            Files.writeString(p, String.format(Locale.ROOT, SILENT_REFUSER, ss.getLocalPort()));
+            try (ProfileMeterSession s = ProfileMeterSession.open(MeterProfileLoader.load(p), Clock.systemUTC())) {
+                s.apply(new TestConditions(1000, 1, "medium", 1));
+                s.measure();
+                MeterException e = assertThrows(MeterException.class, () -> s.apply(new TestConditions(1e6, 1, "medium", 1)));
+                assertEquals(FaultKind.SETUP_REFUSED, e.kind());
+                assertTrue(e.getMessage().contains("runs at freq_hz 1.000000E+03 where 1000000 was set"), e.getMessage());
+                assertEquals(FaultKind.SETUP_REFUSED, assertThrows(MeterException.class, s::measure).kind(), "no reading under the old frequency");
+            }
+        }
+        assertEquals(1, heard.stream().filter("M?"::equals).count(), "one reading only, at the frequency that took: " + heard);
     }
 }
