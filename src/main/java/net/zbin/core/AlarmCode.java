@@ -6,6 +6,7 @@ import java.util.Locale;
 public enum AlarmCode {
     RECORD_LOG_FAILED(Severity.CRITICAL),
     METER_LINK_DOWN(Severity.CRITICAL),
+    METER_SETUP_REFUSED(Severity.CRITICAL),
     VALUE_DRIFT(Severity.WARNING),
     LOSS_DRIFT(Severity.WARNING),
     COMPENSATION_OFFSET(Severity.CRITICAL),

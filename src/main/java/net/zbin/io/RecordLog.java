@@ -1,11 +1,9 @@
 package net.zbin.io;
 
-import java.io.BufferedWriter;
 import java.io.IOException;
-import java.io.OutputStreamWriter;
 import java.io.RandomAccessFile;
 import java.nio.ByteBuffer;
-import java.nio.channels.Channels;
+import java.nio.channels.ClosedChannelException;
 import java.nio.channels.FileChannel;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
@@ -17,24 +15,34 @@ import java.time.ZoneOffset;
 import java.util.ArrayDeque;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
+import net.zbin.core.Reason;
 import org.apache.commons.csv.CSVFormat;
-import org.apache.commons.csv.CSVPrinter;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
  * The record log (contract, see the README's record log section): one CSV row per decision. A row is
- * written to the operating system by {@link #append} before its decision is published — a cheap write,
+ * written to the operating system by {@link #write} before its decision is published — one write call,
  * not an fsync — so a kill -9 of the process loses no row the handler acted on; a timer thread forces
- * the file to disk every {@code flushMs}, so a power cut loses at most that interval. A torn last line
- * (the machine died mid-row) is cut off when the file is reopened, so no row ever reads back wrong.
- * Files rotate by UTC day and by size: {@code <line>-<yyyy-mm-dd>.csv}, then {@code .1.csv}, {@code .2.csv}, …
- * When writing fails, rows are kept in memory and retried by the timer; the listener hears of the
- * failure and of the recovery. Thread-safe: the measuring thread and the overflow answerer append.
+ * the file to disk every {@code flushMs} without holding what {@code write} needs, so the trigger path never
+ * waits on the disk's flush. A torn last line (the machine died mid-row) is cut off when the file is reopened,
+ * so no row ever reads back wrong. Files rotate by UTC day and by size: {@code <line>-<yyyy-mm-dd>.csv},
+ * then {@code .1.csv}, {@code .2.csv}, …
+ *
+ * <p>When writing fails, {@link #keep} holds rows in memory, encoded, and the timer retries them in order: rows
+ * of measured decisions up to {@link #MAX_MEASURED_BYTES}, answers that measured nothing up to
+ * {@link #MAX_UNMEASURED_BYTES} (a handler that re-presents at once while the line is paused must not fill the
+ * memory, nor the disk when space returns); beyond that rows are dropped and counted. The listener hears of the
+ * failure and of the recovery. Thread-safe: the measuring thread and the overflow answerer write.
  */
 public final class RecordLog implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(RecordLog.class);
-    private static final int MAX_PENDING = 1 << 20;
+    /** Bytes of kept rows of measured decisions at most (16 MiB ≈ 60 000 rows). */
+    public static final long MAX_MEASURED_BYTES = 16L << 20;
+    /** Bytes of kept rows of answers that measured nothing at most (256 KiB ≈ 1 000 rows). */
+    public static final long MAX_UNMEASURED_BYTES = 256L << 10;
+    /** While failing, the timer retries at least this often, whatever the flush interval. */
+    private static final long RETRY_MS = 200;
     private static final CSVFormat FORMAT = CSVFormat.DEFAULT.builder().setRecordSeparator("\n").get();
     private static final String HEADER = String.join(",", RecordColumns.ALL) + "\n";
 
@@ -45,23 +53,32 @@ public final class RecordLog implements AutoCloseable {
         void recovered();
     }
 
+    /** A row waiting to be written, encoded already. */
+    private record Kept(Instant time, byte[] row, boolean measured) {}
+
     private final LineConfig.RecordSettings settings;
     private final String line;
     private final Listener listener;
-    private final ArrayDeque<DecisionFields.Entry> pending = new ArrayDeque<>();
+    private final ArrayDeque<Kept> backlog = new ArrayDeque<>();
     private final AtomicLong written = new AtomicLong();
     private final AtomicLong dropped = new AtomicLong();
     private final java.util.concurrent.ScheduledExecutorService timer;
+    private long measuredBytes, unmeasuredBytes;
+    private long droppedMeasured, tornCutsWhileFailing;
     private FileChannel channel;
-    private CSVPrinter printer;
     private Path current;
     private LocalDate day;
+    private long lastForceNanos = System.nanoTime();
     private boolean failing, dirty, closed;
 
     public RecordLog(LineConfig.RecordSettings settings, String line, Listener listener) {
         this.settings = settings;
         this.line = line;
-        this.listener = listener;
+        this.listener = listener == null ? new Listener() {
+            public void failed(String message) { }
+
+            public void recovered() { }
+        } : listener;
         this.timer = java.util.concurrent.Executors.newSingleThreadScheduledExecutor(r -> {
             Thread t = new Thread(r, "record-log-" + line);
             t.setDaemon(true);
@@ -70,69 +87,136 @@ public final class RecordLog implements AutoCloseable {
     }
 
     public void start() {
-        long period = Math.max(1, settings.flushMs());
-        timer.scheduleWithFixedDelay(this::sync, period, period, TimeUnit.MILLISECONDS);
+        long period = Math.max(1, Math.min(settings.flushMs(), RETRY_MS));
+        timer.scheduleWithFixedDelay(this::tick, period, period, TimeUnit.MILLISECONDS);
+    }
+
+    /** The row's bytes as they go to the file (free-text cells spreadsheet-safe, see {@link DecisionFields#row}). */
+    static byte[] encode(DecisionFields.Entry e) {
+        return (FORMAT.format((Object[]) DecisionFields.row(e)) + "\n").getBytes(StandardCharsets.UTF_8);
     }
 
     /**
-     * Writes a row through to the operating system. False when the log is failing: the row is then
-     * kept in memory (counted as backlog) and written on recovery; beyond a million it is dropped and counted.
+     * Writes a row through to the operating system. False when it did not get there (the log is failing, or
+     * rows are kept from a failure): the caller decides what to answer and then {@link #keep}s the row it answered.
      */
-    public synchronized boolean append(DecisionFields.Entry r) {
-        if (closed) throw new IllegalStateException("record log closed");
-        if (!pending.isEmpty() || failing) {
-            if (pending.size() >= MAX_PENDING) {
-                dropped.incrementAndGet();
+    public boolean write(DecisionFields.Entry e) {
+        byte[] row = encode(e);
+        synchronized (this) {
+            if (closed) throw new IllegalStateException("record log closed");
+            if (failing || !backlog.isEmpty()) return false;
+            try {
+                writeRow(e.time(), row);
+                return true;
+            } catch (IOException | RuntimeException ex) {
+                fail(ex);
                 return false;
             }
-            pending.add(r);
-            return false;
         }
-        try {
-            writeOne(r);
-            dirty = true;
-            return true;
-        } catch (IOException | RuntimeException e) {
-            pending.add(r);
-            fail(e);
-            return false;
+    }
+
+    /**
+     * Keeps a row that {@link #write} could not write, to be written in order when the log is writable again;
+     * beyond the byte bound of its class it is dropped and counted.
+     */
+    public void keep(DecisionFields.Entry e) {
+        byte[] row = encode(e);
+        boolean measured = e.decision().grading().reason().kind() != Reason.Kind.NOT_MEASURED;
+        synchronized (this) {
+            if (closed) throw new IllegalStateException("record log closed");
+            long used = measured ? measuredBytes : unmeasuredBytes;
+            if (used + row.length > (measured ? MAX_MEASURED_BYTES : MAX_UNMEASURED_BYTES)) {
+                dropped.incrementAndGet();
+                if (measured) droppedMeasured++;
+                return;
+            }
+            if (measured) measuredBytes += row.length;
+            else unmeasuredBytes += row.length;
+            backlog.add(new Kept(e.time(), row, measured));
         }
+    }
+
+    /** {@link #write}, and {@link #keep} when that fails: for callers whose answer does not depend on it. */
+    public boolean append(DecisionFields.Entry e) {
+        if (write(e)) return true;
+        keep(e);
+        return false;
     }
 
     public long written() { return written.get(); }
 
+    /** Rows dropped because the kept rows reached their bound while the log could not be written. */
     public long dropped() { return dropped.get(); }
 
-    /** Rows accepted but not yet written. */
-    public synchronized int backlog() { return pending.size(); }
+    /** Rows kept but not yet written. */
+    public synchronized int backlog() { return backlog.size(); }
 
-    /** Writes one row through to the operating system (no fsync); rotates past the size limit. */
-    private void writeOne(DecisionFields.Entry r) throws IOException {
-        ensureFile(r.time());
-        printer.printRecord((Object[]) values(r));
-        printer.flush();
+    /** True while the log cannot be written. */
+    public synchronized boolean failing() { return failing; }
+
+    /** Writes one encoded row through to the operating system (no fsync); rotates past the size limit. */
+    private void writeRow(Instant time, byte[] row) throws IOException {
+        ensureFile(time);
+        ByteBuffer b = ByteBuffer.wrap(row);
+        while (b.hasRemaining()) channel.write(b);
         written.incrementAndGet();
-        if (channel.size() >= settings.rotateBytes()) closeFile();
+        dirty = true;
+        if (channel.position() >= settings.rotateBytes()) closeFile();
     }
 
-    /** The timer: retries kept rows, then forces written rows to disk. */
-    synchronized void sync() {
-        try {
-            while (!pending.isEmpty()) {
-                writeOne(pending.peek());
-                pending.poll();
-                dirty = true;
+    /**
+     * The timer: retries kept rows in order, then forces written rows to disk every {@code flushMs} — outside
+     * the lock, so a row can be written while the disk flushes (a concurrent write and force on one channel is
+     * safe; the forced data is at least what was written before the call).
+     */
+    void tick() {
+        FileChannel toForce = null;
+        synchronized (this) {
+            if (!drainBacklog()) return;
+            long now = System.nanoTime();
+            if (dirty && channel != null && now - lastForceNanos >= settings.flushMs() * 1_000_000L) {
+                toForce = channel;
+                dirty = false;
+                lastForceNanos = now;
             }
-            if (printer != null && dirty) channel.force(false);
-            dirty = false;
-            if (failing) {
-                failing = false;
-                LOG.info("record log writable again: {}", current);
-                listener.recovered();
+        }
+        if (toForce == null) return;
+        try {
+            toForce.force(false);
+        } catch (ClosedChannelException e) {
+            // rotated or closed meanwhile: closing forced it
+        } catch (IOException e) {
+            synchronized (this) {
+                fail(e);
+            }
+        }
+    }
+
+    /** Writes the kept rows; true when none is left (and the log is writable). Holds the lock. */
+    private boolean drainBacklog() {
+        if (!failing && backlog.isEmpty()) return true;
+        try {
+            if (backlog.isEmpty()) ensureFile(Instant.now()); // nothing kept: is the folder writable again?
+            while (!backlog.isEmpty()) {
+                Kept k = backlog.peek();
+                writeRow(k.time(), k.row());
+                backlog.poll();
+                if (k.measured()) measuredBytes -= k.row().length;
+                else unmeasuredBytes -= k.row().length;
             }
         } catch (IOException | RuntimeException e) {
             fail(e);
+            return false;
         }
+        if (failing) {
+            failing = false;
+            LOG.info("record log writable again: {}{}{}", current,
+                    dropped.get() > 0 ? "; " + dropped.get() + " rows were dropped in all while it was not (" + droppedMeasured + " of measured decisions)" : "",
+                    tornCutsWhileFailing > 1 ? "; a torn last line was cut off " + tornCutsWhileFailing + " times meanwhile" : "");
+            tornCutsWhileFailing = 0;
+            listener.recovered();
+        }
+        return true;
     }
 
     private void fail(Exception e) {
@@ -146,7 +230,7 @@ public final class RecordLog implements AutoCloseable {
 
     private void ensureFile(Instant t) throws IOException {
         LocalDate d = LocalDate.ofInstant(t, ZoneOffset.UTC);
-        if (printer != null && d.equals(day)) return;
+        if (channel != null && d.equals(day)) return;
         closeFile();
         Files.createDirectories(settings.dir());
         for (int i = 0; ; i++) {
@@ -174,10 +258,17 @@ public final class RecordLog implements AutoCloseable {
     private void open(Path p) throws IOException {
         FileChannel ch = FileChannel.open(p, StandardOpenOption.CREATE, StandardOpenOption.WRITE, StandardOpenOption.READ);
         try {
-            cutTornTail(ch);
+            long cut = cutTornTail(ch);
+            if (cut > 0) {
+                if (!failing) LOG.warn("record log {} had a torn last line ({} bytes), cut off", p, cut);
+                else if (tornCutsWhileFailing++ == 0) LOG.warn("record log {} had a torn last line ({} bytes), cut off "
+                        + "(while the log cannot be written this repeats at each retry: counted, not logged again)", p, cut);
+            }
             ch.position(ch.size());
-            if (ch.size() == 0) ch.write(ByteBuffer.wrap(HEADER.getBytes(StandardCharsets.US_ASCII)));
-            printer = new CSVPrinter(new BufferedWriter(new OutputStreamWriter(Channels.newOutputStream(ch), StandardCharsets.UTF_8), 1 << 16), FORMAT);
+            if (ch.size() == 0) {
+                ByteBuffer h = ByteBuffer.wrap(HEADER.getBytes(StandardCharsets.US_ASCII));
+                while (h.hasRemaining()) ch.write(h);
+            }
             channel = ch;
             current = p;
         } catch (IOException e) {
@@ -186,46 +277,40 @@ public final class RecordLog implements AutoCloseable {
         }
     }
 
-    /** Truncates a file back to just after its last newline: a half-written row is never kept. */
-    static void cutTornTail(FileChannel ch) throws IOException {
+    /** Truncates a file back to just after its last newline: a half-written row is never kept. Returns the bytes cut. */
+    static long cutTornTail(FileChannel ch) throws IOException {
         long size = ch.size();
-        if (size == 0) return;
+        if (size == 0) return 0;
         ByteBuffer one = ByteBuffer.allocate(1);
         long pos = size - 1;
         ch.read(one, pos);
-        if (one.get(0) == '\n') return;
+        if (one.get(0) == '\n') return 0;
         while (pos > 0) {
             one.clear();
             ch.read(one, pos - 1);
             if (one.get(0) == '\n') break;
             pos--;
         }
-        LOG.warn("record log had a torn last line ({} bytes), cut off", size - pos);
         ch.truncate(pos);
+        return size - pos;
     }
 
     private void closeFile() {
+        if (channel == null) return;
         try {
-            if (printer != null) {
-                printer.flush();
-                channel.force(false);
-                printer.close();
-            }
+            channel.force(false);
         } catch (IOException e) {
-            LOG.warn("closing record log: {}", e.toString());
+            LOG.debug("forcing record log at close: {}", e.toString());
         }
         try {
-            if (channel != null) channel.close();
+            channel.close();
         } catch (IOException ignored) {
             // already reported
         }
-        printer = null;
         channel = null;
     }
 
-    static String[] values(DecisionFields.Entry r) { return DecisionFields.row(r); }
-
-    /** Stops after writing and forcing everything kept. */
+    /** Stops after writing and forcing everything kept; says what could not be written. */
     @Override
     public void close() {
         timer.shutdown();
@@ -235,9 +320,16 @@ public final class RecordLog implements AutoCloseable {
             Thread.currentThread().interrupt();
         }
         synchronized (this) {
-            sync();
+            drainBacklog();
             closeFile();
             closed = true;
+            if (!backlog.isEmpty()) {
+                long measured = backlog.stream().filter(Kept::measured).count();
+                LOG.error("record log stopped while it could not be written: {} rows kept in memory are lost ({} of them measured "
+                        + "decisions)", backlog.size(), measured);
+            }
+            if (dropped.get() > 0) LOG.warn("record log: {} rows were dropped beyond the memory bound while it could not be written "
+                    + "({} of measured decisions)", dropped.get(), droppedMeasured);
         }
     }
 }

@@ -14,7 +14,7 @@ import org.slf4j.LoggerFactory;
 
 /**
  * The line's mode — ready, paused (operator, or the record log cannot be written and the line is set
- * to pause then) or fault (meter link down) — with the retained state message and the alarms that go
+ * to pause then) or fault (meter link down, or the meter refused the recipe's test conditions) — with the retained state message and the alarms that go
  * with it. Thread-safe: the measuring thread, the record-log timer and the MQTT client's thread use it.
  * State and alarm messages are handed, in order, to one sender thread, so no caller ever waits on the
  * broker while it holds the mode, and the MQTT client's own thread never waits at all.
@@ -35,7 +35,7 @@ final class LineMode {
         t.setDaemon(true);
         return t;
     });
-    private boolean operatorPaused, logFailing, linkDown;
+    private boolean operatorPaused, logFailing, linkDown, setupRefused;
     private Mode published = Mode.OFFLINE;
     private Instant since;
 
@@ -66,11 +66,22 @@ final class LineMode {
     synchronized Mode mode() {
         if (operatorPaused || (logFailing && pauseOnLogFailure)) return Mode.PAUSED;
         for (AlarmCode c : pauseOn) if (active.containsKey(c.code())) return Mode.PAUSED;
-        if (linkDown) return Mode.FAULT;
+        if (linkDown || setupRefused) return Mode.FAULT;
         return Mode.READY;
     }
 
     synchronized boolean linkDown() { return linkDown; }
+
+    synchronized boolean setupRefused() { return setupRefused; }
+
+    /** The meter refused the recipe's test conditions: the line is in fault until a setup is taken. */
+    synchronized void setSetupRefused(boolean refused, String message) {
+        if (refused == setupRefused) return;
+        setupRefused = refused;
+        alarm(AlarmCode.METER_SETUP_REFUSED, refused, refused ? message + "; the recipe cannot run on this meter"
+                : "the meter took the test conditions", true);
+        changed();
+    }
 
     synchronized void setOperatorPaused(boolean p) {
         operatorPaused = p;

@@ -9,7 +9,8 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * Brings the meter link back without waiting for a trigger: while the line is in fault it asks for a
+ * Brings the meter link back without waiting for a trigger: while the line is in fault (link down, or the
+ * test conditions refused) it asks for a
  * probe (test conditions, then identification) on the measuring thread, between parts; the session
  * keeps its own reconnect backoff, so a probe inside the backoff costs nothing. Success clears the
  * alarm and returns the line to ready.
@@ -30,7 +31,7 @@ final class MeterWatch {
 
     /** Ticker thread: queues one probe while the link is down. */
     void tick(Dispatch dispatch) {
-        if (!mode.linkDown() || !pending.compareAndSet(false, true)) return;
+        if (!(mode.linkDown() || mode.setupRefused()) || !pending.compareAndSet(false, true)) return;
         if (!dispatch.onMeasuringThread(() -> {
             probe();
             pending.set(false);
@@ -43,9 +44,13 @@ final class MeterWatch {
             meter.apply(recipe.get().test());
             LOG.info("meter: {}", meter.identify());
             mode.setLinkDown(false, null);
+            mode.setSetupRefused(false, null);
         } catch (MeterException e) {
             LOG.debug("meter not ready: {}", e.getMessage());
-            mode.setLinkDown(true, e.getMessage());
+            if (e.kind() == net.zbin.core.FaultKind.SETUP_REFUSED) {
+                mode.setLinkDown(false, null);
+                mode.setSetupRefused(true, e.getMessage());
+            } else mode.setLinkDown(true, e.getMessage());
         }
     }
 }

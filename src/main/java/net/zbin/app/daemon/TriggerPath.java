@@ -76,10 +76,9 @@ final class TriggerPath {
         if (((DecisionBook.Fresh) found).reusedSeq()) seqReused(t, lotId);
         int attempt = book.attemptFor(t, lotId);
         Recipe r = setup.recipe();
-        Grading g = decide(t, r, attempt);
+        Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        book.put(d, now);
-        deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
+        book.put(deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d)), now);
     }
 
     /**
@@ -106,8 +105,22 @@ final class TriggerPath {
         deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
     }
 
-    private synchronized void deliver(DecisionFields.Entry e) {
-        records.append(e);
+    /**
+     * Records, publishes and tells the listeners; returns the decision the handler got. A measured decision whose
+     * row did not reach the operating system is not published as it is (unless the line is set to sort on without
+     * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
+     * handler acted on, and that answer's row is kept for when the log is writable again.
+     */
+    private synchronized Decision deliver(DecisionFields.Entry e) {
+        if (!records.write(e)) {
+            Decision d = e.decision();
+            if (cfg.records().pauseOnFailure() && d.grading().reason().kind() != Reason.Kind.NOT_MEASURED) {
+                d = new Decision(d.seq(), d.part(), d.lot(), d.kind(), d.recipe(), Grader.notMeasured(setup.recipe(), Reason.RECORD_FAILED),
+                        d.latencyMs(), false, d.attempt());
+                e = new DecisionFields.Entry(e.time(), e.line(), d);
+            }
+            records.keep(e);
+        }
         out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(e.decision())), 1, false);
         for (DecisionListener l : listeners) {
             try {
@@ -116,6 +129,7 @@ final class TriggerPath {
                 LOG.error("decision listener failed", ex);
             }
         }
+        return e.decision();
     }
 
     private Trigger decode(byte[] payload) {
@@ -160,14 +174,20 @@ final class TriggerPath {
         }
     }
 
-    private Grading decide(Trigger t, Recipe r, int attempt) {
+    /**
+     * Measures and grades, unless the line is paused or the trigger waited longer than the handler's deadline:
+     * by then the handler may have moved another part onto the contacts, so that seq's answer must not be a reading.
+     */
+    private Grading decide(Trigger t, Recipe r, int attempt, long arrivedNanos) {
         if (mode.mode() == Mode.PAUSED) return Grader.notMeasured(r, Reason.LINE_PAUSED);
+        if (System.nanoTime() - arrivedNanos > cfg.deadlineMs() * 1_000_000L) return Grader.notMeasured(r, Reason.STALE_TRIGGER);
         MeterReading mr;
         try {
             meter.apply(r.test());
             mr = meter.measure();
         } catch (MeterException e) {
             LOG.debug("seq {}: {}", t.seq(), e.getMessage());
+            if (e.kind() == FaultKind.SETUP_REFUSED) mode.setSetupRefused(true, e.getMessage());
             if (e.kind() == FaultKind.DISCONNECTED) {
                 boolean wasDown = mode.linkDown();
                 mode.setLinkDown(true, e.getMessage());
@@ -176,6 +196,7 @@ final class TriggerPath {
             return Grader.fault(r, e.kind(), attempt);
         }
         if (mode.linkDown()) mode.setLinkDown(false, null);
+        if (mode.setupRefused()) mode.setSetupRefused(false, null);
         var comp = setup.compensation();
         return switch (t.kind()) {
             case PART -> Grader.grade(r, mr.reading(), comp, attempt);
