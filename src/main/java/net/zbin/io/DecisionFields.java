@@ -28,17 +28,21 @@ public final class DecisionFields {
      * @param name  column and JSON key
      * @param use   record log, payload or both
      * @param value String, Long, Integer, Double (non-finite → empty/null), Boolean, or null
+     * @param text  free text from outside (a trigger, a recipe): written spreadsheet-safe in the record log
      */
-    record Field(String name, Use use, Function<Entry, Object> value) {}
+    record Field(String name, Use use, Function<Entry, Object> value, boolean text) {
+        Field(String name, Use use, Function<Entry, Object> value) { this(name, use, value, false); }
+    }
+
 
     static final List<Field> ALL = List.of(
             new Field("time", Use.RECORD, e -> e.time().toString()),
-            new Field("line", Use.RECORD, Entry::line),
-            new Field("lot", Use.BOTH, e -> e.decision().lot()),
+            new Field("line", Use.RECORD, Entry::line, true),
+            new Field("lot", Use.BOTH, e -> e.decision().lot(), true),
             new Field("seq", Use.BOTH, e -> e.decision().seq() >= 0 ? (Object) e.decision().seq() : null),
-            new Field("part", Use.BOTH, e -> e.decision().part()),
+            new Field("part", Use.BOTH, e -> e.decision().part(), true),
             new Field("kind", Use.BOTH, e -> e.decision().kind().key()),
-            new Field("recipe", Use.BOTH, e -> e.decision().recipe()),
+            new Field("recipe", Use.BOTH, e -> e.decision().recipe(), true),
             new Field("freq_hz", Use.BOTH, e -> e.g().freqHz()),
             new Field("r_ohm", Use.BOTH, e -> e.g().rOhm()),
             new Field("x_ohm", Use.BOTH, e -> e.g().xOhm()),
@@ -53,7 +57,7 @@ public final class DecisionFields {
             new Field("esr_ohm", Use.BOTH, e -> e.g().esrOhm()),
             new Field("theta_deg", Use.BOTH, e -> e.g().thetaDeg()),
             new Field("bin", Use.BOTH, e -> e.g().bin()),
-            new Field("grade", Use.BOTH, e -> e.g().grade()),
+            new Field("grade", Use.BOTH, e -> e.g().grade(), true),
             new Field("verdict", Use.BOTH, e -> e.g().verdict().key()),
             new Field("reason", Use.BOTH, e -> e.g().reason().code()),
             new Field("latency_ms", Use.BOTH, e -> e.decision().latencyMs()),
@@ -66,6 +70,10 @@ public final class DecisionFields {
 
     /** The record-log columns, in order. */
     public static final List<String> COLUMNS = ALL.stream().filter(f -> f.use() != Use.PAYLOAD).map(Field::name).toList();
+
+    /** The record-log columns that hold free text, written through {@link SpreadsheetSafe}. */
+    public static final java.util.Set<String> TEXT_COLUMNS = ALL.stream().filter(f -> f.text() && f.use() != Use.PAYLOAD)
+            .map(Field::name).collect(java.util.stream.Collectors.toUnmodifiableSet());
 
     /** The decision payload. */
     public static ObjectNode json(Decision d) {
@@ -91,7 +99,8 @@ public final class DecisionFields {
         for (Field f : ALL) {
             if (f.use() == Use.PAYLOAD) continue;
             Object v = f.value().apply(e);
-            out[i++] = v == null ? "" : v instanceof Double x ? (Double.isFinite(x) ? Double.toString(x) : "") : v.toString();
+            out[i++] = v == null ? "" : v instanceof Double x ? (Double.isFinite(x) ? Double.toString(x) : "")
+                    : f.text() ? SpreadsheetSafe.write(v.toString()) : v.toString();
         }
         return out;
     }

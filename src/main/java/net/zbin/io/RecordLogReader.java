@@ -69,6 +69,9 @@ public final class RecordLogReader {
         }
     }
 
+    /** A free-text cell as the text it was before it was written spreadsheet-safe. */
+    private static String text(CSVRecord r, String column) { return SpreadsheetSafe.read(r.get(column)); }
+
     /** One row as the decision it recorded, or null when the row is not whole. */
     static DecisionFields.Entry entry(CSVRecord r) {
         if (!r.isConsistent()) return null;
@@ -81,11 +84,11 @@ public final class RecordLogReader {
                     : null;
             Grading.Value v = r.get("param").isEmpty() ? null : new Grading.Value(EquivalentModel.valueOf(r.get("model").toUpperCase(java.util.Locale.ROOT)),
                     PrimaryParam.parse(r.get("param")), num(r, "value"), num(r, "dev_pct"));
-            Grading g = new Grading(new Grading.Outcome(Integer.parseInt(r.get("bin")), r.get("grade"),
+            Grading g = new Grading(new Grading.Outcome(Integer.parseInt(r.get("bin")), text(r, "grade"),
                     Verdict.valueOf(r.get("verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(r.get("reason"))), m, v);
-            Decision d = new Decision(Long.parseLong(r.get("seq")), r.get("part"), r.get("lot"), Trigger.Kind.parse(r.get("kind")),
-                    r.get("recipe"), g, num(r, "latency_ms"), false, Integer.parseInt(r.get("attempt")));
-            return new DecisionFields.Entry(time, r.get("line"), d);
+            Decision d = new Decision(Long.parseLong(r.get("seq")), text(r, "part"), text(r, "lot"), Trigger.Kind.parse(r.get("kind")),
+                    text(r, "recipe"), g, num(r, "latency_ms"), false, Integer.parseInt(r.get("attempt")));
+            return new DecisionFields.Entry(time, text(r, "line"), d);
         } catch (RuntimeException e) {
             return null;
         }

@@ -34,9 +34,10 @@ public final class TriggerCodec {
         }
     }
 
-    /** Parses a JSON object payload within the size limit. */
+    /** Parses a JSON object payload within the size limit; the bytes must be well-formed UTF-8 (RFC 3629: no overlong forms). */
     public static JsonNode object(byte[] payload) throws PayloadException {
         if (payload.length > MAX_BYTES) throw new PayloadException("payload is " + payload.length + " bytes, limit " + MAX_BYTES);
+        strictUtf8(payload);
         JsonNode n;
         try {
             n = Json.mapper().readTree(payload);
@@ -49,12 +50,36 @@ public final class TriggerCodec {
         return n;
     }
 
-    /** A string field, null when absent; any other type is refused. */
+    /**
+     * A string field, null when absent; any other type is refused, and so is text with control characters
+     * (C0, DEL, C1: a NUL or a line break in a part id would end up in the record log and in every report).
+     */
     public static String text(JsonNode n, String key) throws PayloadException {
         JsonNode v = n.get(key);
         if (v == null || v.isNull()) return null;
         if (!v.isTextual()) throw new PayloadException(key + " must be a string (was " + v + ")");
-        if (v.asText().length() > 128) throw new PayloadException(key + " is longer than 128 characters");
-        return v.asText();
+        String s = v.asText();
+        if (s.length() > 128) throw new PayloadException(key + " is longer than 128 characters");
+        for (int i = 0; i < s.length(); i++) {
+            char c = s.charAt(i);
+            if (c < 0x20 || (c >= 0x7f && c < 0xa0))
+                throw new PayloadException(key + " holds a control character (U+" + String.format("%04X", (int) c) + ") at position " + i);
+        }
+        return s;
+    }
+
+    /** Refuses bytes that are not well-formed UTF-8; plain ASCII (the usual trigger) is checked by one scan. */
+    private static void strictUtf8(byte[] payload) throws PayloadException {
+        boolean ascii = true;
+        for (byte b : payload) if (b < 0) { ascii = false; break; }
+        if (ascii) return;
+        try {
+            java.nio.charset.StandardCharsets.UTF_8.newDecoder()
+                    .onMalformedInput(java.nio.charset.CodingErrorAction.REPORT)
+                    .onUnmappableCharacter(java.nio.charset.CodingErrorAction.REPORT)
+                    .decode(java.nio.ByteBuffer.wrap(payload));
+        } catch (java.nio.charset.CharacterCodingException e) {
+            throw new PayloadException("payload is not well-formed UTF-8 (" + e.getMessage() + ")");
+        }
     }
 }

@@ -43,4 +43,23 @@ class TriggerCodecTest {
         String big = "{\"seq\":1,\"part\":\"" + "x".repeat(5000) + "\"}";
         assertTrue(assertThrows(PayloadException.class, () -> TriggerCodec.decode(b(big))).getMessage().contains("limit 4096"));
     }
+
+    @Test
+    void controlCharactersInIds_areRefusedNamingTheFieldAndPosition() {
+        for (String bad : new String[] {"P\\u0000X", "P\\nX", "P\\u001bX", "P\\u007fX", "P\\u0085X"}) {
+            PayloadException e = assertThrows(PayloadException.class, () -> TriggerCodec.decode(b("{\"seq\":1,\"part\":\"" + bad + "\"}")));
+            assertTrue(e.getMessage().startsWith("part holds a control character") && e.getMessage().endsWith("position 1"), e.getMessage());
+        }
+        assertThrows(PayloadException.class, () -> TriggerCodec.decode(b("{\"seq\":1,\"lot\":\"L\\tX\"}")));
+    }
+
+    @Test
+    void overlongAndBrokenUtf8_isRefused_wellFormedUtf8IsRead() throws Exception {
+        // RFC 3629 §3: C0 AF is an overlong encoding of '/', and is invalid UTF-8; a lone continuation byte too
+        byte[] overlong = {'{', '"', 's', 'e', 'q', '"', ':', '1', ',', '"', 'p', 'a', 'r', 't', '"', ':', '"', (byte) 0xC0, (byte) 0xAF, '"', '}'};
+        assertTrue(assertThrows(PayloadException.class, () -> TriggerCodec.decode(overlong)).getMessage().contains("not well-formed UTF-8"));
+        byte[] lone = {'{', '"', 's', 'e', 'q', '"', ':', '1', ',', '"', 'p', 'a', 'r', 't', '"', ':', '"', (byte) 0x80, '"', '}'};
+        assertThrows(PayloadException.class, () -> TriggerCodec.decode(lone));
+        assertEquals("Kondensator-Ø4,7µ", TriggerCodec.decode(b("{\"seq\":1,\"part\":\"Kondensator-Ø4,7µ\"}")).part());
+    }
 }
