@@ -187,6 +187,9 @@ abstract class DaemonEndToEndContract {
              Tap tap = new Tap(broker(), "zbin/logfail/#")) {
             rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
             tap.publish("zbin/logfail/trigger", "{\"seq\":1}");
+            JsonNode met = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 1, 1, 5000).get(0).json();
+            assertEquals("record-failed", met.path("reason").asText(), "the decision that met the failure gets no bin without its row");
+            assertEquals("retest", met.path("verdict").asText());
             tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("record-log-failed")
                     && m.json().path("active").asBoolean(), 1, 5000);
             tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("paused"), 1, 5000);

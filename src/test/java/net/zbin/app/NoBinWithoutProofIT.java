@@ -1,0 +1,141 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import net.zbin.sim.SimFault;
+import org.junit.jupiter.api.AfterAll;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * The live line gives a part a bin only for a reading that is provably its own: a meter that sends a stray line,
+ * refuses a setting, or a trigger that waited past the deadline never yields a value bin (embedded Moquette).
+ */
+class NoBinWithoutProofIT {
+    static EmbeddedBroker broker;
+
+    @TempDir
+    Path dir;
+
+    @BeforeAll
+    static void up() throws Exception { broker = new EmbeddedBroker(Files.createTempDirectory("moquette")); }
+
+    @AfterAll
+    static void down() { broker.close(); }
+
+    static boolean decision(Tap.Msg m, long seq) { return m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq; }
+
+    @Test
+    void aMeterThatSendsStrayLines_neverPassesAPartOnOpenContacts() throws Exception {
+        try (LineRig rig = new LineRig(dir, "stray", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker.url(), "zbin/stray/decision")) {
+            PartModel good = new PartModel.Capacitor(100e-9, 0.02, 0, 0.01);
+            int openPassed = 0, openSeen = 0, goodPassed = 0;
+            for (long seq = 1; seq <= 300; seq++) {
+                boolean open = seq % 2 == 0;
+                if (open) rig.contacts.open();
+                else rig.contacts.load(good, 0);
+                // every fifth good part, the meter repeats its reading as an extra line: without proof of pairing
+                // the next query (the open part's) would read it
+                if (!open && seq % 10 == 1) rig.meter.inject(SimFault.STRAY, 1);
+                long s = seq;
+                tap.publish("zbin/stray/trigger", "{\"seq\":" + s + ",\"part\":\"P" + s + "\"}");
+                JsonNode d = tap.await(m -> decision(m, s), 1, 10_000).get(0).json();
+                if (open) {
+                    openSeen++;
+                    if (d.path("verdict").asText().equals("pass")) openPassed++;
+                } else if (d.path("verdict").asText().equals("pass")) goodPassed++;
+            }
+            assertEquals(150, openSeen);
+            assertEquals(0, openPassed, "a part on open contacts never gets a value bin from the previous part's reading");
+            assertTrue(goodPassed >= 120, "good parts still pass (a stray line costs a retest): " + goodPassed);
+        }
+    }
+
+    @Test
+    void aRefusedFrequency_givesNoValueBin_faultStateAndACriticalAlarm_andCapturesAreRefused() throws Exception {
+        try (LineRig rig = new LineRig(dir, "refuse", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker.url(), "zbin/refuse/#")) {
+            Path recipes = rig.cfg.recipeDir();
+            Files.writeString(recipes.resolve("c0g-at-100m.yaml"), Files.readString(recipes.resolve("mlcc-c0g-100p.yaml"))
+                    .replace("recipe: mlcc-c0g-100p", "recipe: c0g-at-100m").replace("freq: 1M", "freq: 100M")
+                    .replace("required: true", "required: false"));
+            rig.contacts.load(new PartModel.Capacitor(100e-12, 0.0005, 0, 0), 0);
+            String cmd = "zbin/refuse/command";
+            tap.publish(cmd, "{\"cmd\":\"recipe\",\"name\":\"c0g-at-100m\",\"id\":\"r\"}");
+            tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("r"), 1, 10_000);
+            for (long seq = 1; seq <= 20; seq++) {
+                long s = seq;
+                tap.publish("zbin/refuse/trigger", "{\"seq\":" + s + ",\"part\":\"C" + s + "\"" + (s > 1 ? ",\"retest_of\":" + (s - 1) : "") + "}");
+                JsonNode d = tap.await(m -> decision(m, s), 1, 10_000).get(0).json();
+                assertFalse(d.path("verdict").asText().equals("pass"), "no value bin at a frequency the meter refused: " + d);
+                assertTrue(d.path("value").isNull(), "no value from a reading at other conditions: " + d);
+            }
+            JsonNode first = tap.on("/decision").get(0).json();
+            assertEquals("setup-refused", first.path("reason").asText());
+            assertEquals("retest", first.path("verdict").asText());
+            JsonNode alarm = tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-setup-refused")
+                    && m.json().path("active").asBoolean(), 1, 10_000).get(0).json();
+            assertEquals("critical", alarm.path("severity").asText());
+            assertTrue(alarm.path("message").asText().contains("CONF:FREQ 100000000") && alarm.path("message").asText().contains("-222"),
+                    "the alarm names the setting and the meter's words: " + alarm);
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("fault"), 1, 10_000);
+            assertEquals(1000, rig.meter.freqHz(), "the meter went on at its old frequency");
+
+            rig.contacts.open();
+            tap.publish(cmd, "{\"cmd\":\"compensate\",\"kind\":\"open\",\"id\":\"c\"}");
+            JsonNode cap = tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("c"), 1, 10_000).get(0).json();
+            assertFalse(cap.path("ok").asBoolean(), "no open taken at 1 kHz is stored as the 100 MHz entry: " + cap);
+            assertFalse(Files.exists(rig.cfg.stateDir().resolve("compensation.yaml"))
+                    && Files.readString(rig.cfg.stateDir().resolve("compensation.yaml")).contains("100000000"), "nothing stored at 100 MHz");
+
+            tap.publish(cmd, "{\"cmd\":\"recipe\",\"name\":\"mlcc-x7r-100n\",\"id\":\"back\"}");
+            tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("back"), 1, 10_000);
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            tap.publish("zbin/refuse/trigger", "{\"seq\":100,\"part\":\"X100\"}");
+            assertEquals("J", tap.await(m -> decision(m, 100), 1, 10_000).get(0).json().path("grade").asText());
+            tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-setup-refused")
+                    && !m.json().path("active").asBoolean(), 1, 10_000);
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 10_000);
+        }
+    }
+
+    @Test
+    void aBurstOfTwentyThousandTriggers_noneMeasuredAfterTheDeadline_theOldOnesAnsweredStale() throws Exception {
+        // 20 000 triggers at once: seconds of work, far more than a 150 ms deadline can hold
+        try (LineRig rig = new LineRig(dir, "burst", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker.url(), "zbin/burst/decision", "zbin/burst/dashboard")) {
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            for (int seq = 0; seq < 20_000; seq++) tap.publish("zbin/burst/trigger", "{\"seq\":" + seq + "}");
+            List<Tap.Msg> all = tap.await(m -> m.topic().endsWith("/decision"), 20_000, 180_000);
+            Map<String, Integer> reasons = new HashMap<>();
+            int measuredLate = 0;
+            double deadline = rig.cfg.deadlineMs();
+            for (Tap.Msg m : all) {
+                String reason = m.json().path("reason").asText();
+                reasons.merge(reason, 1, Integer::sum);
+                boolean measured = !reason.equals("stale-trigger") && !reason.equals("line-busy");
+                // a measured decision's latency is its age when the measurement started plus the measurement (the
+                // simulator takes no time): one that started past the deadline shows seconds here under this burst
+                if (measured && m.json().path("latency_ms").asDouble() > deadline + 1000) measuredLate++;
+            }
+            assertEquals(0, measuredLate, "no trigger measured after its deadline: " + reasons);
+            assertTrue(reasons.getOrDefault("stale-trigger", 0) > 1000, "the old ones answered without measuring: " + reasons);
+            assertTrue(reasons.getOrDefault("in-grade", 0) > 0, "the fresh ones measured: " + reasons);
+            int stale = reasons.get("stale-trigger");
+            tap.await(m -> m.topic().endsWith("/dashboard") && m.json().path("retest_reasons").path("stale-trigger").asLong() == stale,
+                    1, 10_000); // counted on the dashboard
+        }
+    }
+}
