@@ -41,8 +41,28 @@ public final class RunCommand implements Callable<Integer> {
         return b.length() == 0 ? e.toString() : b.toString();
     }
 
+    /**
+     * An {@link Error} in any thread (out of memory in the MQTT receive thread, say) ends the process at once: a
+     * daemon that has lost a thread may be deaf while its state says ready. The broker then publishes the Will
+     * (offline) and the service manager starts it again.
+     */
+    static void haltOnFatalErrors() {
+        Thread.setDefaultUncaughtExceptionHandler((t, e) -> {
+            if (e instanceof Error) {
+                try {
+                    System.err.println("zbin: fatal error in thread " + t.getName() + ": " + e + "; stopping at once");
+                    System.err.flush();
+                } finally {
+                    Runtime.getRuntime().halt(Main.EXIT_RUNTIME);
+                }
+            }
+            LOG.error("uncaught exception in thread {}", t.getName(), e);
+        });
+    }
+
     @Override
     public Integer call() throws Exception {
+        haltOnFatalErrors();
         LineConfig cfg = LineConfigLoader.load(config);
         Daemon d = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
         CountDownLatch stopped = new CountDownLatch(1);
@@ -54,6 +74,9 @@ public final class RunCommand implements Callable<Integer> {
             d.start(connectTimeoutMs);
         } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
             spec.commandLine().getErr().println("zbin: cannot connect to " + cfg.mqtt().broker() + ": " + why(e));
+            return Main.EXIT_RUNTIME;
+        } catch (net.zbin.io.LineLock.Taken e) {
+            spec.commandLine().getErr().println("zbin: " + e.getMessage());
             return Main.EXIT_RUNTIME;
         }
         spec.commandLine().getOut().println("zbin: line " + cfg.line() + " running on " + cfg.mqtt().broker() + " (" + d.topics().base() + "…)");

@@ -34,7 +34,7 @@ public final class LineConfigLoader {
         String root = m.optText("topic_root", "zbin");
         if (root.isEmpty() || root.contains("+") || root.contains("#") || root.startsWith("/") || root.endsWith("/"))
             throw m.error("topic_root", "must be a plain topic prefix without wildcards or outer slashes (was '" + root + "')");
-        String clientId = m.optText("client_id", "zbin-" + line + "-" + ProcessHandle.current().pid());
+        String clientId = m.optText("client_id", "zbin-" + line); // stable per line: one line, one daemon (a lock keeps it so)
         String user = m.optText("username", null);
         String pwFile = m.optText("password_file", null), pwEnv = m.optText("password_env", null);
         if (pwFile != null && pwEnv != null) throw m.error("password_file", "give password_file or password_env, not both");

@@ -18,7 +18,7 @@ final class MosquittoAndSystemdFiles {
         String name = p.getFileName().toString();
         switch (name) {
             case "zbin.conf" -> {
-                for (String d : List.of("set_tcp_nodelay true", "allow_anonymous false"))
+                for (String d : List.of("set_tcp_nodelay true", "allow_anonymous false", "message_size_limit 65536"))
                     assertTrue(lines.contains(d), name + " must say '" + d + "'");
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("acl_file ")), name + " names an acl_file");
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("password_file ")), name + " names a password_file");
@@ -32,6 +32,8 @@ final class MosquittoAndSystemdFiles {
                 for (String s : List.of("[Unit]", "[Service]", "[Install]")) assertTrue(lines.contains(s), name + " has " + s);
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("ExecStart=") && l.contains("zbin.jar run --config")), name + " runs zbin run");
                 assertTrue(lines.contains("KillSignal=SIGTERM"), name + " stops with SIGTERM (clean offline)");
+                assertTrue(lines.stream().anyMatch(l -> l.startsWith("ExecStart=") && l.contains("-XX:+ExitOnOutOfMemoryError")),
+                        name + " ends the process on out of memory");
             }
             default -> throw new AssertionError("no check for " + p);
         }

@@ -40,6 +40,7 @@ public final class Daemon implements AutoCloseable {
     private final MonitorListener monitor;
     private MqttLink mqtt;
     private TriggerPath path;
+    private final List<net.zbin.io.LineLock> locks = new java.util.ArrayList<>();
     private LineCommands commands;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
@@ -72,6 +73,7 @@ public final class Daemon implements AutoCloseable {
 
     /** Recovers from the record log, warms up, connects and serves; waits up to {@code connectTimeoutMs} for the broker. */
     public void start(long connectTimeoutMs) throws Exception {
+        lock();
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor);
@@ -94,6 +96,19 @@ public final class Daemon implements AutoCloseable {
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
         ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
+    }
+
+    /**
+     * One line, one daemon: the state folder's lock is required; the record folder's too where that folder can be
+     * made (when it cannot, the record log's own alarm says so once the line runs).
+     */
+    private void lock() throws Exception {
+        locks.add(net.zbin.io.LineLock.acquire(cfg.stateDir(), cfg.line()));
+        try {
+            locks.add(net.zbin.io.LineLock.acquire(cfg.records().dir(), cfg.line()));
+        } catch (java.io.IOException e) {
+            LOG.warn("record folder {} cannot hold the line's lock: {}", cfg.records().dir(), e.toString());
+        }
     }
 
     /**
@@ -163,6 +178,7 @@ public final class Daemon implements AutoCloseable {
         }
         records.close();
         meter.close();
+        locks.forEach(net.zbin.io.LineLock::close);
         LOG.info("line {} stopped", cfg.line());
     }
 }
