@@ -6,6 +6,7 @@ import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import org.slf4j.LoggerFactory;
 import java.util.List;
 import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
@@ -39,7 +40,11 @@ public final class LineConfigLoader {
         String pwFile = m.optText("password_file", null), pwEnv = m.optText("password_env", null);
         if (pwFile != null && pwEnv != null) throw m.error("password_file", "give password_file or password_env, not both");
         char[] password = null;
-        if (pwFile != null) password = readSecret(file, m.key("password_file"), base.resolve(pwFile));
+        boolean openSecretsAllowed = m.optBool("allow_open_secrets", false);
+        if (pwFile != null) {
+            secretMode(file, m.key("password_file"), base.resolve(pwFile), openSecretsAllowed);
+            password = readSecret(file, m.key("password_file"), base.resolve(pwFile));
+        }
         if (pwEnv != null) {
             String v = System.getenv(pwEnv);
             if (v == null) throw m.error("password_env", "environment variable " + pwEnv + " is not set");
@@ -55,6 +60,7 @@ public final class LineConfigLoader {
         if (ca != null && (problem = TlsFiles.certificateProblem(ca)) != null) throw m.error("tls.ca_file", ca + " " + problem);
         if (cert != null && (problem = TlsFiles.certificateProblem(cert)) != null) throw m.error("tls.cert_file", cert + " " + problem);
         if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw m.error("tls.key_file", key + " " + problem);
+        if (key != null) secretMode(file, m.key("tls.key_file"), key, openSecretsAllowed);
         int keepAlive = m.optInteger("keepalive_s", 10);
         if (keepAlive < 2 || keepAlive > 600) throw m.error("keepalive_s", "must be 2..600 (was " + keepAlive + ")");
         m.finish();
@@ -139,6 +145,29 @@ public final class LineConfigLoader {
         Path p = base.resolve(s);
         if (!Files.isReadable(p)) throw n.error(key, "file " + p + " is missing or unreadable");
         return p;
+    }
+
+    /**
+     * A password file or private key that group or others may read is refused, as ssh refuses such a private key;
+     * {@code mqtt.allow_open_secrets: true} turns the refusal into a warning (a file system without POSIX modes is
+     * not checked).
+     */
+    private static void secretMode(Path config, String key, Path p, boolean allowed) throws ConfigException {
+        java.util.Set<java.nio.file.attribute.PosixFilePermission> perms;
+        try {
+            perms = Files.getPosixFilePermissions(p);
+        } catch (UnsupportedOperationException | IOException e) {
+            return;
+        }
+        var open = java.util.EnumSet.of(java.nio.file.attribute.PosixFilePermission.GROUP_READ,
+                java.nio.file.attribute.PosixFilePermission.GROUP_WRITE, java.nio.file.attribute.PosixFilePermission.OTHERS_READ,
+                java.nio.file.attribute.PosixFilePermission.OTHERS_WRITE);
+        open.retainAll(perms);
+        if (open.isEmpty()) return;
+        String mode = java.nio.file.attribute.PosixFilePermissions.toString(perms);
+        String why = p + " can be read or written by group or others (" + mode + "): chmod 600 it";
+        if (!allowed) throw new ConfigException(config, key, why + ", or set mqtt.allow_open_secrets: true to accept it with a warning");
+        LoggerFactory.getLogger(LineConfigLoader.class).warn("{}: {}: {} (accepted: mqtt.allow_open_secrets is true)", config, key, why);
     }
 
     private static char[] readSecret(Path config, String key, Path p) throws ConfigException {

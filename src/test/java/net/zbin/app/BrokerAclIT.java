@@ -49,6 +49,7 @@ class BrokerAclIT {
             Files.setPosixFilePermissions(f, java.nio.file.attribute.PosixFilePermissions.fromString("rw-r--r--"));
         try (MosquittoProcess broker = new MosquittoProcess(dir, conf.toString())) {
             Files.writeString(dir.resolve("daemon.pass"), "zbin-acl-secret\n");
+            Files.setPosixFilePermissions(dir.resolve("daemon.pass"), java.nio.file.attribute.PosixFilePermissions.fromString("rw-------"));
             Scenario sc = LineRig.quietMeter(Scenario.builtIn());
             try (LineRig rig = new LineRigWithLogin(dir, broker.url(), sc);
                  Tap handler = Tap.login(broker.url(), "handler-acl", "handler-acl-secret", "zbin/acl/decision", "zbin/acl/state");

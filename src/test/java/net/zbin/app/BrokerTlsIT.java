@@ -79,6 +79,7 @@ class BrokerTlsIT {
         openssl("req", "-newkey", "rsa:2048", "-nodes", "-subj", "/CN=zbin-tlsc", "-keyout", "client.rsa", "-out", "client.csr");
         openssl("x509", "-req", "-in", "client.csr", "-CA", "ca.pem", "-CAkey", "ca.key", "-CAcreateserial", "-days", "2", "-out", "client.pem");
         openssl("pkcs8", "-topk8", "-nocrypt", "-in", "client.rsa", "-out", "client.key");
+        Files.setPosixFilePermissions(dir.resolve("client.key"), PosixFilePermissions.fromString("rw-------")); // zbin refuses a key others can read
         String secret = "s3cret-tlsc-" + System.nanoTime();
         Path pw = dir.resolve("passwd");
         for (String[] u : new String[][] {{"zbin-tlsc", secret}, {"tester", "tester-pw"}}) {
@@ -103,6 +104,7 @@ class BrokerTlsIT {
             String url = "ssl://127.0.0.1:" + tlsPort;
             Path cfg = TestLine.write(dir, "tlsc", url, sim.port(), "");
             Files.writeString(dir.resolve("daemon.pass"), secret + "\n");
+            Files.setPosixFilePermissions(dir.resolve("daemon.pass"), java.nio.file.attribute.PosixFilePermissions.fromString("rw-------"));
             TestLine.mqttKeys(cfg, "username: zbin-tlsc, password_file: daemon.pass, tls: {ca_file: ca.pem, cert_file: client.pem, key_file: client.key}");
             ProcessBuilder pb = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString()).redirectErrorStream(true)
                     .redirectOutput(dir.resolve("daemon.log").toFile());
