@@ -20,6 +20,8 @@ public final class FixtureCheck {
         public Limits {
             if (!(openDriftMaxF > 0)) throw new SpecException("fixture.open_check_f", "must be > 0 (was " + openDriftMaxF + ")");
             if (!(shortDriftMaxOhm > 0)) throw new SpecException("fixture.short_check_ohm", "must be > 0 (was " + shortDriftMaxOhm + ")");
+            Plausible.atMost("fixture.open_check_f", openDriftMaxF, 1e-9, "F", "a fixture's stray drifts by fractions of a pF", 1e-12, "picofarads");
+            Plausible.atMost("fixture.short_check_ohm", shortDriftMaxOhm, 10, "Ω", "a short bar's residual drifts by milliohms", 1e-3, "milliohms");
         }
     }
 

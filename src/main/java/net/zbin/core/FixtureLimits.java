@@ -18,6 +18,9 @@ public record FixtureLimits(double openMaxF, double openMaxGS, double shortMaxOh
         if (!(openMaxGS > 0)) throw new SpecException("fixture.open_max_g_s", "must be > 0 (was " + openMaxGS + ")");
         if (!(shortMaxOhm > 0)) throw new SpecException("fixture.short_max_ohm", "must be > 0 (was " + shortMaxOhm + ")");
         if (!(loadMaxDevPct > 0)) throw new SpecException("fixture.load_max_dev_pct", "must be > 0 (was " + loadMaxDevPct + ")");
+        Plausible.atMost("fixture.open_max_f", openMaxF, 1e-9, "F", "a bare fixture's stray is a few pF", 1e-12, "picofarads");
+        Plausible.atMost("fixture.open_max_g_s", openMaxGS, 1e-3, "S", "an open fixture leaks far less", 1e-6, "microsiemens");
+        Plausible.atMost("fixture.short_max_ohm", shortMaxOhm, 100, "Ω", "a short bar reads milliohms", 1e-3, "milliohms");
         if (repeats < 1 || repeats > 100) throw new SpecException("fixture.repeats", "must be 1..100 (was " + repeats + ")");
     }
 

@@ -14,6 +14,7 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
 
     public Gates {
         if (dMax != null && !(dMax > 0)) throw new SpecException("gates.d_max", "must be > 0 (was " + dMax + ")");
+        if (dMax != null) Plausible.dissipation("gates.d_max", dMax);
         if (qMin != null && !(qMin > 0)) throw new SpecException("gates.q_min", "must be > 0 (was " + qMin + ")");
         if (esrMaxOhm != null && !(esrMaxOhm > 0)) throw new SpecException("gates.esr_max_ohm", "must be > 0 (was " + esrMaxOhm + ")");
         if (thetaMinDeg != null && (thetaMinDeg < -90 || thetaMinDeg > 90))

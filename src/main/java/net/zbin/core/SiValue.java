@@ -126,6 +126,26 @@ public final class SiValue {
         return String.format(java.util.Locale.ROOT, "%." + digits + "g %s%s", scaled, pre[idx], unitText);
     }
 
+    /** The short form to write a value in a config file or on the command line: 1e6 → "1M", 2e-11 → "20p", 4.7e-6 → "4.7u". */
+    public static String compact(double v) { return compact(v, null); }
+
+    /** The same for people, with the unit: 1e6, "Hz" → "1 MHz"; 2e-11, "F" → "20 pF". */
+    public static String compact(double v, String unit) {
+        if (v == 0 || !Double.isFinite(v)) return Double.toString(v) + (unit == null ? "" : " " + unit);
+        String[] pre = {"f", "p", "n", "u", "m", "", "k", "M", "G", "T"};
+        int idx = (int) Math.floor(Math.log10(Math.abs(v)) / 3) + 5;
+        idx = Math.max(0, Math.min(pre.length - 1, idx));
+        String num = plain(new java.math.BigDecimal(v).scaleByPowerOfTen(-3 * (idx - 5)).doubleValue());
+        if (unit == null) return num + pre[idx];
+        return num + " " + (pre[idx].equals("u") ? "µ" : pre[idx]) + (unit.equals("ohm") ? "Ω" : unit);
+    }
+
+    /** A plain number with at most 6 significant digits and no trailing zeros: 0.1 → "0.1", 10.0 → "10". */
+    public static String plain(double v) {
+        if (!Double.isFinite(v)) return Double.toString(v);
+        return new java.math.BigDecimal(v).round(new java.math.MathContext(6)).stripTrailingZeros().toPlainString();
+    }
+
     /** A plain ratio for people (D, Q): 5 significant digits, ∞ for infinite, "-" for NaN. */
     public static String ratio(double v) {
         if (Double.isNaN(v)) return "-";

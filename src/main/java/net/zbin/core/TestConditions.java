@@ -15,6 +15,7 @@ public record TestConditions(double freqHz, double levelV, String speed, int ave
 
     public TestConditions {
         if (!(freqHz > 0) || !Double.isFinite(freqHz)) throw new SpecException("test.freq", "must be > 0 Hz (was " + freqHz + ")");
+        Plausible.frequency("test.freq", freqHz);
         if (freqHz > 100e6) throw new SpecException("test.freq", "must be <= 100 MHz (was " + freqHz + ")");
         if (!(levelV > 0) || levelV > 20) throw new SpecException("test.level_v", "must be > 0 and <= 20 V (was " + levelV + ")");
         if (!SPEEDS.contains(speed)) throw new SpecException("test.speed", "must be fast, medium or slow (was " + speed + ")");

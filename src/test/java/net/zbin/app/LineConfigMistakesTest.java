@@ -31,7 +31,10 @@ class LineConfigMistakesTest {
                 Arguments.of("both tcp and serial", "", "meter.transport.tcp", "transport: {tcp: {host: 127.0.0.1, port: 5025}}|transport: {tcp: {port: 1}, serial: {port: /dev/null}}"),
                 Arguments.of("bad on_failure", "", "records.on_failure", "flush_ms: 50}|flush_ms: 50, on_failure: shrug}"),
                 Arguments.of("bad line id", "", "line", "line: ok-line|line: 'has space'"),
-                Arguments.of("bad fixture limit", "fixture: {repeats: 0}\n", "fixture.repeats", null));
+                Arguments.of("bad fixture limit", "fixture: {repeats: 0}\n", "fixture.repeats", null),
+                Arguments.of("stray limit in farads", "fixture: {open_max_f: 20}\n", "fixture.open_max_f", null),
+                Arguments.of("short limit of a resistor", "fixture: {short_max_ohm: 470}\n", "fixture.short_max_ohm", null),
+                Arguments.of("open check in farads", "fixture: {open_check_f: 1}\n", "fixture.open_check_f", null));
     }
 
     @ParameterizedTest(name = "{0}")
@@ -47,5 +50,13 @@ class LineConfigMistakesTest {
         Cli c = Cli.run("check", "--config", cfg.toString());
         assertEquals(2, c.exit(), what + ": " + c.out() + c.err());
         assertTrue(c.err().contains(key), what + ": names '" + key + "': " + c.err());
+    }
+
+    @org.junit.jupiter.api.Test
+    void aStrayLimitWrittenAsAPlainNumber_isRefusedNamingTheLikelyMeantPicofarads() throws Exception {
+        Path cfg = TestLine.write(dir, "ok-line", "tcp://127.0.0.1:1883", 5025, "fixture: {open_max_f: 20}\n");
+        Cli c = Cli.run("check", "--config", cfg.toString());
+        assertEquals(2, c.exit());
+        assertTrue(c.err().contains("fixture.open_max_f: must be at most 1 nF") && c.err().contains("did you mean 20 pF (`20p`"), c.err());
     }
 }

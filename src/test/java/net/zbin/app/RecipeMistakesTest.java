@@ -124,6 +124,22 @@ class RecipeMistakesTest {
         assertTrue(c.err().contains(key), what + ": message names key '" + key + "': " + c.err());
     }
 
+    static Stream<Arguments> implausible() {
+        return Stream.of(
+                Arguments.of(GOOD.replace("freq: 1k", "freq: 1mHz"), "test.freq", "did you mean 1 MHz (`1M`)?"),
+                Arguments.of(GOOD.replace("freq: 1k", "freq: 1m"), "test.freq", "did you mean 1 MHz (`1M`)?"),
+                Arguments.of(GOOD.replace("d_max: 0.025", "d_max: 10"), "gates.d_max", "did you mean 10 % (`0.1`)?"));
+    }
+
+    @ParameterizedTest(name = "{1}")
+    @MethodSource("implausible")
+    void implausibleNumbers_areRefusedNamingTheLikelyMeantValue(String text, String key, String hint) throws IOException {
+        Path p = write(text);
+        Cli c = Cli.run("check", "--recipe", p.toString());
+        assertEquals(2, c.exit(), c.out() + c.err());
+        assertTrue(c.err().contains(key) && c.err().contains(hint), c.err());
+    }
+
     static Stream<Arguments> values() {
         // Plain numbers are plain values; codes only in the explicit {code: …} form, in the trade's units
         // (IEC 60062 marking codes: capacitors in pF, resistors in Ω; inductors in µH by common practice).
