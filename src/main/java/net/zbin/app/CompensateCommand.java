@@ -67,9 +67,19 @@ public final class CompensateCommand implements Callable<Integer> {
                 throw new UsageException("--freq " + f + ": " + e.getMessage());
             }
         }
-        CompensationStore store = CompensationStore.load(cfg.stateDir());
         var out = spec.commandLine().getOut();
-        try (ProfileMeterSession meter = ProfileMeterSession.open(cfg.meter(), Clock.systemUTC())) {
+        // One writer of the compensation file: the line's lock. While the daemon runs it holds the lock (and the
+        // meter); the capture then goes over the command topic, where the daemon stores it and uses it at once.
+        net.zbin.io.LineLock lock;
+        try {
+            lock = net.zbin.io.LineLock.acquire(cfg.stateDir(), cfg.line());
+        } catch (net.zbin.io.LineLock.Taken e) {
+            spec.commandLine().getErr().println("zbin: " + e.getMessage() + "\nzbin: while the daemon runs, capture through it: publish {\"cmd\": \"compensate\", \"kind\": \""
+                    + kind + "\"} to " + cfg.mqtt().topicRoot() + "/" + cfg.line() + "/command");
+            return Main.EXIT_RUNTIME;
+        }
+        CompensationStore store = CompensationStore.load(cfg.stateDir());
+        try (lock; ProfileMeterSession meter = ProfileMeterSession.open(cfg.meter(), Clock.systemUTC())) {
             List<Impedance> got = new CompensationCapture(meter, cfg.fixture(), Clock.systemUTC()).capture(k, conds, std, store);
             for (Impedance z : got)
                 out.printf(Locale.ROOT, "%s at %s: %s%n", kind, SiValue.format(z.freqHz(), "Hz"), CompensationCapture.describe(k, z));

@@ -4,18 +4,18 @@ import java.util.Locale;
 
 /** Every alarm the line raises, with its wire code and severity. The README's alarm table lists them. */
 public enum AlarmCode {
-    RECORD_LOG_FAILED(Severity.CRITICAL),
-    METER_LINK_DOWN(Severity.CRITICAL),
-    METER_SETUP_REFUSED(Severity.CRITICAL),
-    VALUE_DRIFT(Severity.WARNING),
-    LOSS_DRIFT(Severity.WARNING),
-    COMPENSATION_OFFSET(Severity.CRITICAL),
-    OPEN_RESIDUAL(Severity.WARNING),
-    SHORT_RESIDUAL(Severity.WARNING),
-    REFERENCE_OFF(Severity.CRITICAL),
-    COMPENSATION_OLD(Severity.WARNING),
-    COMPENSATION_MISSING(Severity.CRITICAL),
-    NEGATIVE_R_RATE(Severity.WARNING);
+    RECORD_LOG_FAILED(Severity.CRITICAL, false),
+    METER_LINK_DOWN(Severity.CRITICAL, false),
+    METER_SETUP_REFUSED(Severity.CRITICAL, false),
+    VALUE_DRIFT(Severity.WARNING, true),
+    LOSS_DRIFT(Severity.WARNING, true),
+    COMPENSATION_OFFSET(Severity.CRITICAL, true),
+    OPEN_RESIDUAL(Severity.WARNING, true),
+    SHORT_RESIDUAL(Severity.WARNING, true),
+    REFERENCE_OFF(Severity.CRITICAL, true),
+    COMPENSATION_OLD(Severity.WARNING, true),
+    COMPENSATION_MISSING(Severity.CRITICAL, true),
+    NEGATIVE_R_RATE(Severity.WARNING, true);
 
     public enum Severity {
         WARNING, CRITICAL;
@@ -24,8 +24,15 @@ public enum AlarmCode {
     }
 
     private final Severity severity;
+    private final boolean recipeBound;
 
-    AlarmCode(Severity severity) { this.severity = severity; }
+    AlarmCode(Severity severity, boolean recipeBound) {
+        this.severity = severity;
+        this.recipeBound = recipeBound;
+    }
+
+    /** Raised by the line monitor about the active recipe's parts and compensation: re-judged when the recipe changes. */
+    public boolean recipeBound() { return recipeBound; }
 
     public String code() { return name().toLowerCase(Locale.ROOT).replace('_', '-'); }
 

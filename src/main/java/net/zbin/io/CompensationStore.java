@@ -118,7 +118,7 @@ public final class CompensationStore {
         entries.put(e.freqHz(), new Entry(e.freqHz(), e.open(), e.shortZ(), new Part(z, at), standard));
     }
 
-    /** Writes the store atomically. */
+    /** Writes the store atomically; the file it replaces is kept beside it as {@code compensation.yaml.prev}. */
     public void save() throws IOException {
         ObjectNode root = Json.object();
         root.put("note", "fixture compensation captured by zbin compensate; one entry per test frequency");
@@ -138,6 +138,7 @@ public final class CompensationStore {
         Files.createDirectories(file.getParent());
         Path tmp = file.resolveSibling(FILE + ".tmp");
         Files.write(tmp, Yaml.mapper().writeValueAsBytes(root));
+        if (Files.exists(file)) Files.copy(file, file.resolveSibling(FILE + ".prev"), StandardCopyOption.REPLACE_EXISTING);
         Files.move(tmp, file, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
     }
 

@@ -58,4 +58,39 @@ class CompensateCommandTest {
         assertTrue(c.err().contains("meter-disconnected") && c.err().contains("tcp 127.0.0.1:1"), c.err());
         assertFalse(Files.exists(dir.resolve("state-cal-2/compensation.yaml")));
     }
+
+    @Test
+    void whileTheDaemonHoldsTheLine_compensateRefuses_namingTheHolderAndTheCommandTopic() throws Exception {
+        SimMeter meter = new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0,
+                SimMeter.RandomFaults.NONE);
+        try (SimTcpServer sim = new SimTcpServer(meter, 0)) {
+            Path cfg = TestLine.write(dir, "cal-3", "tcp://127.0.0.1:1883", sim.port(), "");
+            meter.contacts().open();
+            try (net.zbin.io.LineLock daemonHolds = net.zbin.io.LineLock.acquire(dir.resolve("state-cal-3"), "cal-3")) {
+                Cli c = Cli.run("compensate", "--config", cfg.toString(), "open");
+                assertEquals(1, c.exit());
+                assertTrue(c.err().contains("line 'cal-3' is already served by process " + ProcessHandle.current().pid()), c.err());
+                assertTrue(c.err().contains("publish {\"cmd\": \"compensate\", \"kind\": \"open\"} to zbin/cal-3/command"), c.err());
+                assertEquals(0, meter.measurements(), "the meter was not touched");
+            }
+            assertEquals(0, Cli.run("compensate", "--config", cfg.toString(), "open", "--freq", "1k").exit(), "free again");
+        }
+    }
+
+    @Test
+    void aCaptureAtOneFrequency_keepsTheOthers_andThePreviousFileBesideIt() throws Exception {
+        SimMeter meter = new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0,
+                SimMeter.RandomFaults.NONE);
+        try (SimTcpServer sim = new SimTcpServer(meter, 0)) {
+            Path cfg = TestLine.write(dir, "cal-4", "tcp://127.0.0.1:1883", sim.port(), "");
+            meter.contacts().open();
+            assertEquals(0, Cli.run("compensate", "--config", cfg.toString(), "open", "--freq", "1k").exit());
+            Path store = dir.resolve("state-cal-4/compensation.yaml");
+            String first = Files.readString(store);
+            assertEquals(0, Cli.run("compensate", "--config", cfg.toString(), "open", "--freq", "100k").exit());
+            String both = Files.readString(store);
+            assertTrue(both.contains("freq_hz: 1000.0") && both.contains("freq_hz: 100000.0"), both);
+            assertEquals(first, Files.readString(dir.resolve("state-cal-4/compensation.yaml.prev")), "the replaced file is kept");
+        }
+    }
 }

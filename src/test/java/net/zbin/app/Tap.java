@@ -73,6 +73,21 @@ public final class Tap implements AutoCloseable {
 
     public void publish(String topic, byte[] payload) throws Exception { c.publish(topic, payload, 1, false); }
 
+    /** Publishes, waiting out a full in-flight window (a burst faster than the broker acknowledges). */
+    public void publishWaiting(String topic, String payload) throws Exception {
+        byte[] b = payload.getBytes(StandardCharsets.UTF_8);
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
+        while (true) {
+            try {
+                c.publish(topic, b, 1, false);
+                return;
+            } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
+                if (e.getReasonCode() != org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_MAX_INFLIGHT || System.nanoTime() > end) throw e;
+                Thread.sleep(1);
+            }
+        }
+    }
+
     public void publish(String topic, String payload) throws Exception { publish(topic, payload.getBytes(StandardCharsets.UTF_8)); }
 
     public List<Msg> on(String topicSuffix) { return msgs.stream().filter(m -> m.topic().endsWith(topicSuffix)).toList(); }

@@ -95,6 +95,12 @@ public final class Daemon implements AutoCloseable {
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
         ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
+        ticker.scheduleWithFixedDelay(() -> dispatch.onMeasuringThread(() -> {
+            if (setup.reloadIfChanged()) {
+                LOG.info("compensation file changed on disk: read again");
+                monitor.compensation(setup.compensation());
+            }
+        }), 1, 1, TimeUnit.SECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
 

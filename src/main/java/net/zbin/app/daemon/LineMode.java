@@ -186,6 +186,11 @@ final class LineMode {
 
     Map<String, Alarm> activeAlarms() { return Map.copyOf(active); }
 
+    /** Clears every recipe-bound alarm (the monitor of the new recipe raises again what still holds). */
+    synchronized void clearRecipeBound(String why) {
+        for (AlarmCode c : AlarmCode.values()) if (c.recipeBound()) alarm(c, false, why, true);
+    }
+
     /** The offline state, for the clean stop (and the Will). */
     byte[] offline() { return Payloads.state(false, Mode.OFFLINE.key(), recipe.get(), clock.instant()); }
 }

@@ -27,12 +27,42 @@ final class LineSetup {
     private volatile Recipe recipe;
     private CompensationStore store;
     private Compensation comp;
+    /** The compensation file's modification time when it was last read or written here (null: no file). */
+    private java.nio.file.attribute.FileTime storeSeen;
 
     LineSetup(LineConfig cfg) throws ConfigException {
         this.cfg = cfg;
         this.recipe = load(cfg.activeRecipe());
         this.store = CompensationStore.load(cfg.stateDir());
+        this.storeSeen = modified();
         this.comp = store.forFrequency(recipe.freqHz());
+    }
+
+    private java.nio.file.attribute.FileTime modified() {
+        try {
+            return Files.getLastModifiedTime(cfg.stateDir().resolve(CompensationStore.FILE));
+        } catch (IOException e) {
+            return null;
+        }
+    }
+
+    /**
+     * Measuring thread: reads the compensation file again when it changed on disk (edited by hand, or restored from
+     * its {@code .prev} copy); true when it did. A file that no longer loads is logged and the one in use kept.
+     */
+    boolean reloadIfChanged() {
+        var now = modified();
+        if (java.util.Objects.equals(now, storeSeen)) return false;
+        storeSeen = now;
+        try {
+            store = CompensationStore.load(cfg.stateDir());
+        } catch (ConfigException e) {
+            org.slf4j.LoggerFactory.getLogger(LineSetup.class).error("compensation file changed but does not load (the one in use is kept): {}",
+                    e.getMessage());
+            return false;
+        }
+        comp = store.forFrequency(recipe.freqHz());
+        return true;
     }
 
     private Recipe load(String name) throws ConfigException {
@@ -58,8 +88,10 @@ final class LineSetup {
     /** Captures compensation through the line's meter at the active recipe's conditions. */
     List<Impedance> capture(MeterSession meter, Clock clock, CompensationCapture.Kind k, List<TestConditions> conds, List<Impedance> std)
             throws ConfigException, MeterException, CompensationCapture.ImplausibleException, IOException {
+        store = CompensationStore.load(cfg.stateDir()); // what is on disk now: a capture adds to it, never drops other frequencies
         List<Impedance> got = new CompensationCapture(meter, cfg.fixture(), clock).capture(k, conds, std, store);
         store = CompensationStore.load(cfg.stateDir());
+        storeSeen = modified();
         comp = store.forFrequency(recipe.freqHz());
         return got;
     }

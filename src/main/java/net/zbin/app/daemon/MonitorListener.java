@@ -53,8 +53,12 @@ final class MonitorListener implements DecisionListener {
     /** While true, alarms are known again but not written to the alarm history (the record log is being replayed). */
     synchronized void recovering(boolean r) { recovering = r; }
 
-    /** A recipe change: a new monitor with its settings. */
+    /**
+     * A recipe change: a new monitor with its settings. The old recipe's alarms are cleared first, and the new
+     * monitor judges the compensation at once, so an alarm of another recipe never stays on the line.
+     */
     synchronized void recipe(Recipe r, Compensation comp) {
+        mode.clearRecipeBound("recipe changed to " + r.name());
         recipe = r;
         monitor = new LineMonitor(settings(r), cfg.checks(), r);
         compensation(comp);

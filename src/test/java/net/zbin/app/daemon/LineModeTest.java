@@ -73,4 +73,17 @@ class LineModeTest {
         again.drain(2000);
         assertEquals(alarmsBefore + 2, out.on(topics.alarm()).size(), "the active alarm is announced again");
     }
+
+    @Test
+    void aRecipeChange_clearsTheOldRecipesMonitorAlarms_andKeepsTheLinesOwn() {
+        LineMode m = mode(true);
+        m.alarm(net.zbin.core.AlarmCode.COMPENSATION_MISSING, true, "no compensation at 1 MHz", true);
+        m.alarm(net.zbin.core.AlarmCode.VALUE_DRIFT, true, "drifted", true);
+        m.setLinkDown(true, "gone");
+        m.clearRecipeBound("recipe changed to r2");
+        assertEquals(java.util.Set.of("meter-link-down"), m.activeAlarms().keySet());
+        m.drain(2000);
+        assertTrue(out.on(topics.alarm()).stream().filter(a -> a.payload().contains("\"active\":false"))
+                .allMatch(a -> a.payload().contains("recipe changed to r2")));
+    }
 }
