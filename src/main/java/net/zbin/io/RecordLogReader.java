@@ -57,16 +57,45 @@ public final class RecordLogReader {
 
     /** Every whole row of the line's log from {@code since}'s UTC day on, oldest first. */
     public static void read(Path dir, String line, Instant since, Consumer<DecisionFields.Entry> sink) throws IOException {
+        read(dir, line, since, Instant.MAX, sink);
+    }
+
+    /**
+     * Every whole row from {@code since}'s UTC day up to {@code until}, oldest first. Files dated after {@code until}'s
+     * day and rows stamped after {@code until} are from a clock that was wrong: they are set aside (with one warning
+     * each), never taken for what the line decided last.
+     */
+    public static void read(Path dir, String line, Instant since, Instant until, Consumer<DecisionFields.Entry> sink) throws IOException {
+        LocalDate lastDay = until.equals(Instant.MAX) ? LocalDate.MAX : LocalDate.ofInstant(until, ZoneOffset.UTC);
         for (Path f : files(dir, line, LocalDate.ofInstant(since, ZoneOffset.UTC))) {
+            LocalDate day = dayOf(f, line);
+            if (day.isAfter(lastDay)) {
+                org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} is dated after today ({}): set aside, "
+                        + "not read back (a clock that was wrong when it was written?)", f, lastDay);
+                continue;
+            }
+            long future = 0;
             try (Reader r = Files.newBufferedReader(f, StandardCharsets.UTF_8); CSVParser p = FORMAT.parse(r)) {
                 for (CSVRecord rec : p) {
                     DecisionFields.Entry e = entry(rec);
-                    if (e != null) sink.accept(e);
+                    if (e == null) continue;
+                    if (e.time().isAfter(until)) {
+                        future++;
+                        continue;
+                    }
+                    sink.accept(e);
                 }
             } catch (java.io.UncheckedIOException | IllegalStateException e) {
                 // a torn last line in quotes: everything before it was read
             }
+            if (future > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows stamped after {} "
+                    + "set aside, not read back", f, future, until);
         }
+    }
+
+    private static LocalDate dayOf(Path f, String line) {
+        String name = f.getFileName().toString();
+        return LocalDate.parse(name.substring(line.length() + 1, line.length() + 11));
     }
 
     /** A free-text cell as the text it was before it was written spreadsheet-safe. */

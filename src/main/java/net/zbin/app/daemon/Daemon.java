@@ -8,6 +8,7 @@ import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
 import net.zbin.io.ConfigException;
 import net.zbin.io.LineConfig;
+import net.zbin.io.LineState;
 import net.zbin.io.RecordLog;
 import net.zbin.io.RecordLogReader;
 import net.zbin.io.meter.MeterSession;
@@ -41,6 +42,8 @@ public final class Daemon implements AutoCloseable {
     private MqttLink mqtt;
     private TriggerPath path;
     private final List<net.zbin.io.LineLock> locks = new java.util.ArrayList<>();
+    /** True once the record log was read back: only then is the state file this daemon's to write. */
+    private volatile boolean recovered;
     private LineCommands commands;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
@@ -76,18 +79,14 @@ public final class Daemon implements AutoCloseable {
         lock();
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
-        commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor);
-        long from = clock.millis() - cfg.repeatWindowMs();
-        monitor.recovering(true);
-        RecordLogReader.read(cfg.records().dir(), cfg.line(), clock.instant().minus(Duration.ofDays(1)), e -> path.recovered(e, from));
-        monitor.recovering(false);
+        commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
+        recover();
         path.onLotEnd(this::publishDashboard); // the finished lot's last figures, retained until the next dashboard
         monitor.compensation(setup.compensation());
         records.start();
         long t0 = System.nanoTime();
-        Warmup.run(setup.recipe(), setup.compensation(), 20_000);
-        LOG.info("decision path warm in {} ms; {} presentations of lot '{}' recovered from the record log",
-                (System.nanoTime() - t0) / 1_000_000, book.size(), book.lot());
+        Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300);
+        LOG.info("decision path warm in {} ms", (System.nanoTime() - t0) / 1_000_000);
         watch.probe();
         mode.attach(mqtt);
         mqtt.onConnect(mode::announce);
@@ -102,6 +101,52 @@ public final class Daemon implements AutoCloseable {
             }
         }), 1, 1, TimeUnit.SECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
+    }
+
+    /**
+     * Reads the record log back (today's and yesterday's files, nothing stamped in the future) into the figures, the
+     * monitor and the book, then what the log cannot tell from the line's state file: a lot named by a command after
+     * the last row, a reset of the counters, and the counters of answers that write no row.
+     */
+    private void recover() throws java.io.IOException {
+        LineState saved = LineState.load(cfg.stateDir(), cfg.line());
+        java.time.Instant now = clock.instant();
+        java.time.Instant[] pendingReset = {saved == null ? null : saved.resetAt()};
+        java.time.Instant[] lastRow = {null};
+        long[] rows = {0};
+        monitor.recovering(true);
+        RecordLogReader.read(cfg.records().dir(), cfg.line(), now.minus(Duration.ofDays(1)), now.plusSeconds(5), e -> {
+            path.enterLot(e.decision().lot(), e.time());
+            if (pendingReset[0] != null && !e.time().isBefore(pendingReset[0]) && e.decision().lot().equals(saved.lot())) {
+                stats.resetAt(pendingReset[0]);
+                pendingReset[0] = null;
+            }
+            path.recovered(e);
+            lastRow[0] = e.time();
+            rows[0]++;
+        });
+        monitor.recovering(false);
+        int inBook = path.readBackDone();
+        if (saved != null) {
+            stats.restore(saved.repeats(), saved.rejected(), saved.reusedSeqs(), saved.busy());
+            boolean lotAfterLastRow = saved.lotSince() != null && (lastRow[0] == null || !saved.lotSince().isBefore(lastRow[0]));
+            if (lotAfterLastRow && !saved.lot().isEmpty()) path.enterLot(saved.lot(), saved.lotSince());
+            if (pendingReset[0] != null && saved.lot().equals(stats.lot())) stats.resetAt(pendingReset[0]);
+        }
+        recovered = true;
+        LOG.info("{} rows read back from the record log; lot '{}', {} presentations in the repeat window", rows[0], stats.lot(), inBook);
+    }
+
+    /** The line's state file: written by the ticker, after lot and reset commands, and at a clean stop. */
+    void saveState() {
+        if (!recovered) return;
+        LineStats.Snapshot s = stats.snapshot();
+        try {
+            new LineState(s.lot(), s.lotSince(), stats.resetAt(), s.repeats(), s.rejected(), s.reusedSeqs(), s.busy(), clock.instant())
+                    .save(cfg.stateDir(), cfg.line());
+        } catch (java.io.IOException e) {
+            LOG.warn("line state not saved: {}", e.toString());
+        }
     }
 
     /**
@@ -150,6 +195,7 @@ public final class Daemon implements AutoCloseable {
     };
 
     private void publishDashboard() {
+        saveState();
         try {
             monitor.tick();
             mqtt.publish(topics.dashboard(), dashboard(mode.mode()), 0, true);
@@ -183,6 +229,7 @@ public final class Daemon implements AutoCloseable {
             mqtt.close();
         }
         records.close();
+        saveState();
         meter.close();
         locks.forEach(net.zbin.io.LineLock::close);
         LOG.info("line {} stopped", cfg.line());

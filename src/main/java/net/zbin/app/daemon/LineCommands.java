@@ -34,10 +34,13 @@ final class LineCommands {
     private final Clock clock;
 
     private final MonitorListener monitor;
+    /** Writes the line's state file: a lot or a reset must survive a restart. */
+    private final Runnable saveState;
 
     LineCommands(Topics topics, Publisher out, LineSetup setup, LineMode mode, LineStats stats, TriggerPath path,
-                 MeterSession meter, Clock clock, MonitorListener monitor) {
+                 MeterSession meter, Clock clock, MonitorListener monitor, Runnable saveState) {
         this.monitor = monitor;
+        this.saveState = saveState;
         this.topics = topics;
         this.out = out;
         this.setup = setup;
@@ -93,10 +96,12 @@ final class LineCommands {
                 String l = TriggerCodec.text(n, "lot");
                 if (l == null) throw new PayloadException("lot is missing");
                 path.enterLot(l, clock.instant());
+                saveState.run();
                 return "lot " + l;
             }
             case "reset-counters":
                 stats.reset();
+                saveState.run();
                 return "counters reset";
             case "compensate":
                 return compensate(n);

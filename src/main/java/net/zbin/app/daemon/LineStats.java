@@ -29,14 +29,13 @@ final class LineStats implements DecisionListener {
     private BinTally.Snapshot base = BinTally.Snapshot.EMPTY;
     private String lot = "";
     private Instant lotSince;
-    private final Instant started;
+    private Instant resetAt;
     private long decisions, late, repeats, rejected, reusedSeqs, busy;
 
     LineStats(Clock clock, int deadlineMs) {
         this.clock = clock;
         this.deadlineMs = deadlineMs;
-        this.started = clock.instant();
-        this.lotSince = started;
+        this.lotSince = clock.instant();
     }
 
     /**
@@ -47,7 +46,7 @@ final class LineStats implements DecisionListener {
      * @param yieldLowPct  Wilson 95 % interval of the lot's yield, low end
      * @param yieldHighPct high end
      * @param uphMinute  parts finished in the last minute × 60
-     * @param uphHour    parts finished in the last hour (scaled up while the daemon has run less than an hour)
+     * @param uphHour    parts finished in the last hour (not extrapolated: after a start it counts the rows read back)
      * @param window10Min parts finished and passed in the last 10 minutes (rolling, whatever the lot)
      * @param windowHour  the same for the last hour
      */
@@ -102,14 +101,30 @@ final class LineStats implements DecisionListener {
     synchronized void startLot(String l, Instant when) {
         lot = l;
         lotSince = when;
+        resetAt = null;
         base = tally.snapshot();
     }
 
     /** reset-counters: the lot's figures start again from here (totals keep counting). */
-    synchronized void reset() {
+    synchronized void reset() { resetAt(clock.instant()); }
+
+    /** reset-counters as of {@code when} (also when the record log is read back after a restart). */
+    synchronized void resetAt(Instant when) {
         base = tally.snapshot();
-        lotSince = clock.instant();
+        lotSince = when;
+        resetAt = when;
         latencyUs.reset();
+    }
+
+    /** When reset-counters last ran in this lot, or null. */
+    synchronized Instant resetAt() { return resetAt; }
+
+    /** Counters of answers that write no row, as they were before a restart. */
+    synchronized void restore(long repeats, long rejected, long reusedSeqs, long busy) {
+        this.repeats += repeats;
+        this.rejected += rejected;
+        this.reusedSeqs += reusedSeqs;
+        this.busy += busy;
     }
 
     synchronized String lot() { return lot; }
@@ -119,10 +134,9 @@ final class LineStats implements DecisionListener {
         BinTally.Snapshot l = all.minus(base);
         double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
         long now = clock.instant().getEpochSecond();
-        long ranS = Math.max(1, now - started.getEpochSecond());
         double minute = finishedSince(now - 60, now)[0] * 60.0;
         long[] h = finishedSince(now - 3600, now), m10 = finishedSince(now - 600, now);
-        double hour = h[0] * 3600.0 / Math.min(3600, ranS);
+        double hour = h[0];
         boolean any = latencyUs.getTotalCount() > 0;
         return new Snapshot(lot, lotSince, l, all, ci[0] * 100, ci[1] * 100, minute, hour,
                 any ? latencyUs.getValueAtPercentile(50) / 1000.0 : Double.NaN,

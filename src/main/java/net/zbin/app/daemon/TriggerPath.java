@@ -46,6 +46,13 @@ final class TriggerPath {
     private final Clock clock;
     private String lastReusedWarning = null;
     private volatile Runnable lotEnded = () -> { };
+    /**
+     * The repeat window's clock: monotonic milliseconds, so a step of the wall clock neither re-measures a re-sent
+     * trigger nor keeps every decision "inside the window".
+     */
+    private final java.util.function.LongSupplier monoMs = () -> System.nanoTime() / 1_000_000L;
+    /** Decisions read back at start that may still be repeated; put into the book when the read-back ends. */
+    private final java.util.ArrayDeque<DecisionFields.Entry> readBack = new java.util.ArrayDeque<>();
 
     TriggerPath(LineConfig cfg, Topics topics, LineSetup setup, MeterSession meter, Publisher out, RecordLog records,
                 LineMode mode, LineStats stats, DecisionBook book, List<DecisionListener> listeners, Clock clock) {
@@ -66,7 +73,7 @@ final class TriggerPath {
         Trigger t = decode(payload);
         if (t == null) return;
         String lotId = lotOf(t);
-        long now = clock.millis();
+        long now = monoMs.getAsLong();
         DecisionBook.Lookup found = book.find(t, lotId, now);
         if (found instanceof DecisionBook.Repeat r) {
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
@@ -206,11 +213,33 @@ final class TriggerPath {
         };
     }
 
-    /** Puts back what the record log says was decided before a restart: the book and the lot's figures. */
-    void recovered(DecisionFields.Entry e, long bookFromMs) {
+    /** Puts back what the record log says was decided before a restart: the lot's figures now, the book at {@link #readBackDone}. */
+    void recovered(DecisionFields.Entry e) {
         Decision d = e.decision();
         enterLot(d.lot(), e.time());
-        if (e.time().toEpochMilli() >= bookFromMs) book.put(d, e.time().toEpochMilli());
+        if (!readBack.isEmpty() && !readBack.peekLast().decision().lot().equals(d.lot())) readBack.clear();
+        readBack.add(e);
+        while (readBack.size() > 20_000 || e.time().toEpochMilli() - readBack.peekFirst().time().toEpochMilli() > cfg.repeatWindowMs())
+            readBack.pollFirst();
         for (DecisionListener l : listeners) l.decided(e);
+    }
+
+    /**
+     * The read-back ended: the decisions of the last repeat window of the log go into the book with the ages they had
+     * when the daemon stopped, so the time it was down does not shorten their window (a redelivered trigger of an
+     * answered presentation is answered again, not measured again). Returns how many.
+     */
+    int readBackDone() {
+        int n = 0;
+        if (!readBack.isEmpty()) {
+            long last = readBack.peekLast().time().toEpochMilli(), now = monoMs.getAsLong();
+            for (DecisionFields.Entry e : readBack) {
+                if (!e.decision().lot().equals(book.lot())) continue;
+                book.put(e.decision(), now - (last - e.time().toEpochMilli()));
+                n++;
+            }
+        }
+        readBack.clear();
+        return n;
     }
 }

@@ -19,12 +19,16 @@ import net.zbin.io.mqtt.Payloads;
 final class Warmup {
     private Warmup() {}
 
-    /** Returns a checksum so the work cannot be optimised away. */
-    static long run(Recipe r, Compensation comp, int rounds) {
+    /**
+     * Runs up to {@code rounds} rounds, but no longer than {@code maxMs}: on a loaded machine the line says ready
+     * in time rather than after a fixed amount of work. Returns a checksum so the work cannot be optimised away.
+     */
+    static long run(Recipe r, Compensation comp, int rounds, long maxMs) {
+        long end = System.nanoTime() + maxMs * 1_000_000L;
         double ideal = r.idealZOhm(), f = r.freqHz();
         double sign = switch (r.partType()) { case CAPACITOR -> -1; case INDUCTOR -> 1; case RESISTOR -> 0; };
         long sum = 0;
-        for (int i = 0; i < rounds; i++) {
+        for (int i = 0; i < rounds && (i % 256 != 0 || System.nanoTime() < end); i++) {
             double dev = ((i * 7919) % 400 - 200) / 1000.0;
             double z = ideal * (1 + dev);
             Reading rd = sign == 0 ? new Reading(f, z, z * 1e-4) : new Reading(f, z * 0.01, sign * z);
