@@ -65,7 +65,9 @@ public final class ReplayCommand implements Callable<Integer> {
         long[] badRows = {0};
         ReadingSource.BadRow[] firstBad = {null};
         try (ReadingSource src = ReadingSource.open(in, b -> {
-            if (badRows[0]++ < maxShown) err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)");
+            // with --strict the first bad row ends the run and is reported once, as what stopped it
+            if (!strict && badRows[0] < maxShown) err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)");
+            badRows[0]++;
             if (firstBad[0] == null) firstBad[0] = b;
         })) {
             RecordedReading row;

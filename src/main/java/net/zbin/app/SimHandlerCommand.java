@@ -40,12 +40,14 @@ public final class SimHandlerCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
+        if (!broker.matches("(tcp|ssl)://[^/:]+:\\d{1,5}"))
+            throw new UsageException("--broker must be tcp://host:port or ssl://host:port (was '" + broker + "')");
         Scenario sc = lot.scenario();
         double rate = pace.perSecond();
         PartLoader loader = PartLoader.direct(new net.zbin.sim.Contacts());
         if (meterSim != null) {
             String[] hp = meterSim.split(":");
-            if (hp.length != 2) throw new UsageException("--meter-sim must be HOST:PORT (was '" + meterSim + "')");
+            if (hp.length != 2 || !hp[1].matches("\\d{1,5}")) throw new UsageException("--meter-sim must be HOST:PORT (was '" + meterSim + "')");
             loader = PartLoader.remote(hp[0], Integer.parseInt(hp[1]));
         }
         char[] pw = null;

@@ -15,8 +15,7 @@ public enum GradingMode {
     public static GradingMode parse(String s) {
         String t = s.trim().toLowerCase(Locale.ROOT);
         for (GradingMode m : values()) if (m.key().equals(t)) return m;
-        if (t.equals("nested")) throw new IllegalArgumentException("'nested' is now called 'concentric' (tolerance windows centred on the nominal)");
-        if (t.equals("sequential")) throw new IllegalArgumentException("'sequential' is now called 'ladder' (adjacent value ranges, low to high)");
-        throw new IllegalArgumentException("must be concentric or ladder (was '" + s + "')");
+        throw new IllegalArgumentException("must be one of: concentric (tolerance windows centred on the nominal, tightest first), "
+                + "ladder (adjacent value ranges, low to high) (was '" + s + "')");
     }
 }

@@ -225,7 +225,7 @@ public final class LineMonitor {
     public record Snapshot(long parts, double devMeanPct, double devSigmaPct, double cp, double cpk, DriftChart.View value,
                            DriftChart.View loss, String lossName, Window.View window, Cause cause, String causeText,
                            double openResidualF, double openResidualGS, double shortResidualOhm, double shortResidualH,
-                           double referenceOffset, String compSource, double compAgeH, double compFreqHz,
+                           double referenceOffsetPct, String compSource, double compAgeH, double compFreqHz,
                            Map<AlarmCode, String> active) {}
 
     public Snapshot snapshot(Instant now) {
@@ -236,7 +236,7 @@ public final class LineMonitor {
         boolean applied = comp != null && comp.isApplied();
         return new Snapshot(parts, dev.mean(), sd, Capability.cp(lsl, usl, sd), Capability.cpk(lsl, usl, dev.mean(), sd), value.view(),
                 loss.view(), lossName(), window.view(), cause, causeText, openResidual, openG, shortR,
-                Double.isNaN(shortX) ? Double.NaN : shortX / (2 * Math.PI * recipe.freqHz()), Double.isNaN(refAbs) ? Double.NaN : refAbs,
+                Double.isNaN(shortX) ? Double.NaN : shortX / (2 * Math.PI * recipe.freqHz()), Double.isNaN(refAbs) ? Double.NaN : refAbs / recipe.nominal() * 100,
                 applied ? comp.source().key() : "none",
                 applied && comp.takenAt() != null ? Duration.between(comp.takenAt(), now).toSeconds() / 3600.0 : Double.NaN,
                 comp == null ? Double.NaN : comp.freqHz(), Map.copyOf(active));

@@ -40,7 +40,9 @@ final class CsvReadingSource implements ReadingSource {
         this.bad = bad;
         if (!Files.exists(file)) throw new ConfigException(file, null, "file not found");
         this.tornTail = endsWithoutNewline(file);
-        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).ofCsvRecord(file, StandardCharsets.UTF_8);
+        // a spreadsheet export starts with a UTF-8 byte-order mark: it is not part of the first column name
+        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).detectBomHeader(true)
+                .ofCsvRecord(file, StandardCharsets.UTF_8);
         this.it = reader.iterator();
         Map<String, Integer> header = new HashMap<>();
         int fields = 0;

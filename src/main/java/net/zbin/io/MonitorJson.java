@@ -40,7 +40,7 @@ public final class MonitorJson {
         r(c, "open_residual_g_ns", s.openResidualGS() * 1e9);
         r(c, "short_residual_mohm", s.shortResidualOhm() * 1e3);
         r(c, "short_residual_nh", s.shortResidualH() * 1e9);
-        r(c, "reference_offset", s.referenceOffset());
+        r(c, "reference_offset_pct", s.referenceOffsetPct());
         ObjectNode a = n.putObject("alarms");
         s.active().forEach((code, msg) -> a.put(code.code(), msg));
         return n;

@@ -39,7 +39,7 @@ public final class RecordLog implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(RecordLog.class);
     /** Bytes of kept rows of measured decisions at most (16 MiB ≈ 60 000 rows). */
     public static final long MAX_MEASURED_BYTES = 16L << 20;
-    /** Bytes of kept rows of answers that measured nothing at most (256 KiB ≈ 1 000 rows). */
+    /** Bytes of kept rows of answers that measured nothing at most (256 KiB ≈ 2 000 such rows). */
     public static final long MAX_UNMEASURED_BYTES = 256L << 10;
     /** While failing, the timer retries at least this often, whatever the flush interval. */
     private static final long RETRY_MS = 200;
@@ -150,6 +150,9 @@ public final class RecordLog implements AutoCloseable {
 
     /** Rows kept but not yet written. */
     public synchronized int backlog() { return backlog.size(); }
+
+    /** Bytes of the rows kept but not yet written. */
+    public synchronized long backlogBytes() { return measuredBytes + unmeasuredBytes; }
 
     /** True while the log cannot be written. */
     public synchronized boolean failing() { return failing; }

@@ -27,7 +27,7 @@ public final class TallyJson {
             o.put("grade", b.grade());
             o.put("verdict", b.verdict().key());
             o.put("count", b.count());
-            o.put("pct", b.pct());
+            o.put("pct", Math.round(b.pct() * 100) / 100.0); // for people: 0.01 %
         }
         ObjectNode reasons = n.putObject("reasons");
         s.reasons().forEach(reasons::put);

@@ -98,4 +98,52 @@ class InputPolishTest {
         Cli ind = Cli.run("check", "--recipe", "config/recipes/inductor-pwr-4u7.yaml");
         assertTrue(ind.out().contains("ladder") && ind.out().contains("nothing is graded without short compensation"), ind.out());
     }
+
+    @Test
+    void aSpreadsheetExportWithAByteOrderMark_replaysLikeThePlainFile() throws IOException {
+        Path plain = dir.resolve("plain.csv"), bom = dir.resolve("bom.csv");
+        String text = "freq_hz,r_ohm,x_ohm\n1000,16,-1591.5\n1000,17,-1600\n";
+        Files.writeString(plain, text);
+        Files.write(bom, ("\uFEFF" + text).getBytes(java.nio.charset.StandardCharsets.UTF_8));
+        Cli a = Cli.run("replay", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", plain.toString(), "--json");
+        Cli b = Cli.run("replay", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", bom.toString(), "--json");
+        assertEquals(0, b.exit(), b.err());
+        assertEquals(a.out(), b.out());
+    }
+
+    @Test
+    void strictReplay_reportsTheRowItStoppedAt_once_andNotAsSkipped() throws IOException {
+        Path f = dir.resolve("bad.csv");
+        Files.writeString(f, "freq_hz,r_ohm,x_ohm\n1000,16,-1591.5\n1000,oops,-1600\n1000,16,-1591.5\n");
+        Cli c = Cli.run("replay", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", f.toString(), "--strict");
+        assertEquals(2, c.exit());
+        assertTrue(c.err().contains("line 3") && c.err().contains("(--strict)"), c.err());
+        assertFalse(c.err().contains("(skipped)"), c.err());
+    }
+
+    @Test
+    void simHandler_aBrokerWithoutScheme_exits2WithTheFormToWrite() {
+        Cli c = Cli.run("sim", "handler", "--broker", "127.0.0.1:40577", "--line", "l1");
+        assertEquals(2, c.exit());
+        assertTrue(c.err().contains("--broker must be tcp://host:port"), c.err());
+        assertFalse(c.err().contains("Exception"), c.err());
+    }
+
+    @Test
+    void scenarioMistakes_speakOfKeysAndValues_notJavaClasses_andRkmOhmsRead() throws IOException {
+        String good = Files.readString(Path.of("simulators/scenarios/harrowgate-resistor-4k99.yaml"));
+        Path typo = dir.resolve("typo.yaml"), word = dir.resolve("word.yaml"), rkm = dir.resolve("rkm.yaml");
+        Files.writeString(typo, good.replace("spread_pct:", "spred_pct:"));
+        Files.writeString(word, good.replace("offset_pct:", "offset_pct: lots #"));
+        Files.writeString(rkm, good.replaceFirst("nominal: [^\\n]*", "nominal: 33R"));
+        for (Path p : new Path[] {typo, word}) {
+            Cli c = Cli.run("sim", "lot", "--scenario", p.toString(), "--out", dir.resolve("o.csv").toString(), "--parts", "10");
+            assertEquals(2, c.exit(), c.err());
+            assertFalse(c.err().contains("java.") || c.err().contains("net.zbin") || c.err().contains("class "), c.err());
+        }
+        assertTrue(Cli.run("sim", "lot", "--scenario", typo.toString(), "--out", dir.resolve("o.csv").toString()).err()
+                .contains("part.spred_pct: unknown key"));
+        Cli ok = Cli.run("sim", "lot", "--scenario", rkm.toString(), "--out", dir.resolve("o.csv").toString(), "--parts", "10");
+        assertEquals(0, ok.exit(), ok.err());
+    }
 }

@@ -87,8 +87,8 @@ class RecipeMistakesTest {
                 Arguments.of("broken YAML", GOOD + "grades: [\n", "line"),
                 Arguments.of("bad recipe id", GOOD.replace("recipe: corpus-cap", "recipe: 'has spaces'"), "recipe"),
                 Arguments.of("contact factor not above 1", GOOD + "contact: {open_factor: 0.5}\n", "contact.open_factor"),
-                Arguments.of("old mode word nested", GOOD.replace("grading: concentric", "grading: nested"), "concentric"),
-                Arguments.of("old mode word sequential", GOOD.replace("grading: concentric", "grading: sequential"), "ladder"),
+                Arguments.of("unknown mode word lists the valid ones", GOOD.replace("grading: concentric", "grading: stacked"),
+                        "must be one of: concentric (tolerance windows centred on the nominal, tightest first), ladder"),
                 Arguments.of("unknown mode word", GOOD.replace("grading: concentric", "grading: spiral"), "grading"),
                 Arguments.of("capacitance unit on an inductor", GOOD.replace("part: capacitor", "part: inductor").replace("nominal: 100n", "nominal: 10uF")
                         .replace("primary: Cs", "primary: Ls").replace("d_max: 0.025", "q_min: 10"), "nominal"),

@@ -72,7 +72,7 @@ class RestartContinuityIT {
             tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("z"), 1, 10_000);
             java.util.Map<Long, JsonNode> told = new java.util.HashMap<>();
             for (long s = 201; s <= 230; s++) told.put(s, present(tap, s));
-            lastDashboard(tap, j -> j.path("parts").asLong() == 30 && j.path("repeats").asLong() == 5 && j.path("rejected").asLong() == 5);
+            lastDashboard(tap, j -> j.path("parts").asLong() == 30 && j.path("repeats").asLong() == 5 && j.path("messages_rejected").asLong() == 5);
 
             daemon[0].destroyForcibly().waitFor(10, TimeUnit.SECONDS); // kill -9
             Thread.sleep(7000); // down longer than the 5 s repeat window
@@ -87,7 +87,7 @@ class RestartContinuityIT {
                     && m.json().path("repeats").asLong() == 15, 1, 20_000).get(0).json();
             assertEquals("LOT-A", after.path("lot").asText(), "the lot named by command survives");
             assertEquals(30, after.path("parts").asLong(), "reset-counters survives: the lot's figures count from the reset");
-            assertEquals(5, after.path("rejected").asLong(), "counters of answers without a row continue");
+            assertEquals(5, after.path("messages_rejected").asLong(), "counters of answers without a row continue");
             assertTrue(after.path("uph_hour").asDouble() <= 230, "parts of the last hour, not an extrapolation: " + after.path("uph_hour"));
 
             tap.publish("zbin/cont/command", "{\"cmd\":\"lot\",\"lot\":\"LOT-NEW\",\"id\":\"n\"}");

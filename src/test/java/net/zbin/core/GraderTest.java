@@ -29,7 +29,7 @@ class GraderTest {
     }
 
     @Test
-    void nestedGrades_pickTightestMatchingGrade() {
+    void concentricGrades_pickTightestMatchingGrade() {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
         assertEquals("J", Grader.grade(r, capReading(3, 0.01), null, 0).grade());
         assertEquals("K", Grader.grade(r, capReading(-7, 0.01), null, 0).grade());
@@ -41,7 +41,7 @@ class GraderTest {
     }
 
     @Test
-    void sequentialGrades_pickTheRangeTheValueFallsIn() {
+    void ladderGrades_pickTheRangeTheValueFallsIn() {
         List<Grade> seq = List.of(new Grade("A", 1, -20, -5), new Grade("B", 2, -5, 5), new Grade("C", 3, 5, 20));
         Recipe r = cap(GradingMode.LADDER, seq, GuardBand.NONE, Gates.NONE);
         assertEquals("A", Grader.grade(r, capReading(-10, 0.01), null, 0).grade());

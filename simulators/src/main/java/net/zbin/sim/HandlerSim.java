@@ -77,7 +77,8 @@ public final class HandlerSim implements AutoCloseable {
     public record Summary(long parts, long triggers, long decisions, Map<Integer, Long> bins, Map<String, Long> reasons,
                           long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
                           long retests, long checksPassed, long checksFailed, double p50Ms, double p99Ms, double maxMs,
-                          long offlinePauses, long finished, long stale, long seqRestarts, Map<Integer, String> grades) {
+                          long offlinePauses, long finished, long stale, long seqRestarts, Map<Integer, String> grades,
+                          long deliberateRepeats, long resent) {
         /** Parts passed / parts finished, the same figure the dashboard and a replay of the record log give. */
         public double yieldPct() { return finished == 0 ? Double.NaN : 100.0 * passed / finished; }
     }
@@ -271,7 +272,8 @@ public final class HandlerSim implements AutoCloseable {
         Map<Integer, Long> bins = new TreeMap<>();
         Map<String, Long> reasons = new TreeMap<>();
         Histogram lat = new Histogram(60_000_000L, 3);
-        long triggers = 0, decisions = 0, passed = 0, missing = 0, late = 0, retests = 0, checksOk = 0, checksBad = 0, pauses = 0;
+        java.util.ArrayDeque<Long> lastMinute = new java.util.ArrayDeque<>();
+        long triggers = 0, deliberate = 0, decisions = 0, passed = 0, missing = 0, late = 0, retests = 0, checksOk = 0, checksBad = 0, pauses = 0;
         long finished = 0, restarts = 0;
         Map<Integer, String> grades = new TreeMap<>();
         long periodNs = o.ratePerS() > 0 ? (long) (1e9 / o.ratePerS()) : 0;
@@ -313,6 +315,7 @@ public final class HandlerSim implements AutoCloseable {
                 if (o.repeatEvery() > 0 && (i + 1) % o.repeatEvery() == 0) {
                     JsonNode again = repeatLast(d);
                     triggers++;
+                    deliberate++;
                     if (again == null) missing++;
                 }
             }
@@ -323,8 +326,12 @@ public final class HandlerSim implements AutoCloseable {
                 triggers += 3;
                 missing += ok[2];
             }
-            double elapsedH = (System.nanoTime() - start) / 3.6e12;
-            progress.accept(new Progress(i + 1, decisions, elapsedH > 0 ? (i + 1) / elapsedH : 0, finished == 0 ? Double.NaN : 100.0 * passed / finished,
+            // UPH over the last minute (the rate now, as the dashboard's uph), not an average since the start
+            long nowNs = System.nanoTime();
+            lastMinute.add(nowNs);
+            while (nowNs - lastMinute.peekFirst() > 60_000_000_000L) lastMinute.pollFirst();
+            double spanH = Math.min(60e9, nowNs - start) / 3.6e12;
+            progress.accept(new Progress(i + 1, decisions, spanH > 0 ? lastMinute.size() / spanH : 0, finished == 0 ? Double.NaN : 100.0 * passed / finished,
                     d == null ? -1 : d.path("bin").asInt(), d == null ? "missing" : d.path("grade").asText()));
             next += periodNs;
             long wait = next - System.nanoTime();
@@ -336,7 +343,7 @@ public final class HandlerSim implements AutoCloseable {
         return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicate.get(), late,
                 contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades);
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades, deliberate, resent.get());
     }
 
     /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */

@@ -125,13 +125,36 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
     /**
      * @throws IllegalArgumentException naming the file, the key path and the problem
      */
+    /** A mapping error in the words of the file, not of the Java classes behind it. */
+    static String plain(JsonMappingException e) {
+        if (e instanceof com.fasterxml.jackson.databind.exc.UnrecognizedPropertyException u)
+            return "unknown key (known keys here: " + String.join(", ", new java.util.TreeSet<>(u.getKnownPropertyIds().stream().map(Object::toString).toList())) + ")";
+        if (e instanceof com.fasterxml.jackson.databind.exc.InvalidFormatException f) {
+            String m = e.getOriginalMessage();
+            int why = m.indexOf("\": ");
+            return "'" + f.getValue() + "' is not " + kind(f.getTargetType()) + (why >= 0 ? ": " + m.substring(why + 3) : "");
+        }
+        if (e instanceof com.fasterxml.jackson.databind.exc.MismatchedInputException mi && mi.getTargetType() != null)
+            return "must be " + kind(mi.getTargetType());
+        return e.getOriginalMessage().replaceAll("`[A-Za-z0-9_.$]+`", "value").replaceAll("\\(class [A-Za-z0-9_.$]+\\)", "").replaceAll("\\s+", " ");
+    }
+
+    private static String kind(Class<?> t) {
+        if (t == Double.class || t == double.class) return "a number";
+        if (t == Integer.class || t == int.class || t == Long.class || t == long.class) return "a whole number";
+        if (t == Boolean.class || t == boolean.class) return "true or false";
+        if (t == String.class) return "a text";
+        if (t.isRecord()) return "a mapping of keys";
+        return "a value of the right kind";
+    }
+
     public static Scenario read(Path file) throws IOException {
         try {
             return YAML.readValue(Files.readAllBytes(file), Scenario.class);
         } catch (JsonMappingException e) {
             String path = e.getPath().stream().map(r -> r.getFieldName() != null ? r.getFieldName() : "[" + r.getIndex() + "]")
                     .reduce((a, b) -> b.startsWith("[") ? a + b : a + "." + b).orElse("(top level)");
-            throw new IllegalArgumentException(file + ": " + path + ": " + e.getOriginalMessage());
+            throw new IllegalArgumentException(file + ": " + path + ": " + plain(e));
         } catch (com.fasterxml.jackson.core.JsonProcessingException e) {
             for (Throwable t = e; t != null; t = t.getCause())
                 if (t instanceof org.yaml.snakeyaml.error.MarkedYAMLException m && m.getProblemMark() != null)

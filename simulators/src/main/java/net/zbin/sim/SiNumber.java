@@ -16,7 +16,12 @@ final class SiNumber extends JsonDeserializer<Double> {
         try {
             return SiValue.parse(text, Unit.ANY);
         } catch (IllegalArgumentException e) {
-            return (Double) ctx.handleWeirdStringValue(Double.class, text, e.getMessage());
+            try {
+                // R and K as decimal marker or unit (33R, 4K7) belong to resistance only: such a value is ohms
+                return SiValue.parse(text, Unit.OHM);
+            } catch (IllegalArgumentException notOhms) {
+                return (Double) ctx.handleWeirdStringValue(Double.class, text, e.getMessage());
+            }
         }
     }
 }

@@ -150,16 +150,11 @@ public final class Daemon implements AutoCloseable {
     }
 
     /**
-     * One line, one daemon: the state folder's lock is required; the record folder's too where that folder can be
-     * made (when it cannot, the record log's own alarm says so once the line runs).
+     * One line, one daemon: the lock lives in the line's state folder (not among the record files, which tools
+     * list and read as they are).
      */
     private void lock() throws Exception {
         locks.add(net.zbin.io.LineLock.acquire(cfg.stateDir(), cfg.line()));
-        try {
-            locks.add(net.zbin.io.LineLock.acquire(cfg.records().dir(), cfg.line()));
-        } catch (java.io.IOException e) {
-            LOG.warn("record folder {} cannot hold the line's lock: {}", cfg.records().dir(), e.toString());
-        }
     }
 
     /**
@@ -210,6 +205,15 @@ public final class Daemon implements AutoCloseable {
     }
 
     public long recordsWritten() { return records.written(); }
+
+    /** Record rows kept in memory because the log could not be written. */
+    public long recordBacklog() { return records.backlog(); }
+
+    /** Bytes of those rows. */
+    public long recordBacklogBytes() { return records.backlogBytes(); }
+
+    /** Record rows dropped beyond the memory bound while the log could not be written. */
+    public long recordsDropped() { return records.dropped(); }
 
     /** The monitor's figures now, as the dashboard shows them. */
     public net.zbin.core.LineMonitor.Snapshot monitorFigures() { return monitor.snapshot(); }

@@ -36,7 +36,7 @@ final class DashboardJson {
         round(lat, "max", s.maxMs(), 100);
         n.put("late", s.late());
         n.put("repeats", s.repeats());
-        n.put("rejected", s.rejected());
+        n.put("messages_rejected", s.rejected()); // unusable MQTT messages refused (not parts: those are in bins)
         n.put("seq_reused", s.reusedSeqs());
         n.put("busy", s.busy());
         n.put("decisions", s.decisions());
