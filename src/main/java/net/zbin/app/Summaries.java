@@ -21,8 +21,9 @@ final class Summaries {
         out.println("  reasons (final decision per part):");
         s.reasons().forEach((r, n) -> out.printf(Locale.ROOT, "    %-22s %8d%n", r, n));
         out.printf(Locale.ROOT, "  latency p50 %.2f ms, p99 %.2f ms, max %.2f ms (trigger sent → decision received)%n", s.p50Ms(), s.p99Ms(), s.maxMs());
-        out.printf(Locale.ROOT, "  late %d, missing %d, duplicate %d, contradictory %d, stale %d; answered as repeats %d%n",
-                s.late(), s.missing(), s.duplicate(), s.contradictory(), s.stale(), s.repeatsAnswered());
+        out.printf(Locale.ROOT, "  late %d, missing %d, duplicate %d, contradictory %d, stale %d, passed on open or shorted contacts %d; "
+                + "answered as repeats %d%n", s.late(), s.missing(), s.duplicate(), s.contradictory(), s.stale(), s.passedOnOpenOrShort(),
+                s.repeatsAnswered());
         out.printf(Locale.ROOT, "  fixture checks: %d passed, %d failed%s%s%n", s.checksPassed(), s.checksFailed(),
                 s.offlinePauses() > 0 ? "; fed paused " + s.offlinePauses() + " time(s) while the line was offline" : "",
                 s.seqRestarts() > 0 ? "; seq counter restarted " + s.seqRestarts() + " time(s)" : "");

@@ -1,6 +1,7 @@
 package net.zbin.app;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Path;
@@ -17,7 +18,7 @@ import org.junit.jupiter.api.io.TempDir;
 /**
  * Every fault in one run through Mosquitto and the real {@code zbin run} process: the broker killed, the
  * daemon killed with SIGKILL, the meter's server dropped and restarted, and a meter that now and then times
- * out, garbles or overloads — checked by the handler simulator's accounting and the record log.
+ * out, garbles, overloads, sends a stray line or a late reply — checked by the handler simulator's accounting and the record log.
  */
 class CombinedFaultsIT {
     @TempDir
@@ -49,6 +50,8 @@ class CombinedFaultsIT {
             assertEquals(0, s.contradictory(), "a repeat never carries another bin");
             assertEquals(0, s.stale(), "no answer about another part");
             assertEquals(0, s.duplicate(), "no presentation answered twice as new");
+            assertEquals(0, s.passedOnOpenOrShort(), "no pass for a part on open or shorted contacts: every graded reading was its own");
+            assertTrue(s.reasons().getOrDefault("open-contact", 0L) > 0, "open contacts were presented (else the line above proved nothing)");
             assertEquals(s.finished(), dash.path("parts").asLong(), "the dashboard counted the parts the handler finished");
             line.checkRecords(dash);
         }

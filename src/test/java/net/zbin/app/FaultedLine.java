@@ -30,8 +30,11 @@ import org.apache.commons.csv.CSVRecord;
  */
 final class FaultedLine implements AutoCloseable {
     static final ObjectMapper M = new ObjectMapper();
-    /** Meter faults drawn per measurement: timeouts, garbled replies, overloads (invented rates, a rough meter). */
-    static final SimMeter.RandomFaults ROUGH_METER = new SimMeter.RandomFaults(0.001, 0.002, 0.002);
+    /**
+     * Meter faults drawn per measurement: timeouts, garbled replies, overloads, a stray line after a reply and a
+     * reply that comes late on its own (invented rates, a rough meter).
+     */
+    static final SimMeter.RandomFaults ROUGH_METER = new SimMeter.RandomFaults(0.001, 0.002, 0.002, 0.003, 0.0005);
 
     final Path dir;
     final String line;

@@ -78,7 +78,7 @@ public final class HandlerSim implements AutoCloseable {
                           long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
                           long retests, long checksPassed, long checksFailed, double p50Ms, double p99Ms, double maxMs,
                           long offlinePauses, long finished, long stale, long seqRestarts, Map<Integer, String> grades,
-                          long deliberateRepeats, long resent) {
+                          long deliberateRepeats, long resent, long passedOnOpenOrShort) {
         /** Parts passed / parts finished, the same figure the dashboard and a replay of the record log give. */
         public double yieldPct() { return finished == 0 ? Double.NaN : 100.0 * passed / finished; }
     }
@@ -273,6 +273,7 @@ public final class HandlerSim implements AutoCloseable {
         Map<String, Long> reasons = new TreeMap<>();
         Histogram lat = new Histogram(60_000_000L, 3);
         java.util.ArrayDeque<Long> lastMinute = new java.util.ArrayDeque<>();
+        long passedNotThere = 0;
         long triggers = 0, deliberate = 0, decisions = 0, passed = 0, missing = 0, late = 0, retests = 0, checksOk = 0, checksBad = 0, pauses = 0;
         long finished = 0, restarts = 0;
         Map<Integer, String> grades = new TreeMap<>();
@@ -309,7 +310,11 @@ public final class HandlerSim implements AutoCloseable {
                 bins.merge(d.path("bin").asInt(), 1L, Long::sum);
                 grades.putIfAbsent(d.path("bin").asInt(), d.path("grade").asText());
                 reasons.merge(d.path("reason").asText(), 1L, Long::sum);
-                if ("pass".equals(d.path("verdict").asText())) passed++;
+                if ("pass".equals(d.path("verdict").asText())) {
+                    passed++;
+                    // the contacts were open or shorted: a pass can only be a reading of something else (another part)
+                    if (p.state() != Contacts.State.PART) passedNotThere++;
+                }
             }
             if (d != null) {
                 if (o.repeatEvery() > 0 && (i + 1) % o.repeatEvery() == 0) {
@@ -343,7 +348,8 @@ public final class HandlerSim implements AutoCloseable {
         return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicate.get(), late,
                 contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades, deliberate, resent.get());
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades, deliberate, resent.get(),
+                passedNotThere);
     }
 
     /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */

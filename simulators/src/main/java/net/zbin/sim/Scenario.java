@@ -66,10 +66,13 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
 
     /** Per-measurement probabilities of meter trouble. */
     public record MeterFaults(@JsonProperty("timeout_rate") double timeoutRate, @JsonProperty("garbage_rate") double garbageRate,
-                              @JsonProperty("overload_rate") double overloadRate) {
+                              @JsonProperty("overload_rate") double overloadRate, @JsonProperty("stray_rate") double strayRate,
+                              @JsonProperty("late_rate") double lateRate) {
+        public MeterFaults(double timeoutRate, double garbageRate, double overloadRate) { this(timeoutRate, garbageRate, overloadRate, 0, 0); }
+
         public SimMeter.RandomFaults toRandomFaults() {
-            return timeoutRate + garbageRate + overloadRate == 0 ? SimMeter.RandomFaults.NONE
-                    : new SimMeter.RandomFaults(timeoutRate, garbageRate, overloadRate);
+            return timeoutRate + garbageRate + overloadRate + strayRate + lateRate == 0 ? SimMeter.RandomFaults.NONE
+                    : new SimMeter.RandomFaults(timeoutRate, garbageRate, overloadRate, strayRate, lateRate);
         }
     }
 

@@ -46,8 +46,10 @@ public final class SimMeter {
     /**
      * Rates (per measurement) of faults drawn at random, for soak runs and demos.
      */
-    public record RandomFaults(double timeout, double garbage, double overload) {
-        public static final RandomFaults NONE = new RandomFaults(0, 0, 0);
+    public record RandomFaults(double timeout, double garbage, double overload, double stray, double late) {
+        public static final RandomFaults NONE = new RandomFaults(0, 0, 0, 0, 0);
+
+        public RandomFaults(double timeout, double garbage, double overload) { this(timeout, garbage, overload, 0, 0); }
     }
 
     /**
@@ -235,6 +237,10 @@ public final class SimMeter {
         if (u < randomFaults.garbage()) return SimFault.GARBAGE;
         u -= randomFaults.garbage();
         if (u < randomFaults.overload()) return SimFault.OVERLOAD;
+        u -= randomFaults.overload();
+        if (u < randomFaults.stray()) return SimFault.STRAY;
+        u -= randomFaults.stray();
+        if (u < randomFaults.late()) return SimFault.LATE;
         return null;
     }
 

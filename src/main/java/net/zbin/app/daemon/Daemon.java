@@ -84,10 +84,13 @@ public final class Daemon implements AutoCloseable {
         path.onLotEnd(this::publishDashboard); // the finished lot's last figures, retained until the next dashboard
         monitor.compensation(setup.compensation());
         records.start();
+        // the warm-up (CPU) runs beside the meter probe (I/O): the line is ready sooner than one after the other
         long t0 = System.nanoTime();
-        Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300);
-        LOG.info("decision path warm in {} ms", (System.nanoTime() - t0) / 1_000_000);
+        Thread warm = named(() -> Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300), "warm-up");
+        warm.start();
         watch.probe();
+        warm.join();
+        LOG.info("decision path warm and meter probed in {} ms", (System.nanoTime() - t0) / 1_000_000);
         mode.attach(mqtt);
         mqtt.onConnect(mode::announce);
         mqtt.connect(connectTimeoutMs);

@@ -20,11 +20,12 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * The record folder on a small file system of its own (a tmpfs the test mounts; the suite runs as root) that fills
- * up while a handler re-presents every retest at once: no value bin without its row, the rows kept meanwhile stay
- * bounded, and the line is back soon after space returns.
+ * The record folder fails under a running line: a small file system of its own (a tmpfs the test mounts; the suite
+ * runs as root) fills up while a handler re-presents every retest at once, or the folder goes away and the real
+ * process is killed -9. No value bin without its row, the rows kept meanwhile stay bounded, and the line is back
+ * soon after space returns.
  */
-class DiskFullIT {
+class RecordFolderFailuresIT {
     @TempDir
     Path dir;
 
@@ -102,6 +103,63 @@ class DiskFullIT {
         } finally {
             run("umount", "-l", records.toString());
         }
+    }
+
+    @Test
+    void aRecordFolderThatCannotBeWrittenMidRun_thenKillNine_noValueDecisionWithoutItsRow() throws Exception {
+        net.zbin.sim.SimMeter meter = new net.zbin.sim.SimMeter(new net.zbin.sim.Contacts(), net.zbin.sim.Fixture.IDEAL,
+                java.time.Clock.systemUTC(), 5, 0, net.zbin.sim.SimMeter.RandomFaults.NONE);
+        meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        Process daemon = null;
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
+             net.zbin.sim.SimTcpServer sim = new net.zbin.sim.SimTcpServer(meter, 0);
+             Tap tap = new Tap(broker.url(), "zbin/ro/decision", "zbin/ro/state")) {
+            Path cfg = TestLine.write(dir, "ro", broker.url(), sim.port(), "");
+            // small files: the log opens a new one every twenty-odd rows
+            Files.writeString(cfg, Files.readString(cfg).replace("flush_ms: 50}", "flush_ms: 50, rotate_mb: 0.005}"));
+            daemon = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+                    .redirectErrorStream(true).redirectOutput(dir.resolve("ro.log").toFile()).start();
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 30_000);
+            long seq = 0;
+            for (int i = 0; i < 50; i++) presentOn(tap, "ro", ++seq);
+            // the folder goes away under the daemon and a file takes its place: the open file still takes rows, the
+            // next one cannot be made (as with a folder turned read-only or a volume gone)
+            Path records = dir.resolve("records-ro"), moved = dir.resolve("records-ro-moved");
+            Files.move(records, moved);
+            Files.writeString(records, "not a folder");
+            boolean failed = false;
+            for (int i = 0; i < 100; i++) {
+                JsonNode d = presentOn(tap, "ro", ++seq);
+                failed |= d.path("reason").asText().equals("record-failed");
+            }
+            assertTrue(failed, "the log met the failure within 100 parts (files rotate every ~20 rows)");
+            daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS); // kill -9 with rows kept only in memory
+            Map<Long, Integer> rows = new HashMap<>();
+            try (var files = Files.list(moved)) {
+                for (Path f : files.filter(p -> p.toString().endsWith(".csv")).toList())
+                    try (var p = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(f))) {
+                        for (CSVRecord r : p) rows.put(Long.parseLong(r.get("seq")), Integer.parseInt(r.get("bin")));
+                    }
+            }
+            int values = 0;
+            for (Tap.Msg m : tap.on("/decision")) {
+                JsonNode d = m.json();
+                if (d.path("verdict").asText().equals("retest")) continue;
+                values++;
+                assertEquals(d.path("bin").asInt(), rows.get(d.path("seq").asLong()), "value decision seq " + d.path("seq") + " has its row");
+            }
+            System.out.printf("record folder lost + kill -9: %d value decisions published, each with its row%n", values);
+            assertTrue(values >= 50);
+        } finally {
+            if (daemon != null) daemon.destroyForcibly();
+        }
+    }
+
+    static JsonNode presentOn(Tap tap, String line, long seq) throws Exception {
+        int mark = tap.msgs.size();
+        tap.publish("zbin/" + line + "/trigger", "{\"seq\":" + seq + ",\"part\":\"R" + seq + "\"}");
+        return tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 10_000)
+                .get(0).json();
     }
 
     /** One presentation: publish, await its answer. */
