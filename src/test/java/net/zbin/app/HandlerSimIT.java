@@ -107,7 +107,7 @@ class HandlerSimIT {
             assertEquals(0, c.exit(), c.out() + c.err());
             assertTrue(c.out().contains("200 parts"), c.out());
             assertTrue(c.out().contains("missing 0, duplicate 0, contradictory 0"), c.out());
-            assertTrue(c.out().contains("repeats answered 10"), c.out());
+            assertTrue(c.out().contains("10 deliberate repeats") && c.out().contains("answered as repeats 10"), c.out());
             assertTrue(c.out().contains("fixture checks: 6 passed, 0 failed"), c.out());
         }
     }

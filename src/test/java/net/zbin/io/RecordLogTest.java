@@ -1,6 +1,7 @@
 package net.zbin.io;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
@@ -166,5 +167,33 @@ class RecordLogTest {
             assertEquals(1, recovered.get());
         }
         assertEquals(11, Files.readAllLines(recs.resolve("l1-2026-11-30.csv")).size());
+    }
+
+    @Test
+    void textASpreadsheetWouldEvaluate_isWrittenAsText_andReadsBackExactly() throws Exception {
+        Path recs = dir.resolve("r");
+        Instant t = Instant.parse("2026-11-30T10:00:00Z");
+        // CSV injection (OWASP): cells starting with = + - @ tab or CR are formulas to a spreadsheet
+        String[] parts = {"=HYPERLINK(\"http://x\",\"y\")", "+cmd|' /C calc'!A0", "-2+3", "@SUM(1)", "\tP", "'already quoted", "P-7"};
+        List<DecisionFields.Entry> written = new java.util.ArrayList<>();
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < parts.length; i++) {
+                Decision d = decision(i);
+                DecisionFields.Entry e = new DecisionFields.Entry(t, "l1", new Decision(d.seq(), parts[i], "=LOT" + i, d.kind(), d.recipe(),
+                        d.grading(), d.latencyMs(), false, 0));
+                written.add(e);
+                assertTrue(log.append(e));
+            }
+        }
+        String file = Files.readString(recs.resolve("l1-2026-11-30.csv"));
+        for (String line : file.split("\n"))
+            for (String cell : line.split(",")) {
+                String c = cell.startsWith("\"") ? cell.substring(1) : cell;
+                assertFalse(c.startsWith("=") || c.startsWith("+") || c.startsWith("@") || c.startsWith("\t"), "a formula cell: " + line);
+            }
+        List<DecisionFields.Entry> back = new java.util.ArrayList<>();
+        RecordLogReader.read(recs, "l1", t, back::add);
+        assertEquals(written, back, "the exact original text");
     }
 }

@@ -44,6 +44,8 @@ public final class Daemon implements AutoCloseable {
     private final List<net.zbin.io.LineLock> locks = new java.util.ArrayList<>();
     /** True once the record log was read back: only then is the state file this daemon's to write. */
     private volatile boolean recovered;
+    /** True once the warm-up ran: a (re)connect announces the line's state only then. */
+    private volatile boolean warm;
     private LineCommands commands;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
@@ -84,16 +86,22 @@ public final class Daemon implements AutoCloseable {
         path.onLotEnd(this::publishDashboard); // the finished lot's last figures, retained until the next dashboard
         monitor.compensation(setup.compensation());
         records.start();
-        // the warm-up (CPU) runs beside the meter probe (I/O): the line is ready sooner than one after the other
+        // The broker connect, the warm-up (CPU) and the meter probe (I/O) run side by side; the line says ready
+        // only when all three are done, so the first part is measured on a warm path.
         long t0 = System.nanoTime();
-        Thread warm = named(() -> Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300), "warm-up");
-        warm.start();
-        watch.probe();
-        warm.join();
-        LOG.info("decision path warm and meter probed in {} ms", (System.nanoTime() - t0) / 1_000_000);
         mode.attach(mqtt);
-        mqtt.onConnect(mode::announce);
-        mqtt.connect(connectTimeoutMs);
+        mqtt.onConnect(() -> {
+            if (warm) mode.announce();
+        });
+        var connecting = mqtt.connectStart();
+        Thread warming = named(() -> Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300), "warm-up");
+        warming.start();
+        watch.probe();
+        warming.join();
+        mqtt.connected(connecting, connectTimeoutMs);
+        warm = true;
+        mode.announce();
+        LOG.info("connected, decision path warm and meter probed in {} ms", (System.nanoTime() - t0) / 1_000_000);
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
         ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);

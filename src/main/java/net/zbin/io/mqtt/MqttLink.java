@@ -151,8 +151,13 @@ public final class MqttLink implements Publisher, AutoCloseable {
     }
 
     /** Connects, waiting up to the timeout for the first connection. */
-    public void connect(long timeoutMs) throws MqttException {
-        IMqttToken t = client.connect(options);
+    public void connect(long timeoutMs) throws MqttException { connected(connectStart(), timeoutMs); }
+
+    /** Starts the first connect without waiting: other start-up work can run while it completes. */
+    public IMqttToken connectStart() throws MqttException { return client.connect(options); }
+
+    /** Waits for the connect {@link #connectStart} began, then starts the outbox and the redial thread. */
+    public void connected(IMqttToken t, long timeoutMs) throws MqttException {
         t.waitForCompletion(timeoutMs);
         if (!flusher.isAlive()) {
             flusher.start();
