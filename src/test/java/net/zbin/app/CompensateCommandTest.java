@@ -19,10 +19,14 @@ class CompensateCommandTest {
     @TempDir
     Path dir;
 
+    /** The simulated meter on a fixture with a few pF of stray and some residual R and L (invented). */
+    static SimMeter fixtureMeter() {
+        return new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0, SimMeter.RandomFaults.NONE);
+    }
+
     @Test
     void openThenShort_areStoredAtEveryRecipeFrequency_andCheckShowsThem() throws Exception {
-        SimMeter meter = new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0,
-                SimMeter.RandomFaults.NONE);
+        SimMeter meter = fixtureMeter();
         try (SimTcpServer sim = new SimTcpServer(meter, 0)) {
             Path cfg = TestLine.write(dir, "cal-1", "tcp://127.0.0.1:1883", sim.port(), "");
             meter.contacts().open();
@@ -61,8 +65,7 @@ class CompensateCommandTest {
 
     @Test
     void whileTheDaemonHoldsTheLine_compensateRefuses_namingTheHolderAndTheCommandTopic() throws Exception {
-        SimMeter meter = new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0,
-                SimMeter.RandomFaults.NONE);
+        SimMeter meter = fixtureMeter();
         try (SimTcpServer sim = new SimTcpServer(meter, 0)) {
             Path cfg = TestLine.write(dir, "cal-3", "tcp://127.0.0.1:1883", sim.port(), "");
             meter.contacts().open();
@@ -79,8 +82,7 @@ class CompensateCommandTest {
 
     @Test
     void aCaptureAtOneFrequency_keepsTheOthers_andThePreviousFileBesideIt() throws Exception {
-        SimMeter meter = new SimMeter(new Contacts(), new Fixture(2.2e-12, 1e-10, 0.03, 12e-9, 0), Clock.systemUTC(), 3, 0,
-                SimMeter.RandomFaults.NONE);
+        SimMeter meter = fixtureMeter();
         try (SimTcpServer sim = new SimTcpServer(meter, 0)) {
             Path cfg = TestLine.write(dir, "cal-4", "tcp://127.0.0.1:1883", sim.port(), "");
             meter.contacts().open();
