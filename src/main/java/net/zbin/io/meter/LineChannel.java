@@ -49,6 +49,7 @@ final class LineChannel {
      */
     void settle(String syncQuery, java.util.regex.Pattern syncExpect, int timeoutMs) throws MeterException {
         if (!dirty) return;
+        syncPattern = syncExpect;
         if (syncQuery == null) {
             drain(null);
             return;
@@ -131,10 +132,18 @@ final class LineChannel {
     String queryConfirmed(String command, String syncQuery, java.util.regex.Pattern syncExpect, int timeoutMs, int syncTimeoutMs)
             throws MeterException {
         if (dirty) throw new IllegalStateException("settle the link before the next exchange");
+        syncPattern = syncExpect;
         dropUnasked(command);
+        int stale = syncsOwed; // sync answers still owed from before: in order, they come before this query's reply
         write(command + terminatorText + syncQuery);
         syncsOwed++;
+        long deadline = System.nanoTime() + timeoutMs * 1_000_000L;
         String reply = readLine(command, timeoutMs);
+        while (stale > 0 && syncExpect.matcher(reply).find()) {
+            stale--;
+            syncsOwed--;
+            reply = readLine(command, (int) Math.max(1, (deadline - System.nanoTime()) / 1_000_000L));
+        }
         if (syncExpect.matcher(reply).find()) {
             syncsOwed--; // the sync answer came first: the meter answered the query behind the measure query, not it
             dirty = true;
@@ -170,10 +179,9 @@ final class LineChannel {
         }
     }
 
-    /** Drops what the meter sent unasked before a query, without waiting for more. */
+    /** Drops what the meter sent unasked before a query, without waiting for more; owed sync answers among it are counted off. */
     private void dropUnasked(String sent) throws MeterException {
-        int dropped = pending.size();
-        pending.reset();
+        long dropped = countOffSyncAnswers();
         try {
             while (transport.available() > 0) {
                 int n = transport.read(buf, 1);
@@ -182,13 +190,33 @@ final class LineChannel {
                     throw new MeterException(FaultKind.DISCONNECTED, sent, null, "the meter closed the link (" + transport.describe() + ")");
                 }
                 if (n == 0) break;
-                dropped += n;
+                pending.append(buf, n);
+                dropped += countOffSyncAnswers();
             }
         } catch (IOException e) {
             transport.close();
             throw new MeterException(FaultKind.DISCONNECTED, sent, null, "read failed on " + transport.describe() + ": " + e.getMessage(), e);
         }
+        dropped += pending.size();
+        pending.reset();
         unaskedBytes += dropped;
+    }
+
+    /** The sync answer's pattern, once a confirmed query or a settle told it. */
+    private java.util.regex.Pattern syncPattern;
+
+    /**
+     * Takes the whole lines waiting: each that is a sync answer still owed is counted off (it answered a query of
+     * ours); returns the bytes of the others, which answered none.
+     */
+    private long countOffSyncAnswers() {
+        long stray = 0;
+        String line;
+        while ((line = pending.takeLine(terminator)) != null) {
+            if (syncsOwed > 0 && syncPattern != null && syncPattern.matcher(line).find()) syncsOwed--;
+            else stray += line.length() + terminator.length;
+        }
+        return stray;
     }
 
     /** Bytes dropped so far because they answered no query of ours. */

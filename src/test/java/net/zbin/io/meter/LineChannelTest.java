@@ -96,6 +96,20 @@ class LineChannelTest {
         assertEquals("TRIG:RX?", e.sent());
     }
 
+    @Test
+    void aSyncAnswerStillOwed_isCountedOff_notTakenForTheReplyNorForAStrayLine() throws Exception {
+        Script link = new Script();
+        LineChannel ch = new LineChannel(link, "\n");
+        link.answer("4700,0.01,GOOD\n");
+        // the reply came but its sync answer did not (the meter was slow): it is owed
+        assertEquals(FaultKind.TIMEOUT, assertThrows(MeterException.class, () -> ch.queryConfirmed("TRIG:RX?", "*OPC?", ONE, 20, 20)).kind());
+        link.answer("1\n1\n"); // the owed answer, then the settle's own
+        ch.settle("*OPC?", ONE, 20);
+        link.whole("1\n"); // one sync answer more than was owed: dropped before the next query
+        link.answer("47000,0.01,GOOD\n1\n");
+        assertEquals("47000,0.01,GOOD", ch.queryConfirmed("TRIG:RX?", "*OPC?", ONE, 20, 20));
+    }
+
     private static final java.util.regex.Pattern ONE = java.util.regex.Pattern.compile("^1$");
 
     /** Lets {@code arriving} come in, settles, then checks the next reading is the one sent after it. */
