@@ -5,6 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.List;
 import java.util.concurrent.TimeUnit;
 import net.zbin.sim.PartModel;
 import net.zbin.sim.Scenario;
@@ -62,20 +63,22 @@ class BrokerAclIT {
                 assertEquals("J", handler.await(m -> m.topic().endsWith("/decision"), 1, 10_000).get(0).json().path("grade").asText());
                 operator.await(m -> m.topic().endsWith("/decision"), 1, 10_000);
 
-                operator.publish("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"op\"}");   // denied by the ACL
-                handler.publish("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"hd\"}");    // denied by the ACL
-                engineer.publish("zbin/acl/command", "{\"cmd\":\"lot\",\"lot\":\"HG-ACL\",\"id\":\"en\"}");
-                var results = engineer.await(m -> m.topic().endsWith("/command/result"), 1, 10_000);
-                Thread.sleep(500);
-                results = engineer.on("/command/result");
-                assertEquals(1, results.size(), "only the engineer's command reached the daemon: " + results);
-                assertEquals("en", results.get(0).json().path("id").asText());
-                operator.publish("zbin/acl/trigger", "{\"seq\": 2}");                       // operator may not trigger
-                Thread.sleep(500);
-                assertEquals(1, handler.on("/decision").size(), "no decision for the operator's trigger");
-                otherHandler.publish("zbin/acl/trigger", "{\"seq\": 3}");                  // another line's handler may not trigger here
-                Thread.sleep(500);
-                assertEquals(1, handler.on("/decision").size(), "no decision for another line's handler");
+                // No sleeping to prove that nothing arrived: each refused message is acknowledged by the broker (which
+                // has then dropped it), and an allowed message sent after it must come through first — a fence.
+                operator.publishAcknowledged("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"op\"}");   // denied by the ACL
+                handler.publishAcknowledged("zbin/acl/command", "{\"cmd\":\"pause\",\"id\":\"hd\"}");    // denied by the ACL
+                engineer.publishAcknowledged("zbin/acl/command", "{\"cmd\":\"lot\",\"lot\":\"HG-ACL\",\"id\":\"en\"}");
+                engineer.publishAcknowledged("zbin/acl/command", "{\"cmd\":\"resume\",\"id\":\"fence\"}");
+                engineer.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("fence"), 1, 10_000);
+                var results = engineer.on("/command/result");
+                assertEquals(List.of("en", "fence"), results.stream().map(m -> m.json().path("id").asText()).toList(),
+                        "only the engineer's commands reached the daemon: " + results);
+                operator.publishAcknowledged("zbin/acl/trigger", "{\"seq\": 2}");                    // operator may not trigger
+                otherHandler.publishAcknowledged("zbin/acl/trigger", "{\"seq\": 3}");               // another line's handler may not trigger here
+                handler.publishAcknowledged("zbin/acl/trigger", "{\"seq\": 4, \"part\": \"acl-4\"}"); // the fence
+                handler.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 4, 1, 10_000);
+                assertEquals(List.of(1L, 4L), handler.on("/decision").stream().map(m -> m.json().path("seq").asLong()).toList(),
+                        "no decision for the operator's trigger nor for another line's handler");
                 assertEquals(0, otherHandler.on("/decision").size(), "another line's handler reads nothing of this line");
             }
         }

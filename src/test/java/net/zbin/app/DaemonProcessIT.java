@@ -9,6 +9,7 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Clock;
+import java.util.List;
 import java.util.concurrent.TimeUnit;
 import net.zbin.sim.Contacts;
 import net.zbin.sim.PartModel;
@@ -40,9 +41,22 @@ class DaemonProcessIT {
         return line;
     }
 
+    /** Every daemon a test starts: none may outlive a failed test (it would redial the next test's broker). */
+    final List<Process> started = new java.util.ArrayList<>();
+
+    @org.junit.jupiter.api.AfterEach
+    void stopAll() throws InterruptedException {
+        for (Process p : started) if (p.isAlive()) p.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+    }
+
     Process startDaemon(Path cfg) throws Exception {
-        return new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
-                .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + System.nanoTime() + ".log").toFile()).start();
+        return started(new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+                .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + System.nanoTime() + ".log").toFile()).start());
+    }
+
+    Process started(Process p) {
+        started.add(p);
+        return p;
     }
 
     @Test
@@ -69,14 +83,21 @@ class DaemonProcessIT {
             Process daemon = startDaemon(cfg);
             tap.await(m -> m.json().path("online").asBoolean(), 1, 20_000);
             // The README's example: mosquitto_sub waits for one decision, mosquitto_pub sends a trigger.
-            Process sub = new ProcessBuilder("mosquitto_sub", "-h", "127.0.0.1", "-p", Integer.toString(brokerPort), "-q", "1",
-                    "-t", "zbin/hg-line-2/decision", "-C", "1", "-W", "20").start();
-            Thread.sleep(500);
+            // line-buffered (stdbuf): its debug output says when it is subscribed, and a pipe would hold it back
+            Process sub = new ProcessBuilder("stdbuf", "-oL", "-eL", "mosquitto_sub", "-d", "-h", "127.0.0.1", "-p", Integer.toString(brokerPort), "-q", "1",
+                    "-t", "zbin/hg-line-2/decision", "-C", "1", "-W", "20").redirectErrorStream(true).start();
+            java.io.BufferedReader subOut = new java.io.BufferedReader(new java.io.InputStreamReader(sub.getInputStream(), StandardCharsets.UTF_8));
+            for (String l = subOut.readLine(); ; l = subOut.readLine()) {
+                assertTrue(l != null, "mosquitto_sub ended before it subscribed");
+                if (l.contains("SUBACK")) break;
+            }
             Process pub = new ProcessBuilder("mosquitto_pub", "-h", "127.0.0.1", "-p", Integer.toString(brokerPort), "-q", "1",
                     "-t", "zbin/hg-line-2/trigger", "-m", "{\"seq\": 1, \"part\": \"ext-0001\", \"lot\": \"HG-EXT\"}").start();
             assertTrue(pub.waitFor(10, TimeUnit.SECONDS));
             assertTrue(sub.waitFor(25, TimeUnit.SECONDS));
-            JsonNode d = new ObjectMapper().readTree(new String(sub.getInputStream().readAllBytes(), StandardCharsets.UTF_8));
+            List<String> rest = subOut.lines().toList();
+            String payload = rest.stream().filter(l -> l.startsWith("{")).findFirst().orElseThrow(() -> new AssertionError("no payload: " + rest));
+            JsonNode d = new ObjectMapper().readTree(payload);
             assertEquals(1, d.path("seq").asLong());
             assertEquals("J", d.path("grade").asText());
             assertEquals("ext-0001", d.path("part").asText());

@@ -73,6 +73,11 @@ public final class Tap implements AutoCloseable {
 
     public void publish(String topic, byte[] payload) throws Exception { c.publish(topic, payload, 1, false); }
 
+    /** Publishes and waits for the broker's acknowledgement: the broker has handled the message (also when its ACL drops it). */
+    public void publishAcknowledged(String topic, String payload) throws Exception {
+        c.publish(topic, payload.getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
+    }
+
     /** Publishes, waiting out a full in-flight window (a burst faster than the broker acknowledges). */
     public void publishWaiting(String topic, String payload) throws Exception {
         byte[] b = payload.getBytes(StandardCharsets.UTF_8);

@@ -44,8 +44,12 @@ public final class Daemon implements AutoCloseable {
     private final List<net.zbin.io.LineLock> locks = new java.util.ArrayList<>();
     /** True once the record log was read back: only then is the state file this daemon's to write. */
     private volatile boolean recovered;
-    /** True once the warm-up ran: a (re)connect announces the line's state only then. */
-    private volatile boolean warm;
+    /** Guards {@link #warm} and {@link #subscribed}: the first announce comes after both. */
+    private final Object startLock = new Object();
+    /** The warm-up ran: a (re)connect announces the line's state only then. */
+    private boolean warm;
+    /** The subscriptions were requested on a connection. */
+    private boolean subscribed;
     private LineCommands commands;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
@@ -90,8 +94,13 @@ public final class Daemon implements AutoCloseable {
         // only when all three are done, so the first part is measured on a warm path.
         long t0 = System.nanoTime();
         mode.attach(mqtt);
+        // The state goes out after the subscriptions were requested on the same connection (the connect callback
+        // requests them first), so a handler that sees "ready" is heard; and only once the path is warm.
         mqtt.onConnect(() -> {
-            if (warm) mode.announce();
+            synchronized (startLock) {
+                subscribed = true;
+                if (warm) mode.announce();
+            }
         });
         var connecting = mqtt.connectStart();
         Thread warming = named(() -> Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300), "warm-up");
@@ -99,8 +108,10 @@ public final class Daemon implements AutoCloseable {
         watch.probe();
         warming.join();
         mqtt.connected(connecting, connectTimeoutMs);
-        warm = true;
-        mode.announce();
+        synchronized (startLock) {
+            warm = true;
+            if (subscribed) mode.announce();
+        }
         LOG.info("connected, decision path warm and meter probed in {} ms", (System.nanoTime() - t0) / 1_000_000);
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
