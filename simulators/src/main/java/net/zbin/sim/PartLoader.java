@@ -34,11 +34,20 @@ public interface PartLoader extends AutoCloseable {
         Socket s = new Socket();
         s.setTcpNoDelay(true);
         s.connect(new InetSocketAddress(host, port), 2000);
+        s.setSoTimeout(5000);
         OutputStream out = s.getOutputStream();
+        java.io.BufferedReader in = new java.io.BufferedReader(new java.io.InputStreamReader(s.getInputStream(), StandardCharsets.US_ASCII));
         return new PartLoader() {
+            /**
+             * Sends a SIM: command and waits until the simulator has carried it out (its answer to *OPC? behind it,
+             * on the same connection), as a handler places the part before it triggers: otherwise the line could
+             * measure what was on the contacts before.
+             */
             private void send(String line) throws IOException {
-                out.write((line + "\n").getBytes(StandardCharsets.US_ASCII));
+                out.write((line + "\n*OPC?\n").getBytes(StandardCharsets.US_ASCII));
                 out.flush();
+                String done = in.readLine();
+                if (!"1".equals(done)) throw new IOException("meter simulator did not confirm '" + line + "' (answered " + done + ")");
             }
 
             public void present(LotGenerator.SimPart p) throws IOException {
