@@ -12,11 +12,14 @@ final class MonitorText {
         out.printf(Locale.ROOT, "  monitor: deviation mean %+.4f %%, σ %.4f %%, Cp %.3g, Cpk %.3g over %d graded parts%n",
                 m.devMeanPct(), m.devSigmaPct(), m.cp(), m.cpk(), m.parts());
         var v = m.value();
-        out.printf(Locale.ROOT, "    value drift: %s; baseline %+.4f %% σ %.4f %%; EWMA %+.3f (limit ±%.3f), CUSUM %.2f / %.2f (h %.1f), %d signals%n",
-                state(v), v.baselineMean(), v.baselineSigma(), v.ewma(), v.ewmaLimit(), v.cusumHigh(), v.cusumLow(), v.cusumH(), v.signals());
+        if (v.learning()) out.printf(Locale.ROOT, "    value drift: %s%n", learning(v));
+        else out.printf(Locale.ROOT, "    value drift: %s; baseline %+.4f %% σ %.4f %% (a point: %.4f %%); EWMA %+.3f (limit ±%.3f), CUSUM %.2f / %.2f (h %.2f), %d signals%n",
+                state(v), v.baselineMean(), v.baselineSigma(), v.sigmaPoint(), v.ewma(), v.ewmaLimit(), v.cusumHigh(), v.cusumLow(), v.cusumH(),
+                v.signals());
         var l = m.loss();
-        out.printf(Locale.ROOT, "    %s drift: %s; baseline %.4g σ %.4g, %d signals%n", m.lossName(), state(l), l.baselineMean(), l.baselineSigma(),
-                l.signals());
+        if (l.learning()) out.printf(Locale.ROOT, "    %s drift: %s%n", m.lossName(), learning(l));
+        else out.printf(Locale.ROOT, "    %s drift: %s; baseline %.4g σ %.4g, %d signals%n", m.lossName(), state(l), l.baselineMean(),
+                l.baselineSigma(), l.signals());
         var w = m.window();
         out.printf(Locale.ROOT, "    last %d presentations: yield %.2f %%, retests %.2f %%, open contact %.2f %%, short %.2f %%, fault %.2f %%, negative R %.2f %%%n",
                 w.presentations(), w.yieldPct(), w.retestPct(), w.openContactPct(), w.shortPct(), w.faultPct(), w.negativeRPct());
@@ -27,6 +30,10 @@ final class MonitorText {
     }
 
     private static String state(net.zbin.core.DriftChart.View v) {
-        return v.learning() ? "learning the baseline (" + v.learned() + " parts so far)" : v.alarm() ? "ALARM" : "in control";
+        return v.alarm() ? "ALARM" : "in control";
+    }
+
+    static String learning(net.zbin.core.DriftChart.View v) {
+        return "learning (" + v.learned() + " of " + v.learnParts() + " parts)";
     }
 }

@@ -54,8 +54,37 @@ final class RecipeText {
                 r.partType() == net.zbin.core.PartType.RESISTOR ? "|Z|" : "|X|", SiValue.format(c.openFactor() * ideal, "ohm"),
                 c.openFactor(), SiValue.format(ideal, "ohm"), SiValue.format(c.shortFactor() * ideal, "ohm"), c.shortFactor());
         out.printf(Locale.ROOT, "  compensation: %s%n", compensation(r, fixtureSource));
+        monitor(out, r.monitor());
         if (r.unreachable() != null) out.printf(Locale.ROOT, "  warning: no part can pass: %s%n", r.unreachable());
     }
+
+    /** The drift charts: their budget, limits, in-control run lengths in parts and hours, and how fast they catch the stated shift. */
+    static void monitor(PrintWriter out, net.zbin.core.MonitorSettings m) {
+        var d = m.design();
+        int n = m.subgroup();
+        double partsPerH = m.partsPerS() * 3600;
+        out.printf(Locale.ROOT, "  drift monitor: budget %s false alarm(s) per %s h shift at %s parts/s, all 4 charts together"
+                        + " (value and loss, EWMA and CUSUM each); points are means of %d parts; baseline from the first %d parts%s%n",
+                num(m.falseAlarmsPerShift()), num(m.shiftH()), num(m.partsPerS()), n, m.learnParts(),
+                m.statedBaseline() ? " (value baseline stated by the recipe)" : "");
+        out.printf(Locale.ROOT, "    CUSUM k %.3f h %.3f%s: in-control ARL %s points = %s parts = %s h at the stated rate%n", d.k(), d.h(),
+                d.designedH() ? " (h from the budget)" : " (stated)", big(d.cusumArl0()), big(d.cusumArl0() * n), hours(d.cusumArl0() * n / partsPerH));
+        out.printf(Locale.ROOT, "    EWMA λ %.3f L %.3f%s: in-control ARL %s points = %s parts = %s h at the stated rate%n", d.lambda(), d.limitL(),
+                d.designedL() ? " (L from the budget)" : " (stated)", big(d.ewmaArl0()), big(d.ewmaArl0() * n), hours(d.ewmaArl0() * n / partsPerH));
+        out.printf(Locale.ROOT, "    expected false drift alarms per shift, all charts, with the learned baseline's error: %.3g (budget %s)%s%n",
+                d.falseAlarmsPerShift(), num(m.falseAlarmsPerShift()), d.falseAlarmsPerShift() > m.falseAlarmsPerShift() * 1.01
+                        ? " — OVER BUDGET: the stated limits are too tight for this rate" : "");
+        out.printf(Locale.ROOT, "    a shift of %s σ of the parts is caught after about %s parts (CUSUM ARL %.3g points, EWMA %.3g)%n",
+                num(m.detectShiftSigma()), big(d.partsToSignal(m.detectShiftSigma(), n)), d.cusumArlShift(), d.ewmaArlShift());
+    }
+
+    private static String num(double v) {
+        return new java.math.BigDecimal(v).round(new java.math.MathContext(4)).stripTrailingZeros().toPlainString();
+    }
+
+    private static String big(double v) { return v >= 1e6 ? String.format(Locale.ROOT, "%.3g", v) : String.format(Locale.ROOT, "%,.0f", v); }
+
+    private static String hours(double h) { return String.format(Locale.ROOT, "%.3g", h); }
 
     /** Significant digits that show the tightest grade's guarded limits apart from the nominal. */
     static int digits(Recipe r) {

@@ -1,43 +1,52 @@
 package net.zbin.core;
 
 /**
- * Drift watch on one quantity of a lot: a baseline (mean, σ per part) learned from the first parts with
- * Welford's update, then EWMA and two-sided CUSUM on the standardized means of subgroups of
- * {@code subgroup} consecutive parts (σ/√n), so a false alarm is rare in parts, not just in points. The
- * alarm rises on the first signal of either chart and clears after {@code clearAfter} parts without one
+ * Drift watch on one quantity of a lot: a baseline learned from the first parts, then EWMA and two-sided
+ * CUSUM on the standardized means of subgroups of {@code subgroup} consecutive parts, with the limits of the
+ * {@link ChartDesign} (so the false alarms of a stable line stay within the stated budget). A chart point is
+ * standardized by the spread of the baseline's subgroup means — which holds variation between subgroups
+ * (reels, temperature) as well as the parts' own — and never by less than σ/√n of the parts. The alarm
+ * rises on the first signal of either chart and clears after {@code clearAfter} parts without one
  * (hysteresis). Single owner, mutable; {@link #view} is the immutable figure for the dashboard.
  */
 public final class DriftChart {
     private final MonitorSettings s;
-    private final RunningStats baseline = new RunningStats();
+    private final ChartDesign design;
+    private final RunningStats baseline = new RunningStats(), baselineGroups = new RunningStats();
     private final EwmaChart ewma;
     private final CusumChart cusum;
     private final RunningStats group = new RunningStats();
     private final java.util.ArrayDeque<Double> lastGroups = new java.util.ArrayDeque<>();
-    private double mu0 = Double.NaN, sigma0 = Double.NaN;
+    private double mu0 = Double.NaN, sigma0 = Double.NaN, sigmaPoint = Double.NaN;
     private boolean alarm;
     private int direction;
-    private long quiet, signals, points;
+    private long quiet, signals, points, charted;
 
     /**
-     * @param learning  true while the baseline is being learned
-     * @param direction +1 / −1 of the last signal while the alarm is active, 0 otherwise
+     * @param learning    true while the baseline is being learned
+     * @param learned     parts learned so far
+     * @param learnParts  parts the baseline is learned from
+     * @param sigmaPoint  σ of a chart point (a subgroup mean) the charts standardize by
+     * @param direction   +1 / −1 of the last signal while the alarm is active, 0 otherwise
      */
-    public record View(boolean learning, long learned, double baselineMean, double baselineSigma, double ewma, double ewmaLimit,
-                       double cusumHigh, double cusumLow, double cusumH, boolean alarm, int direction, long signals, double shift) {}
+    public record View(boolean learning, long learned, long learnParts, double baselineMean, double baselineSigma, double sigmaPoint,
+                       double ewma, double ewmaLimit, double cusumHigh, double cusumLow, double cusumH, boolean alarm, int direction,
+                       long signals, double shift) {}
 
     public DriftChart(MonitorSettings s) {
         this.s = s;
-        this.ewma = new EwmaChart(s.ewmaLambda(), s.ewmaL());
-        this.cusum = new CusumChart(s.cusumK(), s.cusumH());
+        this.design = s.design();
+        this.ewma = new EwmaChart(design.lambda(), design.limitL(), false);
+        this.cusum = new CusumChart(design.k(), design.h());
     }
 
-    /** Uses a known baseline instead of learning one. */
+    /** Uses a known baseline (mean, σ of one part) instead of learning one. */
     public DriftChart(MonitorSettings s, double mean, double sigma) {
         this(s);
         if (!(sigma > 0)) throw new SpecException("monitor.sigma", "must be > 0 (was " + sigma + ")");
         mu0 = mean;
         sigma0 = sigma;
+        sigmaPoint = sigma / Math.sqrt(s.subgroup());
     }
 
     /** Adds one value; returns +1/−1 when the alarm rises, 2 when it clears, 0 otherwise. */
@@ -45,11 +54,7 @@ public final class DriftChart {
         if (!Double.isFinite(x)) return 0;
         points++;
         if (Double.isNaN(mu0)) {
-            baseline.add(x);
-            if (baseline.count() >= s.learnParts()) {
-                mu0 = baseline.mean();
-                sigma0 = baseline.stdDev() > 0 ? baseline.stdDev() : Math.max(Math.abs(mu0) * 1e-6, 1e-12);
-            }
+            learn(x);
             return 0;
         }
         group.add(x);
@@ -58,7 +63,8 @@ public final class DriftChart {
         group.reset();
         lastGroups.addLast(mean);
         if (lastGroups.size() > 4) lastGroups.removeFirst();
-        double z = (mean - mu0) / (sigma0 / Math.sqrt(s.subgroup()));
+        charted++;
+        double z = (mean - mu0) / sigmaPoint;
         boolean e = ewma.add(z);
         int c = cusum.add(z);
         int dir = c != 0 ? c : e ? (z > 0 ? 1 : -1) : 0;
@@ -74,6 +80,23 @@ public final class DriftChart {
         }
         quiet += s.subgroup() - 1;
         return quietPart();
+    }
+
+    private void learn(double x) {
+        baseline.add(x);
+        group.add(x);
+        if (group.count() == s.subgroup()) {
+            baselineGroups.add(group.mean());
+            group.reset();
+        }
+        if (baseline.count() < s.learnParts()) return;
+        group.reset();
+        mu0 = baseline.mean();
+        double floor = Math.max(Math.abs(mu0) * 1e-6, 1e-12);
+        sigma0 = baseline.stdDev() > 0 ? baseline.stdDev() : floor;
+        double within = sigma0 / Math.sqrt(s.subgroup());
+        double between = s.subgroup() == 1 || baselineGroups.count() < 2 ? 0 : baselineGroups.stdDev();
+        sigmaPoint = Math.max(within, between);
     }
 
     private int quietPart() {
@@ -93,17 +116,23 @@ public final class DriftChart {
 
     /** Standard error of {@link #shift()}. */
     public double shiftError() {
-        return lastGroups.isEmpty() ? Double.NaN : sigma0 / Math.sqrt((double) s.subgroup() * lastGroups.size());
+        return lastGroups.isEmpty() ? Double.NaN : sigmaPoint / Math.sqrt(lastGroups.size());
     }
 
     public boolean alarm() { return alarm; }
 
+    /** Chart points so far (after the baseline). */
+    public long charted() { return charted; }
+
+    public boolean learning() { return Double.isNaN(mu0); }
+
     public double baselineMean() { return mu0; }
 
+    /** σ of one part in the baseline. */
     public double baselineSigma() { return sigma0; }
 
     public View view() {
-        return new View(Double.isNaN(mu0), baseline.count(), mu0, sigma0, ewma.statistic(), ewma.limit(), cusum.upper(), cusum.lower(),
-                cusum.h(), alarm, direction, signals, shift());
+        return new View(Double.isNaN(mu0), baseline.count(), s.learnParts(), mu0, sigma0, sigmaPoint, ewma.statistic(), ewma.limit(),
+                cusum.upper(), cusum.lower(), cusum.h(), alarm, direction, signals, shift());
     }
 }

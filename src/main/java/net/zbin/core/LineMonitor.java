@@ -106,7 +106,15 @@ public final class LineMonitor {
         // The charts watch the parts that passed: a lossy or out-of-tolerance outlier is the grader's business,
         // not a drift of the process, and one of them would otherwise move a subgroup mean by several σ.
         if (g.verdict() != Verdict.PASS) return;
+        long before = value.charted();
         int v = value.add(g.devPct());
+        if (v == 0 && value.alarm() && cause != Cause.ADDITIVE && value.charted() > before) {
+            // While the alarm stands, each new point and each new fixture check can settle the call.
+            Cause was = cause;
+            classify();
+            if (cause == Cause.ADDITIVE && was != Cause.ADDITIVE)
+                set(out, AlarmCode.COMPENSATION_OFFSET, true, "the shift is an additive offset from the fixture: " + causeText);
+        }
         if (v == 1 || v == -1) {
             classify();
             set(out, AlarmCode.VALUE_DRIFT, true, String.format(java.util.Locale.ROOT, "%s drifted %+.3f %% from the lot's baseline %+.3f %% (σ %.3f %%): %s",
@@ -148,8 +156,11 @@ public final class LineMonitor {
             return;
         }
         double e = Double.isNaN(evidence) ? ref : evidence;
-        double tol = Math.max(0.5 * Math.abs(shiftAbs), 3 * se);
-        if (Math.abs(e - shiftAbs) <= tol && Math.abs(e) > 0.25 * Math.abs(shiftAbs)) {
+        // Additive when the fixture moved the same way by between half and twice the parts' shift (the two are
+        // measured at different moments of a ramp, and a chart signals on the first few points of a shift, so a
+        // ratio is the robust test), or within three standard errors of it.
+        double ratio = e / shiftAbs;
+        if (ratio >= 0.5 && ratio <= 2 || Math.abs(e - shiftAbs) <= 3 * se && Math.abs(e) > 0.25 * Math.abs(shiftAbs)) {
             cause = Cause.ADDITIVE;
             causeText = "additive offset: every part reads " + moved + " off and the " + (Double.isNaN(evidence) ? "reference part" : "fixture check")
                     + " moved " + SiValue.format(e, unit) + " too — the compensation is stale, compensate again";

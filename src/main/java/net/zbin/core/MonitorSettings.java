@@ -1,42 +1,67 @@
 package net.zbin.core;
 
 /**
- * How the line monitor watches a lot. Defaults (common practice): the baseline is learned over the
- * first 2 000 parts of a lot (80 chart points, so the baseline itself does not shorten the in-control run length much); the charts take means of subgroups of 25 parts; EWMA λ 0.10, L 2.814 (in-control
- * ARL 500 subgroups, Lucas & Saccucci 1990); tabular CUSUM k 0.5, h 5 (in-control ARL 465 subgroups, Lucas
- * & Crosier 1982); an alarm clears after 500 parts without a signal; windows of the last 1 000 presentations.
+ * How the line monitor watches a lot. The drift charts are designed from a stated false-alarm budget
+ * (see {@link ChartDesign}): by default at most one false drift alarm per 8-hour shift, all four charts
+ * together (EWMA and CUSUM on the value and on the loss), at 30 parts/s, tuned to catch a shift of a
+ * third of the parts' σ fastest. The baseline is learned over the first 10 000 graded parts of a lot
+ * (its error is accounted for in the design); chart points are means of 25 parts; an alarm clears after
+ * 500 parts without a signal; windows of the last 1 000 presentations.
  *
- * @param learnParts     parts of a lot the baseline is learned from (≥ 10)
- * @param subgroup       consecutive parts averaged into one chart point (1 = every part)
- * @param ewmaLambda     EWMA weight
- * @param ewmaL          EWMA limit width
- * @param cusumK         CUSUM allowance in σ
- * @param cusumH         CUSUM decision interval in σ
- * @param clearAfter     parts without a signal before a drift alarm clears
- * @param windowParts    presentations in the rolling window
- * @param maxNegativeRPct negative-r share of the window that raises negative-r-rate, in %
- * @param compMaxAgeH    compensation older than this raises compensation-old, in hours
- * @param baselineMeanPct the value's baseline deviation in % when stated by the recipe (NaN: learned from the lot)
- * @param baselineSigmaPct its σ per part in % (NaN: learned)
+ * @param learnParts          parts of a lot the baseline is learned from (≥ 10)
+ * @param subgroup            consecutive parts averaged into one chart point (1 = every part)
+ * @param falseAlarmsPerShift false drift alarms a stable line may raise per shift, all charts together
+ * @param shiftH              length of a shift in hours
+ * @param partsPerS           the line's rate in parts per second, for the budget (the highest it runs at)
+ * @param detectShiftSigma    the shift of the mean, in σ of one part, the charts are tuned to catch fastest
+ * @param ewmaLambda          EWMA weight (NaN: 0.2)
+ * @param ewmaL               EWMA limit width in σ of the statistic (NaN: designed from the budget)
+ * @param cusumK              CUSUM allowance in σ of a chart point (NaN: half the shift to catch)
+ * @param cusumH              CUSUM decision interval in σ of a chart point (NaN: designed from the budget)
+ * @param clearAfter          parts without a signal before a drift alarm clears
+ * @param windowParts         presentations in the rolling window
+ * @param maxNegativeRPct     negative-r share of the window that raises negative-r-rate, in %
+ * @param compMaxAgeH         compensation older than this raises compensation-old, in hours
+ * @param baselineMeanPct     the value's baseline deviation in % when stated by the recipe (NaN: learned from the lot)
+ * @param baselineSigmaPct    its σ per part in % (NaN: learned)
  */
-public record MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
+public record MonitorSettings(int learnParts, int subgroup, double falseAlarmsPerShift, double shiftH, double partsPerS,
+                              double detectShiftSigma, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
                               int windowParts, double maxNegativeRPct, double compMaxAgeH, double baselineMeanPct, double baselineSigmaPct) {
-    public static final MonitorSettings DEFAULT = new MonitorSettings(2000, 25, 0.10, 2.814, 0.5, 5, 500, 1000, 1.0, 8, Double.NaN, Double.NaN);
-
-    /** With the value's baseline learned from each lot. */
-    public MonitorSettings(int learnParts, int subgroup, double ewmaLambda, double ewmaL, double cusumK, double cusumH, int clearAfter,
-                           int windowParts, double maxNegativeRPct, double compMaxAgeH) {
-        this(learnParts, subgroup, ewmaLambda, ewmaL, cusumK, cusumH, clearAfter, windowParts, maxNegativeRPct, compMaxAgeH, Double.NaN, Double.NaN);
-    }
+    public static final MonitorSettings DEFAULT = new MonitorSettings(10_000, 25, 1, 8, 30, 1.0 / 3, Double.NaN, Double.NaN, Double.NaN,
+            Double.NaN, 500, 1000, 1.0, 8, Double.NaN, Double.NaN);
 
     /** Whether the recipe states the value's baseline. */
     public boolean statedBaseline() { return !Double.isNaN(baselineSigmaPct); }
 
+    /** The charts' parameters and run lengths (designed once per distinct setting and kept). */
+    public ChartDesign design() { return ChartDesign.of(this); }
+
+    public MonitorSettings withCompMaxAgeH(double h) {
+        return new MonitorSettings(learnParts, subgroup, falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL, cusumK, cusumH,
+                clearAfter, windowParts, maxNegativeRPct, h, baselineMeanPct, baselineSigmaPct);
+    }
+
+    public MonitorSettings withBaseline(double meanPct, double sigmaPct) {
+        return new MonitorSettings(learnParts, subgroup, falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL, cusumK, cusumH,
+                clearAfter, windowParts, maxNegativeRPct, compMaxAgeH, meanPct, sigmaPct);
+    }
+
     public MonitorSettings {
-        if (learnParts < 10 || learnParts > 100_000) throw new SpecException("monitor.learn_parts", "must be 10..100000 (was " + learnParts + ")");
+        if (learnParts < 10 || learnParts > 1_000_000) throw new SpecException("monitor.learn_parts", "must be 10..1000000 (was " + learnParts + ")");
         if (subgroup < 1 || subgroup > 1000) throw new SpecException("monitor.subgroup", "must be 1..1000 (was " + subgroup + ")");
-        new EwmaChart(ewmaLambda, ewmaL);
-        new CusumChart(cusumK, cusumH);
+        if (learnParts < 2 * subgroup)
+            throw new SpecException("monitor.learn_parts", "must be at least two subgroups (" + 2 * subgroup + " parts; was " + learnParts + ")");
+        if (!(falseAlarmsPerShift >= 0.001 && falseAlarmsPerShift <= 100))
+            throw new SpecException("monitor.false_alarms_per_shift", "must be 0.001..100 (was " + falseAlarmsPerShift + ")");
+        if (!(shiftH > 0 && shiftH <= 24)) throw new SpecException("monitor.shift_h", "must be > 0 and <= 24 hours (was " + shiftH + ")");
+        if (!(partsPerS > 0 && partsPerS <= 1000)) throw new SpecException("monitor.parts_per_s", "must be > 0 and <= 1000 (was " + partsPerS + ")");
+        if (!(detectShiftSigma > 0 && detectShiftSigma <= 5))
+            throw new SpecException("monitor.detect_shift_sigma", "must be > 0 and <= 5 (was " + detectShiftSigma + ")");
+        if (!Double.isNaN(ewmaLambda)) new EwmaChart(ewmaLambda, 1);
+        if (!Double.isNaN(ewmaL)) new EwmaChart(0.5, ewmaL);
+        if (!Double.isNaN(cusumK)) new CusumChart(cusumK, 1);
+        if (!Double.isNaN(cusumH)) new CusumChart(0, cusumH);
         if (clearAfter < 1) throw new SpecException("monitor.clear_after", "must be >= 1 (was " + clearAfter + ")");
         if (windowParts < 10 || windowParts > 1_000_000) throw new SpecException("monitor.window_parts", "must be 10..1000000 (was " + windowParts + ")");
         if (!(maxNegativeRPct > 0 && maxNegativeRPct <= 100)) throw new SpecException("monitor.max_negative_r_pct", "must be > 0 and <= 100 (was " + maxNegativeRPct + ")");

@@ -50,8 +50,16 @@ public final class MonitorJson {
         ObjectNode n = Json.object();
         n.put("learning", v.learning());
         n.put("learned", v.learned());
+        n.put("learn_parts", v.learnParts());
+        n.put("state", v.learning() ? "learning (" + v.learned() + " of " + v.learnParts() + " parts)" : v.alarm() ? "alarm" : "in control");
+        if (v.learning()) {
+            n.put("signals", v.signals());
+            n.put("alarm", false);
+            return n;
+        }
         r(n, "baseline_mean", v.baselineMean());
         r(n, "baseline_sigma", v.baselineSigma());
+        r(n, "sigma_point", v.sigmaPoint());
         r(n, "ewma", v.ewma());
         r(n, "ewma_limit", v.ewmaLimit());
         r(n, "cusum_high", v.cusumHigh());

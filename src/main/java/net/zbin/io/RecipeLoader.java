@@ -107,6 +107,9 @@ public final class RecipeLoader {
     /** The monitor's settings of a recipe ({@code monitor:}), each key optional. */
     static MonitorSettings monitor(SpecNode m, MonitorSettings d) throws ConfigException {
         int learn = m.optInteger("learn_parts", d.learnParts()), sub = m.optInteger("subgroup", d.subgroup());
+        double budget = m.optNumber("false_alarms_per_shift", d.falseAlarmsPerShift(), Unit.RATIO);
+        double shiftH = m.optNumber("shift_h", d.shiftH(), Unit.RATIO), rate = m.optNumber("parts_per_s", d.partsPerS(), Unit.RATIO);
+        double detect = m.optNumber("detect_shift_sigma", d.detectShiftSigma(), Unit.RATIO);
         double lambda = m.optNumber("ewma_lambda", d.ewmaLambda(), Unit.RATIO), l = m.optNumber("ewma_l", d.ewmaL(), Unit.RATIO);
         double k = m.optNumber("cusum_k", d.cusumK(), Unit.RATIO), h = m.optNumber("cusum_h", d.cusumH(), Unit.RATIO);
         int clear = m.optInteger("clear_after", d.clearAfter()), window = m.optInteger("window_parts", d.windowParts());
@@ -114,7 +117,7 @@ public final class RecipeLoader {
         double age = m.optNumber("compensation_max_age_h", d.compMaxAgeH(), Unit.RATIO);
         double bMean = m.optNumber("baseline_mean_pct", Double.NaN, Unit.PERCENT), bSigma = m.optNumber("baseline_sigma_pct", Double.NaN, Unit.PERCENT);
         m.finish();
-        return m.build(null, () -> new MonitorSettings(learn, sub, lambda, l, k, h, clear, window, neg, age, bMean, bSigma));
+        return m.build(null, () -> new MonitorSettings(learn, sub, budget, shiftH, rate, detect, lambda, l, k, h, clear, window, neg, age, bMean, bSigma));
     }
 
     private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {

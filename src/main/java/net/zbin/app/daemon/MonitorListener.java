@@ -36,8 +36,7 @@ final class MonitorListener implements DecisionListener {
     private MonitorSettings settings(Recipe r) {
         MonitorSettings m = r.monitor();
         double age = Double.isNaN(cfg.monitor().compMaxAgeH()) ? m.compMaxAgeH() : cfg.monitor().compMaxAgeH();
-        return new MonitorSettings(m.learnParts(), m.subgroup(), m.ewmaLambda(), m.ewmaL(), m.cusumK(), m.cusumH(), m.clearAfter(),
-                m.windowParts(), m.maxNegativeRPct(), age, m.baselineMeanPct(), m.baselineSigmaPct());
+        return m.withCompMaxAgeH(age);
     }
 
     @Override
