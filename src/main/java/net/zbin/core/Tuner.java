@@ -3,7 +3,6 @@ package net.zbin.core;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
-import org.apache.commons.math3.special.Erf;
 
 /**
  * Evaluates many candidate settings of a recipe on one recorded lot, each exactly as a replay with that
@@ -17,11 +16,13 @@ import org.apache.commons.math3.special.Erf;
  * change earlier steps, so each of their settings regrades the kept rows, O(K·N), still without reading
  * the file again. The risk estimates are summed over the deviations grouped in bins of 0.01 % (O(B) a setting).
  *
- * <p>Risk. The measurement error of a reading is taken as normal with σ = U/2 of the reading (U the expanded
- * uncertainty, k = 2, in % of reading), independent from part to part, and the measured deviation as the
- * part's true one for the purpose of the estimate: false accept = the expected number of accepted parts whose
- * true value lies outside the limits of the grade that took them, false reject = the expected number of parts
- * rejected on their value whose true value lies inside the widest limits; both in % of the parts finished.
+ * <p>Risk. The global consumer's and producer's risk of JCGM 106:2012 §9.5 under the normal–normal model of
+ * {@link RiskModel}, with the process estimated from the lot (σp² = s² − u²): false accept = the expected number of
+ * accepted parts whose true value lies outside the limits of the grade that took them, false reject = the expected
+ * number of parts rejected on their value whose true value lies inside the widest limits; both in % of the parts
+ * finished. Per part, the probabilities are those of the true value given the reading under the process prior.
+ * The sums run over deviations grouped in bins no wider than a tenth of the posterior σ (and 0.01 %), at each
+ * bin's mean; a swept gate sums the same probabilities row by row.
  */
 public final class Tuner {
     private final Recipe base;
@@ -59,8 +60,7 @@ public final class Tuner {
 
     /** Every combination of the sweeps' values, in order. */
     public List<Result> results() {
-        if (counted != null) counted.seal();
-        if (gated != null) gated.seal();
+        seal();
         List<Result> out = new ArrayList<>();
         List<List<Double>> combos = new ArrayList<>();
         for (double a : sweeps.get(0).values())
@@ -84,6 +84,21 @@ public final class Tuner {
                     s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
         }
         return out;
+    }
+
+    private void seal() {
+        if (counted != null) counted.seal();
+        if (gated != null) gated.seal();
+    }
+
+    /** The risk model of the lot under the base recipe (null without an uncertainty). */
+    public RiskModel model() {
+        if (!(uncertaintyPct > 0)) return null;
+        seal();
+        if (counted != null) return counted.model(uncertaintyPct);
+        if (gated != null) return gated.model;
+        double[] d = devsOf(base, kept);
+        return RiskModel.fromLot(d, d.length, uncertaintyPct);
     }
 
     /** The indices 0..n−1 ordered by their key (a stable merge sort on primitives: no boxing of a million indices). */
@@ -243,22 +258,33 @@ public final class Tuner {
         }
 
         private double[][] bins;
+        private RiskModel model;
+
+        RiskModel model(double u) {
+            if (model == null) model = RiskModel.fromLot(devs, devs.length, u);
+            return model;
+        }
 
         double[] risk(Recipe r, double u) {
-            if (bins == null) bins = bin(devs);
-            return Tuner.risk(r, bins, u);
+            if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+            if (bins == null) bins = bin(devs, width(model(u)));
+            return Tuner.risk(r, bins, model(u));
         }
     }
 
-    /** Sorted deviations grouped in bins of 0.01 %: [means, counts]. O(N) once. */
-    static double[][] bin(double[] devs) {
+    /** Bin width for the risk sums: a tenth of the posterior σ, and no more than 0.01 %. */
+    static double width(RiskModel m) { return Math.min(0.01, m.posteriorSigmaPct() / 10); }
+
+    /** Sorted deviations grouped in bins of {@code w} %: [means, counts]. O(N) once. */
+    static double[][] bin(double[] devs, double w) {
         double[] mean = new double[devs.length], count = new double[devs.length];
         int b = 0, i = 0;
         while (i < devs.length) {
-            double start = Math.floor(devs[i] * 100) / 100;
+            double start = Math.floor(devs[i] / w) * w;
             int j = i;
             double sum = 0;
-            while (j < devs.length && devs[j] < start + 0.01) sum += devs[j++];
+            while (j < devs.length && devs[j] < start + w) sum += devs[j++];
+            if (j == i) sum += devs[j++]; // rounding at a bin's edge: never an empty bin
             mean[b] = sum / (j - i);
             count[b++] = j - i;
             i = j;
@@ -283,10 +309,9 @@ public final class Tuner {
 
         private final Recipe r0;
         private final double u;
-        private final Doubles mCol = new Doubles(), kCol = new Doubles(), faCol = new Doubles(), frCol = new Doubles();
-        private final double[][] oneBin = new double[2][1];
-        private final java.util.Map<Long, double[]> riskByBin = new java.util.HashMap<>();
+        private final Doubles mCol = new Doubles(), kCol = new Doubles(), devCol = new Doubles();
         private boolean sealed;
+        RiskModel model;
 
         GateCounted(Recipe base, Sweep.Quantity q, double u) {
             this.q = q;
@@ -316,22 +341,9 @@ public final class Tuner {
                 keys.add(gr.outcome());
                 k = keys.size() - 1;
             }
-            double fa = 0, fr = 0;
-            if (byValue(gr.reason()) && u > 0) {
-                // The risk of a deviation, computed once per 0.01 % bin (as the limit sweeps do) and looked up.
-                long bin = (long) Math.floor(gr.devPct() * 100);
-                double[] rk = riskByBin.computeIfAbsent(bin, b -> {
-                    oneBin[0][0] = (b + 0.5) / 100;
-                    oneBin[1][0] = 1;
-                    return Tuner.risk(r0, oneBin, u);
-                });
-                fa = rk[0];
-                fr = rk[1];
-            }
             mCol.add(Double.isNaN(m) ? Double.POSITIVE_INFINITY : m);
             kCol.add(k);
-            faCol.add(fa);
-            frCol.add(fr);
+            devCol.add(byValue(gr.reason()) ? gr.devPct() : Double.NaN);
         }
 
         void seal() {
@@ -344,12 +356,29 @@ public final class Tuner {
             prefix = new int[keys.size()][n + 1];
             faPrefix = new double[n + 1];
             frPrefix = new double[n + 1];
+            double[] fa = new double[n], fr = new double[n];
+            if (u > 0) {
+                // The process is the lot's as the recipe without the swept gate grades it; each row's risk is that of
+                // its own reading under that prior.
+                Doubles byValue = new Doubles();
+                for (int i = 0; i < n; i++) if (!Double.isNaN(devCol.a[i])) byValue.add(devCol.a[i]);
+                model = RiskModel.fromLot(byValue.a, byValue.n, u);
+                double[][] one = new double[2][1];
+                for (int i = 0; i < n; i++) {
+                    if (Double.isNaN(devCol.a[i])) continue;
+                    one[0][0] = devCol.a[i];
+                    one[1][0] = 1;
+                    double[] rk = Tuner.risk(r0, one, model);
+                    fa[i] = rk[0];
+                    fr[i] = rk[1];
+                }
+            }
             for (int j = 0; j < n; j++) {
                 int i = order[j];
                 metric[j] = mm[i];
                 for (int k = 0; k < keys.size(); k++) prefix[k][j + 1] = prefix[k][j] + ((int) kCol.a[i] == k ? 1 : 0);
-                faPrefix[j + 1] = faPrefix[j] + faCol.a[i];
-                frPrefix[j + 1] = frPrefix[j] + frCol.a[i];
+                faPrefix[j + 1] = faPrefix[j] + fa[i];
+                frPrefix[j + 1] = frPrefix[j] + fr[i];
             }
         }
 
@@ -385,27 +414,31 @@ public final class Tuner {
         }
 
         double[] risk(double v) {
+            if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
             int p = passing(v);
             return new double[] {faPrefix[p], frPrefix[p]};
         }
     }
 
-    /** [expected false accepts, expected false rejects] over sorted deviations, grouped in bins of 0.01 %. */
-    static double[] risk(Recipe r, double[] devs, double u) { return risk(r, bin(devs), u); }
+    /** [expected false accepts, expected false rejects] over sorted deviations, under the lot's own process model. */
+    static double[] risk(Recipe r, double[] devs, double u) {
+        if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+        RiskModel m = RiskModel.fromLot(devs, devs.length, u);
+        return risk(r, bin(devs, width(m)), m);
+    }
 
     /** The same over pre-grouped bins [means, counts]: O(B). */
-    static double[] risk(Recipe r, double[][] bins, double u) {
-        if (!(u > 0) || bins[0].length == 0) return new double[] {u > 0 ? 0 : Double.NaN, u > 0 ? 0 : Double.NaN};
+    static double[] risk(Recipe r, double[][] bins, RiskModel m) {
+        if (bins[0].length == 0) return new double[] {0, 0};
         double fa = 0, fr = 0;
         List<Grade> gs = r.grades();
         double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
         double specHi = gs.get(gs.size() - 1).highPct();
         for (int b = 0; b < bins[0].length; b++) {
             double x = bins[0][b], c = bins[1][b];
-            double sigma = u / 2 * (1 + x / 100);
             Grade g = accepting(r, x);
-            if (g != null) fa += c * (phi((g.lowPct() - x) / sigma) + 1 - phi((g.highPct() - x) / sigma));
-            else fr += c * (phi((specHi - x) / sigma) - phi((specLo - x) / sigma));
+            if (g != null) fa += c * m.outside(x, g.lowPct(), g.highPct());
+            else fr += c * m.inside(x, specLo, specHi);
         }
         return new double[] {fa, fr};
     }
@@ -419,6 +452,4 @@ public final class Tuner {
         for (int k = gs.size() - 1; k >= 0; k--) if (gs.get(k).accepts(x, r.guard())) return gs.get(k);
         return null;
     }
-
-    private static double phi(double z) { return 0.5 * (1 + Erf.erf(z / Math.sqrt(2))); }
 }
