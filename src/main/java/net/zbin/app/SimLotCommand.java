@@ -38,7 +38,7 @@ public final class SimLotCommand implements Callable<Integer> {
     Path out;
     @Option(names = "--spread-x", defaultValue = "1", paramLabel = "K", description = "what if the parts' spread were K times the scenario's")
     double spreadX;
-    @Option(names = "--offset-pct", paramLabel = "PCT", description = "what if the parts' mean were this far from nominal (%)")
+    @Option(names = "--offset-pct", paramLabel = "PCT", description = "what if the parts' mean were this far from nominal (%%)")
     Double offsetPct;
     @Option(names = "--stray-drift", paramLabel = "F_PER_H", converter = SiConverter.Farad.class, description = "what if the fixture's stray C drifted this much per hour (e.g. 0.5p)")
     Double strayDrift;

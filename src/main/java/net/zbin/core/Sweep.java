@@ -84,6 +84,7 @@ public record Sweep(Quantity quantity, String grade, List<Double> values) {
             case GRADE_HIGH -> "grade." + grade + ".high";
             default -> quantity.name().toLowerCase(Locale.ROOT);
         };
+        if (quantity == Quantity.NOMINAL) return name + "=" + SiValue.compact(v);
         return name + "=" + BigDecimal.valueOf(v).stripTrailingZeros().toPlainString();
     }
 
@@ -99,35 +100,60 @@ public record Sweep(Quantity quantity, String grade, List<Double> values) {
     }
 
     /**
-     * The recipe with this sweep's quantity set to {@code v}.
+     * The recipe with this sweep's quantity set to {@code v}: {@link #applyAll} with one sweep.
      *
      * @throws SpecException when the result is not a valid recipe (e.g. grades that no longer nest)
      */
-    public Recipe apply(Recipe r, double v) {
-        List<Grade> grades = new ArrayList<>(r.grades());
+    public Recipe apply(Recipe r, double v) { return applyAll(r, List.of(this), List.of(v)); }
+
+    /**
+     * The recipe as an engineer would edit the file to these settings, validated once with every setting in
+     * place (so a pair of settings that is valid together is never refused for an intermediate state, and the
+     * order of the sweeps does not matter). A new nominal re-resolves each grade as its file states it (a
+     * letter again, values as values, percent as percent); a swept grade edge is in percent of the new nominal,
+     * the grade's other edge kept where the new nominal puts it.
+     *
+     * @throws SpecException when the result is not a valid recipe
+     */
+    public static Recipe applyAll(Recipe r, List<Sweep> sweeps, List<Double> values) {
+        if (sweeps.size() != values.size()) throw new IllegalArgumentException("one value per sweep");
+        double nominal = r.nominal();
+        for (int i = 0; i < sweeps.size(); i++) if (sweeps.get(i).quantity == Quantity.NOMINAL) nominal = values.get(i);
+        if (!(nominal > 0) || !Double.isFinite(nominal)) throw new SpecException("nominal", "must be > 0 (was " + nominal + ")");
+        List<Grade> grades = new ArrayList<>();
+        for (Grade g : r.grades()) grades.add(nominal == r.nominal() ? g : g.atNominal(r.partType(), nominal));
         GuardBand guard = r.guard();
         Gates g = r.gates();
-        double nominal = r.nominal();
-        switch (quantity) {
-            case GRADE_HALF_WIDTH, GRADE_LOW, GRADE_HIGH -> {
-                int i = indexOf(r, grade);
-                Grade old = grades.get(i);
-                double lo = quantity == Quantity.GRADE_HIGH ? old.lowPct() : quantity == Quantity.GRADE_LOW ? v : -v;
-                double hi = quantity == Quantity.GRADE_LOW ? old.highPct() : v;
-                grades.set(i, new Grade(old.name(), old.bin(), lo, hi));
+        for (int k = 0; k < sweeps.size(); k++) {
+            Sweep sw = sweeps.get(k);
+            double v = values.get(k);
+            switch (sw.quantity) {
+                case GRADE_HALF_WIDTH, GRADE_LOW, GRADE_HIGH -> {
+                    int i = indexOf(r, sw.grade);
+                    Grade old = grades.get(i);
+                    double lo = sw.quantity == Quantity.GRADE_HIGH ? old.lowPct() : sw.quantity == Quantity.GRADE_LOW ? v : -v;
+                    double hi = sw.quantity == Quantity.GRADE_LOW ? old.highPct() : v;
+                    grades.set(i, new Grade(old.name(), old.bin(), lo, hi));
+                }
+                case GUARD -> guard = new GuardBand(v, true);
+                case D_MAX -> g = new Gates(v, g.qMin(), g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
+                case Q_MIN -> g = new Gates(g.dMax(), v, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
+                case ESR_MAX -> g = new Gates(g.dMax(), g.qMin(), v, g.thetaMinDeg(), g.thetaMaxDeg());
+                case NOMINAL -> { }
             }
-            case GUARD -> guard = new GuardBand(v, true);
-            case D_MAX -> g = new Gates(v, g.qMin(), g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
-            case Q_MIN -> g = new Gates(g.dMax(), v, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
-            case ESR_MAX -> g = new Gates(g.dMax(), g.qMin(), v, g.thetaMinDeg(), g.thetaMaxDeg());
-            case NOMINAL -> nominal = v;
         }
         return new Recipe(r.name(), r.partType(), nominal, r.test(), r.model(), r.primary(), r.mode(), grades, guard, g, r.plausible(),
                 r.reject(), r.retest(), r.contact(), r.compensationRequired(), r.monitor());
     }
 
+    /** Refuses a sweep that names something the recipe does not have (a grade), naming what it has. */
+    public void check(Recipe r) {
+        if (grade != null) indexOf(r, grade);
+    }
+
     private static int indexOf(Recipe r, String name) {
         for (int i = 0; i < r.grades().size(); i++) if (r.grades().get(i).name().equals(name)) return i;
-        throw new SpecException("grades", "no grade '" + name + "' in recipe " + r.name());
+        throw new SpecException("grades", "no grade '" + name + "' in recipe " + r.name() + " (it has "
+                + String.join(", ", r.grades().stream().map(Grade::name).toList()) + ")");
     }
 }

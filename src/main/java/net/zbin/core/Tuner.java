@@ -69,9 +69,9 @@ public final class Tuner {
         for (List<Double> v : combos) {
             StringBuilder label = new StringBuilder();
             for (int i = 0; i < v.size(); i++) label.append(i == 0 ? "" : " ").append(sweeps.get(i).label(v.get(i)));
-            Recipe r = base;
+            Recipe r;
             try {
-                for (int i = 0; i < v.size(); i++) r = sweeps.get(i).apply(r, v.get(i));
+                r = Sweep.applyAll(base, sweeps, v);
             } catch (IllegalArgumentException e) {
                 out.add(new Result(v, label.toString(), false, e.getMessage(), BinTally.Snapshot.EMPTY, Double.NaN, Double.NaN));
                 continue;

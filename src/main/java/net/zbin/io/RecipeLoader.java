@@ -129,32 +129,18 @@ public final class RecipeLoader {
         if (g.has("high") && !g.has("low")) throw g.error("low", "is required with high");
         if (forms.isEmpty()) throw g.error("tolerance", "give the limits: tolerance (IEC 60062 letter), pct, low_pct/high_pct or low/high");
         if (forms.size() > 1) throw g.error(forms.get(1), "give the limits one way only (found " + String.join(" and ", forms) + ")");
-        double lo, hi;
-        switch (forms.get(0)) {
-            case "tolerance" -> {
-                ToleranceCode code = g.build("tolerance", () -> ToleranceCode.parse(g.optText("tolerance", "")));
-                double[] l = code.limitsPct(type, nominal);
-                lo = l[0];
-                hi = l[1];
-            }
+        Grade out = switch (forms.get(0)) {
+            case "tolerance" -> Grade.ofLetter(name, bin, g.build("tolerance", () -> ToleranceCode.parse(g.optText("tolerance", ""))), type, nominal);
             case "pct" -> {
                 double p = g.optNumber("pct", 0, Unit.PERCENT);
                 if (!(p > 0)) throw g.error("pct", "must be > 0 (was " + p + ")");
-                lo = -p;
-                hi = p;
+                yield new Grade(name, bin, -p, p);
             }
-            case "low_pct" -> {
-                lo = g.optNumber("low_pct", 0, Unit.PERCENT);
-                hi = g.number("high_pct", Unit.PERCENT);
-            }
-            default -> {
-                double a = value(g, "low", type), b = value(g, "high", type);
-                lo = (a - nominal) / nominal * 100;
-                hi = (b - nominal) / nominal * 100;
-            }
-        }
+            case "low_pct" -> new Grade(name, bin, g.optNumber("low_pct", 0, Unit.PERCENT), g.number("high_pct", Unit.PERCENT));
+            default -> Grade.ofValues(name, bin, value(g, "low", type), value(g, "high", type), nominal);
+        };
         g.finish();
-        return new Grade(name, bin, lo, hi);
+        return out;
     }
 
     private static final java.util.regex.Pattern BARE = java.util.regex.Pattern.compile("[+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?");

@@ -37,8 +37,7 @@ class TuneTest {
         rows.forEach(tuner::add);
         for (Tuner.Result r : tuner.results()) {
             if (!r.valid()) continue;
-            Recipe set = base;
-            for (int i = 0; i < sweeps.size(); i++) set = sweeps.get(i).apply(set, r.values().get(i));
+            Recipe set = Sweep.applyAll(base, sweeps, r.values());
             assertEquals(Tuner.replay(set, rows).snapshot(), r.tally(), r.label());
         }
     }
@@ -99,5 +98,106 @@ class TuneTest {
         Cli unknown = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "colour=red");
         assertEquals(2, unknown.exit());
         assertTrue(unknown.err().contains("QUANTITY=FROM:TO:STEP"), unknown.err());
+    }
+
+    /** The recipe file with its nominal line rewritten, as an engineer would edit it, loaded as replay would load it. */
+    Recipe edited(Path file, String from, String to) throws Exception {
+        String text = java.nio.file.Files.readString(file);
+        assertTrue(text.contains(from), from);
+        Path f = dir.resolve("edited-" + to.replaceAll("[^A-Za-z0-9.]", "_") + ".yaml");
+        java.nio.file.Files.writeString(f, text.replace(from, to));
+        return RecipeLoader.load(f);
+    }
+
+    @Test
+    void nominalSweep_onLettersAndValues_isAReplayOfTheEditedFile() throws Exception {
+        Path lot = dir.resolve("c4p7.csv");
+        Cli w = Cli.run("sim", "lot", "--parts", "4000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-c0g-4p7.yaml");
+        assertEquals(0, w.exit(), w.err());
+        Path file = Path.of("config/recipes/mlcc-c0g-4p7.yaml");
+        Recipe base = RecipeLoader.load(file);
+        List<RecordedReading> rows = rows(lot);
+        Sweep nominal = Sweep.parse("nominal=4.5p:5.2p:0.1p", base.partType());
+        Tuner tuner = new Tuner(base, List.of(nominal), 0.3);
+        rows.forEach(tuner::add);
+        int compared = 0;
+        for (Tuner.Result r : tuner.results()) {
+            String to = "nominal: " + net.zbin.core.SiValue.compact(r.values().get(0)) + "\n";
+            assertTrue(r.label().equals("nominal=" + net.zbin.core.SiValue.compact(r.values().get(0))), "labelled in SI: " + r.label());
+            Recipe file2;
+            try {
+                file2 = edited(file, "nominal: 4.7p\n", to);
+            } catch (net.zbin.io.ConfigException e) {
+                assertTrue(!r.valid(), r.label() + " is refused by the file too: " + e.getMessage());
+                continue;
+            }
+            assertTrue(r.valid(), r.label() + ": " + r.problem());
+            assertEquals(Tuner.replay(file2, rows).snapshot(), r.tally(), r.label());
+            compared++;
+        }
+        assertTrue(compared >= 6, "most settings compared: " + compared);
+    }
+
+    @Test
+    void twoSweeps_areValidatedTogether_inEitherOrder() throws Exception {
+        Path lot = dir.resolve("ind.csv");
+        Cli w = Cli.run("sim", "lot", "--parts", "2000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-inductor-4u7.yaml");
+        assertEquals(0, w.exit(), w.err());
+        Recipe ind = RecipeLoader.load(Path.of("config/recipes/inductor-pwr-4u7.yaml"));
+        List<RecordedReading> rows = rows(lot);
+        // Ladder grades must meet: moving N's low edge alone leaves a gap or an overlap, moving both inner edges together is valid.
+        Sweep a = Sweep.parse("grade.N.low=-9,-5", ind.partType()), b = Sweep.parse("grade.L-.high=-9,-5", ind.partType());
+        Tuner ab = new Tuner(ind, List.of(a, b), 0.3), ba = new Tuner(ind, List.of(b, a), 0.3);
+        rows.forEach(ab::add);
+        rows.forEach(ba::add);
+        for (Tuner.Result x : ab.results()) {
+            Tuner.Result y = ba.results().stream().filter(r -> r.values().get(0).equals(x.values().get(1)) && r.values().get(1).equals(x.values().get(0)))
+                    .findFirst().orElseThrow();
+            assertEquals(x.values().get(0).equals(x.values().get(1)), x.valid(), x.label() + ": " + x.problem());
+            assertEquals(x.valid(), y.valid(), "the order of the sweeps does not change the verdict: " + x.label() + " / " + y.label());
+            if (x.valid()) {
+                assertEquals(x.tally(), y.tally());
+                assertEquals(Tuner.replay(Sweep.applyAll(ind, List.of(a, b), x.values()), rows).snapshot(), x.tally());
+            }
+        }
+    }
+
+    @Test
+    void usageMistakes_exit2_withTheNameOfWhatIsWrong() throws Exception {
+        String recipe = "config/recipes/mlcc-x7r-100n.yaml", lot = "simulators/lots/lot-mlcc-100n.csv";
+        Cli typo = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "grade.X=1,2");
+        assertEquals(2, typo.exit(), typo.out());
+        assertTrue(typo.err().contains("no grade 'X'") && typo.err().contains("J, K, M"), typo.err());
+        Cli negative = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "guard=0,1", "--target-false-accept", "-1");
+        assertEquals(2, negative.exit());
+        assertTrue(negative.err().contains("--target-false-accept"), negative.err());
+        Cli pct = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "guard=0,1", "--target-false-accept", "0.05%");
+        assertEquals(0, pct.exit(), pct.err());
+        assertTrue(pct.out().contains("target ≤ 0.05000 %"), "0.05% is 0.05 %, not 5 %: " + pct.out());
+        Cli gate = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "d_max=0.02,0.03", "--target-false-accept", "0.01");
+        assertEquals(2, gate.exit());
+        assertTrue(gate.err().contains("cannot be met by sweeping a gate"), gate.err());
+        Path pctGuard = dir.resolve("pct-guard.yaml");
+        java.nio.file.Files.writeString(pctGuard, java.nio.file.Files.readString(Path.of(recipe)).replaceAll("uncertainty_pct: [0-9.]+", "pct: 0.3"));
+        Cli noU = Cli.run("tune", "--recipe", pctGuard.toString(), "--in", lot, "--vary", "grade.J=4,5");
+        assertEquals(2, noU.exit(), noU.out());
+        assertTrue(noU.err().contains("--uncertainty-pct") && noU.err().contains("guard_band.pct") && !noU.err().contains("NaN"), noU.err());
+        Cli badValue = Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "guard=0,1", "--grade-value", "Q=2");
+        assertEquals(2, badValue.exit());
+        assertTrue(badValue.err().contains("no grade 'Q'"), badValue.err());
+    }
+
+    @Test
+    void gradeValues_weighTheRecommendation_byWhatTheGradesAreWorth() throws Exception {
+        String recipe = "config/recipes/mlcc-x7r-100n.yaml", lot = "simulators/lots/lot-mlcc-100n.csv";
+        // Every guard setting passes the same parts (the M grade is wide), so plain yield cannot choose; with J worth
+        // three times M, the narrowest guard — which keeps the most parts in J — is worth most.
+        JsonNode plain = new ObjectMapper().readTree(Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "guard=0.25:1:0.25",
+                "--target-false-accept", "1", "--json").out());
+        JsonNode weighted = new ObjectMapper().readTree(Cli.run("tune", "--recipe", recipe, "--in", lot, "--vary", "guard=0.25:1:0.25",
+                "--target-false-accept", "1", "--grade-value", "J=3", "--grade-value", "K=2", "--json").out());
+        assertEquals("guard=0.25", weighted.path("recommended").asText(), weighted.toPrettyString());
+        assertTrue(weighted.path("settings").get(0).path("value_pct").asDouble() > weighted.path("settings").get(3).path("value_pct").asDouble());
+        assertTrue(plain.path("risk_model").path("process_sigma_pct").asDouble() > 0, plain.toPrettyString());
     }
 }

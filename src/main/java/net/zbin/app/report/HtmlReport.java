@@ -121,23 +121,33 @@ public final class HtmlReport {
     }
 
     /** Yield and risk against the first swept quantity's value (one curve per value of a second sweep). */
-    public HtmlReport tuneCurves(List<Tuner.Result> results, String xName) {
+    /**
+     * Yield (or value) and the two risks against the first sweep's setting, one line per value of the second sweep
+     * (named in the legend), the recommended setting and the false-accept target marked.
+     */
+    public HtmlReport tuneCurves(List<Tuner.Result> results, List<net.zbin.core.Sweep> sweeps, Tuner.Result pick, Double target, String partUnit) {
         List<Tuner.Result> ok = results.stream().filter(Tuner.Result::valid).toList();
         if (ok.isEmpty()) return para("No valid setting to plot.");
+        net.zbin.core.Sweep first = sweeps.get(0);
         java.util.Map<Double, List<Tuner.Result>> bySecond = new java.util.TreeMap<>();
         for (Tuner.Result r : ok) bySecond.computeIfAbsent(r.values().size() > 1 ? r.values().get(1) : 0.0, k -> new java.util.ArrayList<>()).add(r);
         double xmin = ok.stream().mapToDouble(r -> r.values().get(0)).min().orElse(0), xmax = ok.stream().mapToDouble(r -> r.values().get(0)).max().orElse(1);
         double ymin = ok.stream().mapToDouble(r -> r.tally().yieldPct()).filter(Double::isFinite).min().orElse(0);
         double rmax = ok.stream().mapToDouble(r -> Math.max(r.falseAcceptPct(), r.falseRejectPct())).filter(Double::isFinite).max().orElse(1);
-        Svg y = new Svg(1000, 340, xmin, xmax, Math.max(0, ymin - 1), 100, "Yield against the setting", xName, "yield, %");
-        Svg risk = new Svg(1000, 340, xmin, xmax, 0, rmax > 0 ? rmax * 1.15 : 1, "Estimated risk against the setting", xName, "% of parts");
+        if (target != null) rmax = Math.max(rmax, target);
+        String xName = axisName(first, partUnit);
+        java.util.function.DoubleFunction<String> xText = first.quantity() == net.zbin.core.Sweep.Quantity.NOMINAL
+                ? v -> net.zbin.core.SiValue.compact(v) : Svg::num;
+        Svg y = new Svg(1000, 340, xmin, xmax, Math.max(0, Math.floor(ymin - 1)), 100, "Yield against the setting", xName, "yield, % of parts finished", xText);
+        Svg risk = new Svg(1000, 340, xmin, xmax, 0, rmax > 0 ? rmax * 1.15 : 1, "Risk against the setting (JCGM 106 global risk)", xName,
+                "risk, % of parts finished", xText);
         String[] colours = {"#1f5fa8", "#b05a00", "#2f7d32", "#7b2d8b"};
         String[] dashes = {null, "6,3", "2,3", "8,3,2,3"};
         String[] markers = {"circle", "square", "triangle", "circle"};
         int i = 0;
         for (var e : bySecond.entrySet()) {
             double[] xs = e.getValue().stream().mapToDouble(r -> r.values().get(0)).toArray();
-            String tag = bySecond.size() > 1 ? " (second sweep " + Svg.num(e.getKey()) + ")" : "";
+            String tag = sweeps.size() > 1 ? " (" + sweeps.get(1).label(e.getKey()) + ")" : "";
             y.series(xs, e.getValue().stream().mapToDouble(r -> r.tally().yieldPct()).toArray(), colours[i % 4], dashes[i % 4], markers[i % 4],
                     "yield" + tag, i);
             risk.series(xs, e.getValue().stream().mapToDouble(Tuner.Result::falseAcceptPct).toArray(), colours[i % 4], null, "triangle",
@@ -146,18 +156,47 @@ public final class HtmlReport {
                     "false reject" + tag, 2 * i + 1);
             i++;
         }
+        if (pick != null) {
+            y.vline(pick.values().get(0), "recommended: " + pick.label(), "#c62828", "4,2", 0);
+            risk.vline(pick.values().get(0), "recommended: " + pick.label(), "#c62828", "4,2", 0);
+        }
+        if (target != null) risk.hline(target, "false-accept target " + Svg.num(target) + " %", "#c62828", "2,2");
         b.append(y).append(risk);
         return this;
     }
 
-    public HtmlReport tuneTable(List<Tuner.Result> results) {
-        b.append("<table><tr><th class=\"l\">setting</th><th>parts</th><th>yield</th><th>false accept</th><th>false reject</th></tr>");
-        for (Tuner.Result r : results)
-            if (r.valid())
-                b.append(String.format(Locale.ROOT, "<tr><td class=\"l\">%s</td><td>%d</td><td>%.2f %%</td><td>%.4f %%</td><td>%.4f %%</td></tr>",
-                        Svg.esc(r.label()), r.tally().parts(), r.tally().yieldPct(), r.falseAcceptPct(), r.falseRejectPct()));
-            else b.append("<tr><td class=\"l\">").append(Svg.esc(r.label())).append("</td><td colspan=\"4\" class=\"l\">not a valid recipe: ")
-                    .append(Svg.esc(r.problem())).append("</td></tr>");
+    /** The x axis of a sweep, with its unit. */
+    static String axisName(net.zbin.core.Sweep s, String partUnit) {
+        String label = s.label(0);
+        String name = label.substring(0, label.indexOf('='));
+        return name + switch (s.quantity()) {
+            case GRADE_HALF_WIDTH -> " (± half-width), % of nominal";
+            case GRADE_LOW, GRADE_HIGH -> ", % of nominal";
+            case GUARD -> " (U), % of reading";
+            case D_MAX -> " (D, dimensionless)";
+            case Q_MIN -> " (Q, dimensionless)";
+            case ESR_MAX -> ", Ω";
+            case NOMINAL -> ", " + partUnit;
+        };
+    }
+
+    /** Every setting with the counts the command line's table shows: parts, yield, each grade, low, high, gate, other, retests, risks. */
+    public HtmlReport tuneTable(Worth worth, List<Tuner.Result> results) {
+        List<String> cols = worth.columns();
+        b.append("<table><tr>");
+        for (String c : cols) b.append(c.equals("setting") ? "<th class=\"l\">" : "<th>").append(Svg.esc(c.replace("grade_", "").replace("_pct", " %")
+                .replace('_', ' '))).append("</th>");
+        b.append("</tr>");
+        for (Tuner.Result r : results) {
+            b.append("<tr><td class=\"l\">").append(Svg.esc(r.label())).append("</td>");
+            if (!r.valid()) {
+                b.append("<td colspan=\"").append(cols.size() - 1).append("\" class=\"l\">not a valid recipe: ").append(Svg.esc(r.problem())).append("</td></tr>");
+                continue;
+            }
+            for (Object v : worth.cells(r))
+                b.append("<td>").append(v instanceof Double d ? String.format(Locale.ROOT, "%.4f", d) : Svg.esc(String.valueOf(v))).append("</td>");
+            b.append("</tr>");
+        }
         b.append("</table>");
         return this;
     }

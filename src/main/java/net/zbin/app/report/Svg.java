@@ -11,9 +11,17 @@ public final class Svg {
     private final StringBuilder b = new StringBuilder();
     private final double w, h, left = 70, right = 20, top = 30, bottom = 50;
     private final double x0, x1, y0, y1;
+    private final java.util.function.DoubleFunction<String> xText;
 
-    /** A plot of width × height pixels over data x0..x1, y0..y1, with a title. */
+    /** A plot of width × height pixels over data x0..x1, y0..y1, with a title; axis labels should carry their unit. */
     public Svg(double w, double h, double x0, double x1, double y0, double y1, String title, String xLabel, String yLabel) {
+        this(w, h, x0, x1, y0, y1, title, xLabel, yLabel, Svg::num);
+    }
+
+    /** The same with the x ticks' text from {@code xText} (e.g. SI prefixes for a nominal in farads). */
+    public Svg(double w, double h, double x0, double x1, double y0, double y1, String title, String xLabel, String yLabel,
+               java.util.function.DoubleFunction<String> xText) {
+        this.xText = xText;
         this.w = w;
         this.h = h;
         this.x0 = x0;
@@ -37,12 +45,38 @@ public final class Svg {
     private void axes() {
         b.append(String.format(Locale.ROOT, "<g stroke=\"#222\" stroke-width=\"1\"><line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/><line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\"/></g>",
                 left, h - bottom, w - right, h - bottom, left, top, left, h - bottom));
-        for (int i = 0; i <= 5; i++) {
-            double x = x0 + (x1 - x0) * i / 5, y = y0 + (y1 - y0) * i / 5;
-            text(px(x), h - bottom + 16, num(x), "middle", 11, "normal");
+        for (double x : ticks(x0, x1)) text(px(x), h - bottom + 16, xText.apply(x), "middle", 11, "normal");
+        for (double y : ticks(y0, y1)) {
             text(left - 6, py(y) + 4, num(y), "end", 11, "normal");
             b.append(String.format(Locale.ROOT, "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"#ddd\"/>", left, py(y), w - right, py(y)));
         }
+    }
+
+    /**
+     * Round tick values within [a, b]: multiples of a step of 1, 2 or 5 × 10ⁿ giving at most 9 ticks, so 0 is a tick
+     * whenever the range holds it, and so is any round value (a nominal of 4.7 pF on a 0.1 pF step).
+     */
+    static double[] ticks(double a, double b) {
+        if (!(b > a)) return new double[] {a};
+        double raw = (b - a) / 5, mag = Math.pow(10, Math.floor(Math.log10(raw))), step = mag;
+        for (double m : new double[] {1, 2, 5, 10}) {
+            step = m * mag;
+            if ((b - a) / step <= 8) break;
+        }
+        java.math.BigDecimal st = new java.math.BigDecimal(step).round(new java.math.MathContext(1));
+        java.math.BigDecimal first = new java.math.BigDecimal(Math.ceil(a / step - 1e-9)).multiply(st);
+        java.util.List<Double> out = new java.util.ArrayList<>();
+        for (java.math.BigDecimal v = first; v.doubleValue() <= b * (1 + Math.signum(b) * 1e-12) + 1e-300; v = v.add(st)) out.add(v.doubleValue());
+        return out.stream().mapToDouble(Double::doubleValue).toArray();
+    }
+
+    /** A horizontal line at y with a label at its right end (a target). */
+    public Svg hline(double y, String label, String stroke, String dash) {
+        if (y < y0 || y > y1) return this;
+        b.append(String.format(Locale.ROOT, "<line x1=\"%.1f\" y1=\"%.2f\" x2=\"%.1f\" y2=\"%.2f\" stroke=\"%s\" stroke-width=\"1.5\"%s/>",
+                left, py(y), w - right, py(y), stroke, dash == null ? "" : " stroke-dasharray=\"" + dash + "\""));
+        text(left + 6, py(y) - 4, label, "start", 10, "normal");
+        return this;
     }
 
     /** A bar from y0 up to y over [xa, xb]. */
