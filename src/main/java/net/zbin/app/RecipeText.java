@@ -56,6 +56,7 @@ final class RecipeText {
         out.printf(Locale.ROOT, "  compensation: %s%n", compensation(r, fixtureSource));
         monitor(out, r.monitor());
         if (r.unreachable() != null) out.printf(Locale.ROOT, "  warning: no part can pass: %s%n", r.unreachable());
+        if (r.modelWarning() != null) out.printf(Locale.ROOT, "  warning: model: %s%n", r.modelWarning());
     }
 
     /** The drift charts: their budget, limits, in-control run lengths in parts and hours, and how fast they catch the stated shift. */

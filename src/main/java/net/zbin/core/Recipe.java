@@ -191,6 +191,32 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         return null;
     }
 
+    /**
+     * A warning when the model was chosen for the recipe by |Z| alone and the other model's value would differ
+     * by more than a tenth of the tightest grade's half-width at the recipe's loss limit (null otherwise).
+     * Cs and Cp (and Ls and Lp) differ by the factor 1 + D², so a lossy family (an electrolytic at 120 Hz,
+     * D 0.15: 2.25 %) is graded differently by each; such families are specified by one model, which the
+     * recipe should name. Resistors and recipes without a D or Q gate are not judged.
+     */
+    public String modelWarning() {
+        if (partType == PartType.RESISTOR) return null;
+        ModelPolicy.Choice c = modelChoice();
+        if (c.reason().startsWith("primary-") || c.reason().startsWith("forced-")) return null;
+        double d = gates.dMax() != null ? gates.dMax() : gates.qMin() != null ? 1 / gates.qMin() : Double.NaN;
+        if (!(d > 0)) return null;
+        double tightest = Double.MAX_VALUE;
+        for (Grade g : grades) tightest = Math.min(tightest, (g.highPct() - g.lowPct()) / 2);
+        double diffPct = d * d * 100;
+        if (diffPct <= tightest / 10) return null;
+        String unit = partType == PartType.CAPACITOR ? "C" : "L";
+        EquivalentModel other = c.model() == EquivalentModel.SERIES ? EquivalentModel.PARALLEL : EquivalentModel.SERIES;
+        String identity = partType == PartType.CAPACITOR ? "Cs = Cp(1 + D²)" : "Lp = Ls(1 + D²)";
+        return String.format(java.util.Locale.ROOT, "%s%s is graded (chosen by |Z| alone), but at the D limit %.4g it differs from %s%s by %.3g %%"
+                        + " (%s), more than a tenth of the tightest grade's ±%.3g %%; state the model the part family is specified"
+                        + " by (primary: %ss or %sp, or model.mode)", unit, c.model() == EquivalentModel.SERIES ? "s" : "p", d, unit,
+                other == EquivalentModel.SERIES ? "s" : "p", diffPct, identity, tightest, unit, unit);
+    }
+
     /** This recipe on a fixture with other bounds (the line config's). */
     public Recipe withFixture(FixtureBounds f) {
         return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject,

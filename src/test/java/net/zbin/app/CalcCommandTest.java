@@ -21,19 +21,20 @@ class CalcCommandTest {
 
     @Test
     void thetaMinus88point4_givesD0point0279Q35point8() throws Exception {
-        // Common practice: θ = −88.4° → D ≈ 0.0279, Q ≈ 35.8.
+        // IEC 60384-1 (tan δ of a capacitor, δ = 90° − |θ|; D = tan δ, Q = 1/D), from memory: θ = −88.4° → D = tan 1.6° ≈ 0.0279, Q ≈ 35.8.
         JsonNode n = json("calc", "--freq", "1k", "--z", "1000", "--theta", "-88.4", "--json");
         assertEquals(0.0279, n.get("d").asDouble(), 0.00005);
         assertEquals(35.8, n.get("q").asDouble(), 0.05);
         JsonNode h = json("calc", "--freq", "1k", "--z", "1000", "--theta", "45", "--json");
-        // Common practice: θ = 45° → D = Q = 1.
+        // The same definitions: θ = 45° → D = Q = 1.
         assertEquals(1.0, h.get("d").asDouble(), 1e-12);
         assertEquals(1.0, h.get("q").asDouble(), 1e-12);
     }
 
     @Test
     void everyJsonKey_agreesWithIndependentComputation() throws Exception {
-        // Independent reference: Commons Math Complex and the definitions of the textbook definitions.
+        // Independent reference: Commons Math Complex arithmetic on the definitions (Z = R + jX, Y = 1/Z; series/parallel equivalents as in
+        // Hayt, Kemmerly & Durbin, Engineering Circuit Analysis, from memory; D, Q per IEC 60384-1).
         Random rnd = new Random(2026);
         String[] keys = {"freq_hz", "r_ohm", "x_ohm", "z_ohm", "theta_deg", "g_s", "b_s", "cs_f", "cp_f", "ls_h", "lp_h",
                 "rs_ohm", "rp_ohm", "d", "q", "esr_ohm", "model"};

@@ -35,7 +35,7 @@ class CompensationTest {
 
     @Test
     void openShortRoundTrip_recoversDutThroughRandomFixtures() {
-        // Compensation algebra, exact for a linear fixture (textbook two-port algebra, derived in the test from the fixture model); fixture built with Commons Math Complex.
+        // Compensation algebra, exact for a linear fixture (two-port algebra, derived in the test from the fixture model); fixture built with Commons Math Complex.
         Random rnd = new Random(11);
         for (int i = 0; i < 3000; i++) {
             double f = Math.pow(10, 2 + 4 * rnd.nextDouble()), w = 2 * Math.PI * f;
@@ -52,7 +52,8 @@ class CompensationTest {
             Impedance got = c.correct(imp(f, zm)).orElseThrow();
             assertEquals(zdut.getReal(), got.rOhm(), 1e-7 * zdut.abs());
             assertEquals(zdut.getImaginary(), got.xOhm(), 1e-7 * zdut.abs());
-            // Textbook open/short form Zo(Zm − Zs)/(Zo − Zm) (common practice): the Zs ≪ Zo limit of the exact one.
+            // The usual open/short form Zo(Zm − Zs)/(Zo − Zm) (common practice; it is the three-term one-port error model with the
+            // load term dropped, see Pozar, Microwave Engineering, from memory): the Zs ≪ Zo limit of the exact one.
             Complex textbook = zoMeasured.multiply(zm.subtract(zs)).divide(zoMeasured.subtract(zm));
             double bound = 4 * zs.abs() / zoMeasured.abs() * zdut.abs() * Math.max(1, zdut.abs() / zoMeasured.subtract(zm).abs());
             assertTrue(textbook.subtract(new Complex(got.rOhm(), got.xOhm())).abs() <= bound + 1e-7 * zdut.abs(),
@@ -62,7 +63,8 @@ class CompensationTest {
 
     @Test
     void openShortLoad_recoversDutExactlyForAnyLinearFixture() {
-        // Open/short/load algebra (bilinear fixture model, textbook): Zdut = Zstd(Zo − Zsm)(Zm − Zs)/((Zsm − Zs)(Zo − Zm)); a general
+        // Open/short/load algebra (a linear fixture maps the impedance bilinearly — the three-term one-port error model of Pozar,
+        // Microwave Engineering, from memory): Zdut = Zstd(Zo − Zsm)(Zm − Zs)/((Zsm − Zs)(Zo − Zm)); a general
         // two-port fixture is modelled as a bilinear map Zm = (aZ + b)/(cZ + 1).
         Random rnd = new Random(5);
         for (int i = 0; i < 2000; i++) {

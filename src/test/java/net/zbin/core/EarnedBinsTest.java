@@ -90,7 +90,7 @@ class EarnedBinsTest {
 
     @Test
     void leakyCapacitor_withoutGates_isNotGradedOnItsCapacitance() {
-        // 100 nF in parallel with 200 Ω at 1 kHz: D = G/B ≈ 8 (textbook parallel RC).
+        // 100 nF in parallel with 200 Ω at 1 kHz: D = G/B ≈ 8 (parallel RC: D = G/B = 1/(ωRC), Hayt, Kemmerly & Durbin, Engineering Circuit Analysis, from memory).
         Recipe r = simple(PartType.CAPACITOR, 100e-9, 1000, FixtureBounds.DEFAULT);
         double g = 1 / 200.0, b = 2 * Math.PI * 1000 * 100e-9, y2 = g * g + b * b;
         Impedance z = new Impedance(1000, g / y2, -b / y2);

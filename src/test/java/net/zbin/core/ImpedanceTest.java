@@ -16,7 +16,7 @@ class ImpedanceTest {
 
     @Test
     void capacitorAtMinus88point4Degrees_hasD0point0279AndQ35point8() {
-        // Common practice: θ = −88.4° → D = tan(1.6°) ≈ 0.0279, Q ≈ 35.8.
+        // IEC 60384-1 (tangent of loss angle: D = tan δ, δ = 90° − |θ|, Q = 1/D), from memory: θ = −88.4° → D = tan(1.6°) ≈ 0.0279, Q ≈ 35.8.
         Impedance z = Impedance.fromPolar(1000, 1000, -88.4);
         assertEquals(0.0279, z.d(), 0.00005);
         assertEquals(35.8, z.q(), 0.05);
@@ -25,7 +25,7 @@ class ImpedanceTest {
 
     @Test
     void at45Degrees_DandQAreOne() {
-        // Common practice: at θ = 45° D = Q = 1.
+        // The same definitions: at θ = 45° D = Q = 1.
         Impedance z = Impedance.fromPolar(1000, 50, 45);
         assertEquals(1.0, z.d(), 1e-12);
         assertEquals(1.0, z.q(), 1e-12);
@@ -33,7 +33,7 @@ class ImpedanceTest {
 
     @Test
     void inductorAt88point5Degrees_hasD0point026AndQ38() {
-        // Common practice: θ = 88.5° → D ≈ 0.026, Q ≈ 38.
+        // The same definitions for an inductor (Q = X/R): θ = 88.5° → D = tan 1.5° ≈ 0.026, Q ≈ 38.
         Impedance z = Impedance.fromPolar(100e3, 3, 88.5);
         assertEquals(0.026, z.d(), 0.0005);
         assertEquals(38.0, z.q(), 0.3);
@@ -42,14 +42,15 @@ class ImpedanceTest {
 
     @Test
     void perfectCapacitorIsMinus90_perfectInductorPlus90() {
-        // Common practice: a perfect C is −90°, a perfect L +90°.
+        // Circuit theory (Z = 1/jωC, Z = jωL; Hayt, Kemmerly & Durbin, Engineering Circuit Analysis, from memory): a perfect C is −90°, a perfect L +90°.
         assertEquals(-90, new Impedance(1000, 0, -1591.5).thetaDeg(), 1e-12);
         assertEquals(90, new Impedance(1000, 0, 29.5).thetaDeg(), 1e-12);
     }
 
     @Test
     void seriesParallelIdentities_holdForRandomReadingsOfAllPartTypes() {
-        // Textbook circuit theory (series/parallel conversion at one frequency): Cp = Cs/(1+D²); Lp = Ls(1+1/Q²); Rp = Rs(1+Q²); D, Q same in both models.
+        // Series/parallel equivalents at one frequency (Hayt, Kemmerly & Durbin, Engineering Circuit Analysis, from memory):
+        // Cp = Cs/(1+D²); Lp = Ls(1+1/Q²); Rp = Rs(1+Q²); D, Q the same in both models.
         Random rnd = new Random(42);
         for (int i = 0; i < 5000; i++) {
             double f = Math.pow(10, 1 + 6 * rnd.nextDouble());
@@ -68,7 +69,7 @@ class ImpedanceTest {
 
     @Test
     void derivedValues_agreeWithCommonsMathComplexReference() {
-        // Independent reference: Apache Commons Math Complex arithmetic on the textbook definitions (Z = R + jX, Y = 1/Z).
+        // Independent reference: Apache Commons Math Complex arithmetic on the definitions (Z = R + jX, Y = 1/Z).
         Random rnd = new Random(7);
         for (int i = 0; i < 5000; i++) {
             double f = Math.pow(10, 1 + 6 * rnd.nextDouble());

@@ -37,7 +37,7 @@ class StatisticsTest {
 
     @Test
     void welford_keepsTheVarianceWhereTheNaiveFormulaLosesIt() {
-        // Textbook example: 4, 7, 13, 16 has variance 30; shifted by 10⁹ the naive Σx² − (Σx)²/n fails, Welford does not.
+        // Welford 1962, Technometrics 4(3): 4, 7, 13, 16 has variance 30 (by hand); shifted by 10⁹ the naive Σx² − (Σx)²/n fails, Welford does not.
         double[] xs = {4, 7, 13, 16};
         RunningStats s = new RunningStats();
         double sum = 0, sq = 0;
@@ -52,8 +52,8 @@ class StatisticsTest {
     }
 
     @Test
-    void capability_textbookExample() {
-        // Textbook example (from memory): USL 62, LSL 38, μ 53, σ 2 → Cp 2.0, Cpk 1.5.
+    void capability_byTheIsoDefinitions() {
+        // ISO 22514-2 definitions (Cp = (USL − LSL)/6σ, Cpk = min(USL − μ, μ − LSL)/3σ), worked by hand: USL 62, LSL 38, μ 53, σ 2 → Cp 2.0, Cpk 1.5.
         assertEquals(2.0, Capability.cp(38, 62, 2), 1e-12);
         assertEquals(1.5, Capability.cpk(38, 62, 53, 2), 1e-12);
         assertTrue(Double.isNaN(Capability.cp(38, 62, 0)));

@@ -133,7 +133,7 @@ class ValuesTest {
 
     @Test
     void toleranceLetters_theRestOfTheTable_includingAsymmetric() {
-        // IEC 60062 tolerance letters (from memory, as listed in the standard's letter-code table):
+        // IEC 60062:2016, the letter code for tolerances (from memory, as the standard's table lists them):
         // L ±0.01 %, P ±0.02 %, W ±0.05 %, N ±30 %; asymmetric Q −10/+30 %, T −10/+50 %, S −20/+50 %.
         assertArrayEquals(new double[] {-0.01, 0.01}, ToleranceCode.parse("L").limitsPct(PartType.RESISTOR, 1e3));
         assertArrayEquals(new double[] {-0.02, 0.02}, ToleranceCode.parse("P").limitsPct(PartType.RESISTOR, 1e3));
