@@ -6,8 +6,10 @@ package net.zbin.core;
  * {@link ChartDesign} (so the false alarms of a stable line stay within the stated budget). A chart point is
  * standardized by the spread of the baseline's subgroup means — which holds variation between subgroups
  * (reels, temperature) as well as the parts' own — and never by less than σ/√n of the parts. The alarm
- * rises on the first signal of either chart and clears after {@code clearAfter} parts without one
- * (hysteresis). Single owner, mutable; {@link #view} is the immutable figure for the dashboard.
+ * rises on the first signal of either chart and clears only when the quantity is back: {@code clearAfter}
+ * parts without a signal and the mean of the points since the last signal within the CUSUM allowance k of
+ * the baseline (a slow drift that keeps the charts restarting does not make the alarm flap). Single owner,
+ * mutable; {@link #view} is the immutable figure for the dashboard.
  */
 public final class DriftChart {
     private final MonitorSettings s;
@@ -21,6 +23,8 @@ public final class DriftChart {
     private boolean alarm;
     private int direction;
     private long quiet, signals, points, charted;
+    private double zSinceSignal;
+    private long nSinceSignal;
 
     /**
      * @param learning    true while the baseline is being learned
@@ -65,12 +69,16 @@ public final class DriftChart {
         if (lastGroups.size() > 4) lastGroups.removeFirst();
         charted++;
         double z = (mean - mu0) / sigmaPoint;
+        zSinceSignal += z;
+        nSinceSignal++;
         boolean e = ewma.add(z);
         int c = cusum.add(z);
         int dir = c != 0 ? c : e ? (z > 0 ? 1 : -1) : 0;
         if (dir != 0) {
             signals++;
             quiet = 0;
+            zSinceSignal = 0;
+            nSinceSignal = 0;
             if (!alarm) {
                 alarm = true;
                 direction = dir;
@@ -100,7 +108,7 @@ public final class DriftChart {
     }
 
     private int quietPart() {
-        if (alarm && ++quiet >= s.clearAfter()) {
+        if (alarm && ++quiet >= s.clearAfter() && nSinceSignal > 0 && Math.abs(zSinceSignal / nSinceSignal) < Math.max(design.k(), 0.25)) {
             alarm = false;
             direction = 0;
             return 2;

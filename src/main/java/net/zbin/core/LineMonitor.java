@@ -30,6 +30,9 @@ public final class LineMonitor {
     private double openResidual = Double.NaN, openStart = Double.NaN, openG = Double.NaN;
     private double shortR = Double.NaN, shortX = Double.NaN, shortStartR = Double.NaN, shortStartX = Double.NaN;
     private double refAbs = Double.NaN, refStart = Double.NaN;
+    /** The fixture checks seen while the value's baseline was learned: the fixture's own baseline over the same parts. */
+    private final RunningStats openLearn = new RunningStats(), shortRLearn = new RunningStats(), shortXLearn = new RunningStats(),
+            refLearn = new RunningStats();
     private int refOffRun, refOkRun;
     private Compensation comp;
     private boolean compNeeded;
@@ -56,6 +59,10 @@ public final class LineMonitor {
         shortStartR = shortR;
         shortStartX = shortX;
         refStart = refAbs;
+        openLearn.reset();
+        shortRLearn.reset();
+        shortXLearn.reset();
+        refLearn.reset();
     }
 
     /** The compensation now in force at the recipe's frequency (null: none), and whether the recipe needs it. */
@@ -147,7 +154,7 @@ public final class LineMonitor {
         double shiftAbs = value.shift() / 100 * recipe.nominal();
         double se = value.shiftError() / 100 * recipe.nominal();
         double evidence = fixtureMove();
-        double ref = Double.isNaN(refAbs) || Double.isNaN(refStart) ? Double.NaN : refAbs - refStart;
+        double ref = Double.isNaN(refAbs) ? Double.NaN : refAbs - since(refLearn, refStart);
         String unit = recipe.partType().unit();
         String moved = SiValue.format(shiftAbs, unit);
         if (Double.isNaN(evidence) && Double.isNaN(ref)) {
@@ -174,14 +181,20 @@ public final class LineMonitor {
         }
     }
 
-    /** How far the fixture moved since the lot started, in the value's unit (NaN without checks). */
+    /**
+     * How far the fixture moved from where it stood while the parts' baseline was learned (the mean of the checks
+     * in that span, else the first check of the lot), in the value's unit (NaN without checks). Measured against the
+     * same span as the parts' shift, a fixture that ramps explains the parts' shift in full, not twice over.
+     */
     private double fixtureMove() {
         return switch (recipe.partType()) {
-            case CAPACITOR -> Double.isNaN(openResidual) || Double.isNaN(openStart) ? Double.NaN : openResidual - openStart;
-            case INDUCTOR -> Double.isNaN(shortX) || Double.isNaN(shortStartX) ? Double.NaN : (shortX - shortStartX) / (2 * Math.PI * recipe.freqHz());
-            case RESISTOR -> Double.isNaN(shortR) || Double.isNaN(shortStartR) ? Double.NaN : shortR - shortStartR;
+            case CAPACITOR -> Double.isNaN(openResidual) ? Double.NaN : openResidual - since(openLearn, openStart);
+            case INDUCTOR -> Double.isNaN(shortX) ? Double.NaN : (shortX - since(shortXLearn, shortStartX)) / (2 * Math.PI * recipe.freqHz());
+            case RESISTOR -> Double.isNaN(shortR) ? Double.NaN : shortR - since(shortRLearn, shortStartR);
         };
     }
+
+    private static double since(RunningStats learned, double first) { return learned.count() > 0 ? learned.mean() : first; }
 
     /** An open check: its R/X are the residual after the stored open (1 / (Ycheck − Yopen)). */
     private void open(Grading g, List<AlarmCode.Change> out) {
@@ -190,6 +203,7 @@ public final class LineMonitor {
         openResidual = z.zOhm() > 1e300 ? 0 : z.cpF();
         openG = z.zOhm() > 1e300 ? 0 : z.gS();
         if (Double.isNaN(openStart)) openStart = openResidual;
+        if (value.learning()) openLearn.add(openResidual);
         double lim = checkLimits.openDriftMaxF();
         boolean on = Math.abs(openResidual) > lim || active.containsKey(AlarmCode.OPEN_RESIDUAL) && Math.abs(openResidual) > lim / 2;
         set(out, AlarmCode.OPEN_RESIDUAL, on, "the open check reads " + SiValue.format(openResidual, "F") + " (and "
@@ -206,6 +220,10 @@ public final class LineMonitor {
             shortStartR = shortR;
             shortStartX = shortX;
         }
+        if (value.learning()) {
+            shortRLearn.add(shortR);
+            shortXLearn.add(shortX);
+        }
         double lim = checkLimits.shortDriftMaxOhm();
         boolean on = z.zOhm() > lim || active.containsKey(AlarmCode.SHORT_RESIDUAL) && z.zOhm() > lim / 2;
         set(out, AlarmCode.SHORT_RESIDUAL, on, "the short check reads " + SiValue.format(shortR, "ohm") + " and "
@@ -216,6 +234,7 @@ public final class LineMonitor {
         if (Double.isFinite(g.devPct())) {
             refAbs = g.devPct() / 100 * recipe.nominal();
             if (Double.isNaN(refStart)) refStart = refAbs;
+            if (value.learning()) refLearn.add(refAbs);
         }
         boolean off = g.reason() == Reason.REFERENCE_OFF;
         refOffRun = off ? refOffRun + 1 : 0;

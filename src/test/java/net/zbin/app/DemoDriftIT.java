@@ -23,7 +23,7 @@ class DemoDriftIT {
     @Test
     void driftingStray_raisesTheCompensationAlarmDuringTheRun_andReplayFindsTheSameAlarmPoints() throws Exception {
         Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", "simulators/scenarios/harrowgate-c0g-100p-stray-drift.yaml",
-                "--parts", "8000", "--rate", "250", "--out", dir.toString()).redirectErrorStream(true).start();
+                "--parts", "12000", "--rate", "250", "--out", dir.toString()).redirectErrorStream(true).start();
         String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
         assertTrue(p.waitFor(5, TimeUnit.MINUTES));
         assertEquals(0, p.exitValue(), out);

@@ -102,4 +102,37 @@ class DriftDetectionTest {
         assertEquals(1, line.alarms.stream().filter(a -> a.change().code() == AlarmCode.LOSS_DRIFT && a.change().active()).findFirst()
                 .map(a -> a.change().message().contains(" up ") ? 1 : -1).orElse(0), "D drifted up");
     }
+
+    @Test
+    void anAlarm_staysUpWhileTheDriftLasts_andClearsWhenItIsGone() throws Exception {
+        Scenario sc = scenario("harrowgate-c0g-47p-stable");
+        Recipe r = recipe("mlcc-c0g-47p");
+        Fixture base = sc.fixture().toFixture(), stepped = base.withStray(base.strayF() + 0.25e-12);
+        LeanLine line = new LeanLine(sc, r, 11);
+        line.run(LEARN, i -> base, m -> m, 250);
+        line.run(3_000, i -> stepped, m -> m, 250);
+        line.run(3_000, i -> base, m -> m, 250);
+        var drift = line.alarms.stream().filter(a -> a.change().code() == AlarmCode.VALUE_DRIFT).toList();
+        assertEquals(2, drift.size(), "raised once and cleared once: " + drift);
+        assertTrue(drift.get(0).change().active() && drift.get(0).part() < LEARN + 500, drift.toString());
+        assertTrue(!drift.get(1).change().active() && drift.get(1).part() > LEARN + 3_000 && drift.get(1).part() < LEARN + 4_500, drift.toString());
+        // A slow ramp keeps restarting the charts; the alarm must not flap.
+        Scenario sc100 = scenario("harrowgate-c0g-100p-stable");
+        Fixture b100 = sc100.fixture().toFixture();
+        LeanLine ramp = new LeanLine(sc100, recipe("mlcc-c0g-100p"), 1);
+        double perPart = 0.5e-12 / 20_000;
+        ramp.run(30_000, i -> b100.withStray(b100.strayF() + perPart * i), m -> m, 250);
+        assertEquals(1, ramp.raised(AlarmCode.VALUE_DRIFT), "one alarm for one ramp: " + ramp.alarms);
+    }
+
+    @Test
+    void aOnePercentStep_onAnX7RLot_isCaughtWithin2500Parts() throws Exception {
+        Scenario sc = scenario("harrowgate-mlcc-100n"); // σ of the parts 4 %: a 1 % step is a quarter of it
+        Recipe r = recipe("mlcc-x7r-100n");
+        Fixture base = sc.fixture().toFixture();
+        long[] d = delays(sc, r, i -> base, m -> m instanceof PartModel.Capacitor cap
+                ? new PartModel.Capacitor(cap.capF() * 1.01, cap.esrOhm(), cap.eslH(), cap.tanDelta()) : m, 5_000, AlarmCode.VALUE_DRIFT);
+        System.out.printf(Locale.ROOT, "+1 %% step on 100 nF X7R (σ 4 %%): value drift after %s parts (mean %.0f)%n", java.util.Arrays.toString(d), mean(d));
+        assertTrue(mean(d) <= 2_500, java.util.Arrays.toString(d));
+    }
 }
