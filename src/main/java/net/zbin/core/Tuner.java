@@ -78,7 +78,7 @@ public final class Tuner {
             }
             BinTally t = counted != null ? counted.tally(r) : gated != null ? gated.tally(r, v.get(0)) : replay(r, kept);
             double[] risk = counted != null ? counted.risk(r, uncertaintyPct) : gated != null ? gated.risk(v.get(0))
-                    : risk(r, devsOf(r, kept), uncertaintyPct);
+                    : risk(r, devsOf(r, kept), processOf(r, kept), uncertaintyPct);
             BinTally.Snapshot s = t.snapshot();
             out.add(new Result(v, label.toString(), true, null, s, s.parts() == 0 ? Double.NaN : 100 * risk[0] / s.parts(),
                     s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
@@ -97,7 +97,7 @@ public final class Tuner {
         seal();
         if (counted != null) return counted.model(uncertaintyPct);
         if (gated != null) return gated.model;
-        double[] d = devsOf(base, kept);
+        double[] d = processOf(base, kept);
         return RiskModel.fromLot(d, d.length, uncertaintyPct);
     }
 
@@ -152,6 +152,27 @@ public final class Tuner {
         return d;
     }
 
+    /** The lot's process sample: every part whose value was read cleanly, whether it then failed a gate or not. */
+    private static double[] processOf(Recipe r, List<RecordedReading> rows) {
+        Doubles d = new Doubles();
+        for (RecordedReading row : rows) {
+            if (row.isCheck()) continue;
+            Grading g = Grader.recorded(r, row);
+            if (inProcess(g)) d.add(g.devPct());
+        }
+        return d.trimmed();
+    }
+
+    /**
+     * Whether a part belongs to the sample the process is estimated from: its value was read cleanly (graded by
+     * value, or rejected by a D/Q/ESR/θ gate after its value was known). The same sample on every path, so the
+     * same setting has the same risk however it is reached.
+     */
+    static boolean inProcess(Grading g) {
+        return g.verdict() != Verdict.RETEST && (byValue(g.reason()) || g.reason().rejectClass() == Reason.RejectClass.GATE
+                && g.reason() != Reason.PHASE_IMPLAUSIBLE) && Double.isFinite(g.devPct());
+    }
+
     static boolean byValue(Reason r) {
         return r == Reason.IN_GRADE || r == Reason.VALUE_LOW || r == Reason.VALUE_HIGH || r == Reason.GUARD_BAND;
     }
@@ -160,13 +181,14 @@ public final class Tuner {
     static final class Counted {
         final BinTally fixed = new BinTally();
         private final Recipe base;
-        private final Doubles collected = new Doubles();
+        private final Doubles collected = new Doubles(), process = new Doubles();
         double[] devs;
 
         Counted(Recipe base) { this.base = base; }
 
         void add(RecordedReading row) {
             Grading g = Grader.recorded(base, row);
+            if (!row.isCheck() && inProcess(g)) process.add(g.devPct());
             if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) collected.add(g.devPct());
             else fixed.add(g, !row.isCheck());
         }
@@ -261,23 +283,23 @@ public final class Tuner {
         private RiskModel model;
 
         RiskModel model(double u) {
-            if (model == null) model = RiskModel.fromLot(devs, devs.length, u);
+            if (model == null) model = RiskModel.fromLot(process.a, process.n, u);
             return model;
         }
 
         double[] risk(Recipe r, double u) {
             if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
             if (bins == null) bins = bin(devs, width(model(u)));
-            return Tuner.risk(r, bins, model(u));
+            return Tuner.risk(r, devs, bins, model(u));
         }
     }
 
     /** Bin width for the risk sums: a tenth of the posterior σ, and no more than 0.01 %. */
     static double width(RiskModel m) { return Math.min(0.01, m.posteriorSigmaPct() / 10); }
 
-    /** Sorted deviations grouped in bins of {@code w} %: [means, counts]. O(N) once. */
+    /** Sorted deviations grouped in bins of {@code w} %: [means, counts, first index]. O(N) once. */
     static double[][] bin(double[] devs, double w) {
-        double[] mean = new double[devs.length], count = new double[devs.length];
+        double[] mean = new double[devs.length], count = new double[devs.length], first = new double[devs.length];
         int b = 0, i = 0;
         while (i < devs.length) {
             double start = Math.floor(devs[i] / w) * w;
@@ -286,10 +308,11 @@ public final class Tuner {
             while (j < devs.length && devs[j] < start + w) sum += devs[j++];
             if (j == i) sum += devs[j++]; // rounding at a bin's edge: never an empty bin
             mean[b] = sum / (j - i);
+            first[b] = i;
             count[b++] = j - i;
             i = j;
         }
-        return new double[][] {java.util.Arrays.copyOf(mean, b), java.util.Arrays.copyOf(count, b)};
+        return new double[][] {java.util.Arrays.copyOf(mean, b), java.util.Arrays.copyOf(count, b), java.util.Arrays.copyOf(first, b)};
     }
 
     /**
@@ -309,7 +332,7 @@ public final class Tuner {
 
         private final Recipe r0;
         private final double u;
-        private final Doubles mCol = new Doubles(), kCol = new Doubles(), devCol = new Doubles();
+        private final Doubles mCol = new Doubles(), kCol = new Doubles(), devCol = new Doubles(), process = new Doubles();
         private boolean sealed;
         RiskModel model;
 
@@ -330,6 +353,7 @@ public final class Tuner {
 
         void add(RecordedReading row) {
             Grading gr = Grader.recorded(r0, row);
+            if (!row.isCheck() && inProcess(gr)) process.add(gr.devPct());
             if (row.isCheck() || !affected(gr.reason(), q)) {
                 fixed.add(gr, !row.isCheck());
                 return;
@@ -360,15 +384,13 @@ public final class Tuner {
             if (u > 0) {
                 // The process is the lot's as the recipe without the swept gate grades it; each row's risk is that of
                 // its own reading under that prior.
-                Doubles byValue = new Doubles();
-                for (int i = 0; i < n; i++) if (!Double.isNaN(devCol.a[i])) byValue.add(devCol.a[i]);
-                model = RiskModel.fromLot(byValue.a, byValue.n, u);
+                model = RiskModel.fromLot(process.a, process.n, u);
                 double[][] one = new double[2][1];
                 for (int i = 0; i < n; i++) {
                     if (Double.isNaN(devCol.a[i])) continue;
                     one[0][0] = devCol.a[i];
                     one[1][0] = 1;
-                    double[] rk = Tuner.risk(r0, one, model);
+                    double[] rk = Tuner.risk(r0, one[0], new double[][] {one[0], one[1], {0}}, model);
                     fa[i] = rk[0];
                     fr[i] = rk[1];
                 }
@@ -420,27 +442,38 @@ public final class Tuner {
         }
     }
 
-    /** [expected false accepts, expected false rejects] over sorted deviations, under the lot's own process model. */
-    static double[] risk(Recipe r, double[] devs, double u) {
+    /** [expected false accepts, expected false rejects] over sorted deviations, under the process of the lot's sample. */
+    static double[] risk(Recipe r, double[] devs, double[] process, double u) {
         if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
-        RiskModel m = RiskModel.fromLot(devs, devs.length, u);
-        return risk(r, bin(devs, width(m)), m);
+        RiskModel m = RiskModel.fromLot(process, process.length, u);
+        return risk(r, devs, bin(devs, width(m)), m);
     }
 
-    /** The same over pre-grouped bins [means, counts]: O(B). */
-    static double[] risk(Recipe r, double[][] bins, RiskModel m) {
+    /**
+     * The same over pre-grouped bins [means, counts, first index] of the sorted deviations: O(B). A bin whose first
+     * and last deviation are accepted differently (an acceptance limit runs through it) is summed row by row, so
+     * the figure is the row-by-row sum up to the posterior's curvature within a bin, on every path alike.
+     */
+    static double[] risk(Recipe r, double[] devs, double[][] bins, RiskModel m) {
         if (bins[0].length == 0) return new double[] {0, 0};
-        double fa = 0, fr = 0;
-        List<Grade> gs = r.grades();
-        double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
-        double specHi = gs.get(gs.size() - 1).highPct();
+        double[] out = new double[2];
         for (int b = 0; b < bins[0].length; b++) {
-            double x = bins[0][b], c = bins[1][b];
-            Grade g = accepting(r, x);
-            if (g != null) fa += c * m.outside(x, g.lowPct(), g.highPct());
-            else fr += c * m.inside(x, specLo, specHi);
+            int first = (int) bins[2][b], n = (int) bins[1][b];
+            if (n > 1 && accepting(r, devs[first]) != accepting(r, devs[first + n - 1]))
+                for (int i = first; i < first + n; i++) add(r, devs[i], 1, m, out);
+            else add(r, bins[0][b], n, m, out);
         }
-        return new double[] {fa, fr};
+        return out;
+    }
+
+    private static void add(Recipe r, double x, double c, RiskModel m, double[] out) {
+        Grade g = accepting(r, x);
+        if (g != null) out[0] += c * m.outside(x, g.lowPct(), g.highPct());
+        else {
+            List<Grade> gs = r.grades();
+            double specLo = r.mode() == GradingMode.CONCENTRIC ? gs.get(gs.size() - 1).lowPct() : gs.get(0).lowPct();
+            out[1] += c * m.inside(x, specLo, gs.get(gs.size() - 1).highPct());
+        }
     }
 
     private static Grade accepting(Recipe r, double x) {

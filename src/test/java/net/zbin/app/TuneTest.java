@@ -200,4 +200,25 @@ class TuneTest {
         assertTrue(weighted.path("settings").get(0).path("value_pct").asDouble() > weighted.path("settings").get(3).path("value_pct").asDouble());
         assertTrue(plain.path("risk_model").path("process_sigma_pct").asDouble() > 0, plain.toPrettyString());
     }
+
+    @Test
+    void theSameSetting_hasTheSameRisk_onEveryPath() throws Exception {
+        // The recipe as it stands, reached by a gate sweep (row by row), a guard sweep (binned) and a nominal sweep (replayed).
+        Recipe mlcc = RecipeLoader.load(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
+        List<RecordedReading> rows = rows(Path.of("simulators/lots/lot-mlcc-100n.csv"));
+        double[] fa = new double[3], fr = new double[3];
+        String[] specs = {"d_max=0.025", "guard=0.3", "nominal=100n"};
+        for (int i = 0; i < 3; i++) {
+            Tuner t = new Tuner(mlcc, List.of(Sweep.parse(specs[i], mlcc.partType())), 0.3);
+            rows.forEach(t::add);
+            Tuner.Result r = t.results().get(0);
+            assertEquals(Tuner.replay(mlcc, rows).snapshot(), r.tally(), specs[i]);
+            fa[i] = r.falseAcceptPct();
+            fr[i] = r.falseRejectPct();
+        }
+        for (int i = 1; i < 3; i++) {
+            assertEquals(fa[0], fa[i], 0.01 * fa[0] + 1e-9, "false accept, " + specs[i] + " vs " + specs[0]);
+            assertEquals(fr[0], fr[i], 0.01 * fr[0] + 1e-9, "false reject, " + specs[i] + " vs " + specs[0]);
+        }
+    }
 }
