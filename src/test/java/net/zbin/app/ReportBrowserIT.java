@@ -88,9 +88,13 @@ class ReportBrowserIT {
     void tuneReport_opensWithoutConsoleErrors_andItsCurvesRender() throws Exception {
         Path html = OUT.resolve("tune.html");
         Cli c = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", "simulators/lots/lot-mlcc-100n.csv",
-                "--vary", "guard=0:1:0.1", "--vary", "d_max=0.02,0.025", "--target-false-accept", "0.02", "--report", html.toString());
+                "--vary", "guard=0:1:0.1", "--vary", "grade.K=8,10", "--target-false-accept", "0.02", "--report", html.toString());
         assertEquals(0, c.exit(), c.err());
         look(html, "tune");
-        assertTrue(Files.readString(html).contains("false accept") && Files.readString(html).contains("recommended"));
+        String text = Files.readString(html);
+        assertTrue(text.contains("false accept") && text.contains("recommended: "), "the pick is marked");
+        assertTrue(text.contains("false-accept target 0.02 %"), "the target is marked");
+        assertTrue(text.contains("(grade.K=8)") && text.contains("(grade.K=10)"), "the legends name the second sweep");
+        assertTrue(text.contains("guard (U), % of reading") && text.contains("risk, % of parts finished"), "units on the axes");
     }
 }

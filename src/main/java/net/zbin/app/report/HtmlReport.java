@@ -160,7 +160,7 @@ public final class HtmlReport {
             y.vline(pick.values().get(0), "recommended: " + pick.label(), "#c62828", "4,2", 0);
             risk.vline(pick.values().get(0), "recommended: " + pick.label(), "#c62828", "4,2", 0);
         }
-        if (target != null) risk.hline(target, "false-accept target " + Svg.num(target) + " %", "#c62828", "2,2");
+        if (target != null) risk.hline(target, "false-accept target " + net.zbin.core.SiValue.plain(target) + " %", "#c62828", "2,2");
         b.append(y).append(risk);
         return this;
     }
