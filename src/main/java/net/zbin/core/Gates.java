@@ -38,6 +38,7 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
         if (dMax != null && !(d <= dMax)) return Reason.D_HIGH;
         if (qMin != null && !(d <= 1 / qMin)) return Reason.Q_LOW;
         if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return Reason.ESR_HIGH;
+        if (thetaMinDeg == null && thetaMaxDeg == null) return null; // θ (an atan2) only when a gate needs it
         double t = z.thetaDeg();
         if (thetaMinDeg != null && t < thetaMinDeg) return Reason.THETA_OUT;
         if (thetaMaxDeg != null && t > thetaMaxDeg) return Reason.THETA_OUT;

@@ -33,7 +33,14 @@ public record Impedance(double freqHz, double rOhm, double xOhm) {
     /** Angular frequency ω = 2πf in rad/s. */
     public double omega() { return 2 * Math.PI * freqHz; }
 
-    public double zOhm() { return Math.hypot(rOhm, xOhm); }
+    /**
+     * |Z| in ohms: √(R² + X²) directly (a few ns; {@code Math.hypot} is ten times that and too big to inline on the
+     * hot path), falling back to hypot only where the squares would overflow or underflow.
+     */
+    public double zOhm() {
+        double s = Math.sqrt(rOhm * rOhm + xOhm * xOhm);
+        return s == Double.POSITIVE_INFINITY || s < 1e-150 && (rOhm != 0 || xOhm != 0) ? Math.hypot(rOhm, xOhm) : s;
+    }
 
     /** Phase angle in degrees, −90 (pure C) … +90 (pure L). */
     public double thetaDeg() { return Math.toDegrees(Math.atan2(xOhm, rOhm)); }

@@ -9,7 +9,13 @@ package net.zbin.core;
  * @param minDeg lowest plausible θ in degrees, −90 … 90
  * @param maxDeg highest plausible θ in degrees, above minDeg
  */
-public record PhaseWindow(double minDeg, double maxDeg) {
+public record PhaseWindow(double minDeg, double maxDeg, double cosMin, double sinMin, double cosMax, double sinMax) {
+    /** The window from −90…90° bounds; the sines and cosines are kept so a reading is judged without an atan2. */
+    public PhaseWindow(double minDeg, double maxDeg) {
+        this(minDeg, maxDeg, Math.cos(Math.toRadians(minDeg)), Math.sin(Math.toRadians(minDeg)), Math.cos(Math.toRadians(maxDeg)),
+                Math.sin(Math.toRadians(maxDeg)));
+    }
+
     public PhaseWindow {
         if (!(minDeg >= -90 && minDeg <= 90))
             throw new SpecException("plausible.theta_min_deg", "must be within -90..90 (was " + minDeg + ")");
@@ -32,6 +38,17 @@ public record PhaseWindow(double minDeg, double maxDeg) {
      * compensation's resolution below zero is still a loss-free reading, not a phase beyond ±90°.
      */
     public boolean admits(Impedance z) {
+        double r = Math.max(z.rOhm(), 0), x = z.xOhm();
+        if (r == 0 && x == 0) return minDeg <= 0 && maxDeg >= 0; // atan2(0, 0) is 0°
+        // With θ and a bound both in −90…90°, θ ≥ bound exactly when sin(θ − bound) ≥ 0, i.e. x·cos b − r·sin b ≥ 0
+        // ((r, x) = |Z|(cos θ, sin θ)); the ±90° bounds are always met.
+        boolean above = minDeg <= -90 || x * cosMin - r * sinMin >= 0;
+        boolean below = maxDeg >= 90 || x * cosMax - r * sinMax <= 0;
+        return above && below;
+    }
+
+    /** The same judged through θ itself (atan2), for the test that holds the two together. */
+    boolean admitsByAngle(Impedance z) {
         double t = Math.toDegrees(Math.atan2(z.xOhm(), Math.max(z.rOhm(), 0)));
         return t >= minDeg && t <= maxDeg;
     }

@@ -17,6 +17,7 @@ import org.openjdk.jmh.runner.options.OptionsBuilder;
 class JmhBench {
     @Test
     void decisionCoreAndReplayRows() throws Exception {
+        java.nio.file.Files.createDirectories(java.nio.file.Path.of("target/bench")); // also when run alone (-Dtest=JmhBench)
         Options o = new OptionsBuilder().include(DecisionJmh.class.getName())
                 .forks(1).warmupIterations(3).measurementIterations(5)
                 .warmupTime(org.openjdk.jmh.runner.options.TimeValue.seconds(1))

@@ -129,18 +129,40 @@ final class LineStats implements DecisionListener {
 
     synchronized String lot() { return lot; }
 
-    synchronized Snapshot snapshot() {
-        BinTally.Snapshot all = tally.snapshot();
-        BinTally.Snapshot l = all.minus(base);
+    /**
+     * The figures now. Only copies are taken under the lock (the tally, the ring's sums, the latency histogram);
+     * the percentiles are read from the copy after it, so the measuring thread never waits on the dashboard.
+     */
+    Snapshot snapshot() {
+        BinTally.Snapshot all, l;
+        double minute;
+        long[] h, m10;
+        Histogram lat;
+        String lotNow;
+        Instant since;
+        long dec, lt, rep, rej, reused, bz;
+        synchronized (this) {
+            all = tally.snapshot();
+            l = all.minus(base);
+            long now = clock.instant().getEpochSecond();
+            minute = finishedSince(now - 60, now)[0] * 60.0;
+            h = finishedSince(now - 3600, now);
+            m10 = finishedSince(now - 600, now);
+            lat = latencyUs.copy();
+            lotNow = lot;
+            since = lotSince;
+            dec = decisions;
+            lt = late;
+            rep = repeats;
+            rej = rejected;
+            reused = reusedSeqs;
+            bz = busy;
+        }
         double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
-        long now = clock.instant().getEpochSecond();
-        double minute = finishedSince(now - 60, now)[0] * 60.0;
-        long[] h = finishedSince(now - 3600, now), m10 = finishedSince(now - 600, now);
-        double hour = h[0];
-        boolean any = latencyUs.getTotalCount() > 0;
-        return new Snapshot(lot, lotSince, l, all, ci[0] * 100, ci[1] * 100, minute, hour,
-                any ? latencyUs.getValueAtPercentile(50) / 1000.0 : Double.NaN,
-                any ? latencyUs.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? latencyUs.getMaxValue() / 1000.0 : Double.NaN, decisions, late, repeats, rejected, reusedSeqs, busy, m10, h);
+        boolean any = lat.getTotalCount() > 0;
+        return new Snapshot(lotNow, since, l, all, ci[0] * 100, ci[1] * 100, minute, h[0],
+                any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN,
+                any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, dec, lt, rep, rej, reused, bz, m10, h);
     }
 }

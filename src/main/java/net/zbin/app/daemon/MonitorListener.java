@@ -68,7 +68,16 @@ final class MonitorListener implements DecisionListener {
                 || recipe.needsShortCompensation(), clock.instant()));
     }
 
-    synchronized void tick() { forward(monitor.tick(clock.instant())); }
+    /** The ticker's look at the compensation's age: judged under the lock, the alarms sent after it (the measuring thread never waits on a send). */
+    void tick() {
+        List<AlarmCode.Change> changes;
+        boolean rec;
+        synchronized (this) {
+            changes = monitor.tick(clock.instant());
+            rec = !recovering;
+        }
+        for (AlarmCode.Change c : changes) mode.alarm(c.code(), c.active(), c.message(), rec);
+    }
 
     synchronized LineMonitor.Snapshot snapshot() { return monitor.snapshot(clock.instant()); }
 
