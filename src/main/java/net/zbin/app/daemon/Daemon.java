@@ -87,7 +87,18 @@ public final class Daemon implements AutoCloseable {
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
         recover();
-        path.onLotEnd(this::publishDashboard); // the finished lot's last figures, retained until the next dashboard
+        // The finished lot's last figures, retained until the next dashboard: encoded on the measuring thread before
+        // the figures move to the new lot (a fraction of a millisecond), published by the ticker (no file, no send here).
+        path.onLotEnd(() -> {
+            byte[] last = dashboard(mode.mode());
+            ticker.execute(() -> {
+                try {
+                    mqtt.publish(topics.dashboard(), last, 0, true);
+                } catch (RuntimeException e) {
+                    LOG.warn("dashboard: {}", e.toString());
+                }
+            });
+        });
         monitor.compensation(setup.compensation());
         records.start();
         // The broker connect, the warm-up (CPU) and the meter probe (I/O) run side by side; the line says ready
