@@ -52,8 +52,12 @@ class HandlerSimIT {
                 }
             });
             t.start();
-            Thread.sleep(1500);
-            assertTrue(!run.isDone(), "nothing fed while no line is online");
+            // No sleep to prove nothing was fed: wait (bounded) until the handler says it is waiting for the line, then
+            // check it sent no trigger on the way there.
+            long until = System.currentTimeMillis() + 30_000;
+            while (!h.pausedForLine() && !run.isDone() && System.currentTimeMillis() < until) java.util.concurrent.locks.LockSupport.parkNanos(1_000_000);
+            assertTrue(h.pausedForLine() && !run.isDone(), "the handler waits for the line");
+            assertEquals(0, h.triggersSent(), "nothing fed while no line is online");
             rig[0] = new LineRig(dir, "late", broker.url(), sc, "mlcc-x7r-100n", "", null, contacts);
             HandlerSim.Summary s = run.get(60, TimeUnit.SECONDS);
             assertEquals(1, s.offlinePauses());

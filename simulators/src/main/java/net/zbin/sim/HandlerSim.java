@@ -204,13 +204,27 @@ public final class HandlerSim implements AutoCloseable {
     private void awaitOnline() throws InterruptedException, TimeoutException {
         long end = System.currentTimeMillis() + o.offlineWaitMs();
         synchronized (stateLock) {
-            while (!online) {
-                long left = end - System.currentTimeMillis();
-                if (left <= 0) throw new TimeoutException("line " + o.line() + " did not come online within " + o.offlineWaitMs() + " ms");
-                stateLock.wait(left);
+            paused = true;
+            try {
+                while (!online) {
+                    long left = end - System.currentTimeMillis();
+                    if (left <= 0) throw new TimeoutException("line " + o.line() + " did not come online within " + o.offlineWaitMs() + " ms");
+                    stateLock.wait(left);
+                }
+            } finally {
+                paused = false;
             }
         }
     }
+
+    private volatile boolean paused;
+    private final java.util.concurrent.atomic.AtomicLong triggersSent = new java.util.concurrent.atomic.AtomicLong();
+
+    /** True while the handler waits for the line to come (back) online, feeding nothing. */
+    public boolean pausedForLine() { return paused; }
+
+    /** Trigger messages published so far (first sends and re-sends). */
+    public long triggersSent() { return triggersSent.get(); }
 
     private JsonNode trigger(String kind, String part, long retestOf) throws Exception {
         long s = seq++;
@@ -255,6 +269,7 @@ public final class HandlerSim implements AutoCloseable {
         while (true) {
             try {
                 client.publish(topic, msg, 1, false);
+                if (topic.endsWith("/trigger")) triggersSent.incrementAndGet();
                 return;
             } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
                 if (System.currentTimeMillis() > end) throw e;
