@@ -91,8 +91,21 @@ public final class RecordLog implements AutoCloseable {
         timer.scheduleWithFixedDelay(this::tick, period, period, TimeUnit.MILLISECONDS);
     }
 
+    /**
+     * Opens the file of {@code now}'s day ahead of the first row (at start, before the line says ready), so the first
+     * part does not pay for the open. A failure here is not reported: the first write will be, with its decision.
+     */
+    public synchronized void prepare(Instant now) {
+        if (closed || failing) return;
+        try {
+            ensureFile(now);
+        } catch (IOException | RuntimeException e) {
+            LOG.debug("record log not opened ahead: {}", e.toString());
+        }
+    }
+
     /** The row's bytes as they go to the file (free-text cells spreadsheet-safe, see {@link DecisionFields#row}). */
-    static byte[] encode(DecisionFields.Entry e) {
+    public static byte[] encode(DecisionFields.Entry e) {
         return (FORMAT.format((Object[]) DecisionFields.row(e)) + "\n").getBytes(StandardCharsets.UTF_8);
     }
 

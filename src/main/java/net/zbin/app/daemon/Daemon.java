@@ -101,6 +101,7 @@ public final class Daemon implements AutoCloseable {
         });
         monitor.compensation(setup.compensation());
         records.start();
+        records.prepare(clock.instant()); // today's file opened now, not at the first part
         // The broker connect, the warm-up (CPU) and the meter probe (I/O) run side by side; the line says ready
         // only when all three are done, so the first part is measured on a warm path.
         long t0 = System.nanoTime();

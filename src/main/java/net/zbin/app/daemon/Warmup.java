@@ -9,12 +9,20 @@ import net.zbin.core.Reading;
 import net.zbin.core.Recipe;
 import net.zbin.core.Trigger;
 import net.zbin.io.DecisionFields;
+import net.zbin.core.FixtureCheck;
+import net.zbin.core.LineMonitor;
+import net.zbin.io.Json;
+import net.zbin.io.RecordLog;
+import net.zbin.io.mqtt.PayloadException;
 import net.zbin.io.mqtt.Payloads;
+import net.zbin.io.mqtt.TriggerCodec;
+import org.HdrHistogram.Histogram;
 
 /**
- * Runs the decision path on invented readings before the line says it is ready — class loading and
- * JIT of grading and encoding — so the first real part of a shift is answered inside the handler's
- * deadline. Nothing it computes leaves this class.
+ * Runs the decision path on invented triggers and readings before the line says it is ready — class loading
+ * and JIT of the trigger decoder, grading, the line monitor, the latency histogram, and the decision's JSON and
+ * record-row encodings — so the first real part of a shift is answered inside the handler's deadline. Nothing
+ * it computes leaves this class (the monitor and histogram are scratch copies).
  */
 final class Warmup {
     private Warmup() {}
@@ -28,15 +36,26 @@ final class Warmup {
         double ideal = r.idealZOhm(), f = r.freqHz();
         double sign = switch (r.partType()) { case CAPACITOR -> -1; case INDUCTOR -> 1; case RESISTOR -> 0; };
         long sum = 0;
+        LineMonitor monitor = new LineMonitor(r.monitor(), FixtureCheck.Limits.DEFAULT, r);
+        Histogram latency = new Histogram(60_000_000L, 3);
+        com.fasterxml.jackson.databind.node.ObjectNode trigger = Json.object();
         for (int i = 0; i < rounds && (i % 256 != 0 || System.nanoTime() < end); i++) {
+            trigger.put("seq", i).put("part", "W" + i).put("lot", "warm-up").put("kind", "part");
+            try {
+                sum += TriggerCodec.decode(Payloads.bytes(trigger)).seq();
+            } catch (PayloadException e) {
+                throw new IllegalStateException("warm-up trigger refused: " + e.getMessage(), e);
+            }
             double dev = ((i * 7919) % 400 - 200) / 1000.0;
             double z = ideal * (1 + dev);
             Reading rd = sign == 0 ? new Reading(f, z, z * 1e-4) : new Reading(f, z * 0.01, sign * z);
             Grading g = Grader.grade(r, rd, comp, i % 2);
             Decision d = new Decision(i, "warm-up", "warm-up", Trigger.Kind.PART, r.name(), g, 0.1, false, i % 2);
+            sum += monitor.observe(d).size();
+            latency.recordValue(100 + i % 1000);
             sum += Payloads.bytes(DecisionFields.json(d)).length;
-            sum += DecisionFields.row(new DecisionFields.Entry(Instant.EPOCH, "warm-up", d)).length;
+            sum += RecordLog.encode(new DecisionFields.Entry(Instant.EPOCH, "warm-up", d)).length;
         }
-        return sum;
+        return sum + latency.getTotalCount();
     }
 }
