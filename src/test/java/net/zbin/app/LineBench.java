@@ -39,7 +39,7 @@ import org.junit.jupiter.api.io.TempDir;
  * Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
  */
 class LineBench {
-    static final int PACE = 200, SAMPLES = 3000;
+    static final int PACE = 200, SAMPLES = 3000, LOTS = 5;
 
     @TempDir
     Path dir;
@@ -161,6 +161,15 @@ class LineBench {
                 Histogram first = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"F\"", 100, PACE, 0);
                 paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 500, PACE, 10_000);
                 Histogram line = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", SAMPLES, PACE, 100_000);
+                // A lot change every 1 000 parts at the handler's pace: every decision, and the first of each new lot.
+                Histogram lots = new Histogram(60_000_000_000L, 3), firstOfLot = new Histogram(60_000_000_000L, 3);
+                for (int k = 0; k < LOTS; k++) {
+                    String lotPart = ", \"part\": \"L" + k + "\", \"lot\": \"BENCH-LOT-" + k + "\"";
+                    Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 300_000 + k * 10_000L);
+                    firstOfLot.add(first1);
+                    lots.add(first1);
+                    lots.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, 999, PACE, 300_001 + k * 10_000L));
+                }
                 double floorP50 = (echoH.getValueAtPercentile(50) + meterH.getValueAtPercentile(50)) / 1e6;
                 double floorP99 = (echoH.getValueAtPercentile(99) + meterH.getValueAtPercentile(99)) / 1e6;
                 out.set("echo", json(echoH));
@@ -170,11 +179,14 @@ class LineBench {
                 out.put("floor_p99_ms", floorP99);
                 out.set("line_at_" + PACE + "_per_s", json(line));
                 out.set("first_100_after_start", json(first));
+                out.set("lot_change_every_1000_at_" + PACE + "_per_s", json(lots));
+                out.set("first_decision_of_a_lot", json(firstOfLot));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 System.out.printf(Locale.ROOT, "%n  %-46s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", echoH}, {"floor: meter request/response", meterH},
                         {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line},
-                        {"first 100 decisions after start", first}, {"  of it inside zbin: arrival -> decided", INSIDE}}) {
+                        {"first 100 decisions after start", first}, {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
+                        {"  the first decision of each lot", firstOfLot}, {"  of it inside zbin: arrival -> decided", INSIDE}}) {
                     Histogram h = (Histogram) e[1];
                     System.out.printf(Locale.ROOT, "  %-46s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
                             h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
