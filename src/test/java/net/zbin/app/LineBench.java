@@ -103,6 +103,32 @@ class LineBench {
         return h;
     }
 
+    /** The daemon's threads in this JVM: its own (line-…, ticker, record-log-…, mqtt-…, overflow-…) and its MQTT client's (client id zbin-bench). */
+    static boolean daemonThread(String n) {
+        if (n.contains("zbin-bench")) return true;
+        for (String p : new String[] {"line-", "ticker", "record-log-", "mqtt-outbox", "mqtt-redial", "overflow-"}) if (n.startsWith(p)) return true;
+        return false;
+    }
+
+    /** CPU time of the daemon's live threads, ns (a thread that ended in between is not counted: the figure is a floor). */
+    static long daemonCpuNs() {
+        java.lang.management.ThreadMXBean mx = java.lang.management.ManagementFactory.getThreadMXBean();
+        long sum = 0;
+        for (java.lang.management.ThreadInfo ti : mx.getThreadInfo(mx.getAllThreadIds())) {
+            if (ti == null || !daemonThread(ti.getThreadName())) continue;
+            long c = mx.getThreadCpuTime(ti.getThreadId());
+            if (c > 0) sum += c;
+        }
+        return sum;
+    }
+
+    /** User + system CPU time of a process from /proc/PID/stat, ns (clock ticks of 10 ms, Linux's USER_HZ). */
+    static long processCpuNs(long pid) throws java.io.IOException {
+        String stat = java.nio.file.Files.readString(java.nio.file.Path.of("/proc", Long.toString(pid), "stat"));
+        String[] f = stat.substring(stat.lastIndexOf(')') + 2).split(" ");
+        return (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L; // fields 14 and 15 of stat (utime, stime)
+    }
+
     static ObjectNode json(Histogram h) {
         ObjectNode n = Json.object();
         for (double p : new double[] {50, 99, 99.9}) n.put("p" + (p == 99.9 ? "999" : Integer.toString((int) p)) + "_ms", h.getValueAtPercentile(p) / 1e6);
@@ -225,6 +251,7 @@ class LineBench {
                     dup.set(0);
                     busy.set(0);
                     seen.clear();
+                    long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid());
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
                         while (true) {
@@ -245,15 +272,20 @@ class LineBench {
                     long end = System.currentTimeMillis() + 20_000;
                     while (answered.get() < n && System.currentTimeMillis() < end) Thread.sleep(20);
                     double doneS = (System.nanoTime() - start) / 1e9;
+                    double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
+                    double brokerUs = (processCpuNs(broker.pid()) - broker0) / 1e3 / Math.max(1, answered.get());
                     ObjectNode r = rates.putObject(Integer.toString(rate));
+                    r.put("zbin_cpu_us_per_decision", zbinUs);
+                    r.put("broker_cpu_us_per_decision", brokerUs);
                     r.put("sent", n);
                     r.put("answered", answered.get());
                     r.put("duplicated", dup.get());
                     r.put("line_busy", busy.get());
                     r.put("send_s", sendS);
                     r.put("all_answered_after_s", doneS);
-                    System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated, %d line-busy), all answered after %.1f s%n",
-                            rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS);
+                    System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated, %d line-busy), all answered after %.1f s;"
+                                    + " CPU per decision: zbin %.0f µs, Mosquitto %.0f µs (%.1f ×)%n",
+                            rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS, zbinUs, brokerUs, zbinUs / brokerUs);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }

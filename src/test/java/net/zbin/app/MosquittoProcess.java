@@ -30,6 +30,9 @@ public final class MosquittoProcess implements AutoCloseable {
         start();
     }
 
+    /** The broker's process id (for its CPU time in /proc). */
+    public long pid() { return process.pid(); }
+
     /** Starts (again) on the same port from the same config, and waits until it listens. */
     public void start() throws IOException, InterruptedException {
         process = new ProcessBuilder("mosquitto", "-c", conf.toString()).redirectErrorStream(true)
