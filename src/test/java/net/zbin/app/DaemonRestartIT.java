@@ -54,9 +54,10 @@ class DaemonRestartIT {
                     "handler-crash", NoDelaySockets.plain(), null, null, 90_000);
             ExecutorService run = Executors.newSingleThreadExecutor();
             HandlerSim h = new HandlerSim(o, sc, PartLoader.direct(contacts));
-            Future<HandlerSim.Summary> f = run.submit(() -> h.run(p -> { }));
+            java.util.concurrent.atomic.AtomicLong presented = new java.util.concurrent.atomic.AtomicLong();
+            Future<HandlerSim.Summary> f = run.submit(() -> h.run(p -> presented.set(p.parts())));
             for (int i = 1; i <= 5; i++) {
-                Thread.sleep(3000);
+                TestLine.awaitParts(presented, 300L * i, f); // a kill every 300 parts, however fast the machine is
                 daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS); // SIGKILL
                 daemon = start(cfg, i);
             }

@@ -224,6 +224,8 @@ class LineBench {
                 ObjectNode rates = out.putObject("open_loop");
                 AtomicLong answered = new AtomicLong(), dup = new AtomicLong(), busy = new AtomicLong();
                 Map<String, Boolean> seen = new ConcurrentHashMap<>();
+                Map<String, Long> sentAt = new ConcurrentHashMap<>();
+                Histogram openLat = new Histogram(60_000_000_000L, 3);
                 MqttAsyncClient counter = new MqttAsyncClient(broker.url(), "bench-count-" + System.nanoTime(), new MemoryPersistence());
                 counter.setCallback(new MqttCallback() {
                     public void connectionLost(Throwable t) { }
@@ -233,6 +235,8 @@ class LineBench {
                         int a = p.indexOf("\"part\"");
                         String part = p.substring(a, p.indexOf(',', a));
                         if (seen.putIfAbsent(part, true) != null) dup.incrementAndGet();
+                        Long t0 = sentAt.remove(part.substring(part.indexOf(':') + 1).replace("\"", "").trim());
+                        if (t0 != null) synchronized (openLat) { openLat.recordValue(Math.max(1, System.nanoTime() - t0)); }
                         if (p.contains("\"line-busy\"")) busy.incrementAndGet(); // answered, but not measured
                         answered.incrementAndGet();
                     }
@@ -251,9 +255,12 @@ class LineBench {
                     dup.set(0);
                     busy.set(0);
                     seen.clear();
+                    sentAt.clear();
+                    synchronized (openLat) { openLat.reset(); }
                     long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid());
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
+                        sentAt.put("R" + rate + "-" + i, System.nanoTime());
                         while (true) {
                             try {
                                 handler.publish("zbin/bench/trigger", ("{\"seq\": " + seq + ", \"part\": \"R" + rate + "-" + i + "\", \"lot\": \"BENCH\"}")
@@ -275,6 +282,13 @@ class LineBench {
                     double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
                     double brokerUs = (processCpuNs(broker.pid()) - broker0) / 1e3 / Math.max(1, answered.get());
                     ObjectNode r = rates.putObject(Integer.toString(rate));
+                    double p50, p99;
+                    synchronized (openLat) {
+                        p50 = openLat.getValueAtPercentile(50) / 1e6;
+                        p99 = openLat.getValueAtPercentile(99) / 1e6;
+                    }
+                    r.put("p50_ms", p50);
+                    r.put("p99_ms", p99);
                     r.put("zbin_cpu_us_per_decision", zbinUs);
                     r.put("broker_cpu_us_per_decision", brokerUs);
                     r.put("sent", n);
@@ -284,8 +298,8 @@ class LineBench {
                     r.put("send_s", sendS);
                     r.put("all_answered_after_s", doneS);
                     System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated, %d line-busy), all answered after %.1f s;"
-                                    + " CPU per decision: zbin %.0f µs, Mosquitto %.0f µs (%.1f ×)%n",
-                            rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS, zbinUs, brokerUs, zbinUs / brokerUs);
+                                    + " trigger -> decision p50 %.1f ms, p99 %.1f ms; CPU per decision: zbin %.0f µs, Mosquitto %.0f µs (%.1f ×)%n",
+                            rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS, p50, p99, zbinUs, brokerUs, zbinUs / brokerUs);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }

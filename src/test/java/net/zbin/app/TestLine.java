@@ -34,4 +34,20 @@ public final class TestLine {
         if (!text.contains("topic_root: zbin}")) throw new IllegalStateException(cfg + ": not a config written by TestLine.write");
         Files.writeString(cfg, text.replace("topic_root: zbin}", "topic_root: zbin, " + keys + "}"));
     }
+
+    /**
+     * Waits (bounded: 3 minutes, polling every 10 ms) until a running handler simulator has presented {@code n} parts;
+     * fails when its run ended first or the bound passes.
+     */
+    static void awaitParts(java.util.concurrent.atomic.AtomicLong parts, long n, java.util.concurrent.Future<?> run) throws Exception {
+        long end = System.nanoTime() + java.util.concurrent.TimeUnit.MINUTES.toNanos(3);
+        while (parts.get() < n) {
+            if (run.isDone()) {
+                run.get(); // its failure, if any
+                throw new AssertionError("the handler's run ended at part " + parts.get() + " before part " + n);
+            }
+            if (System.nanoTime() > end) throw new AssertionError("the handler reached part " + parts.get() + " of " + n + " within 3 minutes");
+            java.util.concurrent.locks.LockSupport.parkNanos(10_000_000L);
+        }
+    }
 }
