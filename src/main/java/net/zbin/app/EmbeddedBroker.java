@@ -12,12 +12,43 @@ import java.util.Properties;
  * rejected there, instead of being dropped by the broker).
  */
 public final class EmbeddedBroker implements AutoCloseable {
-    private final Server server = new Server();
+    private static final long LISTEN_WAIT_NS = 60_000_000_000L; // generous: on a loaded machine the listener has taken over 10 s
 
+    private final Server server;
+    private final int port;
+
+    /**
+     * Starts on a free port chosen here (not Moquette's port 0, whose bound port it reports asynchronously through a
+     * map that another thread fills: under load that read stayed 0 for a minute) and returns once an MQTT client can connect to
+     * it. A port taken by someone else in between is tried again on another, up to three times.
+     */
     public EmbeddedBroker(Path dataDir) throws IOException {
+        IOException last = null;
+        for (int attempt = 0; attempt < 3; attempt++) {
+            int candidate = freePort();
+            Server s = new Server();
+            try {
+                s.startServer(new MemoryConfig(properties(dataDir, candidate)));
+            } catch (IOException | RuntimeException e) {
+                last = new IOException("embedded broker did not start on port " + candidate + ": " + e, e);
+                stopQuietly(s);
+                continue;
+            }
+            if (listening(candidate)) {
+                server = s;
+                port = candidate;
+                return;
+            }
+            stopQuietly(s);
+            last = new IOException("embedded broker did not listen on port " + candidate + " within 60 s");
+        }
+        throw last;
+    }
+
+    private static Properties properties(Path dataDir, int port) {
         Properties p = new Properties();
         p.setProperty("host", "127.0.0.1");
-        p.setProperty("port", "0");
+        p.setProperty("port", Integer.toString(port));
         p.setProperty("websocket_port", "disabled");
         p.setProperty("persistence_enabled", "false");
         p.setProperty("telemetry_enabled", "false");
@@ -28,40 +59,54 @@ public final class EmbeddedBroker implements AutoCloseable {
         p.setProperty("immediate_buffer_flush", "true");
         // MQTT 3.1.1 lets a clean-session client send an empty id (mosquitto_pub/sub do).
         p.setProperty("allow_zero_byte_client_id", "true");
-        server.startServer(new MemoryConfig(p));
-        port = boundPort();
+        return p;
     }
 
-    private final int port;
+    private static int freePort() throws IOException {
+        try (java.net.ServerSocket s = new java.net.ServerSocket(0, 1, java.net.InetAddress.getLoopbackAddress())) {
+            return s.getLocalPort();
+        }
+    }
 
     /**
-     * Moquette binds asynchronously: getPort() is 0 until the listener is up, and while its acceptor
-     * registers the listener it may throw ConcurrentModificationException (read again).
+     * Whether an MQTT client can connect within the bound (polling every 20 ms): a whole CONNECT/CONNACK and a clean
+     * DISCONNECT, so the broker sees a proper session, not a bare TCP probe.
      */
-    private int currentPort() {
-        try {
-            return server.getPort();
-        } catch (java.util.ConcurrentModificationException e) {
-            return 0;
+    private static boolean listening(int port) throws IOException {
+        long end = System.nanoTime() + LISTEN_WAIT_NS;
+        String url = "tcp://127.0.0.1:" + port;
+        while (System.nanoTime() < end) {
+            try {
+                org.eclipse.paho.client.mqttv3.MqttClient c = new org.eclipse.paho.client.mqttv3.MqttClient(url, "zbin-embedded-probe-" + System.nanoTime(),
+                        new org.eclipse.paho.client.mqttv3.persist.MemoryPersistence());
+                org.eclipse.paho.client.mqttv3.MqttConnectOptions o = new org.eclipse.paho.client.mqttv3.MqttConnectOptions();
+                o.setCleanSession(true);
+                o.setConnectionTimeout(5);
+                try {
+                    c.connect(o);
+                    c.disconnect();
+                    return true;
+                } finally {
+                    c.close();
+                }
+            } catch (org.eclipse.paho.client.mqttv3.MqttException notYet) {
+                try {
+                    Thread.sleep(20);
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                    throw new IOException("interrupted while the broker started", e);
+                }
+            }
         }
+        return false;
     }
 
-    private int boundPort() throws IOException {
-        long end = System.nanoTime() + 60_000_000_000L; // generous: on a loaded machine the listener has taken over 10 s
-        int bound;
-        while ((bound = currentPort()) == 0) {
-            if (System.nanoTime() > end) {
-                server.stopServer();
-                throw new IOException("embedded broker did not bind a port within 60 s");
-            }
-            try {
-                Thread.sleep(5);
-            } catch (InterruptedException e) {
-                Thread.currentThread().interrupt();
-                throw new IOException("interrupted while the broker started", e);
-            }
+    private static void stopQuietly(Server s) {
+        try {
+            s.stopServer();
+        } catch (RuntimeException ignored) {
+            // it did not start: nothing to stop
         }
-        return bound;
     }
 
     public int port() { return port; }
