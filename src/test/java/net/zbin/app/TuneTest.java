@@ -32,6 +32,15 @@ class TuneTest {
         return out;
     }
 
+    /** A lot written by {@code zbin sim lot} from a shipped scenario, read back as replay reads it. */
+    List<RecordedReading> simulatedLot(String scenario, int parts) throws Exception {
+        Path lot = dir.resolve(scenario + "-" + parts + ".csv");
+        Cli w = Cli.run("sim", "lot", "--parts", Integer.toString(parts), "--out", lot.toString(), "--scenario",
+                "simulators/scenarios/" + scenario + ".yaml");
+        assertEquals(0, w.exit(), w.err());
+        return rows(lot);
+    }
+
     static void assertLikeReplays(Recipe base, List<RecordedReading> rows, List<Sweep> sweeps) {
         Tuner tuner = new Tuner(base, sweeps, 0.3);
         rows.forEach(tuner::add);
@@ -59,11 +68,8 @@ class TuneTest {
 
     @Test
     void ladderSettings_countExactlyAsReplays() throws Exception {
-        Path lot = dir.resolve("ind.csv");
-        Cli w = Cli.run("sim", "lot", "--parts", "3000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-inductor-4u7.yaml");
-        assertEquals(0, w.exit(), w.err());
         Recipe ind = RecipeLoader.load(Path.of("config/recipes/inductor-pwr-4u7.yaml"));
-        List<RecordedReading> rows = rows(lot);
+        List<RecordedReading> rows = simulatedLot("harrowgate-inductor-4u7", 3000);
         assertLikeReplays(ind, rows, List.of(Sweep.parse("guard=0:1:0.25", ind.partType())));
         assertLikeReplays(ind, rows, List.of(Sweep.parse("grade.N.low=-9:-5:0.5", ind.partType()), Sweep.parse("grade.L-.high=-9,-7,-5", ind.partType())));
     }
@@ -111,12 +117,9 @@ class TuneTest {
 
     @Test
     void nominalSweep_onLettersAndValues_isAReplayOfTheEditedFile() throws Exception {
-        Path lot = dir.resolve("c4p7.csv");
-        Cli w = Cli.run("sim", "lot", "--parts", "4000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-c0g-4p7.yaml");
-        assertEquals(0, w.exit(), w.err());
         Path file = Path.of("config/recipes/mlcc-c0g-4p7.yaml");
         Recipe base = RecipeLoader.load(file);
-        List<RecordedReading> rows = rows(lot);
+        List<RecordedReading> rows = simulatedLot("harrowgate-c0g-4p7", 4000);
         Sweep nominal = Sweep.parse("nominal=4.5p:5.2p:0.1p", base.partType());
         Tuner tuner = new Tuner(base, List.of(nominal), 0.3);
         rows.forEach(tuner::add);
@@ -140,11 +143,8 @@ class TuneTest {
 
     @Test
     void twoSweeps_areValidatedTogether_inEitherOrder() throws Exception {
-        Path lot = dir.resolve("ind.csv");
-        Cli w = Cli.run("sim", "lot", "--parts", "2000", "--out", lot.toString(), "--scenario", "simulators/scenarios/harrowgate-inductor-4u7.yaml");
-        assertEquals(0, w.exit(), w.err());
         Recipe ind = RecipeLoader.load(Path.of("config/recipes/inductor-pwr-4u7.yaml"));
-        List<RecordedReading> rows = rows(lot);
+        List<RecordedReading> rows = simulatedLot("harrowgate-inductor-4u7", 2000);
         // Ladder grades must meet: moving N's low edge alone leaves a gap or an overlap, moving both inner edges together is valid.
         Sweep a = Sweep.parse("grade.N.low=-9,-5", ind.partType()), b = Sweep.parse("grade.L-.high=-9,-5", ind.partType());
         Tuner ab = new Tuner(ind, List.of(a, b), 0.3), ba = new Tuner(ind, List.of(b, a), 0.3);
