@@ -46,10 +46,4 @@ public record PhaseWindow(double minDeg, double maxDeg, double cosMin, double si
         boolean below = maxDeg >= 90 || x * cosMax - r * sinMax <= 0;
         return above && below;
     }
-
-    /** The same judged through θ itself (atan2), for the test that holds the two together. */
-    boolean admitsByAngle(Impedance z) {
-        double t = Math.toDegrees(Math.atan2(z.xOhm(), Math.max(z.rOhm(), 0)));
-        return t >= minDeg && t <= maxDeg;
-    }
 }

@@ -1,6 +1,5 @@
 package net.zbin.core;
 
-import org.apache.commons.math3.special.Erf;
 
 /**
  * Average run lengths (in chart points) of the drift charts on a standardized normal variable, by the
@@ -130,7 +129,4 @@ public final class RunLength {
         }
         return x > 0 ? 1 - c : c;
     }
-
-    /** The same by Commons Math, for the test. */
-    static double phiReference(double z) { return 0.5 * Erf.erfc(-z / Math.sqrt(2)); }
 }

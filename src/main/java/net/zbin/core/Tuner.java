@@ -78,7 +78,7 @@ public final class Tuner {
             }
             BinTally t = counted != null ? counted.tally(r) : gated != null ? gated.tally(r, v.get(0)) : replay(r, kept);
             double[] risk = counted != null ? counted.risk(r, uncertaintyPct) : gated != null ? gated.risk(v.get(0))
-                    : risk(r, devsOf(r, kept), processOf(r, kept), uncertaintyPct);
+                    : risk(r, devsAndProcess(r, kept), uncertaintyPct);
             BinTally.Snapshot s = t.snapshot();
             out.add(new Result(v, label.toString(), true, null, s, s.parts() == 0 ? Double.NaN : 100 * risk[0] / s.parts(),
                     s.parts() == 0 ? Double.NaN : 100 * risk[1] / s.parts()));
@@ -97,7 +97,7 @@ public final class Tuner {
         seal();
         if (counted != null) return counted.model(uncertaintyPct);
         if (gated != null) return gated.model;
-        double[] d = processOf(base, kept);
+        double[] d = devsAndProcess(base, kept)[1];
         return RiskModel.fromLot(d, d.length, uncertaintyPct);
     }
 
@@ -139,28 +139,21 @@ public final class Tuner {
         return t;
     }
 
-    private static double[] devsOf(Recipe r, List<RecordedReading> rows) {
-        double[] d = new double[rows.size()];
-        int n = 0;
+    /**
+     * One grading pass over the kept rows: [the sorted deviations graded by value, the process sample (every part
+     * whose value was read cleanly)].
+     */
+    private static double[][] devsAndProcess(Recipe r, List<RecordedReading> rows) {
+        Doubles devs = new Doubles(), process = new Doubles();
         for (RecordedReading row : rows) {
             if (row.isCheck()) continue;
             Grading g = Grader.recorded(r, row);
-            if (byValue(g.reason())) d[n++] = g.devPct();
+            if (byValue(g.reason())) devs.add(g.devPct());
+            if (inProcess(g)) process.add(g.devPct());
         }
-        d = Arrays.copyOf(d, n);
+        double[] d = devs.trimmed();
         Arrays.sort(d);
-        return d;
-    }
-
-    /** The lot's process sample: every part whose value was read cleanly, whether it then failed a gate or not. */
-    private static double[] processOf(Recipe r, List<RecordedReading> rows) {
-        Doubles d = new Doubles();
-        for (RecordedReading row : rows) {
-            if (row.isCheck()) continue;
-            Grading g = Grader.recorded(r, row);
-            if (inProcess(g)) d.add(g.devPct());
-        }
-        return d.trimmed();
+        return new double[][] {d, process.trimmed()};
     }
 
     /**
@@ -443,8 +436,9 @@ public final class Tuner {
     }
 
     /** [expected false accepts, expected false rejects] over sorted deviations, under the process of the lot's sample. */
-    static double[] risk(Recipe r, double[] devs, double[] process, double u) {
+    static double[] risk(Recipe r, double[][] devsAndProcess, double u) {
         if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+        double[] devs = devsAndProcess[0], process = devsAndProcess[1];
         RiskModel m = RiskModel.fromLot(process, process.length, u);
         return risk(r, devs, bin(devs, width(m)), m);
     }
