@@ -72,7 +72,7 @@ public class InputFuzzTest {
         return s.toString();
     }
 
-    @Property(tries = 40_000, seed = "8101")
+    @Property(seed = "8101") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void triggerDecoder_acceptsOrRejectsWithAReason(@ForAll long seed) {
         Random rnd = new Random(seed);
         String text = rnd.nextInt(5) == 0 ? random(rnd, 300) : mutate(TRIGGERS[rnd.nextInt(TRIGGERS.length)], rnd);
@@ -83,7 +83,7 @@ public class InputFuzzTest {
         }
     }
 
-    @Property(tries = 20_000, seed = "8102")
+    @Property(seed = "8102") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void commandDecoder_acceptsOrRejectsWithAReason(@ForAll long seed) {
         Random rnd = new Random(seed);
         String text = rnd.nextInt(5) == 0 ? random(rnd, 300) : mutate(COMMANDS[rnd.nextInt(COMMANDS.length)], rnd);
@@ -113,19 +113,19 @@ public class InputFuzzTest {
         void load(Path p) throws Exception;
     }
 
-    @Property(tries = 10_000, seed = "8103")
+    @Property(seed = "8103") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void recipeLoader_loadsOrRefusesNamingTheFile(@ForAll long seed) throws Exception {
         String[] seeds = {"config/recipes/mlcc-x7r-100n.yaml", "config/recipes/inductor-pwr-4u7.yaml",
                 "config/recipes/resistor-prec-4k99.yaml", "config/recipes/mlcc-c0g-100p.yaml"};
         fileFuzz(seeds[(int) Math.floorMod(seed, (long) seeds.length)], seed, ".yaml", RecipeLoader::load);
     }
 
-    @Property(tries = 5_000, seed = "8104")
+    @Property(seed = "8104") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void lineConfigLoader_loadsOrRefusesNamingTheFile(@ForAll long seed) throws Exception {
         fileFuzz("config/line.yaml", seed, ".yaml", LineConfigLoader::load);
     }
 
-    @Property(tries = 10_000, seed = "8105")
+    @Property(seed = "8105") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void csvReader_readsOrReportsEveryBadRowByLine(@ForAll long seed) throws Exception {
         Random rnd = new Random(seed);
         String lot = "freq_hz,r_ohm,x_ohm,part,lot,kind,reason,attempt,comp\n1000,17.7,-1537.7,P1,L,part,,0,user\n"

@@ -24,7 +24,7 @@ class ResponseFuzzTest {
         }
     }
 
-    @Property(tries = 20_000, seed = "8201")
+    @Property(seed = "8201") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void measureReplies_parseOrFailAsGarbledWithWhatWasSentAndReceived(@ForAll long seed) {
         Random rnd = new Random(seed);
         String[] good = {"16.02,-1591.5,GOOD", "1e-3,2.5E+2,OVER", "0,0,FAIL", "-0.0,-1e30,GOOD"};
@@ -38,7 +38,7 @@ class ResponseFuzzTest {
         }
     }
 
-    @Property(tries = 5_000, seed = "8202")
+    @Property(seed = "8202") // tries: jqwik.tries.default, set from the build property zbin.fuzz.tries
     void meterProfileLoader_loadsOrRefusesNamingTheFile(@ForAll long seed) throws Exception {
         Path dir = Files.createTempDirectory("zbin-fuzz-profile");
         Path f = dir.resolve("p.yaml");
