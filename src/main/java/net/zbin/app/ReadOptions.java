@@ -6,14 +6,25 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import picocli.CommandLine.Option;
 
-/** What {@code replay} and {@code tune} share about reading a lot: the HTML report and the progress line. */
+/**
+ * What {@code replay} and {@code tune} share about reading a lot: the line whose engine decides it, the HTML report
+ * and the progress line.
+ */
 final class ReadOptions {
+    @Option(names = "--line-config", paramLabel = "LINE.yaml",
+            description = "decide as this line does: its fixture-check limits and monitor settings (default: the recipe's own, default check limits)")
+    Path lineConfig;
     @Option(names = "--report", paramLabel = "FILE.html", description = "also write a self-contained HTML report with plots")
     Path report;
     @Option(names = "--quiet", description = "no progress on stderr")
     boolean quiet;
     @Option(names = "--progress", description = "progress on stderr even when it is not a terminal")
     boolean progress;
+
+    /** The engine the lot is decided by: the line's when {@code --line-config} is given, else the recipe's own. */
+    net.zbin.core.LineEngine engine(net.zbin.core.Recipe recipe) throws net.zbin.io.ConfigException {
+        return lineConfig == null ? net.zbin.core.LineEngine.of(recipe) : net.zbin.io.LineConfigLoader.load(lineConfig).engine(recipe);
+    }
 
     /** Refuses an output file whose folder does not exist, naming the option. */
     static void folderOf(String option, Path file) throws UsageException {

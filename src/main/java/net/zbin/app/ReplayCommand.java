@@ -11,12 +11,10 @@ import java.util.List;
 import net.zbin.core.AlarmCode;
 import net.zbin.core.BinTally;
 import net.zbin.core.Decision;
-import net.zbin.core.FixtureCheck;
 import net.zbin.core.Grading;
+import net.zbin.core.LineEngine;
 import net.zbin.core.LineMonitor;
-import net.zbin.core.Trigger;
 import net.zbin.io.MonitorJson;
-import net.zbin.core.Grader;
 import net.zbin.core.Recipe;
 import net.zbin.core.RecordedReading;
 import net.zbin.io.Json;
@@ -56,8 +54,9 @@ public final class ReplayCommand implements Callable<Integer> {
         Recipe recipe = RecipeLoader.load(recipeFile);
         PrintWriter err = spec.commandLine().getErr();
         BinTally tally = new BinTally();
-        // The line monitor, fed the same decisions in the same order as it was live: the same figures and alarm points.
-        LineMonitor monitor = new LineMonitor(recipe.monitor(), FixtureCheck.Limits.DEFAULT, recipe);
+        // The line's engine, fed the same decisions in the same order as it was live (lots and all): the same bins,
+        // figures and alarm points.
+        LineEngine engine = reading.engine(recipe);
         List<AlarmPoint> points = new ArrayList<>();
         ReadOptions.folderOf("--report", reading.report);
         net.zbin.app.report.LotPlots plots = reading.report == null ? null : new net.zbin.app.report.LotPlots(recipe);
@@ -73,12 +72,12 @@ public final class ReplayCommand implements Callable<Integer> {
             RecordedReading row;
             while ((row = src.next()) != null) {
                 if (strict && firstBad[0] != null) break;
-                Grading g = Grader.recorded(recipe, row);
+                Decision d = engine.regrade(row);
+                Grading g = d.grading();
                 tally.add(g, !row.isCheck());
-                Decision d = new Decision(row.line(), "", "", Trigger.Kind.parse(row.kind()), recipe.name(), g, Double.NaN, false, row.attempt());
                 if (plots != null && !row.isCheck()) plots.add(g);
-                for (AlarmCode.Change c : monitor.observe(d)) {
-                    points.add(new AlarmPoint(row.line(), c));
+                for (AlarmCode.Change c : engine.observe(d)) {
+                    points.add(new AlarmPoint(row.line(), d.lot(), c));
                     if (plots != null) plots.alarm(c);
                 }
                 if (bar != null) bar.row();
@@ -91,14 +90,14 @@ public final class ReplayCommand implements Callable<Integer> {
             throw new UsageException(in + ": line " + firstBad[0].line() + ": " + firstBad[0].message() + " (--strict)");
         if (badRows[0] > maxShown) err.println("zbin: " + in + ": " + badRows[0] + " bad rows in all (skipped)");
         BinTally.Snapshot s = tally.snapshot();
-        LineMonitor.Snapshot m = monitor.snapshot(java.time.Instant.now());
+        LineMonitor.Snapshot m = engine.snapshot(java.time.Instant.now());
         PrintWriter out = spec.commandLine().getOut();
         if (json) {
             ObjectNode n = toJson(s, badRows[0]);
             n.set("monitor", MonitorJson.encode(m));
             var arr = n.putArray("alarm_points");
             for (AlarmPoint p : points)
-                arr.addObject().put("line", p.line()).put("code", p.change().code().code()).put("active", p.change().active())
+                arr.addObject().put("line", p.line()).put("lot", p.lot()).put("code", p.change().code().code()).put("active", p.change().active())
                         .put("message", p.change().message());
             out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(n));
         } else {
@@ -115,15 +114,15 @@ public final class ReplayCommand implements Callable<Integer> {
         return Main.EXIT_OK;
     }
 
-    /** An alarm raised or cleared at a line of the input. */
-    record AlarmPoint(long line, AlarmCode.Change change) {}
+    /** An alarm raised or cleared at a line of the input, in a lot ("" when the input names none). */
+    record AlarmPoint(long line, String lot, AlarmCode.Change change) {}
 
     static void printMonitor(PrintWriter out, LineMonitor.Snapshot m, List<AlarmPoint> points) {
         MonitorText.figures(out, m);
         if (points.isEmpty()) out.println("    alarms: none would have fired");
         else for (AlarmPoint p : points)
-            out.printf(Locale.ROOT, "    line %d: %s %s — %s%n", p.line(), p.change().code().code(), p.change().active() ? "raised" : "cleared",
-                    p.change().message());
+            out.printf(Locale.ROOT, "    line %d%s: %s %s — %s%n", p.line(), p.lot().isEmpty() ? "" : " (lot " + p.lot() + ")",
+                    p.change().code().code(), p.change().active() ? "raised" : "cleared", p.change().message());
     }
 
     static ObjectNode toJson(BinTally.Snapshot s, long skipped) {

@@ -112,8 +112,7 @@ public final class TuneCommand implements Callable<Integer> {
         ReadOptions.folderOf("--csv", csv);
         ReadOptions.folderOf("--report", reading.report);
         net.zbin.app.report.LotPlots plots = reading.report == null ? null : new net.zbin.app.report.LotPlots(recipe);
-        net.zbin.core.LineMonitor monitor = reading.report == null ? null
-                : new net.zbin.core.LineMonitor(recipe.monitor(), net.zbin.core.FixtureCheck.Limits.DEFAULT, recipe);
+        net.zbin.core.LineEngine engine = reading.engine(recipe);
         BinTally baseTally = new BinTally();
         RowProgress bar = reading.progress(spec.commandLine().getErr(), in);
         Tuner tuner = new Tuner(recipe, sweeps, u);
@@ -122,13 +121,11 @@ public final class TuneCommand implements Callable<Integer> {
             RecordedReading r;
             while ((r = src.next()) != null) {
                 tuner.add(r);
-                if (plots != null) { // the lot as the recipe grades it now, for the report's plots
-                    var g = net.zbin.core.Grader.recorded(recipe, r);
-                    baseTally.add(g, !r.isCheck());
-                    if (!r.isCheck()) plots.add(g);
-                    var d = new net.zbin.core.Decision(r.line(), "", "", net.zbin.core.Trigger.Kind.parse(r.kind()), recipe.name(), g,
-                            Double.NaN, false, r.attempt());
-                    for (var c : monitor.observe(d)) plots.alarm(c);
+                if (plots != null) { // the lot as the line's engine decides it under the recipe now, for the report's plots
+                    var d = engine.regrade(r);
+                    baseTally.add(d.grading(), !r.isCheck());
+                    if (!r.isCheck()) plots.add(d.grading());
+                    for (var c : engine.observe(d)) plots.alarm(c);
                 }
                 if (bar != null) bar.row();
             }

@@ -129,32 +129,65 @@ public final class Grader {
     }
 
     private static Grading byValue(Recipe r, Grading.Measurement m, Grading.Value v) {
+        return new Grading(byValue(r, v.devPct()), m, v);
+    }
+
+    /**
+     * The by-value rule: the outcome of a clean reading, within the gates, that deviates {@code devPct} % from nominal.
+     * The one statement of it: {@link ValueBands} cuts it into bands for {@code tune}'s counting.
+     */
+    public static Grading.Outcome byValue(Recipe r, double devPct) {
         GuardBand gb = r.guard();
-        double dev = v.devPct();
+        double dev = devPct;
         var grades = r.grades();
         Grade first = grades.get(0), last = grades.get(grades.size() - 1);
         if (r.mode() == GradingMode.CONCENTRIC) {
-            for (Grade g : grades) if (g.accepts(dev, gb)) return passed(g, m, v);
-            if (dev < last.lowPct() || dev > last.highPct()) return rejected(r, dev < last.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false, m, v);
-            return rejected(r, Reason.GUARD_BAND, dev < (last.lowPct() + last.highPct()) / 2, m, v);
+            for (Grade g : grades) if (g.accepts(dev, gb)) return passed(g);
+            if (dev < last.lowPct() || dev > last.highPct()) return rejected(r, dev < last.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false);
+            return rejected(r, Reason.GUARD_BAND, dev < (last.lowPct() + last.highPct()) / 2);
         }
-        if (dev < first.lowPct() || dev > last.highPct()) return rejected(r, dev < first.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false, m, v);
+        if (dev < first.lowPct() || dev > last.highPct()) return rejected(r, dev < first.lowPct() ? Reason.VALUE_LOW : Reason.VALUE_HIGH, false);
         // Adjacent ranges, every edge guarded; at an unguarded inner edge the upper range takes the part.
-        for (int i = grades.size() - 1; i >= 0; i--) if (grades.get(i).accepts(dev, gb)) return passed(grades.get(i), m, v);
+        for (int i = grades.size() - 1; i >= 0; i--) if (grades.get(i).accepts(dev, gb)) return passed(grades.get(i));
         boolean lowSide = dev < first.acceptLowPct(gb) || dev <= last.acceptHighPct(gb) && dev < 0;
-        return rejected(r, Reason.GUARD_BAND, lowSide, m, v);
+        return rejected(r, Reason.GUARD_BAND, lowSide);
     }
 
-    private static Grading passed(Grade g, Grading.Measurement m, Grading.Value v) {
-        return new Grading(new Grading.Outcome(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE), m, v);
+    /**
+     * The deviations at which {@link #byValue(Recipe, double)} can change its outcome: every limit and accepted limit of
+     * every grade, the nominal, and the middle of the outermost window (the guard side of a concentric plan). Between
+     * two neighbours the outcome is one.
+     */
+    public static double[] valueEdges(Recipe r) {
+        GuardBand gb = r.guard();
+        var grades = r.grades();
+        java.util.TreeSet<Double> e = new java.util.TreeSet<>();
+        for (Grade g : grades) {
+            e.add(g.lowPct());
+            e.add(g.highPct());
+            e.add(g.acceptLowPct(gb));
+            e.add(g.acceptHighPct(gb));
+        }
+        e.add(0.0);
+        Grade last = grades.get(grades.size() - 1);
+        e.add((last.lowPct() + last.highPct()) / 2);
+        return e.stream().mapToDouble(Double::doubleValue).toArray();
+    }
+
+    private static Grading.Outcome passed(Grade g) {
+        return new Grading.Outcome(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE);
     }
 
     /** A clean reading that failed: its reject bin; a guard-band reject on the low or high side. */
     private static Grading rejected(Recipe r, Reason reason, boolean lowSide, Grading.Measurement m, Grading.Value v) {
+        return new Grading(rejected(r, reason, lowSide), m, v);
+    }
+
+    private static Grading.Outcome rejected(Recipe r, Reason reason, boolean lowSide) {
         RejectBins rb = r.reject();
         int bin = reason == Reason.GUARD_BAND ? rb.guardBin(lowSide) : rb.bin(reason.rejectClass());
         String cls = reason == Reason.GUARD_BAND ? (lowSide ? "low" : "high") : reason.rejectClass().key();
-        return new Grading(new Grading.Outcome(bin, cls, Verdict.FAIL, reason), m, v);
+        return new Grading.Outcome(bin, cls, Verdict.FAIL, reason);
     }
 
     /** A part that could not be measured at all (meter failure): retest, then the fault or overload bin. */

@@ -218,8 +218,59 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
     }
 
     /** This recipe on a fixture with other bounds (the line config's). */
-    public Recipe withFixture(FixtureBounds f) {
-        return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject,
-                retest, contact.withFixture(f), compensationRequired, monitor);
+    public Recipe withFixture(FixtureBounds f) { return toBuilder().contact(contact.withFixture(f)).build(); }
+
+    /** A builder holding this recipe's fields, to make a changed copy (validated again at {@link Builder#build}). */
+    public Builder toBuilder() {
+        return new Builder().name(name).partType(partType).nominal(nominal).test(test).model(model).primary(primary).mode(mode)
+                .grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(contact)
+                .compensationRequired(compensationRequired).monitor(monitor);
+    }
+
+    public static Builder builder() { return new Builder(); }
+
+    /**
+     * The one place a recipe is put together from its parts (the loader, {@code tune}'s sweeps, the line's fixture):
+     * a new recipe key is a field here and in the record. Unset parts get the record's defaults; {@link #build} validates.
+     */
+    public static final class Builder {
+        private String name;
+        private PartType partType;
+        private double nominal = Double.NaN;
+        private TestConditions test;
+        private ModelPolicy model;
+        private PrimaryParam primary;
+        private GradingMode mode;
+        private List<Grade> grades;
+        private GuardBand guard;
+        private Gates gates;
+        private PhaseWindow plausible;
+        private RejectBins reject;
+        private RetestPolicy retest;
+        private ContactCheck contact;
+        private boolean compensationRequired;
+        private MonitorSettings monitor;
+
+        public Builder name(String v) { name = v; return this; }
+        public Builder partType(PartType v) { partType = v; return this; }
+        public Builder nominal(double v) { nominal = v; return this; }
+        public Builder test(TestConditions v) { test = v; return this; }
+        public Builder model(ModelPolicy v) { model = v; return this; }
+        public Builder primary(PrimaryParam v) { primary = v; return this; }
+        public Builder mode(GradingMode v) { mode = v; return this; }
+        public Builder grades(List<Grade> v) { grades = v; return this; }
+        public Builder guard(GuardBand v) { guard = v; return this; }
+        public Builder gates(Gates v) { gates = v; return this; }
+        public Builder plausible(PhaseWindow v) { plausible = v; return this; }
+        public Builder reject(RejectBins v) { reject = v; return this; }
+        public Builder retest(RetestPolicy v) { retest = v; return this; }
+        public Builder contact(ContactCheck v) { contact = v; return this; }
+        public Builder compensationRequired(boolean v) { compensationRequired = v; return this; }
+        public Builder monitor(MonitorSettings v) { monitor = v; return this; }
+
+        public Recipe build() {
+            return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest,
+                    contact, compensationRequired, monitor);
+        }
     }
 }

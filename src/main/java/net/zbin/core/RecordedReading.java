@@ -15,9 +15,23 @@ package net.zbin.core;
  * @param attempt 0 for a first presentation, n for the n-th retest
  * @param comp    compensation that was applied to R/X
  * @param kind    "part", or "open", "short", "reference" for the handler's fixture checks
+ * @param seq     the handler's seq from a record log, or −1 when the file has none
+ * @param part    the part id, or "" when the file has none
+ * @param lot     the lot, or "" when the file has none (then the whole file is one lot)
  */
 public record RecordedReading(long line, double freqHz, double rOhm, double xOhm, double rawROhm, double rawXOhm,
-                              String reason, int attempt, CompensationSource comp, String kind) {
+                              String reason, int attempt, CompensationSource comp, String kind, long seq, String part, String lot) {
+    public RecordedReading {
+        if (part == null) throw new IllegalArgumentException("part must not be null (\"\" when the file has none)");
+        if (lot == null) throw new IllegalArgumentException("lot must not be null (\"\" when the file has none)");
+    }
+
+    /** A reading of a plain reading file: no seq, part or lot. */
+    public RecordedReading(long line, double freqHz, double rOhm, double xOhm, double rawROhm, double rawXOhm,
+                           String reason, int attempt, CompensationSource comp, String kind) {
+        this(line, freqHz, rOhm, xOhm, rawROhm, rawXOhm, reason, attempt, comp, kind, -1, "", "");
+    }
+
     /** True for the handler's fixture checks, which are not parts and are not graded again. */
     public boolean isCheck() { return !kind.equals("part"); }
 }

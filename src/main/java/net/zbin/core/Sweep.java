@@ -142,8 +142,7 @@ public record Sweep(Quantity quantity, String grade, List<Double> values) {
                 case NOMINAL -> { }
             }
         }
-        return new Recipe(r.name(), r.partType(), nominal, r.test(), r.model(), r.primary(), r.mode(), grades, guard, g, r.plausible(),
-                r.reject(), r.retest(), r.contact(), r.compensationRequired(), r.monitor());
+        return r.toBuilder().nominal(nominal).grades(grades).guard(guard).gates(g).build();
     }
 
     /** Refuses a sweep that names something the recipe does not have (a grade), naming what it has. */

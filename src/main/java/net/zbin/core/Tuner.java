@@ -220,55 +220,13 @@ public final class Tuner {
             return lo;
         }
 
+        /** The setting's bins: the rows that end before the by-value step, and the deviations counted in the rule's bands. */
         BinTally tally(Recipe r) {
             BinTally t = fixed.copy();
-            GuardBand gb = r.guard();
-            RejectBins rb = r.reject();
-            List<Grade> gs = r.grades();
-            Grade first = gs.get(0), last = gs.get(gs.size() - 1);
-            double inf = Double.POSITIVE_INFINITY;
-            long passed = 0;
-            if (r.mode() == GradingMode.CONCENTRIC) {
-                long inner = 0;
-                for (Grade g : gs) {
-                    long w = count(g.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
-                    t.addFinished(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE, w - inner);
-                    passed += w - inner;
-                    inner = w;
-                }
-                long low = count(-inf, true, last.lowPct(), false), high = count(last.highPct(), false, inf, true);
-                double mid = (last.lowPct() + last.highPct()) / 2;
-                long guardLow = count(last.lowPct(), true, Math.min(mid, last.acceptLowPct(gb)), false)
-                        + count(last.acceptHighPct(gb), false, mid, false);
-                long guard = devs.length - passed - low - high;
-                t.addFinished(rb.low(), "low", Verdict.FAIL, Reason.VALUE_LOW, low);
-                t.addFinished(rb.high(), "high", Verdict.FAIL, Reason.VALUE_HIGH, high);
-                t.addFinished(rb.guardBin(true), "low", Verdict.FAIL, Reason.GUARD_BAND, guardLow);
-                t.addFinished(rb.guardBin(false), "high", Verdict.FAIL, Reason.GUARD_BAND, guard - guardLow);
-                return t;
+            for (ValueBands.Band b : ValueBands.of(r).bands()) {
+                Grading.Outcome o = b.outcome();
+                t.addFinished(o.bin(), o.grade(), o.verdict(), o.reason(), count(b.lo(), b.loIn(), b.hi(), b.hiIn()));
             }
-            for (int i = gs.size() - 1; i >= 0; i--) {
-                Grade g = gs.get(i);
-                long w = count(g.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
-                if (i < gs.size() - 1) {
-                    Grade up = gs.get(i + 1); // a value in both windows (an unguarded edge) goes to the upper range
-                    if (up.acceptLowPct(gb) <= g.acceptHighPct(gb)) w -= count(up.acceptLowPct(gb), true, g.acceptHighPct(gb), true);
-                }
-                t.addFinished(g.bin(), g.name(), Verdict.PASS, Reason.IN_GRADE, w);
-                passed += w;
-            }
-            long low = count(-inf, true, first.lowPct(), false), high = count(last.highPct(), false, inf, true);
-            long guard = devs.length - passed - low - high;
-            long guardLow = count(first.lowPct(), true, first.acceptLowPct(gb), false);
-            for (int i = 0; i + 1 < gs.size(); i++) {
-                double a = gs.get(i).acceptHighPct(gb), b = gs.get(i + 1).acceptLowPct(gb);
-                double hi = Math.min(b, 0); // an inner guard zone (a, b): below the nominal goes low
-                if (hi > a) guardLow += count(a, false, hi, false);
-            }
-            t.addFinished(rb.low(), "low", Verdict.FAIL, Reason.VALUE_LOW, low);
-            t.addFinished(rb.high(), "high", Verdict.FAIL, Reason.VALUE_HIGH, high);
-            t.addFinished(rb.guardBin(true), "low", Verdict.FAIL, Reason.GUARD_BAND, guardLow);
-            t.addFinished(rb.guardBin(false), "high", Verdict.FAIL, Reason.GUARD_BAND, guard - guardLow);
             return t;
         }
 
@@ -339,9 +297,7 @@ public final class Tuner {
                 case Q_MIN -> new Gates(g.dMax(), null, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
                 default -> new Gates(g.dMax(), g.qMin(), null, g.thetaMinDeg(), g.thetaMaxDeg());
             };
-            r0 = new Recipe(base.name(), base.partType(), base.nominal(), base.test(), base.model(), base.primary(), base.mode(),
-                    base.grades(), base.guard(), without, base.plausible(), base.reject(), base.retest(), base.contact(),
-                    base.compensationRequired(), base.monitor());
+            r0 = base.toBuilder().gates(without).build();
         }
 
         void add(RecordedReading row) {
@@ -470,13 +426,11 @@ public final class Tuner {
         }
     }
 
+    /** The grade that accepts a deviation by the recipe's rule, or null when it is not accepted. */
     private static Grade accepting(Recipe r, double x) {
-        List<Grade> gs = r.grades();
-        if (r.mode() == GradingMode.CONCENTRIC) {
-            for (Grade g : gs) if (g.accepts(x, r.guard())) return g;
-            return null;
-        }
-        for (int k = gs.size() - 1; k >= 0; k--) if (gs.get(k).accepts(x, r.guard())) return gs.get(k);
-        return null;
+        Grading.Outcome o = Grader.byValue(r, x);
+        if (o.verdict() != Verdict.PASS) return null;
+        for (Grade g : r.grades()) if (g.name().equals(o.grade())) return g;
+        throw new IllegalStateException("no grade " + o.grade() + " in recipe " + r.name());
     }
 }

@@ -32,7 +32,7 @@ final class CsvReadingSource implements ReadingSource {
     private final Consumer<BadRow> bad;
     private final CsvReader<CsvRecord> reader;
     private final Iterator<CsvRecord> it;
-    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind;
+    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot;
     private final boolean tornTail;
 
     CsvReadingSource(Path file, Consumer<BadRow> bad) throws IOException, ConfigException {
@@ -72,6 +72,9 @@ final class CsvReadingSource implements ReadingSource {
         fAttempt = header.getOrDefault("attempt", -1);
         fComp = header.getOrDefault("comp", -1);
         fKind = header.getOrDefault("kind", -1);
+        fSeq = header.getOrDefault("seq", -1);
+        fPart = header.getOrDefault("part", -1);
+        fLot = header.getOrDefault("lot", -1);
     }
 
     private static boolean endsWithoutNewline(Path file) throws IOException {
@@ -129,8 +132,18 @@ final class CsvReadingSource implements ReadingSource {
         String kind = text(rec, fKind);
         if (kind == null || kind.isEmpty()) kind = "part";
         if (!KINDS.contains(kind)) throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
+        String seqText = text(rec, fSeq);
+        long seq;
+        try {
+            seq = seqText == null || seqText.isEmpty() ? -1 : Long.parseLong(seqText);
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException("seq is not a whole number ('" + seqText + "')");
+        }
+        if (seq < -1) throw new IllegalArgumentException("seq must be >= 0 (was " + seq + ")");
+        String part = fPart < 0 ? "" : SpreadsheetSafe.read(rec.getField(fPart));
+        String lot = fLot < 0 ? "" : SpreadsheetSafe.read(rec.getField(fLot));
         return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
-                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind);
+                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind, seq, part, lot);
     }
 
     private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }

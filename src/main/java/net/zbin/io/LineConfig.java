@@ -43,6 +43,17 @@ public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile
         }
     }
 
+    /** A recipe's monitor settings on this line: the recipe's own, with the line's compensation age limit where it states one. */
+    public net.zbin.core.MonitorSettings monitorSettings(net.zbin.core.Recipe r) {
+        net.zbin.core.MonitorSettings m = r.monitor();
+        return Double.isNaN(monitor.compMaxAgeH()) ? m : m.withCompMaxAgeH(monitor.compMaxAgeH());
+    }
+
+    /** The engine that decides this line's parts under a recipe: the line's check limits and monitor settings. */
+    public net.zbin.core.LineEngine engine(net.zbin.core.Recipe r) {
+        return new net.zbin.core.LineEngine(r, monitorSettings(r), checks);
+    }
+
     public LineConfig {
         if (monitor == null) monitor = Monitor.DEFAULT;
         if (line == null || !line.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))

@@ -100,8 +100,9 @@ public final class RecipeLoader {
         cp.finish();
         MonitorSettings monitor = monitor(n.child("monitor"), MonitorSettings.DEFAULT);
         n.finish();
-        return n.build(null, () -> new Recipe(name, type, nominal, test, model, primary, mode, grades, guard,
-                gates, plausible, reject, retest, check, required, monitor));
+        return n.build(null, () -> Recipe.builder().name(name).partType(type).nominal(nominal).test(test).model(model).primary(primary)
+                .mode(mode).grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(check)
+                .compensationRequired(required).monitor(monitor).build());
     }
 
     /** The monitor's settings of a recipe ({@code monitor:}), each key optional. */

@@ -50,6 +50,8 @@ public final class Tap implements AutoCloseable {
         MqttConnectOptions o = new MqttConnectOptions();
         o.setMaxInflight(2000);
         o.setCleanSession(true);
+        // TCP_NODELAY, as the daemon and the handler simulator: a trigger is not held back by Nagle for a delayed ACK
+        if (broker.startsWith("tcp://")) o.setSocketFactory(net.zbin.io.mqtt.NoDelaySockets.plain());
         if (user != null) {
             o.setUserName(user);
             o.setPassword(password.toCharArray());
@@ -106,6 +108,18 @@ public final class Tap implements AutoCloseable {
             if (System.nanoTime() > end) throw new AssertionError("waited " + timeoutMs + " ms for " + count + " messages, got " + got.size()
                     + "; last: " + (msgs.isEmpty() ? "none" : msgs.get(msgs.size() - 1)));
             Thread.sleep(10);
+        }
+    }
+
+    /** The first message at index {@code from} or later that matches; polls every millisecond, scanning only what is new. */
+    public Msg awaitAfter(int from, Predicate<Msg> p, long timeoutMs) throws InterruptedException {
+        long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
+        int i = from;
+        while (true) {
+            for (int n = msgs.size(); i < n; i++) if (p.test(msgs.get(i))) return msgs.get(i);
+            if (System.nanoTime() > end) throw new AssertionError("waited " + timeoutMs + " ms for a message after #" + from + "; last: "
+                    + (msgs.isEmpty() ? "none" : msgs.get(msgs.size() - 1)));
+            Thread.sleep(1);
         }
     }
 

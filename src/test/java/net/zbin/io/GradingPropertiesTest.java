@@ -163,6 +163,16 @@ class GradingPropertiesTest {
         }).filter(x -> x != null);
     }
 
+    /** {@code tune} counts by the rule's bands: at every edge, just beside it and anywhere, a band gives the rule's outcome. */
+    @Property(tries = 3_000, seed = "7006")
+    void valueBands_giveTheRulesOutcome_atEveryEdgeAndBetween(@ForAll("generatedRecipes") Recipe r,
+            @ForAll @DoubleRange(min = -100, max = 100) double dev) {
+        net.zbin.core.ValueBands bands = net.zbin.core.ValueBands.of(r);
+        List<Double> probes = new ArrayList<>(List.of(dev, -1e9, 1e9));
+        for (double e : Grader.valueEdges(r)) probes.addAll(List.of(e, Math.nextUp(e), Math.nextDown(e)));
+        for (double x : probes) assertEquals(Grader.byValue(r, x), bands.outcome(x), "deviation " + x + " % in " + r.grades());
+    }
+
     @Property(tries = 10_000, seed = "7002")
     void aGuardBand_neverWidensAcceptance(@ForAll("generatedRecipes") Recipe guarded,
             @ForAll @DoubleRange(min = -60, max = 60) double dev) {

@@ -4,8 +4,8 @@ import java.time.Clock;
 import java.util.List;
 import net.zbin.core.AlarmCode;
 import net.zbin.core.Compensation;
+import net.zbin.core.LineEngine;
 import net.zbin.core.LineMonitor;
-import net.zbin.core.MonitorSettings;
 import net.zbin.core.Recipe;
 import net.zbin.io.DecisionFields;
 import net.zbin.io.LineConfig;
@@ -20,33 +20,19 @@ final class MonitorListener implements DecisionListener {
     private final LineConfig cfg;
     private final LineMode mode;
     private final Clock clock;
-    private LineMonitor monitor;
-    private Recipe recipe;
-    private String lot;
+    private final LineEngine engine;
     private boolean recovering;
 
     MonitorListener(LineConfig cfg, LineMode mode, Clock clock, Recipe recipe) {
         this.cfg = cfg;
         this.mode = mode;
         this.clock = clock;
-        this.recipe = recipe;
-        this.monitor = new LineMonitor(settings(recipe), cfg.checks(), recipe);
-    }
-
-    private MonitorSettings settings(Recipe r) {
-        MonitorSettings m = r.monitor();
-        double age = Double.isNaN(cfg.monitor().compMaxAgeH()) ? m.compMaxAgeH() : cfg.monitor().compMaxAgeH();
-        return m.withCompMaxAgeH(age);
+        this.engine = cfg.engine(recipe);
     }
 
     @Override
     public synchronized void decided(DecisionFields.Entry e) {
-        var d = e.decision();
-        if (!d.lot().equals(lot) || !d.recipe().equals(recipe.name())) {
-            lot = d.lot();
-            monitor.startLot(recipe);
-        }
-        forward(monitor.observe(d));
+        forward(engine.observe(e.decision()));
     }
 
     /** While true, alarms are known again but not written to the alarm history (the record log is being replayed). */
@@ -58,14 +44,12 @@ final class MonitorListener implements DecisionListener {
      */
     synchronized void recipe(Recipe r, Compensation comp) {
         mode.clearRecipeBound("recipe changed to " + r.name());
-        recipe = r;
-        monitor = new LineMonitor(settings(r), cfg.checks(), r);
+        engine.recipe(r, cfg.monitorSettings(r));
         compensation(comp);
     }
 
     synchronized void compensation(Compensation comp) {
-        forward(monitor.compensation(comp, recipe.compensationRequired() || recipe.needsOpenCompensation()
-                || recipe.needsShortCompensation(), clock.instant()));
+        forward(engine.compensation(comp, clock.instant()));
     }
 
     /** The ticker's look at the compensation's age: judged under the lock, the alarms sent after it (the measuring thread never waits on a send). */
@@ -73,13 +57,13 @@ final class MonitorListener implements DecisionListener {
         List<AlarmCode.Change> changes;
         boolean rec;
         synchronized (this) {
-            changes = monitor.tick(clock.instant());
+            changes = engine.tick(clock.instant());
             rec = !recovering;
         }
         for (AlarmCode.Change c : changes) mode.alarm(c.code(), c.active(), c.message(), rec);
     }
 
-    synchronized LineMonitor.Snapshot snapshot() { return monitor.snapshot(clock.instant()); }
+    synchronized LineMonitor.Snapshot snapshot() { return engine.snapshot(clock.instant()); }
 
     private void forward(List<AlarmCode.Change> changes) {
         for (AlarmCode.Change c : changes) mode.alarm(c.code(), c.active(), c.message(), !recovering);

@@ -4,9 +4,9 @@ import java.time.Clock;
 import java.util.List;
 import net.zbin.core.Decision;
 import net.zbin.core.FaultKind;
-import net.zbin.core.FixtureCheck;
 import net.zbin.core.Grader;
 import net.zbin.core.Grading;
+import net.zbin.core.LineEngine;
 import net.zbin.core.Reason;
 import net.zbin.core.Recipe;
 import net.zbin.core.Trigger;
@@ -204,13 +204,7 @@ final class TriggerPath {
         }
         if (mode.linkDown()) mode.setLinkDown(false, null);
         if (mode.setupRefused()) mode.setSetupRefused(false, null);
-        var comp = setup.compensation();
-        return switch (t.kind()) {
-            case PART -> Grader.grade(r, mr.reading(), comp, attempt);
-            case OPEN -> FixtureCheck.open(r, mr.reading(), comp, cfg.checks());
-            case SHORT -> FixtureCheck.shortBar(r, mr.reading(), comp, cfg.checks());
-            case REFERENCE -> FixtureCheck.reference(r, mr.reading(), comp, attempt);
-        };
+        return LineEngine.grade(r, cfg.checks(), t.kind(), mr.reading(), setup.compensation(), attempt);
     }
 
     /** Puts back what the record log says was decided before a restart: the lot's figures now, the book at {@link #readBackDone}. */
