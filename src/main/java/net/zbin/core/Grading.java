@@ -27,10 +27,16 @@ public record Grading(Outcome outcome, Measurement measured, Value graded) {
      * @param rawROhm R as the meter read it (NaN when not finite)
      * @param rawXOhm X as the meter read it
      * @param comp    compensation applied to z
+     * @param readings readings the raw R/X are the mean of (1 for a single reading)
      */
-    public record Measurement(double freqHz, Impedance z, double rawROhm, double rawXOhm, CompensationSource comp) {
+    public record Measurement(double freqHz, Impedance z, double rawROhm, double rawXOhm, CompensationSource comp, int readings) {
         public Measurement {
             if (comp == null) comp = CompensationSource.NONE;
+            if (readings < 1) throw new IllegalArgumentException("readings must be >= 1 (was " + readings + ")");
+        }
+
+        public Measurement(double freqHz, Impedance z, double rawROhm, double rawXOhm, CompensationSource comp) {
+            this(freqHz, z, rawROhm, rawXOhm, comp, 1);
         }
 
         public static Measurement of(Reading raw, Impedance z, CompensationSource comp) {
@@ -73,6 +79,15 @@ public record Grading(Outcome outcome, Measurement measured, Value graded) {
     public double rawROhm() { return measured == null ? Double.NaN : measured.rawROhm(); }
     public double rawXOhm() { return measured == null ? Double.NaN : measured.rawXOhm(); }
     public CompensationSource comp() { return measured == null ? CompensationSource.NONE : measured.comp(); }
+
+    /** Readings the decision was made on (0 when nothing was measured). */
+    public int readings() { return measured == null ? 0 : measured.readings(); }
+
+    /** The same grading, said to be made on the mean of n readings. */
+    public Grading withReadings(int n) {
+        if (measured == null) return this;
+        return new Grading(outcome, new Measurement(measured.freqHz(), measured.z(), measured.rawROhm(), measured.rawXOhm(), measured.comp(), n), graded);
+    }
 
     private boolean hasValue() { return graded != null && impedance() != null; }
 

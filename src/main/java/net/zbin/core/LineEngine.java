@@ -13,6 +13,7 @@ public final class LineEngine {
     private MonitorSettings settings;
     private final FixtureCheck.Limits checks;
     private Recipe recipe;
+    private Recipe[] plan;
     private LineMonitor monitor;
     private String lot;
     private String lotRecipe;
@@ -25,6 +26,7 @@ public final class LineEngine {
         this.settings = settings;
         this.checks = checks;
         this.recipe = recipe;
+        this.plan = PartSession.plan(recipe);
         this.monitor = new LineMonitor(settings, checks, recipe);
     }
 
@@ -56,9 +58,15 @@ public final class LineEngine {
         };
     }
 
-    /** A recorded reading graded as the line graded it ({@link Grader#recorded}), as the decision it was: its seq, part and lot. */
+    /**
+     * A recorded reading graded as the line graded it ({@link Grader#recorded}), as the decision it was: its seq, part
+     * and lot; a mean of n readings with the guard band of such a mean.
+     */
     public Decision regrade(RecordedReading row) {
-        Grading g = Grader.recorded(recipe, row);
+        int n = row.readings();
+        Recipe r = n <= plan.length ? plan[n - 1] : recipe.toBuilder().guard(recipe.guard().forReadings(n)).build();
+        Grading g = Grader.recorded(r, row);
+        if (n > 1) g = g.withReadings(n);
         return new Decision(row.seq() >= 0 ? row.seq() : row.line(), row.part(), row.lot(), Trigger.Kind.parse(row.kind()),
                 recipe.name(), g, Double.NaN, false, row.attempt());
     }
@@ -79,9 +87,15 @@ public final class LineEngine {
     /** The lot of the last decision observed (null before the first). */
     public String lot() { return lot; }
 
+    /** Starts a presentation of the given kind: feed it readings until it decides. */
+    public PartSession session(Trigger.Kind kind, Compensation comp, int attempt) {
+        return new PartSession(plan, checks, kind, comp, attempt);
+    }
+
     /** A recipe change: a new monitor with {@code monitorSettings}; the next decision starts a lot. */
     public void recipe(Recipe r, MonitorSettings monitorSettings) {
         recipe = r;
+        plan = PartSession.plan(r);
         settings = monitorSettings;
         monitor = new LineMonitor(monitorSettings, checks, r);
         lot = null;

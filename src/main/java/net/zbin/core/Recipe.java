@@ -26,11 +26,12 @@ import java.util.Set;
  * @param contact     open/short detection
  * @param compensationRequired true: without matching compensation nothing is graded
  * @param monitor     how the line monitor watches lots of this recipe (null: the defaults)
+ * @param remeasure   re-measuring near a limit (null: off)
  */
 public record Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model,
                      PrimaryParam primary, GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates,
                      PhaseWindow plausible, RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired,
-                     MonitorSettings monitor) {
+                     MonitorSettings monitor, Remeasure remeasure) {
     public Recipe {
         if (name == null || !name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new SpecException("recipe", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + name + "')");
@@ -47,6 +48,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         if (plausible == null) plausible = PhaseWindow.defaultFor(partType);
         if (contact == null) contact = ContactCheck.DEFAULT;
         if (monitor == null) monitor = MonitorSettings.DEFAULT;
+        if (remeasure == null) remeasure = Remeasure.OFF;
         if (reject == null) throw new SpecException("reject", "is required (bins for low, high, gate, contact, short, overload, fault)");
         if (retest == null) throw new SpecException("retest", "is required (count and bin)");
         checkPrimary(partType, primary, model, gates);
@@ -59,7 +61,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
                   GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates, PhaseWindow plausible, RejectBins reject,
                   RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
         this(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest, contact,
-                compensationRequired, null);
+                compensationRequired, null, null);
     }
 
     private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model, Gates gates) {
@@ -224,7 +226,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
     public Builder toBuilder() {
         return new Builder().name(name).partType(partType).nominal(nominal).test(test).model(model).primary(primary).mode(mode)
                 .grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(contact)
-                .compensationRequired(compensationRequired).monitor(monitor);
+                .compensationRequired(compensationRequired).monitor(monitor).remeasure(remeasure);
     }
 
     public static Builder builder() { return new Builder(); }
@@ -250,6 +252,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         private ContactCheck contact;
         private boolean compensationRequired;
         private MonitorSettings monitor;
+        private Remeasure remeasure;
 
         public Builder name(String v) { name = v; return this; }
         public Builder partType(PartType v) { partType = v; return this; }
@@ -267,10 +270,11 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         public Builder contact(ContactCheck v) { contact = v; return this; }
         public Builder compensationRequired(boolean v) { compensationRequired = v; return this; }
         public Builder monitor(MonitorSettings v) { monitor = v; return this; }
+        public Builder remeasure(Remeasure v) { remeasure = v; return this; }
 
         public Recipe build() {
             return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest,
-                    contact, compensationRequired, monitor);
+                    contact, compensationRequired, monitor, remeasure);
         }
     }
 }

@@ -18,18 +18,21 @@ package net.zbin.core;
  * @param seq     the handler's seq from a record log, or −1 when the file has none
  * @param part    the part id, or "" when the file has none
  * @param lot     the lot, or "" when the file has none (then the whole file is one lot)
+ * @param readings readings R/X are the mean of (1 when the file does not say)
  */
 public record RecordedReading(long line, double freqHz, double rOhm, double xOhm, double rawROhm, double rawXOhm,
-                              String reason, int attempt, CompensationSource comp, String kind, long seq, String part, String lot) {
+                              String reason, int attempt, CompensationSource comp, String kind, long seq, String part, String lot,
+                              int readings) {
     public RecordedReading {
         if (part == null) throw new IllegalArgumentException("part must not be null (\"\" when the file has none)");
         if (lot == null) throw new IllegalArgumentException("lot must not be null (\"\" when the file has none)");
+        if (readings < 1) throw new IllegalArgumentException("readings must be >= 1 (was " + readings + ")");
     }
 
     /** A reading of a plain reading file: no seq, part or lot. */
     public RecordedReading(long line, double freqHz, double rOhm, double xOhm, double rawROhm, double rawXOhm,
                            String reason, int attempt, CompensationSource comp, String kind) {
-        this(line, freqHz, rOhm, xOhm, rawROhm, rawXOhm, reason, attempt, comp, kind, -1, "", "");
+        this(line, freqHz, rOhm, xOhm, rawROhm, rawXOhm, reason, attempt, comp, kind, -1, "", "", 1);
     }
 
     /** True for the handler's fixture checks, which are not parts and are not graded again. */

@@ -135,7 +135,7 @@ public record Sweep(Quantity quantity, String grade, List<Double> values) {
                     double hi = sw.quantity == Quantity.GRADE_LOW ? old.highPct() : v;
                     grades.set(i, new Grade(old.name(), old.bin(), lo, hi));
                 }
-                case GUARD -> guard = new GuardBand(v, true);
+                case GUARD -> guard = new GuardBand(v, true, Math.min(v, guard.repeatabilityPct())); // the repeatability part kept, within U
                 case D_MAX -> g = new Gates(v, g.qMin(), g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
                 case Q_MIN -> g = new Gates(g.dMax(), v, g.esrMaxOhm(), g.thetaMinDeg(), g.thetaMaxDeg());
                 case ESR_MAX -> g = new Gates(g.dMax(), g.qMin(), v, g.thetaMinDeg(), g.thetaMaxDeg());

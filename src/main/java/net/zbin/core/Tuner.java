@@ -135,7 +135,7 @@ public final class Tuner {
     /** The brute-force replay of one recipe: what {@code zbin replay} counts. */
     public static BinTally replay(Recipe r, List<RecordedReading> rows) {
         BinTally t = new BinTally();
-        for (RecordedReading row : rows) t.add(Grader.recorded(r, row), !row.isCheck());
+        for (RecordedReading row : rows) t.add(Grader.recorded(forReadings(r, row.readings()), row), !row.isCheck());
         return t;
     }
 
@@ -147,7 +147,7 @@ public final class Tuner {
         Doubles devs = new Doubles(), process = new Doubles();
         for (RecordedReading row : rows) {
             if (row.isCheck()) continue;
-            Grading g = Grader.recorded(r, row);
+            Grading g = Grader.recorded(forReadings(r, row.readings()), row);
             if (byValue(g.reason())) devs.add(g.devPct());
             if (inProcess(g)) process.add(g.devPct());
         }
@@ -175,15 +175,19 @@ public final class Tuner {
         final BinTally fixed = new BinTally();
         private final Recipe base;
         private final Doubles collected = new Doubles(), process = new Doubles();
+        /** Parts decided on the mean of several readings (re-measured near a limit): few, graded row by row. */
+        private final List<RecordedReading> means = new ArrayList<>();
         double[] devs;
 
         Counted(Recipe base) { this.base = base; }
 
         void add(RecordedReading row) {
-            Grading g = Grader.recorded(base, row);
+            Grading g = Grader.recorded(forReadings(base, row.readings()), row);
             if (!row.isCheck() && inProcess(g)) process.add(g.devPct());
-            if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) collected.add(g.devPct());
-            else fixed.add(g, !row.isCheck());
+            if (!row.isCheck() && byValue(g.reason()) && g.verdict() != Verdict.RETEST) {
+                if (row.readings() > 1) means.add(row);
+                else collected.add(g.devPct());
+            } else fixed.add(g, !row.isCheck());
         }
 
         void seal() {
@@ -227,6 +231,7 @@ public final class Tuner {
                 Grading.Outcome o = b.outcome();
                 t.addFinished(o.bin(), o.grade(), o.verdict(), o.reason(), count(b.lo(), b.loIn(), b.hi(), b.hiIn()));
             }
+            for (RecordedReading m : means) t.add(Grader.recorded(forReadings(r, m.readings()), m), true);
             return t;
         }
 
@@ -241,7 +246,20 @@ public final class Tuner {
         double[] risk(Recipe r, double u) {
             if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
             if (bins == null) bins = bin(devs, width(model(u)));
-            return Tuner.risk(r, devs, bins, model(u));
+            double[] out = Tuner.risk(r, devs, bins, model(u));
+            for (RecordedReading m : means) { // a mean's risk under the uncertainty of a mean of its readings
+                int n = m.readings();
+                Recipe rn = forReadings(r, n);
+                Grading g = Grader.recorded(rn, m);
+                if (Double.isFinite(g.devPct())) Tuner.add(rn, g.devPct(), 1, modelFor(u, n), out);
+            }
+            return out;
+        }
+
+        private final java.util.Map<Integer, RiskModel> byN = new java.util.HashMap<>();
+
+        private RiskModel modelFor(double u, int n) {
+            return byN.computeIfAbsent(n, k -> RiskModel.fromLot(process.a, process.n, uncertaintyOfMean(base, u, k)));
         }
     }
 
@@ -301,7 +319,7 @@ public final class Tuner {
         }
 
         void add(RecordedReading row) {
-            Grading gr = Grader.recorded(r0, row);
+            Grading gr = Grader.recorded(forReadings(r0, row.readings()), row);
             if (!row.isCheck() && inProcess(gr)) process.add(gr.devPct());
             if (row.isCheck() || !affected(gr.reason(), q)) {
                 fixed.add(gr, !row.isCheck());
@@ -432,5 +450,16 @@ public final class Tuner {
         if (o.verdict() != Verdict.PASS) return null;
         for (Grade g : r.grades()) if (g.name().equals(o.grade())) return g;
         throw new IllegalStateException("no grade " + o.grade() + " in recipe " + r.name());
+    }
+
+    /** The recipe as it judges the mean of n readings: the guard band of that mean. */
+    static Recipe forReadings(Recipe r, int n) {
+        return n <= 1 || r.guard().repeatabilityPct() == 0 ? r : r.toBuilder().guard(r.guard().forReadings(n)).build();
+    }
+
+    /** U of the mean of n readings when one reading has U {@code u}: the recipe's repeatability part shrinks by √n. */
+    static double uncertaintyOfMean(Recipe r, double u, int n) {
+        double ur = Math.min(u, r.guard().repeatabilityPct());
+        return Math.sqrt(Math.max(0, u * u - ur * ur) + ur * ur / n);
     }
 }

@@ -32,7 +32,7 @@ final class CsvReadingSource implements ReadingSource {
     private final Consumer<BadRow> bad;
     private final CsvReader<CsvRecord> reader;
     private final Iterator<CsvRecord> it;
-    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot;
+    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot, fReadings;
     private final boolean tornTail;
 
     CsvReadingSource(Path file, Consumer<BadRow> bad) throws IOException, ConfigException {
@@ -75,6 +75,7 @@ final class CsvReadingSource implements ReadingSource {
         fSeq = header.getOrDefault("seq", -1);
         fPart = header.getOrDefault("part", -1);
         fLot = header.getOrDefault("lot", -1);
+        fReadings = header.getOrDefault("readings", -1);
     }
 
     private static boolean endsWithoutNewline(Path file) throws IOException {
@@ -140,10 +141,18 @@ final class CsvReadingSource implements ReadingSource {
             throw new IllegalArgumentException("seq is not a whole number ('" + seqText + "')");
         }
         if (seq < -1) throw new IllegalArgumentException("seq must be >= 0 (was " + seq + ")");
+        String readingsText = text(rec, fReadings);
+        int readings;
+        try {
+            readings = readingsText == null || readingsText.isEmpty() ? 1 : Integer.parseInt(readingsText);
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException("readings is not a whole number ('" + readingsText + "')");
+        }
+        if (readings < 1 || readings > 16) throw new IllegalArgumentException("readings must be 1..16 (was " + readings + ")");
         String part = fPart < 0 ? "" : SpreadsheetSafe.read(rec.getField(fPart));
         String lot = fLot < 0 ? "" : SpreadsheetSafe.read(rec.getField(fLot));
         return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
-                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind, seq, part, lot);
+                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind, seq, part, lot, readings);
     }
 
     private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }

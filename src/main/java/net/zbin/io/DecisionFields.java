@@ -63,6 +63,8 @@ public final class DecisionFields {
             new Field("latency_ms", Use.BOTH, e -> e.decision().latencyMs()),
             new Field("comp", Use.BOTH, e -> e.g().comp().key()),
             new Field("attempt", Use.BOTH, e -> e.decision().attempt()),
+            // appended (the log's columns only ever grow at the end): how many readings the value is the mean of
+            new Field("readings", Use.BOTH, e -> e.g().readings() > 0 ? (Object) e.g().readings() : null),
             // payload only
             new Field("unit", Use.PAYLOAD, e -> e.g().unit()),
             new Field("z_ohm", Use.PAYLOAD, e -> e.g().zOhm()),

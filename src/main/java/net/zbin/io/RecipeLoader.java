@@ -17,6 +17,7 @@ import net.zbin.core.SiValue;
 import net.zbin.core.Unit;
 import net.zbin.core.PrimaryParam;
 import net.zbin.core.Recipe;
+import net.zbin.core.Remeasure;
 import net.zbin.core.RejectBins;
 import net.zbin.core.RetestPolicy;
 import net.zbin.core.TestConditions;
@@ -57,8 +58,15 @@ public final class RecipeLoader {
         if (gb.has("pct") && gb.has("uncertainty_pct")) throw gb.error("pct", "give pct or uncertainty_pct, not both");
         boolean fromU = gb.has("uncertainty_pct");
         double width = fromU ? gb.optNumber("uncertainty_pct", 0, Unit.PERCENT) : gb.optNumber("pct", 0, Unit.PERCENT);
+        double repeat = gb.optNumber("repeatability_pct", 0, Unit.PERCENT);
         gb.finish();
-        GuardBand guard = n.build(null, () -> new GuardBand(width, fromU));
+        GuardBand guard = n.build(null, () -> new GuardBand(width, fromU, repeat));
+
+        SpecNode rm = n.child("remeasure");
+        int maxReadings = rm.optInteger("max_readings", 1);
+        double near = rm.optNumber("near_pct", 0, Unit.PERCENT);
+        rm.finish();
+        Remeasure remeasure = n.build(null, () -> new Remeasure(maxReadings, near));
 
         SpecNode ga = n.child("gates");
         Double dMax = ga.optNumberOrNull("d_max", Unit.RATIO), qMin = ga.optNumberOrNull("q_min", Unit.RATIO),
@@ -102,7 +110,7 @@ public final class RecipeLoader {
         n.finish();
         return n.build(null, () -> Recipe.builder().name(name).partType(type).nominal(nominal).test(test).model(model).primary(primary)
                 .mode(mode).grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(check)
-                .compensationRequired(required).monitor(monitor).build());
+                .compensationRequired(required).monitor(monitor).remeasure(remeasure).build());
     }
 
     /** The monitor's settings of a recipe ({@code monitor:}), each key optional. */

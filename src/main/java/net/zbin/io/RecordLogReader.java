@@ -109,7 +109,8 @@ public final class RecordLogReader {
             double f = num(r, "freq_hz"), rr = num(r, "r_ohm"), x = num(r, "x_ohm");
             Impedance z = Double.isFinite(f) && f > 0 && Double.isFinite(rr) && Double.isFinite(x) ? new Impedance(f, rr, x) : null;
             Grading.Measurement m = Double.isFinite(f) && f > 0
-                    ? new Grading.Measurement(f, z, num(r, "raw_r_ohm"), num(r, "raw_x_ohm"), CompensationSource.parse(r.get("comp")))
+                    ? new Grading.Measurement(f, z, num(r, "raw_r_ohm"), num(r, "raw_x_ohm"), CompensationSource.parse(r.get("comp")),
+                            r.isMapped("readings") && !r.get("readings").isEmpty() ? Integer.parseInt(r.get("readings")) : 1)
                     : null;
             Grading.Value v = r.get("param").isEmpty() ? null : new Grading.Value(EquivalentModel.valueOf(r.get("model").toUpperCase(java.util.Locale.ROOT)),
                     PrimaryParam.parse(r.get("param")), num(r, "value"), num(r, "dev_pct"));

@@ -35,9 +35,13 @@ class OnePipelineIT {
     void aMultiLotLog_replayedAndTuned_givesTheLiveBinsReasonsAndAlarms() throws Exception {
         Path recipes = dir.resolve("recipes");
         Files.createDirectories(recipes);
-        // The shipped 100 nF recipe with a short learning phase, so that three small lots each get a chart.
-        Files.writeString(recipes.resolve("pipe-x7r-100n.yaml"), Files.readString(Path.of("config/recipes/mlcc-x7r-100n.yaml"))
-                .replace("recipe: mlcc-x7r-100n", "recipe: pipe-x7r-100n").replace("speed: medium", "speed: fast") + "monitor: {learn_parts: 150}\n");
+        // The shipped 100 nF recipe with a short learning phase, so that three small lots each get a chart, and re-measuring
+        // near a limit (U 0.3 % of which 0.25 % repeatability; up to 3 readings within 0.4 points of a limit).
+        String text = Files.readString(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
+        assertTrue(text.contains("  uncertainty_pct: 0.3"), "the shipped recipe states U 0.3 %");
+        Files.writeString(recipes.resolve("pipe-x7r-100n.yaml"), text.replace("recipe: mlcc-x7r-100n", "recipe: pipe-x7r-100n")
+                .replace("speed: medium", "speed: fast").replace("  uncertainty_pct: 0.3", "  repeatability_pct: 0.25\n  uncertainty_pct: 0.3")
+                + "monitor: {learn_parts: 150}\nremeasure: {max_readings: 3, near_pct: 0.4}\n");
         List<String[]> liveAlarms = new ArrayList<>();
         Map<String, Long> liveBins = new TreeMap<>();
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
@@ -46,13 +50,14 @@ class OnePipelineIT {
             Random rnd = new Random(20261202); // invented lots: 0.5 % spread in C, D about 0.010
             String[] lots = {"PL-A", "PL-B", "PL-C"};
             double[] offsetPct = {0, 3, 0};
-            int perLot = 400, seq = 0;
+            int perLot = 400, seq = 0, remeasured = 0;
             for (int l = 0; l < lots.length; l++) {
                 for (int i = 0; i < perLot; i++, seq++) {
                     double drift = l == 2 && i >= perLot / 2 ? 1.5 * (i - perLot / 2) / (perLot / 2.0) : 0; // up to +1.5 % in lot C
                     // now and then a part of another grade, out of tolerance, or too lossy: every bin the recipe has
                     double odd = seq % 53 == 7 ? 7 : seq % 97 == 11 ? -25 : seq % 89 == 5 ? 30 : 0;
-                    double c = 100e-9 * (1 + (offsetPct[l] + drift + odd + 0.5 * rnd.nextGaussian()) / 100);
+                    boolean nearJ = l < 2 && seq % 13 == 4; // (lots A and B) right at J's guarded limit (4.685 % with one reading, 4.769 % with three)
+                    double c = 100e-9 * (1 + (nearJ ? 4.74 : offsetPct[l] + drift + odd + 0.5 * rnd.nextGaussian()) / 100);
                     double tanD = seq % 71 == 3 ? 0.03 : 0.010 + 0.0005 * rnd.nextGaussian();
                     rig.contacts.load(new PartModel.Capacitor(c, 0.02, 0, tanD), 0);
                     int before = tap.msgs.size();
@@ -60,6 +65,7 @@ class OnePipelineIT {
                     final int s = seq;
                     JsonNode d = tap.awaitAfter(before, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == s, 30_000).json();
                     count(liveBins, d);
+                    if (d.path("readings").asInt() > 1) remeasured++;
                 }
             }
             tap.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == lots.length * perLot - 1, 1, 30_000);
@@ -67,6 +73,7 @@ class OnePipelineIT {
                 if (m.topic().endsWith("/alarm") && FROM_DECISIONS.contains(m.json().path("code").asText()))
                     liveAlarms.add(new String[] {m.json().path("code").asText(), Boolean.toString(m.json().path("active").asBoolean())});
             rig.daemon.close();
+            assertTrue(remeasured >= 20, "parts at J's limit were measured again: " + remeasured);
             List<Path> logs = rig.recordFiles();
             assertEquals(1, logs.size(), "one record file: " + logs);
             Path log = logs.get(0);
@@ -79,7 +86,7 @@ class OnePipelineIT {
             List<String[]> replayed = new ArrayList<>();
             for (JsonNode p : r.path("alarm_points"))
                 if (FROM_DECISIONS.contains(p.path("code").asText())) replayed.add(new String[] {p.path("code").asText(), Boolean.toString(p.path("active").asBoolean())});
-            System.out.println("live alarms " + text(liveAlarms) + "; replayed " + text(replayed) + "; bins " + liveBins);
+            System.out.println("re-measured " + remeasured + "; live alarms " + text(liveAlarms) + "; replayed " + text(replayed) + "; bins " + liveBins);
             assertTrue(liveAlarms.stream().anyMatch(a -> a[0].equals("value-drift") && a[1].equals("true")),
                     "the drifting lot raised value-drift on the live line: " + text(liveAlarms));
             assertEquals(text(liveAlarms), text(replayed), "replay raises and clears the live line's alarms, in order");

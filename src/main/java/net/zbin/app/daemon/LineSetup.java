@@ -25,6 +25,8 @@ import net.zbin.io.mqtt.PayloadException;
 final class LineSetup {
     private final LineConfig cfg;
     private volatile Recipe recipe;
+    /** The active recipe as it judges the mean of 1, 2, … readings (measuring thread). */
+    private volatile Recipe[] plan;
     private CompensationStore store;
     private Compensation comp;
     /** The compensation file's modification time when it was last read or written here (null: no file). */
@@ -33,6 +35,7 @@ final class LineSetup {
     LineSetup(LineConfig cfg) throws ConfigException {
         this.cfg = cfg;
         this.recipe = load(cfg.activeRecipe());
+        this.plan = net.zbin.core.PartSession.plan(recipe);
         this.store = CompensationStore.load(cfg.stateDir());
         this.storeSeen = modified();
         this.comp = store.forFrequency(recipe.freqHz());
@@ -71,6 +74,8 @@ final class LineSetup {
 
     Recipe recipe() { return recipe; }
 
+    Recipe[] plan() { return plan; }
+
     /** Compensation at the active recipe's frequency (measuring thread). */
     Compensation compensation() { return comp; }
 
@@ -80,7 +85,9 @@ final class LineSetup {
         if (!name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}")) throw new PayloadException("name is not a recipe id: '" + name + "'");
         Path f = cfg.recipeDir().resolve(name + ".yaml");
         if (!Files.exists(f)) throw new PayloadException("no recipe '" + name + "' in " + cfg.recipeDir());
-        recipe = load(name);
+        Recipe next = load(name);
+        plan = net.zbin.core.PartSession.plan(next);
+        recipe = next;
         comp = store.forFrequency(recipe.freqHz());
         return "recipe " + name;
     }
