@@ -47,6 +47,14 @@ final class RecipeText {
                 rb.guard() >= 0 ? String.valueOf(rb.guard()) : "low/high by side");
         out.printf(Locale.ROOT, "  retest: an unclean reading is sent back up to %d time(s) via bin %d, then rejected%n",
                 r.retest().count(), r.retest().bin());
+        if (r.remeasure().on()) {
+            StringBuilder u = new StringBuilder();
+            for (int n = 1; n <= r.remeasure().maxReadings(); n++)
+                u.append(n == 1 ? "" : ", ").append(String.format(Locale.ROOT, "%d: %.4g %%", n, r.guard().uncertaintyPct(n)));
+            out.printf(Locale.ROOT, "  re-measure: a value within %.4g points of an acceptance limit (or in a guard zone) is read up to %d times"
+                    + " while the deadline allows, and decided on the mean; the guard of a mean of n readings (n: U) %s%n",
+                    r.remeasure().nearPct(), r.remeasure().maxReadings(), u);
+        }
         double ideal = r.idealZOhm();
         var c = r.contact();
         out.printf(Locale.ROOT, "  contacts: open when %s is above %s (%.4g × ideal |Z| %s) or the reading is the fixture's open;"

@@ -9,7 +9,10 @@ import net.zbin.core.Impedance;
 import net.zbin.core.Grader;
 import net.zbin.core.Reading;
 import net.zbin.core.RecordedReading;
+import net.zbin.core.FixtureCheck;
+import net.zbin.core.PartSession;
 import net.zbin.core.Recipe;
+import net.zbin.core.Trigger;
 import net.zbin.io.RecipeLoader;
 import net.zbin.io.ReadingSource;
 import org.openjdk.jmh.annotations.Benchmark;
@@ -35,6 +38,7 @@ public class DecisionJmh {
     static final int ROWS = 100_000;
 
     Recipe recipe;
+    Recipe[] plan;
     Compensation comp, none;
     Reading[] readings;
     Path lot;
@@ -42,6 +46,7 @@ public class DecisionJmh {
     @Setup(Level.Trial)
     public void setUp() throws Exception {
         recipe = RecipeLoader.load(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
+        plan = PartSession.plan(recipe);
         // an open/short pair of a typical fixture (invented): 1.2 pF stray, 20 mΩ + 15 nH residual
         double f = recipe.freqHz();
         comp = new Compensation(f, CompensationSource.USER, Instant.EPOCH, Compensation.openFromAdmittance(f, 1.2e-12, 0),
@@ -62,6 +67,13 @@ public class DecisionJmh {
     @OperationsPerInvocation(READINGS)
     public void decide(Blackhole bh) {
         for (Reading r : readings) bh.consume(Grader.grade(recipe, r, comp, 0));
+    }
+
+    /** The same decision as the live line makes it: a presentation's session in the engine (plan compiled once). */
+    @Benchmark
+    @OperationsPerInvocation(READINGS)
+    public void decideThroughEngine(Blackhole bh) {
+        for (Reading r : readings) bh.consume(new PartSession(plan, FixtureCheck.Limits.DEFAULT, Trigger.Kind.PART, comp, 0).offer(r, true));
     }
 
     /** One decision without compensation (a fixture with none loaded): the grading alone. */

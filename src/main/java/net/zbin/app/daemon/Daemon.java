@@ -90,9 +90,17 @@ public final class Daemon implements AutoCloseable {
         // The finished lot's last figures, retained until the next dashboard: encoded on the measuring thread before
         // the figures move to the new lot (a fraction of a millisecond), published by the ticker (no file, no send here).
         path.onLotEnd(() -> {
-            byte[] last = dashboard(mode.mode());
+            // The finished lot's figures are taken here, before they move to the new lot; encoded and sent by the ticker.
+            Mode m = mode.mode();
+            String recipe = setup.recipe().name();
+            LineStats.Snapshot st = stats.snapshot();
+            net.zbin.core.LineMonitor.Snapshot mon = monitor.snapshot();
+            java.util.Set<String> alarms = mode.activeAlarms().keySet();
+            int backlog = records.backlog();
+            long dropped = records.dropped();
             ticker.execute(() -> {
                 try {
+                    byte[] last = Payloads.bytes(DashboardJson.encode(cfg.line(), recipe, m, st, mon, alarms, backlog, dropped, mqtt.buffered()));
                     mqtt.publish(topics.dashboard(), last, 0, true);
                 } catch (RuntimeException e) {
                     LOG.warn("dashboard: {}", e.toString());

@@ -22,7 +22,8 @@ final class LineStats implements DecisionListener {
     private final Clock clock;
     private final int deadlineMs;
     private final BinTally tally = new BinTally();
-    private final Histogram latencyUs = new Histogram(60_000_000L, 3);
+    /** µs, 2 significant digits (1 %): small enough to copy for every dashboard and at every lot end. */
+    private final Histogram latencyUs = new Histogram(60_000_000L, 2);
     private final long[] ringCount = new long[RING_S];
     private final long[] ringPassed = new long[RING_S];
     private final long[] ringSecond = new long[RING_S];
