@@ -141,8 +141,37 @@ public final class TuneCommand implements Callable<Integer> {
                 .max(Comparator.comparingDouble(worth::of).thenComparingDouble(x -> -x.falseAcceptPct())
                         .thenComparingDouble(x -> -x.falseRejectPct()));
         PrintWriter out = spec.commandLine().getOut();
-        if (json) out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(recipe, results, pick, u, model, worth)));
-        else print(out, recipe, results, u, model, worth);
+        // What re-measuring near a limit gains on this lot, when the recipe splits U into its repeatability part
+        List<net.zbin.core.RemeasureGain> gains = model != null && recipe.guard().repeatabilityPct() > 0
+                ? net.zbin.core.RemeasureGain.estimate(recipe, model, u, Math.max(3, recipe.remeasure().maxReadings()), 1) : List.of();
+        if (json) {
+            ObjectNode n = toJson(recipe, results, pick, u, model, worth);
+            if (!gains.isEmpty()) {
+                ArrayNode g = n.putArray("remeasure_gain");
+                for (var x : gains) {
+                    ObjectNode o = g.addObject();
+                    o.put("max_readings", x.maxReadings());
+                    Json.num(o, "false_reject_pct", x.falseRejectPct());
+                    Json.num(o, "false_accept_pct", x.falseAcceptPct());
+                    Json.num(o, "downgraded_pct", x.downgradedPct());
+                    Json.num(o, "remeasured_pct", x.remeasuredPct());
+                    Json.num(o, "mean_readings", x.meanReadings());
+                }
+            }
+            out.println(Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(n));
+        } else {
+            print(out, recipe, results, u, model, worth);
+            if (!gains.isEmpty()) {
+                out.printf(Locale.ROOT, "  re-measuring near a limit, the recipe as it stands (U %.4g %% of which %.4g %% repeatability; %s),"
+                        + " estimated on %d simulated parts of this lot's process:%n", u, Math.min(u, recipe.guard().repeatabilityPct()),
+                        recipe.remeasure().on() ? "near_pct " + recipe.remeasure().nearPct() : "near_pct U", net.zbin.core.RemeasureGain.PARTS);
+                out.printf(Locale.ROOT, "    %-13s %14s %14s %13s %12s %14s%n", "max readings", "false reject %", "false accept %", "downgraded %",
+                        "re-read %", "readings/part");
+                for (var x : gains)
+                    out.printf(Locale.ROOT, "    %-13d %14.3f %14.4f %13.3f %12.2f %14.3f%n", x.maxReadings(), x.falseRejectPct(), x.falseAcceptPct(),
+                            x.downgradedPct(), x.remeasuredPct(), x.meanReadings());
+            }
+        }
         if (csv != null) try (Writer w = Files.newBufferedWriter(csv)) {
             writeCsv(w, recipe, results, worth);
         }
