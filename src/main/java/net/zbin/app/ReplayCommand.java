@@ -142,10 +142,10 @@ public final class ReplayCommand implements Callable<Integer> {
         for (BinTally.BinCount b : s.bins())
             out.printf(Locale.ROOT, "  %4d  %-10s %-7s %10d %7.2f %%%n", b.bin(), b.grade(), b.verdict().key(), b.count(), b.pct());
         out.println("  reasons (final decision per part):");
-        s.reasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k, v));
+        s.reasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k.code(), v));
         if (!s.retestReasons().isEmpty()) {
             out.println("  retests:");
-            s.retestReasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k, v));
+            s.retestReasons().forEach((k, v) -> out.printf(Locale.ROOT, "    %-22s %10d%n", k.code(), v));
         }
     }
 }

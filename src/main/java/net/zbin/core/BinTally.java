@@ -18,8 +18,11 @@ import java.util.TreeMap;
 public final class BinTally {
     private final Map<BinKey, long[]> bins = new TreeMap<>(Comparator.comparingInt(BinKey::bin)
             .thenComparing(BinKey::grade).thenComparing(BinKey::verdict));
-    private final Map<String, long[]> reasons = new TreeMap<>();
-    private final Map<String, long[]> retestReasons = new TreeMap<>();
+    private final Map<Reason, long[]> reasons = new TreeMap<>(BY_CODE);
+    private final Map<Reason, long[]> retestReasons = new TreeMap<>(BY_CODE);
+
+    /** Reasons in the alphabetical order of their codes, as people read them. */
+    private static final Comparator<Reason> BY_CODE = Comparator.comparing(Reason::code);
     private long parts, passed, retests, checks, checksPassed;
 
     public record BinKey(int bin, String grade, Verdict verdict) {}
@@ -33,11 +36,11 @@ public final class BinTally {
      * @param checks        open/short/reference check presentations
      * @param checksPassed  checks that passed
      * @param bins          final decisions per bin/grade/verdict, by bin number
-     * @param reasons       final decisions per reason code, alphabetical
-     * @param retestReasons interim decisions per reason code
+     * @param reasons       final decisions per reason, alphabetical by code
+     * @param retestReasons interim decisions per reason
      */
     public record Snapshot(long parts, long passed, long retests, long checks, long checksPassed, List<BinCount> bins,
-                           Map<String, Long> reasons, Map<String, Long> retestReasons) {
+                           Map<Reason, Long> reasons, Map<Reason, Long> retestReasons) {
         public static final Snapshot EMPTY = new Snapshot(0, 0, 0, 0, 0, List.of(), Map.of(), Map.of());
 
         /** Pass share of finished parts in percent, NaN when none finished. */
@@ -60,8 +63,9 @@ public final class BinTally {
                     checksPassed - earlier.checksPassed, out, diff(reasons, earlier.reasons), diff(retestReasons, earlier.retestReasons));
         }
 
-        private static Map<String, Long> diff(Map<String, Long> a, Map<String, Long> b) {
-            Map<String, Long> out = new TreeMap<>(a);
+        private static Map<Reason, Long> diff(Map<Reason, Long> a, Map<Reason, Long> b) {
+            Map<Reason, Long> out = new TreeMap<>(BY_CODE);
+            out.putAll(a);
             b.forEach((k, v) -> out.merge(k, -v, Long::sum));
             out.values().removeIf(v -> v == 0);
             return java.util.Collections.unmodifiableMap(new LinkedHashMap<>(out));
@@ -76,13 +80,13 @@ public final class BinTally {
         }
         if (g.verdict() == Verdict.RETEST) {
             retests++;
-            retestReasons.computeIfAbsent(g.reason().code(), k -> new long[1])[0]++;
+            retestReasons.computeIfAbsent(g.reason(), k -> new long[1])[0]++;
             return;
         }
         parts++;
         if (g.verdict() == Verdict.PASS) passed++;
         bins.computeIfAbsent(new BinKey(g.bin(), g.grade(), g.verdict()), k -> new long[1])[0]++;
-        reasons.computeIfAbsent(g.reason().code(), k -> new long[1])[0]++;
+        reasons.computeIfAbsent(g.reason(), k -> new long[1])[0]++;
     }
 
     /** Counts n finished parts of one outcome at once (a sweep's counting by value). */
@@ -91,7 +95,7 @@ public final class BinTally {
         parts += n;
         if (verdict == Verdict.PASS) passed += n;
         bins.computeIfAbsent(new BinKey(bin, grade, verdict), k -> new long[1])[0] += n;
-        reasons.computeIfAbsent(reason.code(), k -> new long[1])[0] += n;
+        reasons.computeIfAbsent(reason, k -> new long[1])[0] += n;
     }
 
     /** A copy with the same counts. */
@@ -120,8 +124,8 @@ public final class BinTally {
         return new Snapshot(parts, passed, retests, checks, checksPassed, b, copy(reasons), copy(retestReasons));
     }
 
-    private static Map<String, Long> copy(Map<String, long[]> m) {
-        Map<String, Long> r = new LinkedHashMap<>();
+    private static Map<Reason, Long> copy(Map<Reason, long[]> m) {
+        Map<Reason, Long> r = new LinkedHashMap<>();
         m.forEach((k, v) -> r.put(k, v[0]));
         return java.util.Collections.unmodifiableMap(r);
     }

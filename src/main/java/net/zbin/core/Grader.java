@@ -90,19 +90,14 @@ public final class Grader {
      * check outcome.
      */
     public static Grading recorded(Recipe recipe, RecordedReading row) {
-        Trigger.Kind kind = Trigger.Kind.parse(row.kind());
+        Trigger.Kind kind = row.kind();
         if (kind == Trigger.Kind.PART) return regrade(recipe, row);
-        Reason reason;
-        try {
-            reason = row.reason() == null ? Reason.FIXTURE_OK : Reason.parse(row.reason());
-        } catch (IllegalArgumentException e) {
-            reason = Reason.FIXTURE_DRIFT;
-        }
+        Reason reason = row.reason() == null ? Reason.FIXTURE_OK : row.reason();
         boolean ok = reason == Reason.FIXTURE_OK || reason == Reason.REFERENCE_OK;
         Grading.Outcome o = new Grading.Outcome(recipe.retest().bin(), kind.key() + "-check", ok ? Verdict.PASS : Verdict.FAIL, reason);
         if (kind == Trigger.Kind.REFERENCE) {
             Grading g = regrade(recipe, new RecordedReading(row.line(), row.freqHz(), row.rOhm(), row.xOhm(), row.rawROhm(), row.rawXOhm(),
-                    null, 0, row.comp(), "part"));
+                    null, 0, row.comp(), Trigger.Kind.PART));
             return new Grading(new Grading.Outcome(o.bin(), "reference", o.verdict(), o.reason()), g.measured(), g.graded());
         }
         boolean hasZ = Double.isFinite(row.rOhm()) && Double.isFinite(row.xOhm()) && row.freqHz() > 0;
@@ -111,16 +106,10 @@ public final class Grader {
     }
 
     /**
-     * Re-creates the grading of a reading that was not clean, from its reason code alone (replay
-     * of a record whose reading is missing). Unknown codes count as a fault.
+     * Re-creates the grading of a reading that was not clean, from its reason alone (replay of a record whose
+     * reading is missing). A value reason without a value is not clean: a fault.
      */
-    public static Grading byReason(Recipe recipe, String code, int attempt) {
-        Reason reason;
-        try {
-            reason = Reason.parse(code);
-        } catch (IllegalArgumentException e) {
-            reason = Reason.METER_ERROR;
-        }
+    public static Grading byReason(Recipe recipe, Reason reason, int attempt) {
         return switch (reason.kind()) {
             case NOT_MEASURED -> notMeasured(recipe, reason);
             case UNCLEAN -> unclean(recipe, attempt, reason, null);

@@ -67,7 +67,7 @@ public final class LineEngine {
         Recipe r = n <= plan.length ? plan[n - 1] : recipe.toBuilder().guard(recipe.guard().forReadings(n)).build();
         Grading g = Grader.recorded(r, row);
         if (n > 1) g = g.withReadings(n);
-        return new Decision(row.seq() >= 0 ? row.seq() : row.line(), row.part(), row.lot(), Trigger.Kind.parse(row.kind()),
+        return new Decision(row.seq() >= 0 ? row.seq() : row.line(), row.part(), row.lot(), row.kind(),
                 recipe.name(), g, Double.NaN, false, row.attempt());
     }
 

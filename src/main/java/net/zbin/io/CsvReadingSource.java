@@ -16,7 +16,9 @@ import java.util.Map;
 import java.util.Set;
 import java.util.function.Consumer;
 import net.zbin.core.CompensationSource;
+import net.zbin.core.Reason;
 import net.zbin.core.RecordedReading;
+import net.zbin.core.Trigger;
 
 /**
  * Streams a CSV whose header names at least {@code freq_hz,r_ohm,x_ohm}; other columns are used
@@ -130,9 +132,16 @@ final class CsvReadingSource implements ReadingSource {
         if (att < 0) throw new IllegalArgumentException("attempt must be >= 0 (was " + att + ")");
         String comp = text(rec, fComp);
         CompensationSource cs = comp == null || comp.isEmpty() ? CompensationSource.NONE : CompensationSource.parse(comp);
-        String kind = text(rec, fKind);
-        if (kind == null || kind.isEmpty()) kind = "part";
-        if (!KINDS.contains(kind)) throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kind + "')");
+        String kindText = text(rec, fKind);
+        if (kindText == null || kindText.isEmpty()) kindText = "part";
+        if (!KINDS.contains(kindText)) throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + kindText + "')");
+        Trigger.Kind kind = Trigger.Kind.parse(kindText);
+        Reason why;
+        try {
+            why = mayBeBlank ? Reason.parse(reason) : null;
+        } catch (IllegalArgumentException e) {
+            throw new IllegalArgumentException("reason is not a reason code of zbin ('" + reason + "')");
+        }
         String seqText = text(rec, fSeq);
         long seq;
         try {
@@ -152,7 +161,7 @@ final class CsvReadingSource implements ReadingSource {
         String part = fPart < 0 ? "" : SpreadsheetSafe.read(rec.getField(fPart));
         String lot = fLot < 0 ? "" : SpreadsheetSafe.read(rec.getField(fLot));
         return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
-                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), mayBeBlank ? reason : null, att, cs, kind, seq, part, lot, readings);
+                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), why, att, cs, kind, seq, part, lot, readings);
     }
 
     private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }

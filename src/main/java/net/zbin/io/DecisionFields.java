@@ -1,10 +1,10 @@
 package net.zbin.io;
 
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import java.time.Instant;
 import java.util.List;
 import java.util.function.Function;
 import net.zbin.core.Decision;
+import net.zbin.core.DecisionEvent;
 import net.zbin.core.Grading;
 
 /**
@@ -16,10 +16,7 @@ import net.zbin.core.Grading;
 public final class DecisionFields {
     private DecisionFields() {}
 
-    /** A decision with when it was made and on which line. */
-    public record Entry(Instant time, String line, Decision decision) {
-        Grading g() { return decision.grading(); }
-    }
+    private static Grading g(DecisionEvent e) { return e.decision().grading(); }
 
     /** Where a field goes. */
     enum Use { RECORD, PAYLOAD, BOTH }
@@ -30,44 +27,44 @@ public final class DecisionFields {
      * @param value String, Long, Integer, Double (non-finite → empty/null), Boolean, or null
      * @param text  free text from outside (a trigger, a recipe): written spreadsheet-safe in the record log
      */
-    record Field(String name, Use use, Function<Entry, Object> value, boolean text) {
-        Field(String name, Use use, Function<Entry, Object> value) { this(name, use, value, false); }
+    record Field(String name, Use use, Function<DecisionEvent, Object> value, boolean text) {
+        Field(String name, Use use, Function<DecisionEvent, Object> value) { this(name, use, value, false); }
     }
 
 
     static final List<Field> ALL = List.of(
             new Field("time", Use.RECORD, e -> e.time().toString()),
-            new Field("line", Use.RECORD, Entry::line, true),
+            new Field("line", Use.RECORD, DecisionEvent::line, true),
             new Field("lot", Use.BOTH, e -> e.decision().lot(), true),
             new Field("seq", Use.BOTH, e -> e.decision().seq() >= 0 ? (Object) e.decision().seq() : null),
             new Field("part", Use.BOTH, e -> e.decision().part(), true),
             new Field("kind", Use.BOTH, e -> e.decision().kind().key()),
             new Field("recipe", Use.BOTH, e -> e.decision().recipe(), true),
-            new Field("freq_hz", Use.BOTH, e -> e.g().freqHz()),
-            new Field("r_ohm", Use.BOTH, e -> e.g().rOhm()),
-            new Field("x_ohm", Use.BOTH, e -> e.g().xOhm()),
-            new Field("raw_r_ohm", Use.BOTH, e -> e.g().rawROhm()),
-            new Field("raw_x_ohm", Use.BOTH, e -> e.g().rawXOhm()),
-            new Field("model", Use.BOTH, e -> e.g().model() == null ? null : e.g().model().key()),
-            new Field("param", Use.BOTH, e -> e.g().param() == null ? null : e.g().param().label()),
-            new Field("value", Use.BOTH, e -> e.g().value()),
-            new Field("dev_pct", Use.BOTH, e -> e.g().devPct()),
-            new Field("d", Use.BOTH, e -> e.g().d()),
-            new Field("q", Use.BOTH, e -> e.g().q()),
-            new Field("esr_ohm", Use.BOTH, e -> e.g().esrOhm()),
-            new Field("theta_deg", Use.BOTH, e -> e.g().thetaDeg()),
-            new Field("bin", Use.BOTH, e -> e.g().bin()),
-            new Field("grade", Use.BOTH, e -> e.g().grade(), true),
-            new Field("verdict", Use.BOTH, e -> e.g().verdict().key()),
-            new Field("reason", Use.BOTH, e -> e.g().reason().code()),
+            new Field("freq_hz", Use.BOTH, e -> g(e).freqHz()),
+            new Field("r_ohm", Use.BOTH, e -> g(e).rOhm()),
+            new Field("x_ohm", Use.BOTH, e -> g(e).xOhm()),
+            new Field("raw_r_ohm", Use.BOTH, e -> g(e).rawROhm()),
+            new Field("raw_x_ohm", Use.BOTH, e -> g(e).rawXOhm()),
+            new Field("model", Use.BOTH, e -> g(e).model() == null ? null : g(e).model().key()),
+            new Field("param", Use.BOTH, e -> g(e).param() == null ? null : g(e).param().label()),
+            new Field("value", Use.BOTH, e -> g(e).value()),
+            new Field("dev_pct", Use.BOTH, e -> g(e).devPct()),
+            new Field("d", Use.BOTH, e -> g(e).d()),
+            new Field("q", Use.BOTH, e -> g(e).q()),
+            new Field("esr_ohm", Use.BOTH, e -> g(e).esrOhm()),
+            new Field("theta_deg", Use.BOTH, e -> g(e).thetaDeg()),
+            new Field("bin", Use.BOTH, e -> g(e).bin()),
+            new Field("grade", Use.BOTH, e -> g(e).grade(), true),
+            new Field("verdict", Use.BOTH, e -> g(e).verdict().key()),
+            new Field("reason", Use.BOTH, e -> g(e).reason().code()),
             new Field("latency_ms", Use.BOTH, e -> e.decision().latencyMs()),
-            new Field("comp", Use.BOTH, e -> e.g().comp().key()),
+            new Field("comp", Use.BOTH, e -> g(e).comp().key()),
             new Field("attempt", Use.BOTH, e -> e.decision().attempt()),
             // appended (the log's columns only ever grow at the end): how many readings the value is the mean of
-            new Field("readings", Use.BOTH, e -> e.g().readings() > 0 ? (Object) e.g().readings() : null),
+            new Field("readings", Use.BOTH, e -> g(e).readings() > 0 ? (Object) g(e).readings() : null),
             // payload only
-            new Field("unit", Use.PAYLOAD, e -> e.g().unit()),
-            new Field("z_ohm", Use.PAYLOAD, e -> e.g().zOhm()),
+            new Field("unit", Use.PAYLOAD, e -> g(e).unit()),
+            new Field("z_ohm", Use.PAYLOAD, e -> g(e).zOhm()),
             new Field("repeat", Use.PAYLOAD, e -> e.decision().repeat()));
 
     /** The record-log columns, in order. */
@@ -79,7 +76,7 @@ public final class DecisionFields {
 
     /** The decision payload. */
     public static ObjectNode json(Decision d) {
-        Entry e = new Entry(null, null, d);
+        DecisionEvent e = new DecisionEvent(null, null, d);
         ObjectNode n = Json.object();
         for (Field f : ALL) {
             if (f.use() == Use.RECORD) continue;
@@ -95,7 +92,7 @@ public final class DecisionFields {
     }
 
     /** One record-log row, as text per column (empty for absent or non-finite). */
-    public static String[] row(Entry e) {
+    public static String[] row(DecisionEvent e) {
         String[] out = new String[COLUMNS.size()];
         int i = 0;
         for (Field f : ALL) {

@@ -79,6 +79,25 @@ public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile
      */
     public record MqttSettings(String broker, String topicRoot, String clientId, String username, char[] password,
                                Path caFile, Path certFile, Path keyFile, int keepAliveS) {
+        public MqttSettings {
+            password = password == null ? null : password.clone(); // immutable: the caller's array may be cleared
+        }
+
+        /** A copy of the password (null: none): the settings stay as loaded whatever the caller does with it. */
+        @Override
+        public char[] password() { return password == null ? null : password.clone(); }
+
+        @Override
+        public boolean equals(Object o) {
+            return o instanceof MqttSettings m && broker.equals(m.broker) && topicRoot.equals(m.topicRoot)
+                    && java.util.Objects.equals(clientId, m.clientId) && java.util.Objects.equals(username, m.username)
+                    && java.util.Arrays.equals(password, m.password) && java.util.Objects.equals(caFile, m.caFile)
+                    && java.util.Objects.equals(certFile, m.certFile) && java.util.Objects.equals(keyFile, m.keyFile) && keepAliveS == m.keepAliveS;
+        }
+
+        @Override
+        public int hashCode() { return java.util.Objects.hash(broker, topicRoot, clientId, username, caFile, certFile, keyFile, keepAliveS); }
+
         @Override
         public String toString() {
             return "MqttSettings[broker=" + broker + ", topicRoot=" + topicRoot + ", clientId=" + clientId

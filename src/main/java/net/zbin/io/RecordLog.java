@@ -105,7 +105,7 @@ public final class RecordLog implements AutoCloseable {
     }
 
     /** The row's bytes as they go to the file (free-text cells spreadsheet-safe, see {@link DecisionFields#row}). */
-    public static byte[] encode(DecisionFields.Entry e) {
+    public static byte[] encode(net.zbin.core.DecisionEvent e) {
         return (FORMAT.format((Object[]) DecisionFields.row(e)) + "\n").getBytes(StandardCharsets.UTF_8);
     }
 
@@ -113,7 +113,7 @@ public final class RecordLog implements AutoCloseable {
      * Writes a row through to the operating system. False when it did not get there (the log is failing, or
      * rows are kept from a failure): the caller decides what to answer and then {@link #keep}s the row it answered.
      */
-    public boolean write(DecisionFields.Entry e) {
+    public boolean write(net.zbin.core.DecisionEvent e) {
         byte[] row = encode(e);
         synchronized (this) {
             if (closed) throw new IllegalStateException("record log closed");
@@ -132,7 +132,7 @@ public final class RecordLog implements AutoCloseable {
      * Keeps a row that {@link #write} could not write, to be written in order when the log is writable again;
      * beyond the byte bound of its class it is dropped and counted.
      */
-    public void keep(DecisionFields.Entry e) {
+    public void keep(net.zbin.core.DecisionEvent e) {
         byte[] row = encode(e);
         boolean measured = e.decision().grading().reason().kind() != Reason.Kind.NOT_MEASURED;
         synchronized (this) {
@@ -150,7 +150,7 @@ public final class RecordLog implements AutoCloseable {
     }
 
     /** {@link #write}, and {@link #keep} when that fails: for callers whose answer does not depend on it. */
-    public boolean append(DecisionFields.Entry e) {
+    public boolean append(net.zbin.core.DecisionEvent e) {
         if (write(e)) return true;
         keep(e);
         return false;

@@ -56,7 +56,7 @@ public final class RecordLogReader {
     }
 
     /** Every whole row of the line's log from {@code since}'s UTC day on, oldest first. */
-    public static void read(Path dir, String line, Instant since, Consumer<DecisionFields.Entry> sink) throws IOException {
+    public static void read(Path dir, String line, Instant since, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
         read(dir, line, since, Instant.MAX, sink);
     }
 
@@ -65,7 +65,7 @@ public final class RecordLogReader {
      * day and rows stamped after {@code until} are from a clock that was wrong: they are set aside (with one warning
      * each), never taken for what the line decided last.
      */
-    public static void read(Path dir, String line, Instant since, Instant until, Consumer<DecisionFields.Entry> sink) throws IOException {
+    public static void read(Path dir, String line, Instant since, Instant until, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
         LocalDate lastDay = until.equals(Instant.MAX) ? LocalDate.MAX : LocalDate.ofInstant(until, ZoneOffset.UTC);
         for (Path f : files(dir, line, LocalDate.ofInstant(since, ZoneOffset.UTC))) {
             LocalDate day = dayOf(f, line);
@@ -77,7 +77,7 @@ public final class RecordLogReader {
             long future = 0;
             try (Reader r = Files.newBufferedReader(f, StandardCharsets.UTF_8); CSVParser p = FORMAT.parse(r)) {
                 for (CSVRecord rec : p) {
-                    DecisionFields.Entry e = entry(rec);
+                    net.zbin.core.DecisionEvent e = entry(rec);
                     if (e == null) continue;
                     if (e.time().isAfter(until)) {
                         future++;
@@ -102,7 +102,7 @@ public final class RecordLogReader {
     private static String text(CSVRecord r, String column) { return SpreadsheetSafe.read(r.get(column)); }
 
     /** One row as the decision it recorded, or null when the row is not whole. */
-    static DecisionFields.Entry entry(CSVRecord r) {
+    static net.zbin.core.DecisionEvent entry(CSVRecord r) {
         if (!r.isConsistent()) return null;
         try {
             Instant time = Instant.parse(r.get("time"));
@@ -118,7 +118,7 @@ public final class RecordLogReader {
                     Verdict.valueOf(r.get("verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(r.get("reason"))), m, v);
             Decision d = new Decision(Long.parseLong(r.get("seq")), text(r, "part"), text(r, "lot"), Trigger.Kind.parse(r.get("kind")),
                     text(r, "recipe"), g, num(r, "latency_ms"), false, Integer.parseInt(r.get("attempt")));
-            return new DecisionFields.Entry(time, text(r, "line"), d);
+            return new net.zbin.core.DecisionEvent(time, text(r, "line"), d);
         } catch (RuntimeException e) {
             return null;
         }

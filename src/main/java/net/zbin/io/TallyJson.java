@@ -30,8 +30,8 @@ public final class TallyJson {
             o.put("pct", Math.round(b.pct() * 100) / 100.0); // for people: 0.01 %
         }
         ObjectNode reasons = n.putObject("reasons");
-        s.reasons().forEach(reasons::put);
+        s.reasons().forEach((k, v) -> reasons.put(k.code(), v));
         ObjectNode interim = n.putObject("retest_reasons");
-        s.retestReasons().forEach(interim::put);
+        s.retestReasons().forEach((k, v) -> interim.put(k.code(), v));
     }
 }

@@ -156,12 +156,12 @@ class GraderTest {
         Recipe r = cap(GradingMode.CONCENTRIC, NESTED, GuardBand.NONE, Gates.NONE);
         Reading live = capReading(3, 0.01);
         Grading first = Grader.grade(r, live, null, 0);
-        RecordedReading row = new RecordedReading(2, F, live.rOhm(), live.xOhm(), live.rOhm(), live.xOhm(), first.reason().code(), 0,
-                CompensationSource.NONE, "part");
+        RecordedReading row = new RecordedReading(2, F, live.rOhm(), live.xOhm(), live.rOhm(), live.xOhm(), first.reason(), 0,
+                CompensationSource.NONE, Trigger.Kind.PART);
         assertEquals(first.bin(), Grader.regrade(r, row).bin());
         // A meter timeout on a retest left no reading: its reason and attempt alone give the fault bin.
-        RecordedReading timeout = new RecordedReading(3, F, Double.NaN, Double.NaN, Double.NaN, Double.NaN, "meter-timeout", 1,
-                CompensationSource.NONE, "part");
+        RecordedReading timeout = new RecordedReading(3, F, Double.NaN, Double.NaN, Double.NaN, Double.NaN, Reason.METER_TIMEOUT, 1,
+                CompensationSource.NONE, Trigger.Kind.PART);
         assertEquals(Grader.fault(r, FaultKind.TIMEOUT, 1).bin(), Grader.regrade(r, timeout).bin());
         assertEquals(13, Grader.regrade(r, timeout).bin());
     }

@@ -35,7 +35,7 @@ class RecordLogTest {
         return new Decision(seq, "P-" + seq, "LOT-1", Trigger.Kind.PART, "mlcc-x7r-100n", g, 1.25, false, 0);
     }
 
-    static DecisionFields.Entry row(long seq, Instant t) { return new DecisionFields.Entry(t, "l1", decision(seq)); }
+    static net.zbin.core.DecisionEvent row(long seq, Instant t) { return new net.zbin.core.DecisionEvent(t, "l1", decision(seq)); }
 
     /** The record-log columns as published in the README; new ones only ever come after these. */
     static final List<String> PUBLISHED = List.of("time", "line", "lot", "seq", "part", "kind", "recipe", "freq_hz",
@@ -66,7 +66,7 @@ class RecordLogTest {
             log.start();
             for (int i = 0; i < 5; i++) log.append(row(i, t));
         }
-        List<DecisionFields.Entry> back = new java.util.ArrayList<>();
+        List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
         RecordLogReader.read(recs, "l1", t, back::add);
         assertEquals(5, back.size());
         for (int i = 0; i < 5; i++) {
@@ -175,12 +175,12 @@ class RecordLogTest {
         Instant t = Instant.parse("2026-11-30T10:00:00Z");
         // CSV injection (OWASP): cells starting with = + - @ tab or CR are formulas to a spreadsheet
         String[] parts = {"=HYPERLINK(\"http://x\",\"y\")", "+cmd|' /C calc'!A0", "-2+3", "@SUM(1)", "\tP", "'already quoted", "P-7"};
-        List<DecisionFields.Entry> written = new java.util.ArrayList<>();
+        List<net.zbin.core.DecisionEvent> written = new java.util.ArrayList<>();
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
             log.start();
             for (int i = 0; i < parts.length; i++) {
                 Decision d = decision(i);
-                DecisionFields.Entry e = new DecisionFields.Entry(t, "l1", new Decision(d.seq(), parts[i], "=LOT" + i, d.kind(), d.recipe(),
+                net.zbin.core.DecisionEvent e = new net.zbin.core.DecisionEvent(t, "l1", new Decision(d.seq(), parts[i], "=LOT" + i, d.kind(), d.recipe(),
                         d.grading(), d.latencyMs(), false, 0));
                 written.add(e);
                 assertTrue(log.append(e));
@@ -192,7 +192,7 @@ class RecordLogTest {
                 String c = cell.startsWith("\"") ? cell.substring(1) : cell;
                 assertFalse(c.startsWith("=") || c.startsWith("+") || c.startsWith("@") || c.startsWith("\t"), "a formula cell: " + line);
             }
-        List<DecisionFields.Entry> back = new java.util.ArrayList<>();
+        List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
         RecordLogReader.read(recs, "l1", t, back::add);
         assertEquals(written, back, "the exact original text");
     }

@@ -95,7 +95,7 @@ public final class Daemon implements AutoCloseable {
             String recipe = setup.recipe().name();
             LineStats.Snapshot st = stats.snapshot();
             net.zbin.core.LineMonitor.Snapshot mon = monitor.snapshot();
-            java.util.Set<String> alarms = mode.activeAlarms().keySet();
+            java.util.Set<net.zbin.core.AlarmCode> alarms = mode.activeAlarms().keySet();
             int backlog = records.backlog();
             long dropped = records.dropped();
             ticker.execute(() -> {

@@ -15,7 +15,7 @@ final class DashboardJson {
     private DashboardJson() {}
 
     static ObjectNode encode(String line, String recipe, Mode mode, LineStats.Snapshot s, net.zbin.core.LineMonitor.Snapshot monitor,
-                             Collection<String> alarms, long recordBacklog, long recordDropped, long mqttBuffered) {
+                             Collection<net.zbin.core.AlarmCode> alarms, long recordBacklog, long recordDropped, long mqttBuffered) {
         ObjectNode n = Json.object();
         n.put("line", line);
         n.put("lot", s.lot());
@@ -40,7 +40,7 @@ final class DashboardJson {
         n.put("seq_reused", s.reusedSeqs());
         n.put("busy", s.busy());
         n.put("decisions", s.decisions());
-        n.putArray("alarms").addAll(alarms.stream().sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
+        n.putArray("alarms").addAll(alarms.stream().map(net.zbin.core.AlarmCode::code).sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
         n.put("record_backlog", recordBacklog);
         n.put("record_dropped", recordDropped);
         n.put("mqtt_buffered", mqttBuffered);
@@ -50,11 +50,11 @@ final class DashboardJson {
     }
 
     /** Parts finished and passed in a rolling time window, with the yield and its Wilson 95 % interval. */
-    private static void window(ObjectNode n, long[] w) {
-        n.put("parts", w[0]);
-        n.put("passed", w[1]);
-        double[] ci = Wilson.interval(w[1], w[0], Wilson.Z95);
-        round(n, "yield_pct", w[0] == 0 ? Double.NaN : 100.0 * w[1] / w[0], 100);
+    private static void window(ObjectNode n, LineStats.Window w) {
+        n.put("parts", w.parts());
+        n.put("passed", w.passed());
+        double[] ci = Wilson.interval(w.passed(), w.parts(), Wilson.Z95);
+        round(n, "yield_pct", w.parts() == 0 ? Double.NaN : 100.0 * w.passed() / w.parts(), 100);
         round(n, "yield_low_pct", ci[0] * 100, 100);
         round(n, "yield_high_pct", ci[1] * 100, 100);
     }

@@ -9,5 +9,5 @@ import net.zbin.io.DecisionFields;
  * it must not block and must not throw — the next part waits on it.
  */
 public interface DecisionListener {
-    void decided(DecisionFields.Entry e);
+    void decided(net.zbin.core.DecisionEvent e);
 }

@@ -26,7 +26,7 @@ final class LineMode {
     private final Topics topics;
     private final boolean pauseOnLogFailure;
     private final Supplier<String> recipe;
-    private final Map<String, Alarm> active = new ConcurrentHashMap<>();
+    private final Map<AlarmCode, Alarm> active = new ConcurrentHashMap<>();
     private final java.util.Set<AlarmCode> pauseOn;
     private final java.nio.file.Path history;
     private volatile Publisher out;
@@ -39,7 +39,7 @@ final class LineMode {
     private Mode published = Mode.OFFLINE;
     private Instant since;
 
-    record Alarm(String code, String severity, String message, Instant since) {}
+    record Alarm(AlarmCode code, String message, Instant since) {}
 
     LineMode(Clock clock, Topics topics, boolean pauseOnLogFailure, Supplier<String> recipe) {
         this(clock, topics, pauseOnLogFailure, recipe, java.util.Set.of(), null);
@@ -65,7 +65,7 @@ final class LineMode {
 
     synchronized Mode mode() {
         if (operatorPaused || (logFailing && pauseOnLogFailure)) return Mode.PAUSED;
-        for (AlarmCode c : pauseOn) if (active.containsKey(c.code())) return Mode.PAUSED;
+        for (AlarmCode c : pauseOn) if (active.containsKey(c)) return Mode.PAUSED;
         if (linkDown || setupRefused) return Mode.FAULT;
         return Mode.READY;
     }
@@ -121,7 +121,7 @@ final class LineMode {
     /** After a (re)connect: the state and every active alarm again. */
     synchronized void announce() {
         publishState();
-        for (Alarm a : active.values()) send(topics.alarm(), Payloads.alarm(a.code(), a.severity(), true, a.message(), a.since()), false);
+        for (Alarm a : active.values()) send(topics.alarm(), Payloads.alarm(a.code().code(), a.code().severity().key(), true, a.message(), a.since()), false);
     }
 
     private void send(String topic, byte[] payload, boolean retained) {
@@ -152,12 +152,12 @@ final class LineMode {
         Instant when;
         String key = code.code();
         if (on) {
-            if (active.containsKey(key)) return;
+            if (active.containsKey(code)) return;
             when = clock.instant();
-            active.put(key, new Alarm(key, code.severity().key(), message, when));
+            active.put(code, new Alarm(code, message, when));
             LOG.warn("alarm {}: {}", key, message);
         } else {
-            Alarm a = active.remove(key);
+            Alarm a = active.remove(code);
             if (a == null) return;
             when = a.since();
             LOG.info("alarm {} cleared: {}", key, message);
@@ -184,7 +184,7 @@ final class LineMode {
         }
     }
 
-    Map<String, Alarm> activeAlarms() { return Map.copyOf(active); }
+    Map<AlarmCode, Alarm> activeAlarms() { return Map.copyOf(active); }
 
     /** Clears every recipe-bound alarm (the monitor of the new recipe raises again what still holds). */
     synchronized void clearRecipeBound(String why) {

@@ -53,10 +53,13 @@ final class LineStats implements DecisionListener {
      */
     record Snapshot(String lot, Instant lotSince, BinTally.Snapshot lotTally, BinTally.Snapshot total, double yieldLowPct,
                     double yieldHighPct, double uphMinute, double uphHour, double p50Ms, double p99Ms, double maxMs,
-                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy, long[] window10Min, long[] windowHour) {}
+                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy, Window window10Min, Window windowHour) {}
+
+    /** Parts finished and passed in a rolling time window. */
+    record Window(long parts, long passed) {}
 
     @Override
-    public synchronized void decided(DecisionFields.Entry e) {
+    public synchronized void decided(net.zbin.core.DecisionEvent e) {
         var d = e.decision();
         var g = d.grading();
         decisions++;
@@ -79,15 +82,15 @@ final class LineStats implements DecisionListener {
         if (passed) ringPassed[i]++;
     }
 
-    /** [parts finished, parts passed] in the seconds (from, now]. */
-    private long[] finishedSince(long fromSecond, long nowSecond) {
+    /** Parts finished and passed in the seconds (from, now]. */
+    private Window finishedSince(long fromSecond, long nowSecond) {
         long n = 0, p = 0;
         for (int i = 0; i < RING_S; i++)
             if (ringSecond[i] > fromSecond && ringSecond[i] <= nowSecond) {
                 n += ringCount[i];
                 p += ringPassed[i];
             }
-        return new long[] {n, p};
+        return new Window(n, p);
     }
 
     synchronized void repeated() { repeats++; }
@@ -113,8 +116,7 @@ final class LineStats implements DecisionListener {
     synchronized void resetAt(Instant when) {
         base = tally.snapshot();
         lotSince = when;
-        resetAt = when;
-        latencyUs.reset();
+        resetAt = when; // the latency histogram keeps counting: counts only grow (a reset is a new "since", not lost data)
     }
 
     /** When reset-counters last ran in this lot, or null. */
@@ -137,7 +139,7 @@ final class LineStats implements DecisionListener {
     Snapshot snapshot() {
         BinTally.Snapshot all, l;
         double minute;
-        long[] h, m10;
+        Window h, m10;
         Histogram lat;
         String lotNow;
         Instant since;
@@ -146,7 +148,7 @@ final class LineStats implements DecisionListener {
             all = tally.snapshot();
             l = all.minus(base);
             long now = clock.instant().getEpochSecond();
-            minute = finishedSince(now - 60, now)[0] * 60.0;
+            minute = finishedSince(now - 60, now).parts() * 60.0;
             h = finishedSince(now - 3600, now);
             m10 = finishedSince(now - 600, now);
             lat = latencyUs.copy();
@@ -161,7 +163,7 @@ final class LineStats implements DecisionListener {
         }
         double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
         boolean any = lat.getTotalCount() > 0;
-        return new Snapshot(lotNow, since, l, all, ci[0] * 100, ci[1] * 100, minute, h[0],
+        return new Snapshot(lotNow, since, l, all, ci[0] * 100, ci[1] * 100, minute, h.parts(),
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN,
                 any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
                 any ? lat.getMaxValue() / 1000.0 : Double.NaN, dec, lt, rep, rej, reused, bz, m10, h);

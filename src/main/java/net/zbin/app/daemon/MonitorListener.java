@@ -31,7 +31,7 @@ final class MonitorListener implements DecisionListener {
     }
 
     @Override
-    public synchronized void decided(DecisionFields.Entry e) {
+    public synchronized void decided(net.zbin.core.DecisionEvent e) {
         forward(engine.observe(e.decision()));
     }
 

@@ -52,7 +52,7 @@ final class TriggerPath {
      */
     private final java.util.function.LongSupplier monoMs = () -> System.nanoTime() / 1_000_000L;
     /** Decisions read back at start that may still be repeated; put into the book when the read-back ends. */
-    private final java.util.ArrayDeque<DecisionFields.Entry> readBack = new java.util.ArrayDeque<>();
+    private final java.util.ArrayDeque<net.zbin.core.DecisionEvent> readBack = new java.util.ArrayDeque<>();
 
     TriggerPath(LineConfig cfg, Topics topics, LineSetup setup, MeterSession meter, Publisher out, RecordLog records,
                 LineMode mode, LineStats stats, DecisionBook book, List<DecisionListener> listeners, Clock clock) {
@@ -85,7 +85,7 @@ final class TriggerPath {
         Recipe r = setup.recipe();
         Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        book.put(deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d)), now);
+        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d)), now);
     }
 
     /**
@@ -109,7 +109,7 @@ final class TriggerPath {
         Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
                 Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
         stats.busy();
-        deliver(new DecisionFields.Entry(clock.instant(), cfg.line(), d));
+        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d));
     }
 
     /**
@@ -118,13 +118,13 @@ final class TriggerPath {
      * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
      * handler acted on, and that answer's row is kept for when the log is writable again.
      */
-    private synchronized Decision deliver(DecisionFields.Entry e) {
+    private synchronized Decision deliver(net.zbin.core.DecisionEvent e) {
         if (!records.write(e)) {
             Decision d = e.decision();
             if (cfg.records().pauseOnFailure() && d.grading().reason().kind() != Reason.Kind.NOT_MEASURED) {
                 d = new Decision(d.seq(), d.part(), d.lot(), d.kind(), d.recipe(), Grader.notMeasured(setup.recipe(), Reason.RECORD_FAILED),
                         d.latencyMs(), false, d.attempt());
-                e = new DecisionFields.Entry(e.time(), e.line(), d);
+                e = new net.zbin.core.DecisionEvent(e.time(), e.line(), d);
             }
             records.keep(e);
         }
@@ -217,7 +217,7 @@ final class TriggerPath {
     }
 
     /** Puts back what the record log says was decided before a restart: the lot's figures now, the book at {@link #readBackDone}. */
-    void recovered(DecisionFields.Entry e) {
+    void recovered(net.zbin.core.DecisionEvent e) {
         Decision d = e.decision();
         enterLot(d.lot(), e.time());
         if (!readBack.isEmpty() && !readBack.peekLast().decision().lot().equals(d.lot())) readBack.clear();
@@ -236,7 +236,7 @@ final class TriggerPath {
         int n = 0;
         if (!readBack.isEmpty()) {
             long last = readBack.peekLast().time().toEpochMilli(), now = monoMs.getAsLong();
-            for (DecisionFields.Entry e : readBack) {
+            for (net.zbin.core.DecisionEvent e : readBack) {
                 if (!e.decision().lot().equals(book.lot())) continue;
                 book.put(e.decision(), now - (last - e.time().toEpochMilli()));
                 n++;

@@ -59,10 +59,10 @@ final class Warmup {
                 stats.startLot(lot, Instant.EPOCH);
             }
             sum += engine.observe(d).size();
-            stats.decided(new DecisionFields.Entry(Instant.EPOCH, "warm-up", d));
+            stats.decided(new net.zbin.core.DecisionEvent(Instant.EPOCH, "warm-up", d));
             latency.recordValue(100 + i % 1000);
             sum += Payloads.bytes(DecisionFields.json(d)).length;
-            sum += RecordLog.encode(new DecisionFields.Entry(Instant.EPOCH, "warm-up", d)).length;
+            sum += RecordLog.encode(new net.zbin.core.DecisionEvent(Instant.EPOCH, "warm-up", d)).length;
         }
         return sum + latency.getTotalCount();
     }

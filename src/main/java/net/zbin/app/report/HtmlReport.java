@@ -52,7 +52,7 @@ public final class HtmlReport {
             b.append(String.format(Locale.ROOT, "<tr><td>%d</td><td class=\"l\">%s</td><td class=\"l\">%s</td><td>%d</td><td>%.2f %%</td></tr>",
                     c.bin(), Svg.esc(c.grade()), c.verdict().key(), c.count(), c.pct()));
         b.append("</table><table><tr><th class=\"l\">reason (final decision)</th><th>parts</th></tr>");
-        s.reasons().forEach((k, v) -> b.append("<tr><td class=\"l\">").append(Svg.esc(k)).append("</td><td>").append(v).append("</td></tr>"));
+        s.reasons().forEach((k, v) -> b.append("<tr><td class=\"l\">").append(Svg.esc(k.code())).append("</td><td>").append(v).append("</td></tr>"));
         b.append("</table>");
         return this;
     }

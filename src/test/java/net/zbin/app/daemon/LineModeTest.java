@@ -81,7 +81,7 @@ class LineModeTest {
         m.alarm(net.zbin.core.AlarmCode.VALUE_DRIFT, true, "drifted", true);
         m.setLinkDown(true, "gone");
         m.clearRecipeBound("recipe changed to r2");
-        assertEquals(java.util.Set.of("meter-link-down"), m.activeAlarms().keySet());
+        assertEquals(java.util.Set.of(net.zbin.core.AlarmCode.METER_LINK_DOWN), m.activeAlarms().keySet());
         m.drain(2000);
         assertTrue(out.on(topics.alarm()).stream().filter(a -> a.payload().contains("\"active\":false"))
                 .allMatch(a -> a.payload().contains("recipe changed to r2")));
