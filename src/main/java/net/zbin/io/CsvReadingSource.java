@@ -1,18 +1,9 @@
 package net.zbin.io;
 
 import ch.randelshofer.fastdoubleparser.JavaDoubleParser;
-import de.siegmar.fastcsv.reader.CsvParseException;
-import de.siegmar.fastcsv.reader.CsvReader;
 import de.siegmar.fastcsv.reader.CsvRecord;
 import java.io.IOException;
-import java.io.RandomAccessFile;
-import java.io.UncheckedIOException;
-import java.nio.charset.StandardCharsets;
-import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.HashMap;
-import java.util.Iterator;
-import java.util.Map;
 import java.util.Set;
 import java.util.function.Consumer;
 import net.zbin.core.CompensationSource;
@@ -32,83 +23,48 @@ final class CsvReadingSource implements ReadingSource {
 
     private final Path file;
     private final Consumer<BadRow> bad;
-    private final CsvReader<CsvRecord> reader;
-    private final Iterator<CsvRecord> it;
+    private final CsvTable table;
     private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot, fReadings;
-    private final boolean tornTail;
 
     CsvReadingSource(Path file, Consumer<BadRow> bad) throws IOException, ConfigException {
         this.file = file;
         this.bad = bad;
-        if (!Files.exists(file)) throw new ConfigException(file, null, "file not found");
-        this.tornTail = endsWithoutNewline(file);
-        // a spreadsheet export starts with a UTF-8 byte-order mark: it is not part of the first column name
-        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).detectBomHeader(true)
-                .ofCsvRecord(file, StandardCharsets.UTF_8);
-        this.it = reader.iterator();
-        Map<String, Integer> header = new HashMap<>();
-        int fields = 0;
-        try {
-            if (it.hasNext()) {
-                CsvRecord h = it.next();
-                fields = h.getFieldCount();
-                for (int i = 0; i < fields; i++) header.putIfAbsent(h.getField(i).trim(), i);
-            }
-        } catch (CsvParseException | UncheckedIOException e) {
-            reader.close();
-            throw new ConfigException(file, "line 1", "unreadable CSV header: " + e.getMessage());
-        }
+        this.table = new CsvTable(file);
         for (String col : RecordColumns.REPLAY_REQUIRED)
-            if (!header.containsKey(col)) {
-                reader.close();
+            if (table.column(col) < 0) {
+                table.close();
                 throw new ConfigException(file, "line 1", "header lacks column '" + col + "' (needs at least "
                         + String.join(",", RecordColumns.REPLAY_REQUIRED) + ")");
             }
-        width = fields; // the header's own field count: a repeated column name does not shorten the rows
-        fFreq = header.get("freq_hz");
-        fR = header.get("r_ohm");
-        fX = header.get("x_ohm");
-        fRawR = header.getOrDefault("raw_r_ohm", -1);
-        fRawX = header.getOrDefault("raw_x_ohm", -1);
-        fReason = header.getOrDefault("reason", -1);
-        fAttempt = header.getOrDefault("attempt", -1);
-        fComp = header.getOrDefault("comp", -1);
-        fKind = header.getOrDefault("kind", -1);
-        fSeq = header.getOrDefault("seq", -1);
-        fPart = header.getOrDefault("part", -1);
-        fLot = header.getOrDefault("lot", -1);
-        fReadings = header.getOrDefault("readings", -1);
-    }
-
-    private static boolean endsWithoutNewline(Path file) throws IOException {
-        try (RandomAccessFile raf = new RandomAccessFile(file.toFile(), "r")) {
-            long len = raf.length();
-            if (len == 0) return false;
-            raf.seek(len - 1);
-            int last = raf.read();
-            return last != '\n' && last != '\r';
-        }
+        width = table.width();
+        fFreq = table.column("freq_hz");
+        fR = table.column("r_ohm");
+        fX = table.column("x_ohm");
+        fRawR = table.column("raw_r_ohm");
+        fRawX = table.column("raw_x_ohm");
+        fReason = table.column("reason");
+        fAttempt = table.column("attempt");
+        fComp = table.column("comp");
+        fKind = table.column("kind");
+        fSeq = table.column("seq");
+        fPart = table.column("part");
+        fLot = table.column("lot");
+        fReadings = table.column("readings");
     }
 
     @Override
     public RecordedReading next() throws IOException {
         while (true) {
-            CsvRecord rec;
-            try {
-                if (!it.hasNext()) return null;
-                rec = it.next();
-            } catch (CsvParseException | UncheckedIOException e) {
-                throw new IOException(file + ": unreadable CSV: " + e.getMessage(), e);
-            }
-            long line = rec.getStartingLineNumber();
-            if (tornTail && !it.hasNext()) {
-                bad.accept(new BadRow(line, "torn last line (no newline at end of file), skipped"));
+            CsvTable.Row r = table.next();
+            if (r == null) return null;
+            if (r.torn()) {
+                bad.accept(new BadRow(r.line(), "torn last line (no newline at end of file), skipped"));
                 return null;
             }
             try {
-                return row(rec, line);
+                return row(r.record(), r.line());
             } catch (IllegalArgumentException e) {
-                bad.accept(new BadRow(line, e.getMessage()));
+                bad.accept(new BadRow(r.line(), e.getMessage()));
             }
         }
     }
@@ -184,5 +140,5 @@ final class CsvReadingSource implements ReadingSource {
     }
 
     @Override
-    public void close() throws IOException { reader.close(); }
+    public void close() throws IOException { table.close(); }
 }

@@ -1,8 +1,6 @@
 package net.zbin.io;
 
 import java.io.IOException;
-import java.io.Reader;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Instant;
@@ -24,9 +22,7 @@ import net.zbin.core.PrimaryParam;
 import net.zbin.core.Reason;
 import net.zbin.core.Trigger;
 import net.zbin.core.Verdict;
-import org.apache.commons.csv.CSVFormat;
-import org.apache.commons.csv.CSVParser;
-import org.apache.commons.csv.CSVRecord;
+import de.siegmar.fastcsv.reader.CsvRecord;
 
 /**
  * Reads a line's own record log back into decisions, oldest first, so that a restarted daemon knows
@@ -34,8 +30,6 @@ import org.apache.commons.csv.CSVRecord;
  */
 public final class RecordLogReader {
     private RecordLogReader() {}
-
-    private static final CSVFormat FORMAT = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get();
 
     /** The line's log files of the given UTC days and later, in writing order. */
     public static List<Path> files(Path dir, String line, LocalDate fromDay) throws IOException {
@@ -55,17 +49,19 @@ public final class RecordLogReader {
         return found.stream().map(o -> (Path) o[2]).toList();
     }
 
-    /** Every whole row of the line's log from {@code since}'s UTC day on, oldest first. */
-    public static void read(Path dir, String line, Instant since, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
-        read(dir, line, since, Instant.MAX, sink);
+    /** Every whole row of the line's log from {@code since}'s UTC day on, oldest first; returns the rows that could not be read. */
+    public static long read(Path dir, String line, Instant since, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
+        return read(dir, line, since, Instant.MAX, sink);
     }
 
     /**
      * Every whole row from {@code since}'s UTC day up to {@code until}, oldest first. Files dated after {@code until}'s
      * day and rows stamped after {@code until} are from a clock that was wrong: they are set aside (with one warning
-     * each), never taken for what the line decided last.
+     * each), never taken for what the line decided last. A row that cannot be read (cut short, a field that is not what
+     * its column holds) is skipped and counted, with one warning per file naming the first; returns how many.
      */
-    public static void read(Path dir, String line, Instant since, Instant until, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
+    public static long read(Path dir, String line, Instant since, Instant until, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
+        long skipped = 0;
         LocalDate lastDay = until.equals(Instant.MAX) ? LocalDate.MAX : LocalDate.ofInstant(until, ZoneOffset.UTC);
         for (Path f : files(dir, line, LocalDate.ofInstant(since, ZoneOffset.UTC))) {
             LocalDate day = dayOf(f, line);
@@ -74,23 +70,37 @@ public final class RecordLogReader {
                         + "not read back (a clock that was wrong when it was written?)", f, lastDay);
                 continue;
             }
-            long future = 0;
-            try (Reader r = Files.newBufferedReader(f, StandardCharsets.UTF_8); CSVParser p = FORMAT.parse(r)) {
-                for (CSVRecord rec : p) {
-                    net.zbin.core.DecisionEvent e = entry(rec);
-                    if (e == null) continue;
+            long future = 0, unreadable = 0;
+            String firstBad = null;
+            try (CsvTable t = new CsvTable(f)) {
+                Columns c = new Columns(t);
+                CsvTable.Row row;
+                while ((row = t.next()) != null) {
+                    if (row.torn()) break; // a torn last line is cut when the log reopens the file; never read as a row
+                    net.zbin.core.DecisionEvent e;
+                    try {
+                        e = entry(c, row.record());
+                    } catch (RuntimeException ex) {
+                        unreadable++;
+                        if (firstBad == null) firstBad = "line " + row.line() + ": " + ex.getMessage();
+                        continue;
+                    }
                     if (e.time().isAfter(until)) {
                         future++;
                         continue;
                     }
                     sink.accept(e);
                 }
-            } catch (java.io.UncheckedIOException | IllegalStateException e) {
-                // a torn last line in quotes: everything before it was read
+            } catch (ConfigException | IOException e) {
+                org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} unreadable, not read back: {}", f, e.getMessage());
             }
+            skipped += unreadable;
+            if (unreadable > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows could not be read back"
+                    + " (first at {})", f, unreadable, firstBad);
             if (future > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows stamped after {} "
                     + "set aside, not read back", f, future, until);
         }
+        return skipped;
     }
 
     private static LocalDate dayOf(Path f, String line) {
@@ -98,34 +108,72 @@ public final class RecordLogReader {
         return LocalDate.parse(name.substring(line.length() + 1, line.length() + 11));
     }
 
-    /** A free-text cell as the text it was before it was written spreadsheet-safe. */
-    private static String text(CSVRecord r, String column) { return SpreadsheetSafe.read(r.get(column)); }
+    /** The record columns' indices in one file (its header may be an older, shorter one). */
+    private static final class Columns {
+        final int width, time, line, lot, seq, part, kind, recipe, freq, r, x, rawR, rawX, model, param, value, dev, bin, grade, verdict,
+                reason, latency, comp, attempt, readings;
 
-    /** One row as the decision it recorded, or null when the row is not whole. */
-    static net.zbin.core.DecisionEvent entry(CSVRecord r) {
-        if (!r.isConsistent()) return null;
-        try {
-            Instant time = Instant.parse(r.get("time"));
-            double f = num(r, "freq_hz"), rr = num(r, "r_ohm"), x = num(r, "x_ohm");
-            Impedance z = Double.isFinite(f) && f > 0 && Double.isFinite(rr) && Double.isFinite(x) ? new Impedance(f, rr, x) : null;
-            Grading.Measurement m = Double.isFinite(f) && f > 0
-                    ? new Grading.Measurement(f, z, num(r, "raw_r_ohm"), num(r, "raw_x_ohm"), CompensationSource.parse(r.get("comp")),
-                            r.isMapped("readings") && !r.get("readings").isEmpty() ? Integer.parseInt(r.get("readings")) : 1)
-                    : null;
-            Grading.Value v = r.get("param").isEmpty() ? null : new Grading.Value(EquivalentModel.valueOf(r.get("model").toUpperCase(java.util.Locale.ROOT)),
-                    PrimaryParam.parse(r.get("param")), num(r, "value"), num(r, "dev_pct"));
-            Grading g = new Grading(new Grading.Outcome(Integer.parseInt(r.get("bin")), text(r, "grade"),
-                    Verdict.valueOf(r.get("verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(r.get("reason"))), m, v);
-            Decision d = new Decision(Long.parseLong(r.get("seq")), text(r, "part"), text(r, "lot"), Trigger.Kind.parse(r.get("kind")),
-                    text(r, "recipe"), g, num(r, "latency_ms"), false, Integer.parseInt(r.get("attempt")));
-            return new net.zbin.core.DecisionEvent(time, text(r, "line"), d);
-        } catch (RuntimeException e) {
-            return null;
+        Columns(CsvTable t) {
+            width = t.width();
+            time = t.column("time");
+            line = t.column("line");
+            lot = t.column("lot");
+            seq = t.column("seq");
+            part = t.column("part");
+            kind = t.column("kind");
+            recipe = t.column("recipe");
+            freq = t.column("freq_hz");
+            r = t.column("r_ohm");
+            x = t.column("x_ohm");
+            rawR = t.column("raw_r_ohm");
+            rawX = t.column("raw_x_ohm");
+            model = t.column("model");
+            param = t.column("param");
+            value = t.column("value");
+            dev = t.column("dev_pct");
+            bin = t.column("bin");
+            grade = t.column("grade");
+            verdict = t.column("verdict");
+            reason = t.column("reason");
+            latency = t.column("latency_ms");
+            comp = t.column("comp");
+            attempt = t.column("attempt");
+            readings = t.column("readings");
         }
     }
 
-    private static double num(CSVRecord r, String col) {
-        String s = r.get(col);
+    private static String cell(CsvRecord r, int i, String name) {
+        if (i < 0) throw new IllegalArgumentException("no column " + name);
+        return r.getField(i);
+    }
+
+    /** A free-text cell as the text it was before it was written spreadsheet-safe. */
+    private static String text(CsvRecord r, int i, String name) { return SpreadsheetSafe.read(cell(r, i, name)); }
+
+    /** One row as the decision it recorded; a row that is not whole throws, saying why. */
+    static net.zbin.core.DecisionEvent entry(Columns c, CsvRecord r) {
+        if (r.getFieldCount() != c.width) throw new IllegalArgumentException("has " + r.getFieldCount() + " fields, header has " + c.width);
+        Instant time = Instant.parse(cell(r, c.time, "time"));
+        double f = num(r, c.freq, "freq_hz"), rr = num(r, c.r, "r_ohm"), x = num(r, c.x, "x_ohm");
+        Impedance z = Double.isFinite(f) && f > 0 && Double.isFinite(rr) && Double.isFinite(x) ? new Impedance(f, rr, x) : null;
+        String n = c.readings < 0 ? "" : r.getField(c.readings);
+        Grading.Measurement m = Double.isFinite(f) && f > 0
+                ? new Grading.Measurement(f, z, num(r, c.rawR, "raw_r_ohm"), num(r, c.rawX, "raw_x_ohm"), CompensationSource.parse(cell(r, c.comp, "comp")),
+                        n.isEmpty() ? 1 : Integer.parseInt(n))
+                : null;
+        String param = cell(r, c.param, "param");
+        Grading.Value v = param.isEmpty() ? null : new Grading.Value(EquivalentModel.valueOf(cell(r, c.model, "model").toUpperCase(java.util.Locale.ROOT)),
+                PrimaryParam.parse(param), num(r, c.value, "value"), num(r, c.dev, "dev_pct"));
+        Grading g = new Grading(new Grading.Outcome(Integer.parseInt(cell(r, c.bin, "bin")), text(r, c.grade, "grade"),
+                Verdict.valueOf(cell(r, c.verdict, "verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(cell(r, c.reason, "reason"))), m, v);
+        Decision d = new Decision(Long.parseLong(cell(r, c.seq, "seq")), text(r, c.part, "part"), text(r, c.lot, "lot"),
+                Trigger.Kind.parse(cell(r, c.kind, "kind")), text(r, c.recipe, "recipe"), g, num(r, c.latency, "latency_ms"), false,
+                Integer.parseInt(cell(r, c.attempt, "attempt")));
+        return new net.zbin.core.DecisionEvent(time, text(r, c.line, "line"), d);
+    }
+
+    private static double num(CsvRecord r, int i, String name) {
+        String s = cell(r, i, name);
         return s.isEmpty() ? Double.NaN : Double.parseDouble(s);
     }
 }

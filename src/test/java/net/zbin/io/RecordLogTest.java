@@ -76,6 +76,23 @@ class RecordLogTest {
         }
     }
 
+    @Test
+    void aRowThatCannotBeRead_isSkippedAndCounted_notSilentlyLost() throws Exception {
+        Path recs = dir.resolve("r");
+        Instant t = Instant.parse("2026-11-30T10:00:00Z");
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < 3; i++) log.append(row(i, t));
+        }
+        Path f = recs.resolve("l1-2026-11-30.csv");
+        List<String> lines = new java.util.ArrayList<>(Files.readAllLines(f));
+        lines.set(2, lines.get(2).substring(0, lines.get(2).length() / 2)); // the second row cut short (a hand edit, a bad copy)
+        Files.write(f, lines);
+        List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
+        assertEquals(1, RecordLogReader.read(recs, "l1", t, back::add), "one row could not be read, and says so");
+        assertEquals(List.of(row(0, t), row(2, t)), back);
+    }
+
     static List<Path> files(Path d) throws Exception {
         try (Stream<Path> s = Files.list(d)) {
             return s.sorted().toList();

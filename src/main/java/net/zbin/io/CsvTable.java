@@ -1,0 +1,86 @@
+package net.zbin.io;
+
+import de.siegmar.fastcsv.reader.CsvParseException;
+import de.siegmar.fastcsv.reader.CsvReader;
+import de.siegmar.fastcsv.reader.CsvRecord;
+import java.io.IOException;
+import java.io.RandomAccessFile;
+import java.io.UncheckedIOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.HashMap;
+import java.util.Iterator;
+import java.util.Map;
+
+/**
+ * A CSV file read by its header's column names, the one way zbin reads its record logs and reading files (FastCSV).
+ * Rows come with their line numbers. A last line without its newline is a torn write (the writer was killed
+ * mid-row): {@link #next} says so instead of giving it as a row. Memory does not grow with the file.
+ */
+final class CsvTable implements AutoCloseable {
+    /** A row and the line it starts on; {@code torn} for a last line without its newline (not data). */
+    record Row(long line, CsvRecord record, boolean torn) {}
+
+    private final Path file;
+    private final CsvReader<CsvRecord> reader;
+    private final Iterator<CsvRecord> it;
+    private final Map<String, Integer> header = new HashMap<>();
+    private final int width;
+    private final boolean tornTail;
+
+    CsvTable(Path file) throws IOException, ConfigException {
+        this.file = file;
+        if (!Files.exists(file)) throw new ConfigException(file, null, "file not found");
+        this.tornTail = endsWithoutNewline(file);
+        // a spreadsheet export starts with a UTF-8 byte-order mark: it is not part of the first column name
+        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).detectBomHeader(true)
+                .ofCsvRecord(file, StandardCharsets.UTF_8);
+        this.it = reader.iterator();
+        int fields = 0;
+        try {
+            if (it.hasNext()) {
+                CsvRecord h = it.next();
+                fields = h.getFieldCount();
+                for (int i = 0; i < fields; i++) header.putIfAbsent(h.getField(i).trim(), i);
+            }
+        } catch (CsvParseException | UncheckedIOException e) {
+            reader.close();
+            throw new ConfigException(file, "line 1", "unreadable CSV header: " + e.getMessage());
+        }
+        width = fields; // the header's own field count: a repeated column name does not shorten the rows
+    }
+
+    /** The column's index, or −1 when the header has no such column. */
+    int column(String name) { return header.getOrDefault(name, -1); }
+
+    /** Fields per row, as the header has them. */
+    int width() { return width; }
+
+    Path file() { return file; }
+
+    /** The next row, or null at the end. */
+    Row next() throws IOException {
+        CsvRecord rec;
+        try {
+            if (!it.hasNext()) return null;
+            rec = it.next();
+        } catch (CsvParseException | UncheckedIOException e) {
+            throw new IOException(file + ": unreadable CSV: " + e.getMessage(), e);
+        }
+        return new Row(rec.getStartingLineNumber(), rec, tornTail && !it.hasNext());
+    }
+
+    private static boolean endsWithoutNewline(Path file) throws IOException {
+        try (RandomAccessFile raf = new RandomAccessFile(file.toFile(), "r")) {
+            long len = raf.length();
+            if (len == 0) return false;
+            raf.seek(len - 1);
+            int last = raf.read();
+            return last != '\n' && last != '\r';
+        }
+    }
+
+    @Override
+    public void close() throws IOException { reader.close(); }
+}
