@@ -33,11 +33,17 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
      * through one quantity, D = R/|X| (Q ≥ q_min is D ≤ 1/q_min), so the two gates never disagree,
      * also for an R that compensation left slightly below zero.
      */
+    /** The gates' one comparison: a loss or ESR passes at or below its limit (NaN never passes). */
+    public static boolean passes(double metric, double limit) { return metric <= limit; }
+
+    /** The D limit of a Q gate: D = 1/Q, so a Q gate and a D gate never disagree. */
+    public static double dOfQ(double qMin) { return 1 / qMin; }
+
     public Reason firstFailure(Impedance z) {
         double d = z.d();
-        if (dMax != null && !(d <= dMax)) return Reason.D_HIGH;
-        if (qMin != null && !(d <= 1 / qMin)) return Reason.Q_LOW;
-        if (esrMaxOhm != null && !(z.esrOhm() <= esrMaxOhm)) return Reason.ESR_HIGH;
+        if (dMax != null && !passes(d, dMax)) return Reason.D_HIGH;
+        if (qMin != null && !passes(d, dOfQ(qMin))) return Reason.Q_LOW;
+        if (esrMaxOhm != null && !passes(z.esrOhm(), esrMaxOhm)) return Reason.ESR_HIGH;
         if (thetaMinDeg == null && thetaMaxDeg == null) return null; // θ (an atan2) only when a gate needs it
         double t = z.thetaDeg();
         if (thetaMinDeg != null && t < thetaMinDeg) return Reason.THETA_OUT;

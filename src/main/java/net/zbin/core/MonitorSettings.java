@@ -37,14 +37,61 @@ public record MonitorSettings(int learnParts, int subgroup, double falseAlarmsPe
     /** The charts' parameters and run lengths (designed once per distinct setting and kept). */
     public ChartDesign design() { return ChartDesign.of(this); }
 
-    public MonitorSettings withCompMaxAgeH(double h) {
-        return new MonitorSettings(learnParts, subgroup, falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL, cusumK, cusumH,
-                clearAfter, windowParts, maxNegativeRPct, h, baselineMeanPct, baselineSigmaPct);
-    }
+    public MonitorSettings withCompMaxAgeH(double h) { return toBuilder().compMaxAgeH(h).build(); }
 
-    public MonitorSettings withBaseline(double meanPct, double sigmaPct) {
-        return new MonitorSettings(learnParts, subgroup, falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL, cusumK, cusumH,
-                clearAfter, windowParts, maxNegativeRPct, compMaxAgeH, meanPct, sigmaPct);
+    public MonitorSettings withBaseline(double meanPct, double sigmaPct) { return toBuilder().baselineMeanPct(meanPct).baselineSigmaPct(sigmaPct).build(); }
+
+    /** A builder holding these settings (the defaults' for {@link #builder}); {@link Builder#build} validates. */
+    public Builder toBuilder() { return new Builder(this); }
+
+    public static Builder builder() { return new Builder(DEFAULT); }
+
+    /** The one place monitor settings are put together: a new {@code monitor:} key is a field here and in the record. */
+    public static final class Builder {
+        private int learnParts, subgroup, clearAfter, windowParts;
+        private double falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL, cusumK, cusumH, maxNegativeRPct,
+                compMaxAgeH, baselineMeanPct, baselineSigmaPct;
+
+        private Builder(MonitorSettings m) {
+            learnParts = m.learnParts;
+            subgroup = m.subgroup;
+            falseAlarmsPerShift = m.falseAlarmsPerShift;
+            shiftH = m.shiftH;
+            partsPerS = m.partsPerS;
+            detectShiftSigma = m.detectShiftSigma;
+            ewmaLambda = m.ewmaLambda;
+            ewmaL = m.ewmaL;
+            cusumK = m.cusumK;
+            cusumH = m.cusumH;
+            clearAfter = m.clearAfter;
+            windowParts = m.windowParts;
+            maxNegativeRPct = m.maxNegativeRPct;
+            compMaxAgeH = m.compMaxAgeH;
+            baselineMeanPct = m.baselineMeanPct;
+            baselineSigmaPct = m.baselineSigmaPct;
+        }
+
+        public Builder learnParts(int v) { learnParts = v; return this; }
+        public Builder subgroup(int v) { subgroup = v; return this; }
+        public Builder falseAlarmsPerShift(double v) { falseAlarmsPerShift = v; return this; }
+        public Builder shiftH(double v) { shiftH = v; return this; }
+        public Builder partsPerS(double v) { partsPerS = v; return this; }
+        public Builder detectShiftSigma(double v) { detectShiftSigma = v; return this; }
+        public Builder ewmaLambda(double v) { ewmaLambda = v; return this; }
+        public Builder ewmaL(double v) { ewmaL = v; return this; }
+        public Builder cusumK(double v) { cusumK = v; return this; }
+        public Builder cusumH(double v) { cusumH = v; return this; }
+        public Builder clearAfter(int v) { clearAfter = v; return this; }
+        public Builder windowParts(int v) { windowParts = v; return this; }
+        public Builder maxNegativeRPct(double v) { maxNegativeRPct = v; return this; }
+        public Builder compMaxAgeH(double v) { compMaxAgeH = v; return this; }
+        public Builder baselineMeanPct(double v) { baselineMeanPct = v; return this; }
+        public Builder baselineSigmaPct(double v) { baselineSigmaPct = v; return this; }
+
+        public MonitorSettings build() {
+            return new MonitorSettings(learnParts, subgroup, falseAlarmsPerShift, shiftH, partsPerS, detectShiftSigma, ewmaLambda, ewmaL,
+                    cusumK, cusumH, clearAfter, windowParts, maxNegativeRPct, compMaxAgeH, baselineMeanPct, baselineSigmaPct);
+        }
     }
 
     public MonitorSettings {

@@ -380,11 +380,11 @@ public final class Tuner {
 
         /** Rows whose metric passes the setting: metric ≤ threshold, the gate's own comparison. */
         private int passing(double v) {
-            double t = q == Sweep.Quantity.Q_MIN ? 1 / v : v;
+            double t = q == Sweep.Quantity.Q_MIN ? Gates.dOfQ(v) : v;
             int lo = 0, hi = metric.length;
             while (lo < hi) {
                 int m = (lo + hi) >>> 1;
-                if (metric[m] <= t) lo = m + 1;
+                if (Gates.passes(metric[m], t)) lo = m + 1;
                 else hi = m;
             }
             return lo;

@@ -126,7 +126,9 @@ public final class RecipeLoader {
         double age = m.optNumber("compensation_max_age_h", d.compMaxAgeH(), Unit.RATIO);
         double bMean = m.optNumber("baseline_mean_pct", Double.NaN, Unit.PERCENT), bSigma = m.optNumber("baseline_sigma_pct", Double.NaN, Unit.PERCENT);
         m.finish();
-        return m.build(null, () -> new MonitorSettings(learn, sub, budget, shiftH, rate, detect, lambda, l, k, h, clear, window, neg, age, bMean, bSigma));
+        return m.build(null, () -> d.toBuilder().learnParts(learn).subgroup(sub).falseAlarmsPerShift(budget).shiftH(shiftH).partsPerS(rate)
+                .detectShiftSigma(detect).ewmaLambda(lambda).ewmaL(l).cusumK(k).cusumH(h).clearAfter(clear).windowParts(window)
+                .maxNegativeRPct(neg).compMaxAgeH(age).baselineMeanPct(bMean).baselineSigmaPct(bSigma).build());
     }
 
     private static Grade grade(SpecNode g, PartType type, double nominal) throws ConfigException {

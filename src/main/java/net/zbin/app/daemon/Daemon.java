@@ -91,16 +91,10 @@ public final class Daemon implements AutoCloseable {
         // the figures move to the new lot (a fraction of a millisecond), published by the ticker (no file, no send here).
         path.onLotEnd(() -> {
             // The finished lot's figures are taken here, before they move to the new lot; encoded and sent by the ticker.
-            Mode m = mode.mode();
-            String recipe = setup.recipe().name();
-            LineStats.Snapshot st = stats.snapshot();
-            net.zbin.core.LineMonitor.Snapshot mon = monitor.snapshot();
-            java.util.Set<net.zbin.core.AlarmCode> alarms = mode.activeAlarms().keySet();
-            int backlog = records.backlog();
-            long dropped = records.dropped();
+            LineSnapshot s = snapshot(mode.mode());
             ticker.execute(() -> {
                 try {
-                    byte[] last = Payloads.bytes(DashboardJson.encode(cfg.line(), recipe, m, st, mon, alarms, backlog, dropped, mqtt.buffered()));
+                    byte[] last = Payloads.bytes(DashboardJson.encode(s));
                     mqtt.publish(topics.dashboard(), last, 0, true);
                 } catch (RuntimeException e) {
                     LOG.warn("dashboard: {}", e.toString());
@@ -241,10 +235,22 @@ public final class Daemon implements AutoCloseable {
         }
     }
 
+    private volatile LineSnapshot last;
+
     private byte[] dashboard(Mode m) {
-        return Payloads.bytes(DashboardJson.encode(cfg.line(), setup.recipe().name(), m, stats.snapshot(), monitor.snapshot(),
-                mode.activeAlarms().keySet(), records.backlog(), records.dropped(), mqtt.buffered()));
+        LineSnapshot s = snapshot(m);
+        last = s;
+        return Payloads.bytes(DashboardJson.encode(s));
     }
+
+    /** The line now, in one immutable snapshot (only copies are taken: the measuring thread never waits on it). */
+    private LineSnapshot snapshot(Mode m) {
+        return new LineSnapshot(clock.instant(), cfg.line(), setup.recipe().name(), m, stats.snapshot(), monitor.snapshot(),
+                mode.activeAlarms(), records.backlog(), records.dropped(), mqtt == null ? 0 : mqtt.buffered());
+    }
+
+    /** The snapshot the last dashboard was made of (null before the first). */
+    LineSnapshot lastSnapshot() { return last; }
 
     public long recordsWritten() { return records.written(); }
 

@@ -1,7 +1,6 @@
 package net.zbin.app.daemon;
 
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import java.util.Collection;
 import net.zbin.core.Wilson;
 import net.zbin.io.Json;
 import net.zbin.io.TallyJson;
@@ -14,8 +13,10 @@ import net.zbin.io.TallyJson;
 final class DashboardJson {
     private DashboardJson() {}
 
-    static ObjectNode encode(String line, String recipe, Mode mode, LineStats.Snapshot s, net.zbin.core.LineMonitor.Snapshot monitor,
-                             Collection<net.zbin.core.AlarmCode> alarms, long recordBacklog, long recordDropped, long mqttBuffered) {
+    static ObjectNode encode(LineSnapshot snap) {
+        LineStats.Snapshot s = snap.stats();
+        String line = snap.line(), recipe = snap.recipe();
+        Mode mode = snap.mode();
         ObjectNode n = Json.object();
         n.put("line", line);
         n.put("lot", s.lot());
@@ -40,12 +41,12 @@ final class DashboardJson {
         n.put("seq_reused", s.reusedSeqs());
         n.put("busy", s.busy());
         n.put("decisions", s.decisions());
-        n.putArray("alarms").addAll(alarms.stream().map(net.zbin.core.AlarmCode::code).sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
-        n.put("record_backlog", recordBacklog);
-        n.put("record_dropped", recordDropped);
-        n.put("mqtt_buffered", mqttBuffered);
+        n.putArray("alarms").addAll(snap.alarms().keySet().stream().map(net.zbin.core.AlarmCode::code).sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
+        n.put("record_backlog", snap.recordBacklog());
+        n.put("record_dropped", snap.recordDropped());
+        n.put("mqtt_buffered", snap.mqttBuffered());
         n.put("since", s.lotSince().toString());
-        n.set("monitor", net.zbin.io.MonitorJson.encode(monitor));
+        n.set("monitor", net.zbin.io.MonitorJson.encode(snap.monitor()));
         return n;
     }
 

@@ -54,8 +54,8 @@ final class Warmup {
             Grading g = engine.session(Trigger.Kind.PART, comp, i % 2).offer(rd, false);
             Decision d = new Decision(i, "warm-up", lot, Trigger.Kind.PART, r.name(), g, 0.1, false, i % 2);
             if (i % 64 == 0) { // a lot change: the finished lot's dashboard, then new figures
-                sum += DashboardJson.encode("warm-up", r.name(), Mode.READY, stats.snapshot(), engine.snapshot(Instant.EPOCH),
-                        java.util.List.of(), 0, 0, 0).size();
+                sum += DashboardJson.encode(new LineSnapshot(Instant.EPOCH, "warm-up", r.name(), Mode.READY, stats.snapshot(),
+                        engine.snapshot(Instant.EPOCH), java.util.Map.of(), 0, 0, 0)).size();
                 stats.startLot(lot, Instant.EPOCH);
             }
             sum += engine.observe(d).size();
