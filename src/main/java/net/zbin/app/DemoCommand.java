@@ -43,6 +43,8 @@ public final class DemoCommand implements Callable<Integer> {
     RateOption pace;
     @Option(names = "--out", paramLabel = "DIR", description = "folder for config, state and records (default: a new temp folder)")
     Path out;
+    @Option(names = "--recipe", paramLabel = "NAME", description = "a shipped recipe for the scenario's part (default: the first that fits)")
+    String recipeName;
 
     @picocli.CommandLine.Spec
     picocli.CommandLine.Model.CommandSpec spec;
@@ -54,11 +56,12 @@ public final class DemoCommand implements Callable<Integer> {
         long parts = lot.parts;
         Path dir = out != null ? Files.createDirectories(out) : Files.createTempDirectory("zbin-demo-");
         unpackConfig(dir);
-        String recipe = recipeFor(sc, dir.resolve("recipes"));
+        String recipe = recipeName == null ? recipeFor(sc, dir.resolve("recipes")) : fitting(sc, dir.resolve("recipes"), recipeName);
         PrintWriter o = spec.commandLine().getOut();
         Contacts contacts = new Contacts();
         SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0.3,
                 sc.meterFaults().toRandomFaults());
+        meter.noiseFactor(sc.meterFaults().noise());
         try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("broker")));
              SimTcpServer meterServer = new SimTcpServer(meter, 0)) {
             Path cfgFile = dir.resolve("line.yaml");
@@ -102,6 +105,16 @@ public final class DemoCommand implements Callable<Integer> {
                             j.path("code").asText(), j.path("active").asBoolean() ? "raised" : "cleared", j.path("message").asText());
                 }
             } else o.println("  alarms during the run: none");
+            long[] reread = {0, 0, 0}; // parts decided, of them re-read, readings
+            net.zbin.io.RecordLogReader.read(dir.resolve("records"), "demo", java.time.Instant.EPOCH, e -> {
+                if (e.decision().kind() != net.zbin.core.Trigger.Kind.PART || e.decision().grading().readings() == 0) return;
+                reread[0]++;
+                if (e.decision().grading().readings() > 1) reread[1]++;
+                reread[2] += e.decision().grading().readings();
+            });
+            if (reread[1] > 0)
+                o.printf(Locale.ROOT, "  re-measured near a limit: %d of %d parts measured (%.2f %%), %.3f readings per part%n", reread[1], reread[0],
+                        100.0 * reread[1] / reread[0], (double) reread[2] / reread[0]);
             o.printf(Locale.ROOT, "  record log: %d rows in %s%n", daemon.recordsWritten(), dir.resolve("records"));
             o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv%n",
                     dir.resolve("recipes").resolve(recipe + ".yaml"), dir);
@@ -132,7 +145,7 @@ public final class DemoCommand implements Callable<Integer> {
     static void unpackConfig(Path dir) throws IOException {
         Files.createDirectories(dir.resolve("recipes"));
         Files.createDirectories(dir.resolve("meters"));
-        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml", "recipes/mlcc-c0g-100p.yaml",
+        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/mlcc-x7r-100n-remeasure.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml", "recipes/mlcc-c0g-100p.yaml",
                 "meters/zbin-sim.yaml")) {
             try (InputStream in = DemoCommand.class.getResourceAsStream("/zbin-config/" + name)) {
                 if (in == null) throw new IOException("jar lacks /zbin-config/" + name);
@@ -141,11 +154,21 @@ public final class DemoCommand implements Callable<Integer> {
         }
     }
 
-    /** The shipped recipe for the scenario's part (same type and nominal). */
+    /** A named shipped recipe, refused unless it sorts the scenario's part (same type and nominal). */
+    static String fitting(Scenario sc, Path recipes, String name) throws Exception {
+        List<String> fit = new java.util.ArrayList<>();
+        for (Recipe r : Recipes.all(recipes, net.zbin.core.FixtureBounds.DEFAULT))
+            if (r.partType() == sc.part().partType() && Math.abs(r.nominal() - sc.part().nominal()) <= 1e-9 * r.nominal()) fit.add(r.name());
+        if (!fit.contains(name)) throw new UsageException("--recipe " + name + ": not a shipped recipe for the part of scenario " + sc.scenario()
+                + " (these are: " + String.join(", ", fit) + ")");
+        return name;
+    }
+
+    /** The shipped recipe for the scenario's part (same type and nominal); one that re-measures only when named. */
     static String recipeFor(Scenario sc, Path recipes) throws Exception {
         PartType type = sc.part().partType();
         for (Recipe r : Recipes.all(recipes, net.zbin.core.FixtureBounds.DEFAULT))
-            if (r.partType() == type && Math.abs(r.nominal() - sc.part().nominal()) <= 1e-9 * r.nominal()) return r.name();
+            if (!r.remeasure().on() && r.partType() == type && Math.abs(r.nominal() - sc.part().nominal()) <= 1e-9 * r.nominal()) return r.name();
         throw new UsageException("no shipped recipe sorts " + type.withArticle() + " of nominal " + sc.part().nominal()
                 + " (scenario " + sc.scenario() + ")");
     }

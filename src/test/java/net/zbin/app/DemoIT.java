@@ -58,4 +58,40 @@ class DemoIT {
         assertEquals(parts, Long.parseLong(line.group(1)));
         assertEquals(passed, Long.parseLong(line.group(2)));
     }
+
+    @Test
+    void aNoisyMeterWithReMeasuring_reReadsPartsNearALimit_andItsReplayGivesTheLiveBins() throws Exception {
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", "simulators/scenarios/harrowgate-mlcc-100n-noisy-meter.yaml",
+                "--recipe", "mlcc-x7r-100n-remeasure", "--parts", "1500", "--rate", "300", "--out", dir.toString()).redirectErrorStream(true).start();
+        String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
+        assertTrue(p.waitFor(5, TimeUnit.MINUTES));
+        assertEquals(0, p.exitValue(), out);
+        java.util.regex.Matcher m = java.util.regex.Pattern.compile("re-measured near a limit: (\\d+) of (\\d+) parts").matcher(out);
+        assertTrue(m.find(), out);
+        assertTrue(Long.parseLong(m.group(1)) > 0, "parts near a limit were read again: " + m.group());
+        assertTrue(out.contains("demo ok"), out);
+        java.io.File[] logs = dir.resolve("records").toFile().listFiles();
+        long passed = 0, parts = 0;
+        for (java.io.File f : logs) {
+            Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/mlcc-x7r-100n-remeasure.yaml").toString(), "--in", f.toString(), "--json");
+            assertEquals(0, replay.exit(), replay.err());
+            var j = new com.fasterxml.jackson.databind.ObjectMapper().readTree(replay.out());
+            parts += j.path("parts").asLong();
+            passed += j.path("passed").asLong();
+        }
+        java.util.regex.Matcher line = java.util.regex.Pattern.compile("the line's own figures for lot \\S+: (\\d+) parts finished, (\\d+) passed").matcher(out);
+        assertTrue(line.find(), out);
+        assertEquals(Long.parseLong(line.group(1)), parts, "replay of the re-measured log = the live figures");
+        assertEquals(Long.parseLong(line.group(2)), passed);
+    }
+
+    @Test
+    void aRecipeThatDoesNotSortTheScenariosPart_isRefusedNamingTheOnesThatDo() throws Exception {
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--recipe", "resistor-prec-4k99", "--parts", "10", "--out", dir.toString())
+                .redirectErrorStream(true).start();
+        String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
+        assertTrue(p.waitFor(2, TimeUnit.MINUTES));
+        assertEquals(2, p.exitValue(), out);
+        assertTrue(out.contains("--recipe resistor-prec-4k99") && out.contains("mlcc-x7r-100n"), out);
+    }
 }

@@ -64,11 +64,19 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
                                 @JsonProperty("intermittent_rate") double intermittentRate,
                                 @JsonProperty("intermittent_p") double intermittentP) {}
 
-    /** Per-measurement probabilities of meter trouble. */
+    /**
+     * Per-measurement probabilities of meter trouble, and how noisy the meter is: {@code noise} times its stated
+     * repeatability at the pace and averaging in force (default 1; a worn fixture or a noisy floor reads 3–10).
+     */
     public record MeterFaults(@JsonProperty("timeout_rate") double timeoutRate, @JsonProperty("garbage_rate") double garbageRate,
                               @JsonProperty("overload_rate") double overloadRate, @JsonProperty("stray_rate") double strayRate,
-                              @JsonProperty("late_rate") double lateRate) {
-        public MeterFaults(double timeoutRate, double garbageRate, double overloadRate) { this(timeoutRate, garbageRate, overloadRate, 0, 0); }
+                              @JsonProperty("late_rate") double lateRate, @JsonProperty("noise") Double noise) {
+        public MeterFaults {
+            if (noise == null) noise = 1.0;
+            if (!(noise >= 0) || noise > 1000) throw new IllegalArgumentException("meter_faults.noise must be 0..1000 (was " + noise + ")");
+        }
+
+        public MeterFaults(double timeoutRate, double garbageRate, double overloadRate) { this(timeoutRate, garbageRate, overloadRate, 0, 0, 1.0); }
 
         public SimMeter.RandomFaults toRandomFaults() {
             return timeoutRate + garbageRate + overloadRate + strayRate + lateRate == 0 ? SimMeter.RandomFaults.NONE
