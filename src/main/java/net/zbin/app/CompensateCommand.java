@@ -56,7 +56,10 @@ public final class CompensateCommand implements Callable<Integer> {
         Recipe active = RecipeLoader.load(cfg.recipeDir().resolve(cfg.activeRecipe() + ".yaml"));
         TreeSet<Double> fs = new TreeSet<>();
         if (freqs != null && !freqs.isEmpty()) fs.addAll(freqs);
-        else for (Recipe r : Recipes.all(cfg.recipeDir(), cfg.bounds())) fs.add(r.freqHz());
+        else for (Recipe r : Recipes.all(cfg.recipeDir(), cfg.bounds())) {
+            fs.add(r.freqHz());
+            for (net.zbin.core.TestStep st : r.steps()) fs.add(st.test().freqHz()); // every step of a plan at its own frequency
+        }
         List<TestConditions> conds = new ArrayList<>();
         List<Impedance> std = new ArrayList<>();
         for (double f : fs) {

@@ -12,6 +12,17 @@ import net.zbin.core.SiValue;
 final class RecipeText {
     private RecipeText() {}
 
+    /** The gates as people read them, each with a leading space ("" when none). */
+    static String gates(net.zbin.core.Gates gt) {
+        StringBuilder gates = new StringBuilder();
+        if (gt.dMax() != null) gates.append(String.format(Locale.ROOT, " D <= %.4g", gt.dMax()));
+        if (gt.qMin() != null) gates.append(String.format(Locale.ROOT, " Q >= %.4g", gt.qMin()));
+        if (gt.esrMaxOhm() != null) gates.append(" ESR <= ").append(SiValue.format(gt.esrMaxOhm(), "ohm"));
+        if (gt.thetaMinDeg() != null) gates.append(String.format(Locale.ROOT, " θ >= %.4g°", gt.thetaMinDeg()));
+        if (gt.thetaMaxDeg() != null) gates.append(String.format(Locale.ROOT, " θ <= %.4g°", gt.thetaMaxDeg()));
+        return gates.toString();
+    }
+
     static void print(PrintWriter out, Recipe r, String fixtureSource) {
         String unit = r.partType().unit();
         int digits = digits(r);
@@ -31,14 +42,19 @@ final class RecipeText {
                     g.bin(), g.name(), g.lowPct(), g.highPct(), SiValue.format(r.nominal() * (1 + lo / 100), unit, digits),
                     SiValue.format(r.nominal() * (1 + hi / 100), unit, digits), lo, hi);
         }
-        var gt = r.gates();
-        StringBuilder gates = new StringBuilder();
-        if (gt.dMax() != null) gates.append(String.format(Locale.ROOT, " D <= %.4g", gt.dMax()));
-        if (gt.qMin() != null) gates.append(String.format(Locale.ROOT, " Q >= %.4g", gt.qMin()));
-        if (gt.esrMaxOhm() != null) gates.append(" ESR <= ").append(SiValue.format(gt.esrMaxOhm(), "ohm"));
-        if (gt.thetaMinDeg() != null) gates.append(String.format(Locale.ROOT, " θ >= %.4g°", gt.thetaMinDeg()));
-        if (gt.thetaMaxDeg() != null) gates.append(String.format(Locale.ROOT, " θ <= %.4g°", gt.thetaMaxDeg()));
-        out.println("  gates:" + (gates.length() == 0 ? " none" : gates));
+        String gates = gates(r.gates());
+        out.println("  gates:" + (gates.isEmpty() ? " none" : gates));
+        for (var st : r.steps()) {
+            double ideal = r.partType().idealZOhm(r.nominal(), st.test().freqHz());
+            out.printf(Locale.ROOT, "  then step %s: %s, %s rms, speed %s, averaging %d; gates%s (ideal |Z| there %s); a part failing it goes to"
+                    + " the gate bin%n", st.name(), SiValue.format(st.test().freqHz(), "Hz"), SiValue.format(st.test().levelV(), "V"), st.test().speed(),
+                    st.test().averaging(), gates(st.gates()), SiValue.format(ideal, "ohm"));
+            var fx = r.contact().fixture();
+            if (ideal < net.zbin.core.FixtureBounds.MARGIN * fx.shortBandOhm())
+                out.printf(Locale.ROOT, "  warning: at step %s the part's |Z| (%s) is within %.0f× of the fixture's short check (%s): every part reads"
+                        + " as a short there; set fixture.short_check_ohm below %s in the line config%n", st.name(), SiValue.format(ideal, "ohm"),
+                        net.zbin.core.FixtureBounds.MARGIN, SiValue.format(fx.shortBandOhm(), "ohm"), SiValue.format(ideal / net.zbin.core.FixtureBounds.MARGIN, "ohm"));
+        }
         out.printf(Locale.ROOT, "  plausible phase: %.4g° .. %.4g° (outside: phase-implausible, gate bin)%n",
                 r.plausible().minDeg(), r.plausible().maxDeg());
         var rb = r.reject();

@@ -70,6 +70,49 @@ public final class Grader {
     }
 
     /**
+     * Judges a reading of a later step of the plan: null when it is clean and meets the step's gates, else the
+     * decision — the retest policy's for a reading that is not clean, the gate bin for a gate it fails. The reading
+     * itself is returned as the step's measurement through {@code out} (compensated at the step's frequency).
+     *
+     * @param comp the compensation at the step's frequency (null: none)
+     */
+    public static Grading step(Recipe recipe, TestStep step, Reading reading, Compensation comp, int attempt, Grading.StepReading[] out) {
+        double f = reading.freqHz();
+        out[0] = new Grading.StepReading(step.name(), Grading.Measurement.of(reading, null, CompensationSource.NONE));
+        if (!reading.isFinite()) return unclean(recipe, attempt, Reason.NON_FINITE, null);
+        if (!Compensation.matches(f, step.test().freqHz())) return unclean(recipe, attempt, Reason.FREQUENCY_MISMATCH, null);
+        Impedance raw = new Impedance(f, reading.rOhm(), reading.xOhm());
+        CompensationSource source = comp == null || !comp.isApplied() ? CompensationSource.NONE : comp.source();
+        Impedance z = raw;
+        boolean openComp = false, shortComp = false;
+        if (source != CompensationSource.NONE) {
+            if (!Compensation.matches(comp.freqHz(), f)) return unclean(recipe, attempt, Reason.COMPENSATION_MISMATCH, null);
+            Optional<Impedance> c = comp.correct(raw);
+            if (c.isEmpty()) return unclean(recipe, attempt, Reason.OPEN_CONTACT, null);
+            z = c.get();
+            openComp = comp.open() != null;
+            shortComp = comp.shortZ() != null;
+        } else if (recipe.compensationRequired()) return unclean(recipe, attempt, Reason.NO_COMPENSATION, null);
+        out[0] = new Grading.StepReading(step.name(), Grading.Measurement.of(reading, z, source));
+        return stepCorrected(recipe, step, z, attempt, openComp, shortComp);
+    }
+
+    /**
+     * The same for a step reading already compensated (a record-log row replayed): null when it passes. Contacts are
+     * judged against the part's ideal |Z| at the step's frequency.
+     */
+    public static Grading stepCorrected(Recipe recipe, TestStep step, Impedance z, int attempt, boolean openCompensated, boolean shortCompensated) {
+        double ideal = recipe.partType().idealZOhm(recipe.nominal(), step.test().freqHz());
+        ContactCheck contact = recipe.contact();
+        if (contact.isOpen(recipe.partType(), ideal, z, openCompensated)) return unclean(recipe, attempt, Reason.OPEN_CONTACT, null);
+        if (contact.isShort(ideal, z, shortCompensated)) return unclean(recipe, attempt, Reason.SHORT, null);
+        if (contact.fixture().negativeBeyondResolution(z)) return unclean(recipe, attempt, Reason.NEGATIVE_R, null);
+        Reason gate = step.gates().firstFailure(z);
+        if (gate == null) return null;
+        return new Grading(rejected(recipe, gate, false), null, null);
+    }
+
+    /**
      * Grades a recorded reading again, as it was graded live: compensated R/X are graded as they
      * stand, and a row without R/X (nothing was measured, e.g. a meter timeout or overload) is
      * re-created from its reason.
@@ -91,7 +134,7 @@ public final class Grader {
      */
     public static Grading recorded(Recipe recipe, RecordedReading row) {
         Trigger.Kind kind = row.kind();
-        if (kind == Trigger.Kind.PART) return regrade(recipe, row);
+        if (kind == Trigger.Kind.PART) return recipe.steps().isEmpty() ? regrade(recipe, row) : laterSteps(recipe, regrade(recipe, row), row);
         Reason reason = row.reason() == null ? Reason.FIXTURE_OK : row.reason();
         boolean ok = reason == Reason.FIXTURE_OK || reason == Reason.REFERENCE_OK;
         Grading.Outcome o = new Grading.Outcome(recipe.retest().bin(), kind.key() + "-check", ok ? Verdict.PASS : Verdict.FAIL, reason);
@@ -103,6 +146,29 @@ public final class Grader {
         boolean hasZ = Double.isFinite(row.rOhm()) && Double.isFinite(row.xOhm()) && row.freqHz() > 0;
         Impedance z = hasZ ? new Impedance(row.freqHz(), row.rOhm(), row.xOhm()) : null;
         return new Grading(o, new Grading.Measurement(row.freqHz(), z, row.rawROhm(), row.rawXOhm(), row.comp()), null);
+    }
+
+    /**
+     * The plan's later steps of a recorded part, judged as the line judged them: only a part the value step passes
+     * is judged further; a step the row has no reading of cannot pass ({@code step-not-measured}); a step reading that
+     * was not clean gives the row's recorded reason, as it did live.
+     */
+    private static Grading laterSteps(Recipe r, Grading g, RecordedReading row) {
+        if (g.verdict() != Verdict.PASS) return g.withSteps(row.steps());
+        for (TestStep st : r.steps()) {
+            Grading.StepReading rd = null;
+            for (Grading.StepReading x : row.steps()) if (x.step().equals(st.name())) rd = x;
+            if (rd == null) return new Grading(notMeasured(r, Reason.STEP_NOT_MEASURED).outcome(), g.measured(), null, row.steps());
+            Grading.Measurement m = rd.measured();
+            Grading fail;
+            if (m.z() == null) fail = row.reason() != null && row.reason().kind() == Reason.Kind.UNCLEAN
+                    ? unclean(r, row.attempt(), row.reason(), null) : unclean(r, row.attempt(), Reason.NON_FINITE, null);
+            else if (m.comp() == CompensationSource.NONE && r.compensationRequired()) fail = unclean(r, row.attempt(), Reason.NO_COMPENSATION, null);
+            else fail = stepCorrected(r, st, m.z(), row.attempt(), m.comp() != CompensationSource.NONE, m.comp() != CompensationSource.NONE);
+            if (fail != null) return new Grading(fail.outcome(), g.measured(),
+                    fail.reason().rejectClass() == Reason.RejectClass.GATE && fail.verdict() == Verdict.FAIL ? g.graded() : null, row.steps());
+        }
+        return g.withSteps(row.steps());
     }
 
     /**

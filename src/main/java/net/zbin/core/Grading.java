@@ -1,5 +1,7 @@
 package net.zbin.core;
 
+import java.util.List;
+
 /**
  * The outcome of grading one reading, in three parts: what the handler gets ({@link Outcome}), what
  * was measured ({@link Measurement}, absent when nothing was), and the value graded ({@link Value},
@@ -8,7 +10,19 @@ package net.zbin.core;
  * where a value was computed: an open contact, a short or a fault carries its R and X for diagnosis,
  * but no loss figures, since they would describe the fixture, not a part.
  */
-public record Grading(Outcome outcome, Measurement measured, Value graded) {
+public record Grading(Outcome outcome, Measurement measured, Value graded, List<StepReading> steps) {
+    /** A reading of a later step of the test plan, compensated at that step's frequency. */
+    public record StepReading(String step, Measurement measured) {}
+
+    /** A grading of the value step alone. */
+    public Grading(Outcome outcome, Measurement measured, Value graded) { this(outcome, measured, graded, List.of()); }
+
+    /** The same grading with the later steps' readings that were taken. */
+    public Grading withSteps(List<StepReading> s) { return new Grading(outcome, measured, graded, s); }
+
+    /** Another outcome (a later step's reject) on the same readings. */
+    public Grading withOutcome(Outcome o) { return new Grading(o, measured, graded, steps); }
+
     /**
      * @param bin     handler bin number
      * @param grade   grade name for a pass, the reject class otherwise ("low", "gate", "retest", …)
@@ -54,6 +68,7 @@ public record Grading(Outcome outcome, Measurement measured, Value graded) {
 
     public Grading {
         if (outcome == null) throw new IllegalArgumentException("outcome is required");
+        steps = steps == null ? List.of() : List.copyOf(steps);
     }
 
     public int bin() { return outcome.bin(); }
@@ -86,7 +101,8 @@ public record Grading(Outcome outcome, Measurement measured, Value graded) {
     /** The same grading, said to be made on the mean of n readings. */
     public Grading withReadings(int n) {
         if (measured == null) return this;
-        return new Grading(outcome, new Measurement(measured.freqHz(), measured.z(), measured.rawROhm(), measured.rawXOhm(), measured.comp(), n), graded);
+        return new Grading(outcome, new Measurement(measured.freqHz(), measured.z(), measured.rawROhm(), measured.rawXOhm(), measured.comp(), n), graded,
+                steps);
     }
 
     private boolean hasValue() { return graded != null && impedance() != null; }

@@ -5,7 +5,9 @@ package net.zbin.core;
  * the decision. A part whose value reads near an acceptance limit is measured again (the recipe's
  * {@link Remeasure}) while the caller says another reading fits the handler's deadline, and is decided on the mean
  * of its readings with the guard band of that mean. A reading that is not clean ends the session at once, with the
- * retest policy's answer: it is never averaged into a value. Pure: no I/O, no clock.
+ * retest policy's answer: it is never averaged into a value. A part the value step passes is then read at each later
+ * step of the plan ({@link Recipe#steps}, at that step's {@link #conditions}) and judged by its gates: a later step can
+ * only reject. Pure: no I/O, no clock.
  */
 public final class PartSession {
     private final Recipe[] byReadings;
@@ -13,14 +15,26 @@ public final class PartSession {
     private final Compensation comp;
     private final FixtureCheck.Limits checks;
     private final int attempt;
+    private final java.util.function.DoubleFunction<Compensation> compAt;
     private double freqHz, sumR, sumX;
     private int n;
+    /** 0 while the value step is read, k while later step k is. */
+    private int step;
+    private Grading passed;
+    private final java.util.List<Grading.StepReading> taken = new java.util.ArrayList<>();
 
     /**
      * @param byReadings the recipe as it judges the mean of 1, 2, … readings (index n − 1), see {@link #plan}
      * @param comp       the compensation in force (null: none)
      */
     public PartSession(Recipe[] byReadings, FixtureCheck.Limits checks, Trigger.Kind kind, Compensation comp, int attempt) {
+        this(byReadings, checks, kind, comp, f -> comp != null && Compensation.matches(comp.freqHz(), f) ? comp : null, attempt);
+    }
+
+    /** @param compAt the compensation in force at a later step's frequency (null: none) */
+    public PartSession(Recipe[] byReadings, FixtureCheck.Limits checks, Trigger.Kind kind, Compensation comp,
+                       java.util.function.DoubleFunction<Compensation> compAt, int attempt) {
+        this.compAt = compAt;
         this.byReadings = byReadings;
         this.checks = checks;
         this.kind = kind;
@@ -36,8 +50,11 @@ public final class PartSession {
         return out;
     }
 
-    /** Readings taken so far. */
+    /** Readings of the value step taken so far. */
     public int readings() { return n; }
+
+    /** The conditions the next reading is to be taken at: the value step's, then each later step's. */
+    public TestConditions conditions() { return step == 0 ? byReadings[0].test() : byReadings[0].steps().get(step - 1).test(); }
 
     /**
      * Takes a reading.
@@ -46,6 +63,31 @@ public final class PartSession {
      * @return the decision's grading, or null when the part is to be measured again
      */
     public Grading offer(Reading raw, boolean anotherFits) {
+        if (step > 0) return offerStep(raw);
+        Grading g = offerValue(raw, anotherFits);
+        if (g == null) return null;
+        if (kind != Trigger.Kind.PART || byReadings[0].steps().isEmpty() || g.verdict() != Verdict.PASS) return g;
+        passed = g;
+        step = 1;
+        return null;
+    }
+
+    /** A later step's reading: on to the next step, or the decision (the value step's when every step passed). */
+    private Grading offerStep(Reading raw) {
+        Recipe r = byReadings[0];
+        TestStep st = r.steps().get(step - 1);
+        Grading.StepReading[] out = new Grading.StepReading[1];
+        Grading fail = Grader.step(r, st, raw, compAt.apply(st.test().freqHz()), attempt, out);
+        taken.add(out[0]);
+        if (fail != null) // a gate keeps the value beside the reject, as the value step's gates do; a reading not clean has none
+            return new Grading(fail.outcome(), passed.measured(), fail.verdict() == Verdict.FAIL && fail.reason().rejectClass() == Reason.RejectClass.GATE
+                    ? passed.graded() : null, taken);
+        if (step == r.steps().size()) return passed.withSteps(taken);
+        step++;
+        return null;
+    }
+
+    private Grading offerValue(Reading raw, boolean anotherFits) {
         if (n > 0 && (!raw.isFinite() || !Compensation.matches(raw.freqHz(), freqHz)))
             return LineEngine.grade(byReadings[0], checks, kind, raw, comp, attempt); // not clean: decided on it alone
         if (n == 0) freqHz = raw.freqHz();

@@ -36,6 +36,7 @@ public enum Reason {
     LINE_BUSY(Kind.NOT_MEASURED, null),
     STALE_TRIGGER(Kind.NOT_MEASURED, null),
     RECORD_FAILED(Kind.NOT_MEASURED, null),
+    STEP_NOT_MEASURED(Kind.NOT_MEASURED, null),
     FIXTURE_OK(Kind.CHECK, null),
     FIXTURE_DRIFT(Kind.CHECK, null),
     REFERENCE_OK(Kind.CHECK, null),

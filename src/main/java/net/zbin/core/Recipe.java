@@ -27,11 +27,12 @@ import java.util.Set;
  * @param compensationRequired true: without matching compensation nothing is graded
  * @param monitor     how the line monitor watches lots of this recipe (null: the defaults)
  * @param remeasure   re-measuring near a limit (null: off)
+ * @param steps       later steps of the test plan, in order (null: none): read after the value step, gates only
  */
 public record Recipe(String name, PartType partType, double nominal, TestConditions test, ModelPolicy model,
                      PrimaryParam primary, GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates,
                      PhaseWindow plausible, RejectBins reject, RetestPolicy retest, ContactCheck contact, boolean compensationRequired,
-                     MonitorSettings monitor, Remeasure remeasure) {
+                     MonitorSettings monitor, Remeasure remeasure, List<TestStep> steps) {
     public Recipe {
         if (name == null || !name.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new SpecException("recipe", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + name + "')");
@@ -49,6 +50,9 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         if (contact == null) contact = ContactCheck.DEFAULT;
         if (monitor == null) monitor = MonitorSettings.DEFAULT;
         if (remeasure == null) remeasure = Remeasure.OFF;
+        steps = steps == null ? List.of() : List.copyOf(steps);
+        Set<String> stepNames = new HashSet<>();
+        for (TestStep st : steps) if (!stepNames.add(st.name())) throw new SpecException("steps", "step '" + st.name() + "' is named twice");
         if (reject == null) throw new SpecException("reject", "is required (bins for low, high, gate, contact, short, overload, fault)");
         if (retest == null) throw new SpecException("retest", "is required (count and bin)");
         checkPrimary(partType, primary, model, gates);
@@ -61,7 +65,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
                   GradingMode mode, List<Grade> grades, GuardBand guard, Gates gates, PhaseWindow plausible, RejectBins reject,
                   RetestPolicy retest, ContactCheck contact, boolean compensationRequired) {
         this(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest, contact,
-                compensationRequired, null, null);
+                compensationRequired, null, null, null);
     }
 
     private static void checkPrimary(PartType type, PrimaryParam p, ModelPolicy model, Gates gates) {
@@ -226,7 +230,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
     public Builder toBuilder() {
         return new Builder().name(name).partType(partType).nominal(nominal).test(test).model(model).primary(primary).mode(mode)
                 .grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(contact)
-                .compensationRequired(compensationRequired).monitor(monitor).remeasure(remeasure);
+                .compensationRequired(compensationRequired).monitor(monitor).remeasure(remeasure).steps(steps);
     }
 
     public static Builder builder() { return new Builder(); }
@@ -253,6 +257,7 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         private boolean compensationRequired;
         private MonitorSettings monitor;
         private Remeasure remeasure;
+        private List<TestStep> steps;
 
         public Builder name(String v) { name = v; return this; }
         public Builder partType(PartType v) { partType = v; return this; }
@@ -271,10 +276,11 @@ public record Recipe(String name, PartType partType, double nominal, TestConditi
         public Builder compensationRequired(boolean v) { compensationRequired = v; return this; }
         public Builder monitor(MonitorSettings v) { monitor = v; return this; }
         public Builder remeasure(Remeasure v) { remeasure = v; return this; }
+        public Builder steps(List<TestStep> v) { steps = v; return this; }
 
         public Recipe build() {
             return new Recipe(name, partType, nominal, test, model, primary, mode, grades, guard, gates, plausible, reject, retest,
-                    contact, compensationRequired, monitor, remeasure);
+                    contact, compensationRequired, monitor, remeasure, steps);
         }
     }
 }

@@ -45,9 +45,11 @@ public final class Tuner {
         this.base = base;
         this.sweeps = List.copyOf(sweeps);
         this.uncertaintyPct = uncertaintyPct;
-        boolean fast = sweeps.stream().allMatch(Sweep::byValueOnly);
+        // A plan with later steps is replayed row by row for every setting: a later step judges only parts the value passes
+        boolean steps = !base.steps().isEmpty();
+        boolean fast = !steps && sweeps.stream().allMatch(Sweep::byValueOnly);
         counted = fast ? new Counted(base) : null;
-        gated = !fast && sweeps.size() == 1 && sweeps.get(0).gate() ? new GateCounted(base, sweeps.get(0).quantity(), uncertaintyPct) : null;
+        gated = !fast && !steps && sweeps.size() == 1 && sweeps.get(0).gate() ? new GateCounted(base, sweeps.get(0).quantity(), uncertaintyPct) : null;
         kept = counted == null && gated == null ? new ArrayList<>() : null;
     }
 

@@ -24,7 +24,7 @@ final class CsvReadingSource implements ReadingSource {
     private final Path file;
     private final Consumer<BadRow> bad;
     private final CsvTable table;
-    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot, fReadings;
+    private final int width, fFreq, fR, fX, fRawR, fRawX, fReason, fAttempt, fComp, fKind, fSeq, fPart, fLot, fReadings, fSteps;
 
     CsvReadingSource(Path file, Consumer<BadRow> bad) throws IOException, ConfigException {
         this.file = file;
@@ -50,6 +50,7 @@ final class CsvReadingSource implements ReadingSource {
         fPart = table.column("part");
         fLot = table.column("lot");
         fReadings = table.column("readings");
+        fSteps = table.column("steps");
     }
 
     @Override
@@ -117,7 +118,7 @@ final class CsvReadingSource implements ReadingSource {
         String part = fPart < 0 ? "" : SpreadsheetSafe.read(rec.getField(fPart));
         String lot = fLot < 0 ? "" : SpreadsheetSafe.read(rec.getField(fLot));
         return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
-                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), why, att, cs, kind, seq, part, lot, readings);
+                fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), why, att, cs, kind, seq, part, lot, readings, fSteps < 0 ? java.util.List.of() : StepsJson.decode(rec.getField(fSteps)));
     }
 
     private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }

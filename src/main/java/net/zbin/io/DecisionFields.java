@@ -62,6 +62,8 @@ public final class DecisionFields {
             new Field("attempt", Use.BOTH, e -> e.decision().attempt()),
             // appended (the log's columns only ever grow at the end): how many readings the value is the mean of
             new Field("readings", Use.BOTH, e -> g(e).readings() > 0 ? (Object) g(e).readings() : null),
+            // appended: the readings of the plan's later steps (JSON; empty for a one-step plan)
+            new Field("steps", Use.BOTH, e -> StepsJson.encode(g(e).steps())),
             // payload only
             new Field("unit", Use.PAYLOAD, e -> g(e).unit()),
             new Field("z_ohm", Use.PAYLOAD, e -> g(e).zOhm()),
@@ -86,6 +88,7 @@ public final class DecisionFields {
             else if (v instanceof Long x) n.put(f.name(), x);
             else if (v instanceof Integer x) n.put(f.name(), x);
             else if (v instanceof Boolean x) n.put(f.name(), x);
+            else if (v instanceof com.fasterxml.jackson.databind.JsonNode x) n.set(f.name(), x);
             else n.put(f.name(), v.toString());
         }
         return n;

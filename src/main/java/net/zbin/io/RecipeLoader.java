@@ -21,6 +21,7 @@ import net.zbin.core.Remeasure;
 import net.zbin.core.RejectBins;
 import net.zbin.core.RetestPolicy;
 import net.zbin.core.TestConditions;
+import net.zbin.core.TestStep;
 import net.zbin.core.ToleranceCode;
 
 /** Loads a recipe YAML file into a validated {@link Recipe}; every refusal names file and key. */
@@ -37,10 +38,7 @@ public final class RecipeLoader {
         PartType type = n.build("part", () -> PartType.parse(n.text("part")));
         double nominal = value(n, "nominal", type);
 
-        SpecNode t = n.child("test");
-        TestConditions test = n.build(null, () -> new TestConditions(t.number("freq", Unit.HERTZ), t.optNumber("level_v", 1.0, Unit.VOLT),
-                t.optText("speed", "medium"), t.optInteger("averaging", 1)));
-        t.finish();
+        TestConditions test = test(n);
 
         SpecNode m = n.child("model");
         ModelPolicy model = m.build(null, () -> new ModelPolicy(ModelPolicy.Mode.parse(m.optText("mode", "auto")),
@@ -68,12 +66,14 @@ public final class RecipeLoader {
         rm.finish();
         Remeasure remeasure = n.build(null, () -> new Remeasure(maxReadings, near));
 
-        SpecNode ga = n.child("gates");
-        Double dMax = ga.optNumberOrNull("d_max", Unit.RATIO), qMin = ga.optNumberOrNull("q_min", Unit.RATIO),
-                esr = ga.optNumberOrNull("esr_max_ohm", Unit.OHM),
-                tMin = ga.optNumberOrNull("theta_min_deg", Unit.DEGREE), tMax = ga.optNumberOrNull("theta_max_deg", Unit.DEGREE);
-        ga.finish();
-        Gates gates = n.build(null, () -> new Gates(dMax, qMin, esr, tMin, tMax));
+        Gates gates = gates(n);
+        List<TestStep> steps = n.has("steps") ? n.list("steps", st -> {
+            String stepName = st.text("name");
+            TestConditions stepTest = test(st);
+            Gates stepGates = gates(st);
+            st.finish();
+            return st.build(null, () -> new TestStep(stepName, stepTest, stepGates));
+        }) : List.of();
 
         SpecNode pl = n.child("plausible");
         PhaseWindow dfltPhase = PhaseWindow.defaultFor(type);
@@ -110,7 +110,26 @@ public final class RecipeLoader {
         n.finish();
         return n.build(null, () -> Recipe.builder().name(name).partType(type).nominal(nominal).test(test).model(model).primary(primary)
                 .mode(mode).grades(grades).guard(guard).gates(gates).plausible(plausible).reject(reject).retest(retest).contact(check)
-                .compensationRequired(required).monitor(monitor).remeasure(remeasure).build());
+                .compensationRequired(required).monitor(monitor).remeasure(remeasure).steps(steps).build());
+    }
+
+    /** A {@code test:} map (the recipe's, or a later step's). */
+    private static TestConditions test(SpecNode n) throws ConfigException {
+        SpecNode t = n.child("test");
+        TestConditions test = n.build(null, () -> new TestConditions(t.number("freq", Unit.HERTZ), t.optNumber("level_v", 1.0, Unit.VOLT),
+                t.optText("speed", "medium"), t.optInteger("averaging", 1)));
+        t.finish();
+        return test;
+    }
+
+    /** A {@code gates:} map (the recipe's, or a later step's). */
+    private static Gates gates(SpecNode n) throws ConfigException {
+        SpecNode ga = n.child("gates");
+        Double dMax = ga.optNumberOrNull("d_max", Unit.RATIO), qMin = ga.optNumberOrNull("q_min", Unit.RATIO),
+                esr = ga.optNumberOrNull("esr_max_ohm", Unit.OHM),
+                tMin = ga.optNumberOrNull("theta_min_deg", Unit.DEGREE), tMax = ga.optNumberOrNull("theta_max_deg", Unit.DEGREE);
+        ga.finish();
+        return n.build(null, () -> new Gates(dMax, qMin, esr, tMin, tMax));
     }
 
     /** The monitor's settings of a recipe ({@code monitor:}), each key optional. */

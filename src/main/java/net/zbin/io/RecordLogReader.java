@@ -111,7 +111,7 @@ public final class RecordLogReader {
     /** The record columns' indices in one file (its header may be an older, shorter one). */
     private static final class Columns {
         final int width, time, line, lot, seq, part, kind, recipe, freq, r, x, rawR, rawX, model, param, value, dev, bin, grade, verdict,
-                reason, latency, comp, attempt, readings;
+                reason, latency, comp, attempt, readings, steps;
 
         Columns(CsvTable t) {
             width = t.width();
@@ -139,6 +139,7 @@ public final class RecordLogReader {
             comp = t.column("comp");
             attempt = t.column("attempt");
             readings = t.column("readings");
+            steps = t.column("steps");
         }
     }
 
@@ -165,7 +166,8 @@ public final class RecordLogReader {
         Grading.Value v = param.isEmpty() ? null : new Grading.Value(EquivalentModel.valueOf(cell(r, c.model, "model").toUpperCase(java.util.Locale.ROOT)),
                 PrimaryParam.parse(param), num(r, c.value, "value"), num(r, c.dev, "dev_pct"));
         Grading g = new Grading(new Grading.Outcome(Integer.parseInt(cell(r, c.bin, "bin")), text(r, c.grade, "grade"),
-                Verdict.valueOf(cell(r, c.verdict, "verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(cell(r, c.reason, "reason"))), m, v);
+                Verdict.valueOf(cell(r, c.verdict, "verdict").toUpperCase(java.util.Locale.ROOT)), Reason.parse(cell(r, c.reason, "reason"))), m, v,
+                c.steps < 0 ? List.of() : StepsJson.decode(r.getField(c.steps)));
         Decision d = new Decision(Long.parseLong(cell(r, c.seq, "seq")), text(r, c.part, "part"), text(r, c.lot, "lot"),
                 Trigger.Kind.parse(cell(r, c.kind, "kind")), text(r, c.recipe, "recipe"), g, num(r, c.latency, "latency_ms"), false,
                 Integer.parseInt(cell(r, c.attempt, "attempt")));

@@ -5,6 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
+import java.util.List;
 import org.junit.jupiter.api.Test;
 
 class RemeasureTest {
@@ -86,9 +87,9 @@ class RemeasureTest {
         LineEngine e = LineEngine.of(r);
         Reading mean = GraderTest.capReading(4.75, 0.01);
         RecordedReading one = new RecordedReading(2, GraderTest.F, mean.rOhm(), mean.xOhm(), Double.NaN, Double.NaN, null, 0,
-                CompensationSource.NONE, Trigger.Kind.PART, 1, "P1", "L1", 1);
+                CompensationSource.NONE, Trigger.Kind.PART, 1, "P1", "L1", 1, List.of());
         RecordedReading three = new RecordedReading(3, GraderTest.F, mean.rOhm(), mean.xOhm(), Double.NaN, Double.NaN, null, 0,
-                CompensationSource.NONE, Trigger.Kind.PART, 2, "P2", "L1", 3);
+                CompensationSource.NONE, Trigger.Kind.PART, 2, "P2", "L1", 3, List.of());
         assertEquals("K", e.regrade(one).grading().grade(), "one reading at 4.75 %: beyond J's 4.685 %");
         assertEquals("J", e.regrade(three).grading().grade(), "a mean of three at 4.75 %: within J's 4.769 %");
         assertEquals(3, e.regrade(three).grading().readings());

@@ -126,8 +126,15 @@ final class LineCommands {
             if (sr == null || !sr.isNumber()) throw new PayloadException("std_r (number, ohm) is required for load");
             std.add(new Impedance(r.freqHz(), sr.asDouble(), sx != null && sx.isNumber() ? sx.asDouble() : 0));
         }
-        Impedance z = setup.capture(meter, clock, k, List.of(r.test()), std).get(0);
+        // open and short at the value step's conditions and at every later step's (a load standard is given for the first)
+        List<net.zbin.core.TestConditions> conds = new ArrayList<>(List.of(r.test()));
+        if (k != CompensationCapture.Kind.LOAD) for (net.zbin.core.TestStep st : r.steps()) conds.add(st.test());
+        List<Impedance> got = setup.capture(meter, clock, k, conds, std);
+        Impedance z = got.get(0);
         monitor.compensation(setup.compensation());
-        return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + CompensationCapture.describe(k, z);
+        StringBuilder more = new StringBuilder();
+        for (int i = 1; i < got.size(); i++)
+            more.append("; at ").append(SiValue.format(got.get(i).freqHz(), "Hz")).append(": ").append(CompensationCapture.describe(k, got.get(i)));
+        return kind + " captured at " + SiValue.format(z.freqHz(), "Hz") + ": " + CompensationCapture.describe(k, z) + more;
     }
 }

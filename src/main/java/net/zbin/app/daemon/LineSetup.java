@@ -79,6 +79,11 @@ final class LineSetup {
     /** Compensation at the active recipe's frequency (measuring thread). */
     Compensation compensation() { return comp; }
 
+    /** Compensation at another frequency — a later step's of the plan (measuring thread); null when none is stored. */
+    Compensation compensationAt(double freqHz) {
+        return comp != null && Compensation.matches(comp.freqHz(), freqHz) ? comp : store.forFrequency(freqHz);
+    }
+
     /** Loads a recipe by name from the recipe folder and makes it active. */
     String switchRecipe(String name) throws PayloadException, ConfigException {
         if (name == null) throw new PayloadException("name is missing");

@@ -189,12 +189,13 @@ final class TriggerPath {
         if (mode.mode() == Mode.PAUSED) return Grader.notMeasured(r, Reason.LINE_PAUSED);
         if (System.nanoTime() - arrivedNanos > cfg.deadlineMs() * 1_000_000L) return Grader.notMeasured(r, Reason.STALE_TRIGGER);
         Recipe[] plan = setup.plan();
-        PartSession session = new PartSession(plan[0] == r ? plan : PartSession.plan(r), cfg.checks(), t.kind(), setup.compensation(), attempt);
+        PartSession session = new PartSession(plan[0] == r ? plan : PartSession.plan(r), cfg.checks(), t.kind(), setup.compensation(),
+                setup::compensationAt, attempt);
         long deadlineNanos = cfg.deadlineMs() * 1_000_000L;
         Grading g;
         try {
-            meter.apply(r.test());
             do {
+                meter.apply(session.conditions()); // sends nothing while the conditions stay; a later step's are set before its reading
                 long t0 = System.nanoTime();
                 MeterReading mr = meter.measure();
                 long now = System.nanoTime();

@@ -39,6 +39,8 @@ class TriggerPathTest {
     static final class ScriptedMeter implements MeterSession {
         final ArrayDeque<Object> script = new ArrayDeque<>();
         int measured, applied;
+        final java.util.List<Double> appliedFreqs = new java.util.ArrayList<>();
+        TestConditions now;
 
         ScriptedMeter reading(double devPct) {
             double c = 100e-9 * (1 + devPct / 100), x = -1 / (W * c);
@@ -48,7 +50,19 @@ class TriggerPathTest {
 
         public String identify() { return "scripted"; }
 
-        public void apply(TestConditions conditions) { applied++; }
+        public void apply(TestConditions conditions) {
+            if (conditions.equals(now)) return; // as a real session: nothing sent while the conditions stay
+            now = conditions;
+            applied++;
+            appliedFreqs.add(conditions.freqHz());
+        }
+
+        /** A polymer capacitor's reading at f: C, ESR and 2 nH ESL (no fixture). */
+        ScriptedMeter part(double f, double c, double esr) {
+            double w = 2 * Math.PI * f;
+            script.add(new Reading(f, esr, w * 2e-9 - 1 / (w * c)));
+            return this;
+        }
 
         public MeterReading measure() throws MeterException {
             measured++;
@@ -73,13 +87,17 @@ class TriggerPathTest {
 
     @BeforeEach
     void line() throws Exception {
+        line("mlcc-x7r-100n-remeasure", Files.readString(Path.of("config/recipes/mlcc-x7r-100n-remeasure.yaml")), "");
+    }
+
+    /** The path of a line whose active recipe is {@code text}, named {@code name}, with {@code extra} config keys. */
+    void line(String name, String text, String extra) throws Exception {
         Path recipes = dir.resolve("recipes");
         Files.createDirectories(recipes);
-        String text = Files.readString(Path.of("config/recipes/mlcc-x7r-100n-remeasure.yaml"));
         // a deadline no machine's class loading reaches: the test is about the path's logic, not its speed
-        Path cfgFile = TestLine.write(dir, "tp", "tcp://127.0.0.1:1", 1, "handler: {deadline_ms: 600000, repeat_window_ms: 600000}\n");
-        Files.writeString(cfgFile, Files.readString(cfgFile).replace("active: mlcc-x7r-100n", "active: mlcc-x7r-100n-remeasure"));
-        Files.writeString(recipes.resolve("mlcc-x7r-100n-remeasure.yaml"), text);
+        Path cfgFile = TestLine.write(dir, "tp", "tcp://127.0.0.1:1", 1, "handler: {deadline_ms: 600000, repeat_window_ms: 600000}\n" + extra);
+        Files.writeString(cfgFile, Files.readString(cfgFile).replace("active: mlcc-x7r-100n", "active: " + name));
+        Files.writeString(recipes.resolve(name + ".yaml"), text);
         cfg = LineConfigLoader.load(cfgFile);
         Clock clock = Clock.systemUTC();
         var topics = new net.zbin.io.mqtt.Topics(cfg.mqtt().topicRoot(), cfg.line());
@@ -113,8 +131,8 @@ class TriggerPathTest {
         records.close();
         List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
         assertEquals(2, rows.size(), "a header and the decision's row: " + rows);
-        assertTrue(rows.get(0).endsWith(",attempt,readings"), "the readings column is appended at the end: " + rows.get(0));
-        assertTrue(rows.get(1).endsWith(",0,1"), rows.get(1));
+        assertTrue(rows.get(0).endsWith(",attempt,readings,steps"), "readings and steps are appended at the end: " + rows.get(0));
+        assertTrue(rows.get(1).endsWith(",0,1,"), "one reading, no later steps: " + rows.get(1));
     }
 
     @Test
@@ -159,5 +177,48 @@ class TriggerPathTest {
         assertEquals(0, meter.measured);
         assertEquals(1, out.on("zbin/tp/rejected").size());
         assertTrue(decisions().isEmpty());
+    }
+
+    /** The shipped two-step plan without its compensation requirement, on a fixture configured for milliohms. */
+    void polymerLine() throws Exception {
+        if (records != null) records.close();
+        java.nio.file.Files.walk(dir).sorted(java.util.Comparator.reverseOrder()).filter(p -> !p.equals(dir)).forEach(p -> p.toFile().delete());
+        String text = Files.readString(Path.of("config/recipes/polymer-cap-100u-esr.yaml")).replace("required: true", "required: false");
+        line("polymer-cap-100u-esr", text, "fixture: {short_max_ohm: 0.0005, short_check_ohm: 0.0002}\n");
+    }
+
+    @Test
+    void aTwoStepPlan_setsTheMeterForEachStep_recordsTheStepsReading_andReplaysToTheSameBin() throws Exception {
+        polymerLine();
+        meter.part(120, 100e-6, 0.05).part(100e3, 100e-6, 0.012);
+        trigger("{\"seq\": 1, \"part\": \"N1\", \"lot\": \"L1\"}");
+        meter.part(120, 100e-6, 0.05).part(100e3, 100e-6, 0.040);
+        trigger("{\"seq\": 2, \"part\": \"N2\", \"lot\": \"L1\"}");
+        List<JsonNode> d = decisions();
+        assertEquals(List.of(120.0, 100e3, 120.0, 100e3), meter.appliedFreqs, "the value step's conditions, then the ESR step's, per part");
+        assertEquals("M", d.get(0).path("grade").asText(), d.get(0).toString());
+        assertEquals(0.012, d.get(0).path("steps").get(0).path("r_ohm").asDouble(), 1e-9, "the step's reading is in the decision");
+        assertEquals("esr-high", d.get(1).path("reason").asText());
+        assertEquals(9, d.get(1).path("bin").asInt());
+        records.close();
+        Path log = Files.list(cfg.records().dir()).findFirst().orElseThrow();
+        List<String> rows = Files.readAllLines(log);
+        assertTrue(rows.get(0).endsWith(",readings,steps"), rows.get(0));
+        var engine = cfg.engine(net.zbin.io.RecipeLoader.load(dir.resolve("recipes/polymer-cap-100u-esr.yaml")).withFixture(cfg.bounds()));
+        List<String> replayed = new java.util.ArrayList<>();
+        try (var src = net.zbin.io.ReadingSource.open(log, b -> { throw new AssertionError(b.toString()); })) {
+            net.zbin.core.RecordedReading r;
+            while ((r = src.next()) != null) replayed.add(engine.regrade(r).grading().bin() + " " + engine.regrade(r).grading().reason().code());
+        }
+        assertEquals(List.of("1 in-grade", "9 esr-high"), replayed, "the log replays to the live bins");
+    }
+
+    @Test
+    void aPartTheValueStepRejects_isNotReadAtTheLaterStep() throws Exception {
+        polymerLine();
+        meter.part(120, 130e-6, 0.05); // +30 %: out of M
+        trigger("{\"seq\": 3, \"part\": \"N3\", \"lot\": \"L1\"}");
+        assertEquals(1, meter.measured);
+        assertEquals("value-high", decisions().get(0).path("reason").asText());
     }
 }
