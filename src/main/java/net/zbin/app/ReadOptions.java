@@ -21,9 +21,22 @@ final class ReadOptions {
     @Option(names = "--progress", description = "progress on stderr even when it is not a terminal")
     boolean progress;
 
+    private net.zbin.io.LineConfig line;
+
+    /** The line config of {@code --line-config}, loaded once (null without it). */
+    private net.zbin.io.LineConfig line() throws net.zbin.io.ConfigException {
+        if (line == null && lineConfig != null) line = net.zbin.io.LineConfigLoader.load(lineConfig);
+        return line;
+    }
+
+    /** The recipe as the line uses it: on the line's fixture (its open/short bounds) when {@code --line-config} is given. */
+    net.zbin.core.Recipe forLine(net.zbin.core.Recipe recipe) throws net.zbin.io.ConfigException {
+        return line() == null ? recipe : recipe.withFixture(line().bounds());
+    }
+
     /** The engine the lot is decided by: the line's when {@code --line-config} is given, else the recipe's own. */
     net.zbin.core.LineEngine engine(net.zbin.core.Recipe recipe) throws net.zbin.io.ConfigException {
-        return lineConfig == null ? net.zbin.core.LineEngine.of(recipe) : net.zbin.io.LineConfigLoader.load(lineConfig).engine(recipe);
+        return line() == null ? net.zbin.core.LineEngine.of(recipe) : line().engine(recipe);
     }
 
     /** Refuses an output file whose folder does not exist, naming the option. */

@@ -51,7 +51,7 @@ public final class ReplayCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        Recipe recipe = RecipeLoader.load(recipeFile);
+        Recipe recipe = reading.forLine(RecipeLoader.load(recipeFile));
         PrintWriter err = spec.commandLine().getErr();
         BinTally tally = new BinTally();
         // The line's engine, fed the same decisions in the same order as it was live (lots and all): the same bins,

@@ -70,7 +70,7 @@ public final class TuneCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        Recipe recipe = RecipeLoader.load(recipeFile);
+        Recipe recipe = reading.forLine(RecipeLoader.load(recipeFile));
         if (vary.size() > 2) throw new UsageException("--vary: give one or two sweeps (was " + vary.size() + ")");
         List<Sweep> sweeps = new ArrayList<>();
         for (String v : vary) {

@@ -61,7 +61,7 @@ class MultiStepLineIT {
             Cli replay = Cli.run("replay", "--recipe", recipe.toString(), "--in", log.toString(), "--json", "--quiet",
                     "--line-config", rig.cfg.file().toString());
             assertEquals(0, replay.exit(), replay.err());
-            assertEquals(live, byBinAndReason(Json.mapper().readTree(replay.out())), "replay = live");
+            assertEquals(live, byBinAndReason(Json.mapper().readTree(replay.out())), "replay = live; " + replay.err());
             Cli tune = Cli.run("tune", "--recipe", recipe.toString(), "--in", log.toString(), "--json", "--quiet",
                     "--vary", "d_max=0.1", "--line-config", rig.cfg.file().toString());
             assertEquals(0, tune.exit(), tune.err());
