@@ -29,6 +29,7 @@ final class ConfigCheck {
             out.printf(Locale.ROOT, "  warning: profile %s confirms no reading with a sync query: a stray line that arrives while a reply is awaited "
                     + "cannot be told from the reply (only data already waiting before or behind it is caught)%n", c.meter().name());
         CompensationStore store = CompensationStore.load(c.stateDir());
+        java.util.List<String> tooSlow = new java.util.ArrayList<>();
         out.printf(Locale.ROOT, "  recipes in %s:%n", c.recipeDir());
         for (Recipe r : Recipes.all(c.recipeDir(), c.bounds())) {
             Compensation comp = store.forFrequency(r.freqHz());
@@ -41,6 +42,18 @@ final class ConfigCheck {
                         SiValue.format(r.nominal(), r.partType().unit()), SiValue.format(r.idealZOhm(), "ohm"),
                         net.zbin.core.FixtureBounds.MARGIN, r.needsOpenCompensation() ? "open" : "short");
             if (r.unreachable() != null) out.printf(Locale.ROOT, "        warning: no part can pass: %s%n", r.unreachable());
+            var timing = c.meter().timing();
+            if (timing != null) {
+                double ms = timing.planMs(r);
+                String slow = ms <= c.deadlineMs() ? null : r.name() + ": its plan takes up to " + SiValue.format(ms / 1000, "s") + " at the meter ("
+                        + (r.steps().isEmpty() ? "" : (r.steps().size() + 1) + " steps, ") + (r.remeasure().on() ? "up to " + r.remeasure().maxReadings()
+                        + " readings at the value step, " : "") + "profile " + c.meter().name() + "'s timing), beyond the handler's deadline of "
+                        + c.deadlineMs() + " ms";
+                if (slow != null && r.name().equals(c.activeRecipe())) tooSlow.add(slow); // the line runs it: refused
+                else if (slow != null) out.printf(Locale.ROOT, "        warning: %s: the line could not answer in time if switched to it%n", slow);
+                else if (!r.steps().isEmpty() || r.remeasure().on())
+                    out.printf(Locale.ROOT, "        plan: up to %s at the meter, inside the %d ms deadline%n", SiValue.format(ms / 1000, "s"), c.deadlineMs());
+            }
             String outside = c.meter().range() == null ? null : c.meter().range().outside(r.test());
             if (outside != null)
                 out.printf(Locale.ROOT, "        warning: %s (profile %s): the meter will refuse this recipe, and the line grades nothing with it%n",
@@ -50,6 +63,10 @@ final class ConfigCheck {
                 c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,
                 c.records().pauseOnFailure() ? "pause" : "continue");
         out.printf(Locale.ROOT, "  handler deadline %d ms, dashboard every %s%n", c.deadlineMs(), SiValue.format(c.dashboardMs() / 1000.0, "s"));
+        if (c.meter().timing() == null)
+            out.printf(Locale.ROOT, "  note: profile %s states no timing: the recipes' plans are not added up against the deadline%n", c.meter().name());
+        if (!tooSlow.isEmpty()) throw new UsageException(file + ": " + String.join("; ", tooSlow)
+                + " — shorten the plan (fewer steps or readings, a faster speed) or raise handler.deadline_ms");
         out.println("ok: " + file);
         return Main.EXIT_OK;
     }

@@ -39,7 +39,36 @@ public record MeterProfile(String name, String terminator, String identifyQuery,
                            int measureTimeoutMs, String separator, List<Field> fields, String statusOk,
                            Set<String> statusOverload, String errorQuery, Pattern errorNone, int commandTimeoutMs,
                            TransportSpec transport, int reconnectInitialMs, int reconnectMaxMs, boolean confirmReadings,
-                           Range range, Map<String, String> readback) {
+                           Range range, Map<String, String> readback, Timing timing) {
+
+    /**
+     * How long the meter takes, as its data sheet (or a measurement) states it, for {@code check} to add up a test
+     * plan against the handler's deadline. Not used to time anything out.
+     *
+     * @param readingMs milliseconds of one reading at averaging 1, by zbin speed (fast, medium, slow)
+     * @param switchMs  milliseconds to set other conditions and let them settle (a plan's change of step)
+     */
+    public record Timing(Map<String, Double> readingMs, double switchMs) {
+        public Timing {
+            readingMs = Map.copyOf(readingMs);
+            for (String sp : net.zbin.core.TestConditions.SPEEDS)
+                if (!(readingMs.getOrDefault(sp, Double.NaN) >= 0)) throw new IllegalArgumentException("timing.reading_ms." + sp + " is required (>= 0)");
+            if (!(switchMs >= 0)) throw new IllegalArgumentException("timing.switch_ms must be >= 0 (was " + switchMs + ")");
+        }
+
+        /** One reading at these conditions, in ms. */
+        public double readingMs(net.zbin.core.TestConditions t) { return readingMs.get(t.speed()) * t.averaging(); }
+
+        /**
+         * The longest a part of this plan can take at the meter, in ms: the value step's readings (all of them when it
+         * re-measures), each later step's switch and reading, and the switch back to the value step for the next part.
+         */
+        public double planMs(net.zbin.core.Recipe r) {
+            double ms = readingMs(r.test()) * r.remeasure().maxReadings();
+            for (net.zbin.core.TestStep st : r.steps()) ms += switchMs + readingMs(st.test());
+            return r.steps().isEmpty() ? ms : ms + switchMs;
+        }
+    }
 
     /**
      * What the meter can set, as its data sheet states it. zbin does not rely on it to catch a refused
@@ -130,7 +159,7 @@ public record MeterProfile(String name, String terminator, String identifyQuery,
     public MeterProfile withTransport(TransportSpec t) {
         return new MeterProfile(name, terminator, identifyQuery, identifyExpect, setup, speedNames, syncQuery, syncExpect,
                 measureQuery, measureTimeoutMs, separator, fields, statusOk, statusOverload, errorQuery, errorNone,
-                commandTimeoutMs, t, reconnectInitialMs, reconnectMaxMs, confirmReadings, range, readback);
+                commandTimeoutMs, t, reconnectInitialMs, reconnectMaxMs, confirmReadings, range, readback, timing);
     }
 
     /** A setup template with the test conditions filled in. */

@@ -71,12 +71,24 @@ public final class MeterProfileLoader {
             if (q != null) readback.put(k, q);
         }
         rb.finish();
+        MeterProfile.Timing timing = null;
+        if (n.has("timing")) {
+            SpecNode ti = n.child("timing");
+            SpecNode rd = ti.child("reading_ms");
+            Map<String, Double> perSpeed = new HashMap<>();
+            for (String speed : net.zbin.core.TestConditions.SPEEDS) perSpeed.put(speed, rd.number(speed, net.zbin.core.Unit.RATIO));
+            rd.finish();
+            double sw = ti.number("switch_ms", net.zbin.core.Unit.RATIO);
+            ti.finish();
+            timing = n.build("timing", () -> new MeterProfile.Timing(perSpeed, sw));
+        }
+        MeterProfile.Timing timed = timing;
         SpecNode rc = n.child("reconnect");
         int ri = rc.optInteger("initial_ms", 100), rm = rc.optInteger("max_ms", 5000);
         rc.finish();
         n.finish();
         return n.build(null, () -> new MeterProfile(name, term, idQuery, idExpect, setup, speeds, syncQ, syncE, mq, mt, sep,
-                fields, ok, new HashSet<>(ovl), eq, none, ct, transport, ri, rm, confirm, range, readback));
+                fields, ok, new HashSet<>(ovl), eq, none, ct, transport, ri, rm, confirm, range, readback, timed));
     }
 
     /** A [min, max] pair of numbers in the unit, SI prefixes allowed. */
