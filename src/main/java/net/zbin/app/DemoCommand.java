@@ -65,7 +65,14 @@ public final class DemoCommand implements Callable<Integer> {
         try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("broker")));
              SimTcpServer meterServer = new SimTcpServer(meter, 0)) {
             Path cfgFile = dir.resolve("line.yaml");
-            Files.write(cfgFile, Yaml.mapper().writeValueAsBytes(lineConfig(sc, broker.url(), meterServer.port(), recipe)));
+            ObjectNode lineCfg = lineConfig(sc, broker.url(), meterServer.port(), recipe);
+            // a plan that reads milliohms at a later step (ESR) needs a fixture whose short check is finer than the part
+            Recipe active = net.zbin.io.RecipeLoader.load(dir.resolve("recipes").resolve(recipe + ".yaml"));
+            double lowest = Double.POSITIVE_INFINITY;
+            for (var st : active.steps()) lowest = Math.min(lowest, active.partType().idealZOhm(active.nominal(), st.test().freqHz()));
+            if (lowest < net.zbin.core.FixtureBounds.MARGIN * net.zbin.core.FixtureBounds.DEFAULT.shortBandOhm())
+                lineCfg.putObject("fixture").put("short_check_ohm", lowest / (2 * net.zbin.core.FixtureBounds.MARGIN));
+            Files.write(cfgFile, Yaml.mapper().writeValueAsBytes(lineCfg));
             LineConfig cfg = LineConfigLoader.load(cfgFile);
             o.printf(Locale.ROOT, "zbin demo: %s%n  broker %s, meter simulator on 127.0.0.1:%d, recipe %s, lot %s, %d parts at up to %.0f/s%n",
                     sc.description(), broker.url(), meterServer.port(), recipe, sc.lot().id(), parts, rate);
@@ -116,8 +123,8 @@ public final class DemoCommand implements Callable<Integer> {
                 o.printf(Locale.ROOT, "  re-measured near a limit: %d of %d parts measured (%.2f %%), %.3f readings per part%n", reread[1], reread[0],
                         100.0 * reread[1] / reread[0], (double) reread[2] / reread[0]);
             o.printf(Locale.ROOT, "  record log: %d rows in %s%n", daemon.recordsWritten(), dir.resolve("records"));
-            o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv%n",
-                    dir.resolve("recipes").resolve(recipe + ".yaml"), dir);
+            o.printf(Locale.ROOT, "  replay it:  java -jar target/zbin.jar replay --recipe %s --in %s/records/demo-*.csv --line-config %s%n",
+                    dir.resolve("recipes").resolve(recipe + ".yaml"), dir, cfgFile);
             boolean clean = s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0 && s.stale() == 0;
             o.println(clean ? "demo ok: every trigger got exactly one decision" : "demo: answers were missing, duplicated or contradictory");
             return clean ? Main.EXIT_OK : Main.EXIT_RUNTIME;
@@ -145,7 +152,7 @@ public final class DemoCommand implements Callable<Integer> {
     static void unpackConfig(Path dir) throws IOException {
         Files.createDirectories(dir.resolve("recipes"));
         Files.createDirectories(dir.resolve("meters"));
-        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/mlcc-x7r-100n-remeasure.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml", "recipes/mlcc-c0g-100p.yaml",
+        for (String name : List.of("recipes/mlcc-x7r-100n.yaml", "recipes/mlcc-x7r-100n-remeasure.yaml", "recipes/polymer-cap-100u-esr.yaml", "recipes/inductor-pwr-4u7.yaml", "recipes/resistor-prec-4k99.yaml", "recipes/mlcc-c0g-100p.yaml",
                 "meters/zbin-sim.yaml")) {
             try (InputStream in = DemoCommand.class.getResourceAsStream("/zbin-config/" + name)) {
                 if (in == null) throw new IOException("jar lacks /zbin-config/" + name);

@@ -94,4 +94,31 @@ class DemoIT {
         assertEquals(2, p.exitValue(), out);
         assertTrue(out.contains("--recipe resistor-prec-4k99") && out.contains("mlcc-x7r-100n"), out);
     }
+
+    @Test
+    void aTwoStepPlan_demoReadsEsrAfterCAndD_andItsLogReplaysToTheLiveFigures() throws Exception {
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", "simulators/scenarios/harrowgate-polymer-100u.yaml",
+                "--parts", "800", "--rate", "200", "--out", dir.toString()).redirectErrorStream(true).start();
+        String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
+        assertTrue(p.waitFor(5, TimeUnit.MINUTES));
+        assertEquals(0, p.exitValue(), out);
+        assertTrue(out.contains("recipe polymer-cap-100u-esr") && out.contains("at 100.0 kHz"), "compensated at both steps' frequencies: " + out);
+        java.util.regex.Matcher esr = java.util.regex.Pattern.compile("esr-high +(\\d+)").matcher(out);
+        assertTrue(esr.find() && Long.parseLong(esr.group(1)) > 0, "the ESR step rejected parts: " + out);
+        long passed = 0, parts = 0, esrHigh = 0;
+        for (java.io.File f : dir.resolve("records").toFile().listFiles()) {
+            Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/polymer-cap-100u-esr.yaml").toString(), "--in", f.toString(), "--json",
+                    "--line-config", dir.resolve("line.yaml").toString());
+            assertEquals(0, replay.exit(), replay.err());
+            var j = new com.fasterxml.jackson.databind.ObjectMapper().readTree(replay.out());
+            parts += j.path("parts").asLong();
+            passed += j.path("passed").asLong();
+            esrHigh += j.path("reasons").path("esr-high").asLong();
+        }
+        java.util.regex.Matcher line = java.util.regex.Pattern.compile("the line's own figures for lot \\S+: (\\d+) parts finished, (\\d+) passed").matcher(out);
+        assertTrue(line.find(), out);
+        assertEquals(Long.parseLong(line.group(1)), parts, "replay of the two-step log = the live figures");
+        assertEquals(Long.parseLong(line.group(2)), passed);
+        assertEquals(Long.parseLong(esr.group(1)), esrHigh);
+    }
 }

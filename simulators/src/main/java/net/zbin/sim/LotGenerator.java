@@ -43,10 +43,16 @@ public final class LotGenerator {
         double par = p.parasitic() == null ? 0 : p.parasitic();
         double w = 2 * Math.PI * p.testFreq();
         return switch (p.partType()) {
-            case CAPACITOR -> new PartModel.Capacitor(v, p.seriesOhm() == null ? 0 : p.seriesOhm(), par, d);
+            case CAPACITOR -> new PartModel.Capacitor(v, esr(p), par, d);
             case INDUCTOR -> new PartModel.Inductor(v, d * w * v, par);
             case RESISTOR -> new PartModel.Resistor(v, par, 0);
         };
+    }
+
+    /** A capacitor's ESR: the scenario's, spread from part to part when it says so (no random draw otherwise: old lots stay). */
+    private double esr(Scenario.Part p) {
+        double esr = p.seriesOhm() == null ? 0 : p.seriesOhm();
+        return p.seriesSpreadPct() > 0 ? Math.max(0, esr * (1 + p.seriesSpreadPct() * rnd.nextGaussian() / 100)) : esr;
     }
 
     /** A part of exactly the nominal with the mean loss: the handler's reference part. */

@@ -36,6 +36,7 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
      * @param lossyLoss   D of such parts
      * @param seriesOhm   ESR of C; ignored for L (winding R follows from D) and R
      * @param parasitic   ESL of C, self-capacitance of L, series L of R
+     * @param seriesSpreadPct σ of a capacitor's ESR from part to part, % of {@code series_ohm} (default 0: all alike)
      */
     public record Part(String type, @JsonDeserialize(using = SiNumber.class) Double nominal,
                        @JsonProperty("test_freq") @JsonDeserialize(using = SiNumber.class) Double testFreq,
@@ -43,7 +44,8 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
                        @JsonProperty("loss_mean") double lossMean, @JsonProperty("loss_sigma") double lossSigma,
                        @JsonProperty("lossy_rate") double lossyRate, @JsonProperty("lossy_loss") double lossyLoss,
                        @JsonProperty("series_ohm") @JsonDeserialize(using = SiNumber.class) Double seriesOhm,
-                       @JsonDeserialize(using = SiNumber.class) Double parasitic) {
+                       @JsonDeserialize(using = SiNumber.class) Double parasitic,
+                       @JsonProperty("series_ohm_spread_pct") double seriesSpreadPct) {
         public PartType partType() { return PartType.parse(type); }
     }
 
@@ -101,7 +103,7 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
     public Scenario whatIf(double spreadFactor, double offsetPct, double driftFPerHour, double rDriftOhmPerHour) {
         Part p = part;
         Part np = new Part(p.type(), p.nominal(), p.testFreq(), Double.isNaN(offsetPct) ? p.offsetPct() : offsetPct, p.spreadPct() * spreadFactor,
-                p.lossMean(), p.lossSigma(), p.lossyRate(), p.lossyLoss(), p.seriesOhm(), p.parasitic());
+                p.lossMean(), p.lossSigma(), p.lossyRate(), p.lossyLoss(), p.seriesOhm(), p.parasitic(), p.seriesSpreadPct());
         FixtureSpec f = fixture;
         FixtureSpec nf = new FixtureSpec(f.stray(), f.strayGS(), f.residualROhm(), f.residualLH(),
                 Double.isNaN(driftFPerHour) ? f.driftPerHour() : Double.valueOf(driftFPerHour),
