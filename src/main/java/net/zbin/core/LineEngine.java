@@ -103,7 +103,12 @@ public final class LineEngine {
 
     /** The compensation now in force; judged at once against the recipe's need of it. */
     public List<AlarmCode.Change> compensation(Compensation comp, Instant now) {
-        return monitor.compensation(comp, recipe.compensationRequired() || recipe.needsOpenCompensation()
+        return compensation(comp, List.of(), now);
+    }
+
+    /** The same with the compensation at each later step's frequency of the plan, in step order. */
+    public List<AlarmCode.Change> compensation(Compensation comp, List<Compensation> atSteps, Instant now) {
+        return monitor.compensation(comp, atSteps, recipe.compensationRequired() || recipe.needsOpenCompensation()
                 || recipe.needsShortCompensation(), now);
     }
 

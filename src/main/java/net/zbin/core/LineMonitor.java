@@ -35,6 +35,8 @@ public final class LineMonitor {
             refLearn = new RunningStats();
     private int refOffRun, refOkRun;
     private Compensation comp;
+    /** The compensation at each later step's frequency of the plan (empty for a one-step recipe). */
+    private List<Compensation> stepComps = List.of();
     private boolean compNeeded;
     private long parts;
 
@@ -67,7 +69,16 @@ public final class LineMonitor {
 
     /** The compensation now in force at the recipe's frequency (null: none), and whether the recipe needs it. */
     public List<AlarmCode.Change> compensation(Compensation c, boolean needed, Instant now) {
+        return compensation(c, List.of(), needed, now);
+    }
+
+    /**
+     * The same with the compensation at each later step's frequency (in the recipe's step order, null: none): a plan
+     * is compensated only when every step's frequency is, and its age is that of the oldest.
+     */
+    public List<AlarmCode.Change> compensation(Compensation c, List<Compensation> atSteps, boolean needed, Instant now) {
         comp = c;
+        stepComps = new ArrayList<>(atSteps);
         compNeeded = needed;
         return tick(now);
     }
@@ -76,10 +87,18 @@ public final class LineMonitor {
     public List<AlarmCode.Change> tick(Instant now) {
         List<AlarmCode.Change> out = new ArrayList<>();
         boolean applied = comp != null && comp.isApplied();
-        set(out, AlarmCode.COMPENSATION_MISSING, compNeeded && !applied,
-                "recipe " + recipe.name() + " grades nothing without compensation at " + SiValue.format(recipe.freqHz(), "Hz") + ", and none is stored");
-        if (applied && comp.takenAt() != null) {
-            double ageH = Duration.between(comp.takenAt(), now).toSeconds() / 3600.0;
+        double missingAt = applied ? Double.NaN : recipe.freqHz();
+        Instant oldest = applied ? comp.takenAt() : null;
+        for (int i = 0; i < stepComps.size() && i < recipe.steps().size(); i++) {
+            Compensation sc = stepComps.get(i);
+            if (sc == null || !sc.isApplied()) {
+                if (Double.isNaN(missingAt)) missingAt = recipe.steps().get(i).test().freqHz();
+            } else if (oldest != null && sc.takenAt() != null && sc.takenAt().isBefore(oldest)) oldest = sc.takenAt();
+        }
+        set(out, AlarmCode.COMPENSATION_MISSING, compNeeded && !Double.isNaN(missingAt),
+                "recipe " + recipe.name() + " grades nothing without compensation at " + SiValue.format(missingAt, "Hz") + ", and none is stored");
+        if (applied && oldest != null) {
+            double ageH = Duration.between(oldest, now).toSeconds() / 3600.0;
             set(out, AlarmCode.COMPENSATION_OLD, ageH > s.compMaxAgeH(),
                     String.format(java.util.Locale.ROOT, "compensation is %.1f h old (limit %.1f h)", ageH, s.compMaxAgeH()));
         } else set(out, AlarmCode.COMPENSATION_OLD, false, "");

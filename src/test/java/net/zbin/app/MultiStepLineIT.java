@@ -58,10 +58,13 @@ class MultiStepLineIT {
             assertTrue(esrRejects > 20 && live.getOrDefault("1 in-grade", 0L) > 100, "both outcomes of the ESR step occurred: " + live);
             Path log = rig.recordFiles().get(0);
             Path recipe = dir.resolve("recipes/polymer-cap-100u-esr.yaml");
+            Path report = dir.resolve("poly-report.html");
             Cli replay = Cli.run("replay", "--recipe", recipe.toString(), "--in", log.toString(), "--json", "--quiet",
-                    "--line-config", rig.cfg.file().toString());
+                    "--line-config", rig.cfg.file().toString(), "--report", report.toString());
             assertEquals(0, replay.exit(), replay.err());
             assertEquals(live, byBinAndReason(Json.mapper().readTree(replay.out())), "replay = live; " + replay.err());
+            String html = Files.readString(report);
+            assertTrue(html.contains("esr-high") && html.contains("polymer-cap-100u-esr"), "the replay report shows the ESR step's rejects");
             Cli tune = Cli.run("tune", "--recipe", recipe.toString(), "--in", log.toString(), "--json", "--quiet",
                     "--vary", "d_max=0.1", "--line-config", rig.cfg.file().toString());
             assertEquals(0, tune.exit(), tune.err());

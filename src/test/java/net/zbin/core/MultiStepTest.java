@@ -111,4 +111,20 @@ class MultiStepTest {
         assertThrows(SpecException.class, () -> new TestStep("value", new TestConditions(F2, 0.5, "medium", 1), ESR.gates()));
         assertThrows(SpecException.class, () -> recipe().toBuilder().steps(List.of(ESR, ESR)).build(), "a step named twice");
     }
+
+    @Test
+    void aPlanIsCompensatedOnlyWhenEveryStepsFrequencyIs_andItsAgeIsTheOldest() {
+        Recipe r = recipe().toBuilder().compensationRequired(true).build();
+        LineMonitor m = new LineMonitor(r.monitor(), FixtureCheck.Limits.DEFAULT, r);
+        Instant now = Instant.parse("2026-12-02T12:00:00Z");
+        Compensation at120 = new Compensation(F1, CompensationSource.USER, now.minusSeconds(3600), comp(F1).open(), comp(F1).shortZ(), null, null);
+        List<AlarmCode.Change> c = m.compensation(at120, java.util.Arrays.asList((Compensation) null), true, now);
+        assertTrue(c.stream().anyMatch(x -> x.code() == AlarmCode.COMPENSATION_MISSING && x.active() && x.message().contains("100.0 kHz")),
+                "the ESR step's frequency has none: " + c);
+        Compensation old100k = new Compensation(F2, CompensationSource.USER, now.minusSeconds(20 * 3600), comp(F2).open(), comp(F2).shortZ(), null, null);
+        c = m.compensation(at120, List.of(old100k), true, now);
+        assertTrue(c.stream().anyMatch(x -> x.code() == AlarmCode.COMPENSATION_MISSING && !x.active()), c.toString());
+        assertTrue(c.stream().anyMatch(x -> x.code() == AlarmCode.COMPENSATION_OLD && x.active() && x.message().contains("20.0 h")),
+                "the plan's compensation is as old as its oldest step's: " + c);
+    }
 }

@@ -101,7 +101,7 @@ public final class Daemon implements AutoCloseable {
                 }
             });
         });
-        monitor.compensation(setup.compensation());
+        monitor.compensation(setup.compensation(), setup.stepCompensations());
         records.start();
         records.prepare(clock.instant()); // today's file opened now, not at the first part
         // The broker connect, the warm-up (CPU) and the meter probe (I/O) run side by side; the line says ready
@@ -133,7 +133,7 @@ public final class Daemon implements AutoCloseable {
         ticker.scheduleWithFixedDelay(() -> dispatch.onMeasuringThread(() -> {
             if (setup.reloadIfChanged()) {
                 LOG.info("compensation file changed on disk: read again");
-                monitor.compensation(setup.compensation());
+                monitor.compensation(setup.compensation(), setup.stepCompensations());
             }
         }), 1, 1, TimeUnit.SECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());

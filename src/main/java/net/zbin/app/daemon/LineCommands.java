@@ -89,7 +89,7 @@ final class LineCommands {
                 return "resumed; mode " + mode.mode().key();
             case "recipe":
                 String done = setup.switchRecipe(TriggerCodec.text(n, "name"));
-                monitor.recipe(setup.recipe(), setup.compensation());
+                monitor.recipe(setup.recipe(), setup.compensation(), setup.stepCompensations());
                 mode.publishState();
                 return done;
             case "lot": {
@@ -131,7 +131,7 @@ final class LineCommands {
         if (k != CompensationCapture.Kind.LOAD) for (net.zbin.core.TestStep st : r.steps()) conds.add(st.test());
         List<Impedance> got = setup.capture(meter, clock, k, conds, std);
         Impedance z = got.get(0);
-        monitor.compensation(setup.compensation());
+        monitor.compensation(setup.compensation(), setup.stepCompensations());
         StringBuilder more = new StringBuilder();
         for (int i = 1; i < got.size(); i++)
             more.append("; at ").append(SiValue.format(got.get(i).freqHz(), "Hz")).append(": ").append(CompensationCapture.describe(k, got.get(i)));

@@ -79,6 +79,13 @@ final class LineSetup {
     /** Compensation at the active recipe's frequency (measuring thread). */
     Compensation compensation() { return comp; }
 
+    /** The compensation at each later step's frequency of the active plan, in step order (measuring thread). */
+    List<Compensation> stepCompensations() {
+        List<Compensation> out = new java.util.ArrayList<>();
+        for (net.zbin.core.TestStep st : recipe.steps()) out.add(compensationAt(st.test().freqHz()));
+        return out;
+    }
+
     /** Compensation at another frequency — a later step's of the plan (measuring thread); null when none is stored. */
     Compensation compensationAt(double freqHz) {
         return comp != null && Compensation.matches(comp.freqHz(), freqHz) ? comp : store.forFrequency(freqHz);

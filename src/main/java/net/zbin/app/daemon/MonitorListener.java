@@ -42,14 +42,17 @@ final class MonitorListener implements DecisionListener {
      * A recipe change: a new monitor with its settings. The old recipe's alarms are cleared first, and the new
      * monitor judges the compensation at once, so an alarm of another recipe never stays on the line.
      */
-    synchronized void recipe(Recipe r, Compensation comp) {
+    synchronized void recipe(Recipe r, Compensation comp, List<Compensation> atSteps) {
         mode.clearRecipeBound("recipe changed to " + r.name());
         engine.recipe(r, cfg.monitorSettings(r));
-        compensation(comp);
+        compensation(comp, atSteps);
     }
 
-    synchronized void compensation(Compensation comp) {
-        forward(engine.compensation(comp, clock.instant()));
+    synchronized void compensation(Compensation comp) { compensation(comp, List.of()); }
+
+    /** The compensation at the recipe's frequency and at each later step's of its plan (in step order). */
+    synchronized void compensation(Compensation comp, List<Compensation> atSteps) {
+        forward(engine.compensation(comp, atSteps, clock.instant()));
     }
 
     /** The ticker's look at the compensation's age: judged under the lock, the alarms sent after it (the measuring thread never waits on a send). */
