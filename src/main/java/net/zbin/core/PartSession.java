@@ -21,7 +21,8 @@ public final class PartSession {
     /** 0 while the value step is read, k while later step k is. */
     private int step;
     private Grading passed;
-    private final java.util.List<Grading.StepReading> taken = new java.util.ArrayList<>();
+    /** The later steps' readings (made at the first later step: a one-step plan allocates nothing for them). */
+    private java.util.List<Grading.StepReading> taken;
 
     /**
      * @param byReadings the recipe as it judges the mean of 1, 2, … readings (index n − 1), see {@link #plan}
@@ -78,6 +79,7 @@ public final class PartSession {
         TestStep st = r.steps().get(step - 1);
         Grading.StepReading[] out = new Grading.StepReading[1];
         Grading fail = Grader.step(r, st, raw, compAt.apply(st.test().freqHz()), attempt, out);
+        if (taken == null) taken = new java.util.ArrayList<>(r.steps().size());
         taken.add(out[0]);
         if (fail != null) // a gate keeps the value beside the reject, as the value step's gates do; a reading not clean has none
             return new Grading(fail.outcome(), passed.measured(), fail.verdict() == Verdict.FAIL && fail.reason().rejectClass() == Reason.RejectClass.GATE
