@@ -20,9 +20,6 @@ public record Grading(Outcome outcome, Measurement measured, Value graded, List<
     /** The same grading with the later steps' readings that were taken. */
     public Grading withSteps(List<StepReading> s) { return new Grading(outcome, measured, graded, s); }
 
-    /** Another outcome (a later step's reject) on the same readings. */
-    public Grading withOutcome(Outcome o) { return new Grading(o, measured, graded, steps); }
-
     /**
      * @param bin     handler bin number
      * @param grade   grade name for a pass, the reject class otherwise ("low", "gate", "retest", …)

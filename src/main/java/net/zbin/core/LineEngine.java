@@ -10,7 +10,6 @@ import java.util.List;
  * replayed multi-lot log raises the alarms the line raised. Not thread-safe: one owner (the daemon guards it).
  */
 public final class LineEngine {
-    private MonitorSettings settings;
     private final FixtureCheck.Limits checks;
     private Recipe recipe;
     private Recipe[] plan;
@@ -23,7 +22,6 @@ public final class LineEngine {
      * @param checks   the limits of the handler's open/short checks (the line config's)
      */
     public LineEngine(Recipe recipe, MonitorSettings settings, FixtureCheck.Limits checks) {
-        this.settings = settings;
         this.checks = checks;
         this.recipe = recipe;
         this.plan = PartSession.plan(recipe);
@@ -34,8 +32,6 @@ public final class LineEngine {
     public static LineEngine of(Recipe recipe) { return new LineEngine(recipe, recipe.monitor(), FixtureCheck.Limits.DEFAULT); }
 
     public Recipe recipe() { return recipe; }
-
-    public FixtureCheck.Limits checks() { return checks; }
 
     /**
      * Grades a reading the meter just gave, by the presentation's kind: a part by value and gates, an open or short
@@ -84,9 +80,6 @@ public final class LineEngine {
         return monitor.observe(d);
     }
 
-    /** The lot of the last decision observed (null before the first). */
-    public String lot() { return lot; }
-
     /** Starts a presentation of the given kind: feed it readings until it decides. */
     public PartSession session(Trigger.Kind kind, Compensation comp, int attempt) {
         return new PartSession(plan, checks, kind, comp, attempt);
@@ -96,7 +89,6 @@ public final class LineEngine {
     public void recipe(Recipe r, MonitorSettings monitorSettings) {
         recipe = r;
         plan = PartSession.plan(r);
-        settings = monitorSettings;
         monitor = new LineMonitor(monitorSettings, checks, r);
         lot = null;
     }
@@ -116,7 +108,4 @@ public final class LineEngine {
     public List<AlarmCode.Change> tick(Instant now) { return monitor.tick(now); }
 
     public LineMonitor.Snapshot snapshot(Instant now) { return monitor.snapshot(now); }
-
-    /** The monitor's settings this engine was built with. */
-    public MonitorSettings settings() { return settings; }
 }

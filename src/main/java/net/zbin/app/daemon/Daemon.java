@@ -87,10 +87,9 @@ public final class Daemon implements AutoCloseable {
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
         recover();
-        // The finished lot's last figures, retained until the next dashboard: encoded on the measuring thread before
-        // the figures move to the new lot (a fraction of a millisecond), published by the ticker (no file, no send here).
+        // The finished lot's last figures, retained until the next dashboard: snapshotted on the measuring thread before
+        // they move to the new lot (copies only), encoded and published by the ticker (no encoding, file or send here).
         path.onLotEnd(() -> {
-            // The finished lot's figures are taken here, before they move to the new lot; encoded and sent by the ticker.
             LineSnapshot s = snapshot(mode.mode());
             ticker.execute(() -> {
                 try {
@@ -235,12 +234,8 @@ public final class Daemon implements AutoCloseable {
         }
     }
 
-    private volatile LineSnapshot last;
-
     private byte[] dashboard(Mode m) {
-        LineSnapshot s = snapshot(m);
-        last = s;
-        return Payloads.bytes(DashboardJson.encode(s));
+        return Payloads.bytes(DashboardJson.encode(snapshot(m)));
     }
 
     /** The line now, in one immutable snapshot (only copies are taken: the measuring thread never waits on it). */
@@ -249,8 +244,6 @@ public final class Daemon implements AutoCloseable {
                 mode.activeAlarms(), records.backlog(), records.dropped(), mqtt == null ? 0 : mqtt.buffered());
     }
 
-    /** The snapshot the last dashboard was made of (null before the first). */
-    LineSnapshot lastSnapshot() { return last; }
 
     public long recordsWritten() { return records.written(); }
 
