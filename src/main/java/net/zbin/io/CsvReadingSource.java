@@ -79,14 +79,7 @@ final class CsvReadingSource implements ReadingSource {
         boolean measured = Double.isFinite(r) || Double.isFinite(x);
         double f = number(rec, fFreq, "freq_hz", mayBeBlank && !measured);
         if (!(f > 0) && !Double.isNaN(f)) throw new IllegalArgumentException("freq_hz must be > 0 (was " + rec.getField(fFreq).trim() + ")");
-        String attempt = text(rec, fAttempt);
-        int att;
-        try {
-            att = attempt == null || attempt.isEmpty() ? 0 : Integer.parseInt(attempt);
-        } catch (NumberFormatException e) {
-            throw new IllegalArgumentException("attempt is not a whole number ('" + attempt + "')");
-        }
-        if (att < 0) throw new IllegalArgumentException("attempt must be >= 0 (was " + att + ")");
+        int att = (int) whole(rec, fAttempt, "attempt", 0, 0, Integer.MAX_VALUE);
         String comp = text(rec, fComp);
         CompensationSource cs = comp == null || comp.isEmpty() ? CompensationSource.NONE : CompensationSource.parse(comp);
         String kindText = text(rec, fKind);
@@ -99,26 +92,27 @@ final class CsvReadingSource implements ReadingSource {
         } catch (IllegalArgumentException e) {
             throw new IllegalArgumentException("reason is not a reason code of zbin ('" + reason + "')");
         }
-        String seqText = text(rec, fSeq);
-        long seq;
-        try {
-            seq = seqText == null || seqText.isEmpty() ? -1 : Long.parseLong(seqText);
-        } catch (NumberFormatException e) {
-            throw new IllegalArgumentException("seq is not a whole number ('" + seqText + "')");
-        }
-        if (seq < -1) throw new IllegalArgumentException("seq must be >= 0 (was " + seq + ")");
-        String readingsText = text(rec, fReadings);
-        int readings;
-        try {
-            readings = readingsText == null || readingsText.isEmpty() ? 1 : Integer.parseInt(readingsText);
-        } catch (NumberFormatException e) {
-            throw new IllegalArgumentException("readings is not a whole number ('" + readingsText + "')");
-        }
-        if (readings < 1 || readings > 16) throw new IllegalArgumentException("readings must be 1..16 (was " + readings + ")");
+        long seq = whole(rec, fSeq, "seq", -1, 0, Long.MAX_VALUE); // blank: the file has no seq (−1)
+        int readings = (int) whole(rec, fReadings, "readings", 1, 1, 16);
         String part = fPart < 0 ? "" : SpreadsheetSafe.read(rec.getField(fPart));
         String lot = fLot < 0 ? "" : SpreadsheetSafe.read(rec.getField(fLot));
         return new RecordedReading(line, f, r, x, fRawR < 0 ? Double.NaN : number(rec, fRawR, "raw_r_ohm", true),
                 fRawX < 0 ? Double.NaN : number(rec, fRawX, "raw_x_ohm", true), why, att, cs, kind, seq, part, lot, readings, fSteps < 0 ? java.util.List.of() : StepsJson.decode(rec.getField(fSteps)));
+    }
+
+    /** A whole-number cell within [min, max], or {@code blank} when the column is absent or the cell empty. */
+    private static long whole(CsvRecord rec, int i, String col, long blank, long min, long max) {
+        String t = text(rec, i);
+        if (t == null || t.isEmpty()) return blank;
+        long v;
+        try {
+            v = Long.parseLong(t);
+        } catch (NumberFormatException e) {
+            throw new IllegalArgumentException(col + " is not a whole number ('" + t + "')");
+        }
+        if (v < min || v > max) throw new IllegalArgumentException(col + " must be " + min + (max == Long.MAX_VALUE || max == Integer.MAX_VALUE
+                ? " or more" : ".." + max) + " (was " + v + ")");
+        return v;
     }
 
     private static String text(CsvRecord rec, int i) { return i < 0 ? null : rec.getField(i).trim(); }

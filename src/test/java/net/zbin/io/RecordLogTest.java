@@ -62,10 +62,7 @@ class RecordLogTest {
     void rowsReadBack_asTheDecisionsTheyRecorded() throws Exception {
         Path recs = dir.resolve("r");
         Instant t = Instant.parse("2026-11-30T10:00:00Z");
-        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
-            log.start();
-            for (int i = 0; i < 5; i++) log.append(row(i, t));
-        }
+        writeRows(recs, 5, t);
         List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
         RecordLogReader.read(recs, "l1", t, back::add);
         assertEquals(5, back.size());
@@ -80,10 +77,7 @@ class RecordLogTest {
     void aRowThatCannotBeRead_isSkippedAndCounted_notSilentlyLost() throws Exception {
         Path recs = dir.resolve("r");
         Instant t = Instant.parse("2026-11-30T10:00:00Z");
-        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
-            log.start();
-            for (int i = 0; i < 3; i++) log.append(row(i, t));
-        }
+        writeRows(recs, 3, t);
         Path f = recs.resolve("l1-2026-11-30.csv");
         List<String> lines = new java.util.ArrayList<>(Files.readAllLines(f));
         lines.set(2, lines.get(2).substring(0, lines.get(2).length() / 2)); // the second row cut short (a hand edit, a bad copy)
@@ -91,6 +85,14 @@ class RecordLogTest {
         List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
         assertEquals(1, RecordLogReader.read(recs, "l1", t, back::add), "one row could not be read, and says so");
         assertEquals(List.of(row(0, t), row(2, t)), back);
+    }
+
+    /** Rows 0..n−1 of line l1 at t, through a log that is then closed. */
+    static void writeRows(Path recs, int n, Instant t) {
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (int i = 0; i < n; i++) log.append(row(i, t));
+        }
     }
 
     static List<Path> files(Path d) throws Exception {
@@ -126,10 +128,7 @@ class RecordLogTest {
     void tornLastLine_isCutOffWhenTheFileIsReopened() throws Exception {
         Path recs = dir.resolve("r");
         Instant t = Instant.parse("2026-11-30T10:00:00Z");
-        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
-            log.start();
-            for (int i = 0; i < 3; i++) log.append(row(i, t));
-        }
+        writeRows(recs, 3, t);
         Path f = recs.resolve("l1-2026-11-30.csv");
         String whole = Files.readString(f);
         Files.writeString(f, whole + "2026-11-30T10:00:01Z,l1,LOT-1,3,P-3,part,mlcc-x7r-100n,1000.0,16"); // killed mid-row
