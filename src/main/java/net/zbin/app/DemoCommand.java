@@ -45,6 +45,11 @@ public final class DemoCommand implements Callable<Integer> {
     Path out;
     @Option(names = "--recipe", paramLabel = "NAME", description = "a shipped recipe for the scenario's part (default: the first that fits)")
     String recipeName;
+    @Option(names = "--status", defaultValue = "127.0.0.1:8080", paramLabel = "HOST:PORT",
+            description = "serve the line's status page here (default ${DEFAULT-VALUE}; a busy port: any free one; 'off': none)")
+    String statusListen;
+    @Option(names = "--stay", description = "after the lot, keep the line and its status page up until Ctrl-C")
+    boolean stay;
 
     @picocli.CommandLine.Spec
     picocli.CommandLine.Model.CommandSpec spec;
@@ -66,6 +71,11 @@ public final class DemoCommand implements Callable<Integer> {
              SimTcpServer meterServer = new SimTcpServer(meter, 0)) {
             Path cfgFile = dir.resolve("line.yaml");
             ObjectNode lineCfg = lineConfig(sc, broker.url(), meterServer.port(), recipe);
+            String token = null;
+            if (!statusListen.equals("off")) {
+                token = operatorToken(dir);
+                lineCfg.putObject("status").put("listen", freeOrAny(statusListen)).put("operators_file", "operators.yaml");
+            }
             // a plan that reads milliohms at a later step (ESR) needs a fixture whose short check is finer than the part
             Recipe active = net.zbin.io.RecipeLoader.load(dir.resolve("recipes").resolve(recipe + ".yaml"));
             double lowest = Double.POSITIVE_INFINITY;
@@ -81,6 +91,10 @@ public final class DemoCommand implements Callable<Integer> {
             Daemon daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
             try {
                 daemon.start(10_000);
+                if (daemon.statusUrl() != null) {
+                    o.println("  status page " + daemon.statusUrl() + " (metrics at /metrics); to act from it, sign in with the token " + token);
+                    o.flush();
+                }
                 try (Engineer eng = new Engineer(cfg.mqtt().broker(), daemon.topics())) {
                     contacts.open();
                     o.println("  " + eng.command("{\"cmd\":\"compensate\",\"kind\":\"open\"}"));
@@ -93,6 +107,12 @@ public final class DemoCommand implements Callable<Integer> {
                         sc.handler().checkEvery(), 97, 3, "zbin-demo-handler", NoDelaySockets.plain(), null, null, 10_000);
                 try (HandlerSim h = new HandlerSim(opts, sc, PartLoader.direct(contacts))) {
                     s = h.run(Progress.line(o));
+                }
+                if (stay) {
+                    Progress.end(o);
+                    o.println("  the lot is done; the line and its page stay up until Ctrl-C");
+                    o.flush();
+                    new java.util.concurrent.CountDownLatch(1).await();
                 }
             } finally {
                 daemon.close();
@@ -128,6 +148,38 @@ public final class DemoCommand implements Callable<Integer> {
             boolean clean = s.missing() == 0 && s.duplicate() == 0 && s.contradictory() == 0 && s.stale() == 0;
             o.println(clean ? "demo ok: every trigger got exactly one decision" : "demo: answers were missing, duplicated or contradictory");
             return clean ? Main.EXIT_OK : Main.EXIT_RUNTIME;
+        }
+    }
+
+    /**
+     * The demo's operator: a random token written (mode 600) to operators.yaml beside the line config, so the page's
+     * pause, resume and acknowledge can be tried; the page is bound to loopback, so plain HTTP is allowed.
+     */
+    static String operatorToken(Path dir) throws IOException {
+        byte[] b = new byte[18];
+        new java.security.SecureRandom().nextBytes(b);
+        String token = java.util.Base64.getUrlEncoder().withoutPadding().encodeToString(b);
+        Path f = dir.resolve("operators.yaml");
+        ObjectNode n = Json.object();
+        n.putObject("operators").put("demo-operator", token);
+        Files.deleteIfExists(f);
+        Files.createFile(f, java.nio.file.attribute.PosixFilePermissions.asFileAttribute(java.nio.file.attribute.PosixFilePermissions.fromString("rw-------")));
+        Files.write(f, Yaml.mapper().writeValueAsBytes(n));
+        return token;
+    }
+
+    /** The address asked for when its port is free (or 0), else the same host with any free port. */
+    static String freeOrAny(String listen) throws UsageException {
+        int colon = listen.lastIndexOf(':');
+        if (colon <= 0) throw new UsageException("--status must be host:port or off (was '" + listen + "')");
+        String host = listen.substring(0, colon);
+        try (var probe = new java.net.ServerSocket()) {
+            probe.bind(new java.net.InetSocketAddress(host, Integer.parseInt(listen.substring(colon + 1))));
+            return listen;
+        } catch (NumberFormatException e) {
+            throw new UsageException("--status must be host:port or off (was '" + listen + "')");
+        } catch (IOException e) {
+            return host + ":0";
         }
     }
 

@@ -75,11 +75,17 @@ public final class RunCommand implements Callable<Integer> {
         } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
             spec.commandLine().getErr().println("zbin: cannot connect to " + cfg.mqtt().broker() + ": " + why(e));
             return Main.EXIT_RUNTIME;
+        } catch (java.net.BindException e) {
+            spec.commandLine().getErr().println("zbin: " + cfg.file() + ": status.listen: cannot listen on " + cfg.status().host() + ":"
+                    + cfg.status().port() + ": " + e.getMessage());
+            return Main.EXIT_RUNTIME;
         } catch (net.zbin.io.LineLock.Taken e) {
             spec.commandLine().getErr().println("zbin: " + e.getMessage());
             return Main.EXIT_RUNTIME;
         }
         spec.commandLine().getOut().println("zbin: line " + cfg.line() + " running on " + cfg.mqtt().broker() + " (" + d.topics().base() + "…)");
+        if (d.statusUrl() != null) spec.commandLine().getOut().println("zbin: status page " + d.statusUrl()
+                + ", metrics at /metrics");
         spec.commandLine().getOut().flush();
         LOG.info("running; stop with SIGTERM");
         stopped.await();

@@ -25,10 +25,38 @@ import net.zbin.io.meter.MeterProfile;
  * @param checks          drift limits for the handler's open/short check presentations
  * @param bounds          what the fixture itself reads, for telling an open or short from a part
  * @param monitor         the line's monitor settings: alarms that pause the line, compensation age limit
+ * @param status          the line's status page and metrics, or null: none served
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
                          Path stateDir, RecordSettings records, int deadlineMs, int repeatWindowMs, int dashboardMs, FixtureLimits fixture,
-                         FixtureCheck.Limits checks, FixtureBounds bounds, Monitor monitor) {
+                         FixtureCheck.Limits checks, FixtureBounds bounds, Monitor monitor, Status status) {
+    /**
+     * Where the status page and {@code /metrics} are served.
+     *
+     * @param host      address to bind (a loopback address keeps the page on this host)
+     * @param port      TCP port, 0: any free one (the log and {@code demo} say which)
+     * @param operators who may pause, resume and acknowledge alarms from the page, or null: the page is read-only
+     * @param tlsCert   server certificate chain (PEM) for HTTPS, or null: plain HTTP (refused with operators off loopback)
+     * @param tlsKey    its PKCS#8 key (PEM)
+     */
+    public record Status(String host, int port, Operators operators, Path tlsCert, Path tlsKey) {
+        public Status {
+            if (port < 0 || port > 65535) throw new net.zbin.core.SpecException("status.listen", "port must be 0..65535 (was " + port + ")");
+            if ((tlsCert == null) != (tlsKey == null)) throw new net.zbin.core.SpecException("status.tls", "cert_file and key_file go together");
+        }
+
+        public boolean tls() { return tlsCert != null; }
+
+        /** True when the address to bind is a loopback one: only this host reaches the page. */
+        public boolean loopback() {
+            try {
+                return java.net.InetAddress.getByName(host).isLoopbackAddress();
+            } catch (java.net.UnknownHostException e) {
+                return false;
+            }
+        }
+    }
+
     /**
      * @param pauseOn     alarm codes that pause the line while active (default none)
      * @param compMaxAgeH compensation age limit in hours for every recipe of the line, NaN: each recipe's own

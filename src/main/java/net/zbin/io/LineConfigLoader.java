@@ -127,6 +127,7 @@ public final class LineConfigLoader {
         double maxAge = mo.optNumber("compensation_max_age_h", Double.NaN, Unit.RATIO);
         mo.finish();
         LineConfig.Monitor monitor = mo.build(null, () -> new LineConfig.Monitor(new java.util.HashSet<>(pauseOn), maxAge));
+        LineConfig.Status status = status(n, base, openSecretsAllowed);
         FixtureLimits fl = fx.build(null, () -> new FixtureLimits(oMax, gMax, sMax, lMax, reps));
         FixtureCheck.Limits checks = fx.build(null, () -> new FixtureCheck.Limits(oChk, sChk));
         FixtureBounds bounds = fx.build(null, () -> new FixtureBounds(oMax, gMax, sMax, oChk, sChk, dRes));
@@ -136,7 +137,53 @@ public final class LineConfigLoader {
         boolean pause = onFail.equals("pause");
         return n.build(null, () -> new LineConfig(file, line, mqtt, meterProfile, recipeDir, active, state,
                 new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024), pause), deadline, repeatWindow,
-                (int) Math.round(interval * 1000), fl, checks, bounds, monitor));
+                (int) Math.round(interval * 1000), fl, checks, bounds, monitor, status));
+    }
+
+    /**
+     * The {@code status} section, or null when absent (no page). Operators who may act from the page come from their
+     * own file; acting over plain HTTP is refused unless the page is bound to a loopback address.
+     */
+    private static LineConfig.Status status(SpecNode n, Path base, boolean openSecretsAllowed) throws ConfigException {
+        if (!n.has("status")) return null;
+        SpecNode s = n.child("status");
+        String listen = s.text("listen");
+        int colon = listen.lastIndexOf(':');
+        String host = colon > 0 ? listen.substring(0, colon) : "";
+        if (host.startsWith("[") && host.endsWith("]")) host = host.substring(1, host.length() - 1);
+        int port;
+        try {
+            port = colon > 0 ? Integer.parseInt(listen.substring(colon + 1)) : -1;
+        } catch (NumberFormatException e) {
+            port = -1;
+        }
+        if (host.isEmpty() || port < 0 || port > 65535)
+            throw s.error("listen", "must be host:port with a port 0..65535, e.g. 127.0.0.1:8080 (was '" + listen + "')");
+        String opFile = s.optText("operators_file", null);
+        Operators ops = null;
+        if (opFile != null) {
+            Path p = base.resolve(opFile);
+            if (!Files.isReadable(p)) throw s.error("operators_file", "file " + p + " is missing or unreadable");
+            secretMode(s.file(), s.key("operators_file"), p, openSecretsAllowed);
+            ops = Operators.load(p);
+        }
+        SpecNode tls = s.child("tls");
+        Path cert = optFile(tls, "cert_file", base), key = optFile(tls, "key_file", base);
+        tls.finish();
+        if ((cert == null) != (key == null)) throw s.error("tls.cert_file", "cert_file and key_file go together");
+        String problem;
+        if (cert != null && (problem = TlsFiles.certificateProblem(cert)) != null) throw s.error("tls.cert_file", cert + " " + problem);
+        if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw s.error("tls.key_file", key + " " + problem);
+        if (key != null) secretMode(s.file(), s.key("tls.key_file"), key, openSecretsAllowed);
+        s.finish();
+        String h = host;
+        int pt = port;
+        Operators o = ops;
+        LineConfig.Status st = s.build(null, () -> new LineConfig.Status(h, pt, o, cert, key));
+        if (o != null && !st.loopback() && !st.tls())
+            throw s.error("tls", "is required when operators may act from a page bound to " + host + " (not a loopback address): "
+                    + "give tls.cert_file and tls.key_file, or bind to 127.0.0.1");
+        return st;
     }
 
     private static Path optFile(SpecNode n, String key, Path base) throws ConfigException {

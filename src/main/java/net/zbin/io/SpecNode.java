@@ -46,6 +46,13 @@ public final class SpecNode {
         return v == null || v.isNull() ? MissingNode.getInstance() : v;
     }
 
+    /** The keys of this mapping, in file order (for mappings whose keys are names, not settings). */
+    public List<String> keys() {
+        List<String> out = new ArrayList<>();
+        node.fieldNames().forEachRemaining(out::add);
+        return out;
+    }
+
     public ConfigException error(String k, String message) { return new ConfigException(file, key(k), message); }
 
     public String text(String k) throws ConfigException {

@@ -51,6 +51,11 @@ public final class Daemon implements AutoCloseable {
     /** The subscriptions were requested on a connection. */
     private boolean subscribed;
     private LineCommands commands;
+    /** The line's status page, when the config asks for one (its own threads; it reads copies only). */
+    private final net.zbin.app.status.Boards boards;
+    private net.zbin.app.status.StatusServer status;
+    /** The snapshot the last dashboard encoded: what {@code /metrics} reports, so a scrape agrees with the dashboard. */
+    private volatile LineSnapshot lastSnapshot;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
         this.cfg = cfg;
@@ -70,6 +75,10 @@ public final class Daemon implements AutoCloseable {
         });
         this.dispatch = new Dispatch(cfg.line());
         this.watch = new MeterWatch(meter, mode, setup::recipe);
+        this.boards = cfg.status() == null ? null : net.zbin.app.status.Boards.of(cfg.line(), clock);
+        if (boards != null)
+            mode.observe((topic, payload) -> boards.heard(cfg.line(), topic.equals(topics.alarm())
+                    ? net.zbin.app.status.Boards.Kind.ALARM : net.zbin.app.status.Boards.Kind.STATE, payload));
     }
 
     static Thread named(Runnable r, String name) {
@@ -87,13 +96,16 @@ public final class Daemon implements AutoCloseable {
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
         recover();
+        if (cfg.status() != null) startStatus(); // before the broker: a page that cannot listen stops the start, not a running line
         // The finished lot's last figures, retained until the next dashboard: snapshotted on the measuring thread before
         // they move to the new lot (copies only), encoded and published by the ticker (no encoding, file or send here).
         path.onLotEnd(() -> {
             LineSnapshot s = snapshot(mode.mode());
             ticker.execute(() -> {
                 try {
-                    byte[] last = Payloads.bytes(DashboardJson.encode(s));
+                    var node = DashboardJson.encode(s);
+                    if (boards != null) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
+                    byte[] last = Payloads.bytes(node);
                     mqtt.publish(topics.dashboard(), last, 0, true);
                 } catch (RuntimeException e) {
                     LOG.warn("dashboard: {}", e.toString());
@@ -135,8 +147,47 @@ public final class Daemon implements AutoCloseable {
                 monitor.compensation(setup.compensation(), setup.stepCompensations());
             }
         }), 1, 1, TimeUnit.SECONDS);
+        ticker.execute(this::publishDashboard); // the first dashboard now: a page opened at once has figures to show
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
+
+    /** The status page and {@code /metrics}: off the trigger path (own threads, reading snapshots and copies only). */
+    private void startStatus() throws Exception {
+        var st = cfg.status();
+        var registry = new io.prometheus.metrics.model.registry.PrometheusRegistry();
+        registry.register(new LineMetrics(() -> lastSnapshot));
+        io.prometheus.metrics.instrumentation.jvm.JvmMetrics.builder().register(registry);
+        javax.net.ssl.SSLContext tls = st.tls() ? net.zbin.io.mqtt.TlsFiles.context(st.tlsCert(), st.tlsCert(), st.tlsKey()) : null;
+        net.zbin.app.status.PageActions actions = st.operators() == null ? null : this::fromPage;
+        status = net.zbin.app.status.StatusServer.start(boards,
+                new net.zbin.app.status.StatusServer.Options(st.host(), st.port(), tls, st.operators(), actions, registry));
+    }
+
+    /** An operator's action from the page, run on the measuring thread like any command, waited for up to 5 s. */
+    private String fromPage(String who, String action, String alarm, String note) throws net.zbin.app.status.PageActions.Refused {
+        var f = new java.util.concurrent.CompletableFuture<String>();
+        boolean queued = dispatch.onMeasuringThread(() -> {
+            try {
+                f.complete(commands.fromPage(who, action, alarm, note));
+            } catch (net.zbin.io.mqtt.PayloadException | RuntimeException e) {
+                f.completeExceptionally(e);
+            }
+        });
+        if (!queued) throw new net.zbin.app.status.PageActions.Refused("the line is busy or stopping: try again");
+        try {
+            return f.get(5, TimeUnit.SECONDS);
+        } catch (java.util.concurrent.ExecutionException e) {
+            throw new net.zbin.app.status.PageActions.Refused(e.getCause().getMessage());
+        } catch (java.util.concurrent.TimeoutException e) {
+            throw new net.zbin.app.status.PageActions.Refused("the line did not answer within 5 s");
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            throw new net.zbin.app.status.PageActions.Refused("interrupted");
+        }
+    }
+
+    /** The status page's address, or null when the line serves none. */
+    public String statusUrl() { return status == null ? null : status.url(); }
 
     /**
      * Reads the record log back (today's and yesterday's files, nothing stamped in the future) into the figures, the
@@ -228,20 +279,27 @@ public final class Daemon implements AutoCloseable {
         saveState();
         try {
             monitor.tick();
-            mqtt.publish(topics.dashboard(), dashboard(mode.mode()), 0, true);
+            LineSnapshot snap = snapshot(mode.mode());
+            var node = DashboardJson.encode(snap);
+            lastSnapshot = snap;
+            if (boards != null) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
+            mqtt.publish(topics.dashboard(), Payloads.bytes(node), 0, true);
         } catch (RuntimeException e) {
             LOG.warn("dashboard: {}", e.toString());
         }
     }
 
     private byte[] dashboard(Mode m) {
-        return Payloads.bytes(DashboardJson.encode(snapshot(m)));
+        var node = DashboardJson.encode(snapshot(m));
+        if (boards != null) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
+        return Payloads.bytes(node);
     }
 
     /** The line now, in one immutable snapshot (only copies are taken: the measuring thread never waits on it). */
     private LineSnapshot snapshot(Mode m) {
         return new LineSnapshot(clock.instant(), cfg.line(), setup.recipe().name(), m, stats.snapshot(), monitor.snapshot(),
-                mode.activeAlarms(), records.backlog(), records.dropped(), mqtt == null ? 0 : mqtt.buffered());
+                mode.activeAlarms(), records.backlog(), records.dropped(), mqtt == null ? 0 : mqtt.buffered(),
+                mode.linkDown() ? "down" : mode.setupRefused() ? "setup-refused" : "up", cfg.deadlineMs());
     }
 
 
@@ -273,6 +331,7 @@ public final class Daemon implements AutoCloseable {
             mqtt.publishAndWait(topics.state(), mode.offline(), 1, true, 3000);
             mqtt.close();
         }
+        if (status != null) status.close();
         records.close();
         saveState();
         meter.close();

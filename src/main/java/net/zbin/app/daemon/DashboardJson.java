@@ -42,6 +42,19 @@ final class DashboardJson {
         n.put("busy", s.busy());
         n.put("decisions", s.decisions());
         n.putArray("alarms").addAll(snap.alarms().keySet().stream().map(net.zbin.core.AlarmCode::code).sorted().map(a -> Json.mapper().getNodeFactory().textNode(a)).toList());
+        var detail = n.putArray("active_alarms"); // the same alarms with their messages and acknowledgements, oldest first
+        snap.alarms().values().stream().sorted(java.util.Comparator.comparing(LineMode.Alarm::since).thenComparing(a -> a.code().code()))
+                .forEach(a -> {
+                    ObjectNode x = detail.addObject();
+                    x.put("code", a.code().code());
+                    x.put("severity", a.code().severity().key());
+                    x.put("message", a.message());
+                    x.put("since", a.since().toString());
+                    if (a.ack() != null) x.putObject("acknowledged").put("by", a.ack().by()).put("at", a.ack().at().toString()).put("note", a.ack().note());
+                });
+        n.put("meter_link", snap.meterLink());
+        n.put("deadline_ms", snap.deadlineMs());
+        n.put("at", snap.at().toString());
         n.put("record_backlog", snap.recordBacklog());
         n.put("record_dropped", snap.recordDropped());
         n.put("mqtt_buffered", snap.mqttBuffered());

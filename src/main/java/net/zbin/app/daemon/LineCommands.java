@@ -105,8 +105,44 @@ final class LineCommands {
                 return "counters reset";
             case "compensate":
                 return compensate(n);
+            case "acknowledge":
+                return acknowledge(n);
             default:
-                throw new PayloadException("unknown cmd '" + cmd + "' (pause, resume, recipe, lot, reset-counters, compensate)");
+                throw new PayloadException("unknown cmd '" + cmd + "' (pause, resume, recipe, lot, reset-counters, compensate, acknowledge)");
+        }
+    }
+
+    /**
+     * Runs one command given by a person at the status page (on the measuring thread, like any command); {@code by}
+     * is the signed-in operator, never taken from the request. The result is also published on command/result.
+     */
+    String fromPage(String by, String cmd, String alarm, String note) throws PayloadException {
+        var n = net.zbin.io.Json.object().put("cmd", cmd).put("by", by);
+        if (alarm != null) n.put("alarm", alarm);
+        if (note != null) n.put("note", note);
+        try {
+            String done = run(cmd, n);
+            org.slf4j.LoggerFactory.getLogger(LineCommands.class).info("status page: {} by {}: {}", cmd, by, done);
+            publishResult(null, cmd, true, done + " (from the status page by " + by + ")");
+            return done;
+        } catch (ConfigException | CompensationCapture.ImplausibleException | MeterException | java.io.IOException e) {
+            throw new PayloadException(e.getMessage());
+        }
+    }
+
+    /** {"cmd":"acknowledge","alarm":CODE,"by":WHO,"note":TEXT}: the alarm stays until it clears, now acknowledged. */
+    private String acknowledge(JsonNode n) throws PayloadException {
+        String code = TriggerCodec.text(n, "alarm"), by = TriggerCodec.text(n, "by"), note = TriggerCodec.text(n, "note");
+        if (code == null) throw new PayloadException("alarm is missing (the code of an active alarm, e.g. value-drift)");
+        if (by == null || by.isBlank()) throw new PayloadException("by is missing (who acknowledges)");
+        if (by.length() > 64) throw new PayloadException("by is longer than 64 characters");
+        if (note != null && note.length() > 500) throw new PayloadException("note is longer than 500 characters");
+        net.zbin.core.AlarmCode c;
+        try {
+            c = net.zbin.core.AlarmCode.parse(code);
+            return mode.acknowledge(c, by.strip(), note == null ? "" : note.strip());
+        } catch (IllegalArgumentException e) {
+            throw new PayloadException(e.getMessage());
         }
     }
 

@@ -39,7 +39,19 @@ final class LineMode {
     private Mode published = Mode.OFFLINE;
     private Instant since;
 
-    record Alarm(AlarmCode code, String message, Instant since) {}
+    /** An active alarm; {@code ack} null until an operator acknowledges it (it stays active until it clears). */
+    record Alarm(AlarmCode code, String message, Instant since, Ack ack) {
+        byte[] payload(boolean active) {
+            return ack == null ? Payloads.alarm(code.code(), code.severity().key(), active, message, since)
+                    : Payloads.alarm(code.code(), code.severity().key(), active, message, since, ack.by(), ack.at(), ack.note());
+        }
+    }
+
+    /** Who acknowledged an alarm, when, and what they noted (may be empty). */
+    record Ack(String by, Instant at, String note) {}
+
+    /** Hears every state and alarm message, in order, on the sender thread (a status page). */
+    private volatile java.util.function.BiConsumer<String, byte[]> observer;
 
     LineMode(Clock clock, Topics topics, boolean pauseOnLogFailure, Supplier<String> recipe) {
         this(clock, topics, pauseOnLogFailure, recipe, java.util.Set.of(), null);
@@ -121,14 +133,27 @@ final class LineMode {
     /** After a (re)connect: the state and every active alarm again. */
     synchronized void announce() {
         publishState();
-        for (Alarm a : active.values()) send(topics.alarm(), Payloads.alarm(a.code().code(), a.code().severity().key(), true, a.message(), a.since()), false);
+        for (Alarm a : active.values()) send(topics.alarm(), a.payload(true), false);
     }
+
+    /** From now on every state and alarm message is also handed to {@code o} (on the sender thread, never the caller's). */
+    void observe(java.util.function.BiConsumer<String, byte[]> o) { observer = o; }
 
     private void send(String topic, byte[] payload, boolean retained) {
         Publisher p = out;
-        if (p == null) return;
+        var o = observer;
+        if (p == null && o == null) return;
         try {
-            sender.execute(() -> p.publish(topic, payload, 1, retained));
+            sender.execute(() -> {
+                if (p != null) p.publish(topic, payload, 1, retained);
+                if (o != null) {
+                    try {
+                        o.accept(topic, payload);
+                    } catch (RuntimeException e) {
+                        LOG.warn("status page: {}", e.toString());
+                    }
+                }
+            });
         } catch (java.util.concurrent.RejectedExecutionException e) {
             LOG.debug("stopping: {} not sent", topic);
         }
@@ -154,7 +179,7 @@ final class LineMode {
         if (on) {
             if (active.containsKey(code)) return;
             when = clock.instant();
-            active.put(code, new Alarm(code, message, when));
+            active.put(code, new Alarm(code, message, when, null));
             LOG.warn("alarm {}: {}", key, message);
         } else {
             Alarm a = active.remove(code);
@@ -185,6 +210,25 @@ final class LineMode {
     }
 
     Map<AlarmCode, Alarm> activeAlarms() { return Map.copyOf(active); }
+
+    /**
+     * An operator acknowledges an active alarm: it stays active (and visible) until its cause clears, now with who
+     * acknowledged it, when and their note; the acknowledgement is published and written to the alarm history.
+     *
+     * @return what was done, for the command's result
+     * @throws IllegalArgumentException the alarm is not active
+     */
+    synchronized String acknowledge(AlarmCode code, String by, String note) {
+        Alarm a = active.get(code);
+        if (a == null) throw new IllegalArgumentException("alarm " + code.code() + " is not active");
+        Alarm acked = new Alarm(code, a.message(), a.since(), new Ack(by, clock.instant(), note == null ? "" : note));
+        active.put(code, acked);
+        LOG.info("alarm {} acknowledged by {}{}", code.code(), by, note == null || note.isEmpty() ? "" : ": " + note);
+        byte[] b = acked.payload(true);
+        send(topics.alarm(), b, false);
+        if (history != null) appendHistory(b);
+        return "alarm " + code.code() + " acknowledged by " + by;
+    }
 
     /** Clears every recipe-bound alarm (the monitor of the new recipe raises again what still holds). */
     synchronized void clearRecipeBound(String why) {

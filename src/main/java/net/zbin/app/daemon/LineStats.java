@@ -24,6 +24,10 @@ final class LineStats implements DecisionListener {
     private final BinTally tally = new BinTally();
     /** µs, 2 significant digits (1 %): small enough to copy for every dashboard and at every lot end. */
     private final Histogram latencyUs = new Histogram(60_000_000L, 2);
+    /** Upper bounds (ms) of the latency buckets the metrics export: common practice plus the line's deadline. */
+    private final double[] bucketMs;
+    private final long[] bucketCount;
+    private double latencySumMs;
     private final long[] ringCount = new long[RING_S];
     private final long[] ringPassed = new long[RING_S];
     private final long[] ringSecond = new long[RING_S];
@@ -37,6 +41,10 @@ final class LineStats implements DecisionListener {
         this.clock = clock;
         this.deadlineMs = deadlineMs;
         this.lotSince = clock.instant();
+        java.util.TreeSet<Double> b = new java.util.TreeSet<>(java.util.List.of(1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0, 2000.0, 5000.0));
+        b.add((double) deadlineMs);
+        bucketMs = b.stream().mapToDouble(Double::doubleValue).toArray();
+        bucketCount = new long[bucketMs.length + 1]; // the last: above every bound
     }
 
     /**
@@ -53,7 +61,23 @@ final class LineStats implements DecisionListener {
      */
     record Snapshot(String lot, Instant lotSince, BinTally.Snapshot lotTally, BinTally.Snapshot total, double yieldLowPct,
                     double yieldHighPct, double uphMinute, double uphHour, double p50Ms, double p99Ms, double maxMs,
-                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy, Window window10Min, Window windowHour) {}
+                    long decisions, long late, long repeats, long rejected, long reusedSeqs, long busy, Window window10Min, Window windowHour,
+                    Latency latency) {}
+
+    /**
+     * The trigger→decision latencies in buckets, for a metrics histogram.
+     *
+     * @param upperMs upper bound of each bucket but the last, ascending (ms)
+     * @param counts  decisions per bucket (not cumulative); one more than {@code upperMs}: the last is above every bound
+     * @param sumMs   sum of all latencies (ms)
+     */
+    record Latency(java.util.List<Double> upperMs, java.util.List<Long> counts, double sumMs) {
+        Latency {
+            upperMs = java.util.List.copyOf(upperMs);
+            counts = java.util.List.copyOf(counts);
+            if (counts.size() != upperMs.size() + 1) throw new IllegalArgumentException("counts: one more than upperMs");
+        }
+    }
 
     /** Parts finished and passed in a rolling time window. */
     record Window(long parts, long passed) {}
@@ -66,6 +90,9 @@ final class LineStats implements DecisionListener {
         tally.add(g, d.kind() == Trigger.Kind.PART);
         if (Double.isFinite(d.latencyMs())) {
             latencyUs.recordValue(Math.max(0, Math.min(60_000_000L, Math.round(d.latencyMs() * 1000))));
+            int b = java.util.Arrays.binarySearch(bucketMs, d.latencyMs());
+            bucketCount[b >= 0 ? b : -b - 1]++; // a value on a bound counts in that bound's bucket (le)
+            latencySumMs += d.latencyMs();
             if (d.latencyMs() > deadlineMs) late++;
         }
         if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) countFinished(e.time().getEpochSecond(), g.verdict() == Verdict.PASS);
@@ -144,7 +171,11 @@ final class LineStats implements DecisionListener {
         String lotNow;
         Instant since;
         long dec, lt, rep, rej, reused, bz;
+        long[] buckets;
+        double sumMs;
         synchronized (this) {
+            buckets = bucketCount.clone();
+            sumMs = latencySumMs;
             all = tally.snapshot();
             l = all.minus(base);
             long now = clock.instant().getEpochSecond();
@@ -166,6 +197,7 @@ final class LineStats implements DecisionListener {
         return new Snapshot(lotNow, since, l, all, ci[0] * 100, ci[1] * 100, minute, h.parts(),
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN,
                 any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
-                any ? lat.getMaxValue() / 1000.0 : Double.NaN, dec, lt, rep, rej, reused, bz, m10, h);
+                any ? lat.getMaxValue() / 1000.0 : Double.NaN, dec, lt, rep, rej, reused, bz, m10, h,
+                new Latency(java.util.Arrays.stream(bucketMs).boxed().toList(), java.util.Arrays.stream(buckets).boxed().toList(), sumMs));
     }
 }

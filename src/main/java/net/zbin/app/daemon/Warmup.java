@@ -55,7 +55,7 @@ final class Warmup {
             Decision d = new Decision(i, "warm-up", lot, Trigger.Kind.PART, r.name(), g, 0.1, false, i % 2);
             if (i % 64 == 0) { // a lot change: the finished lot's dashboard, then new figures
                 sum += DashboardJson.encode(new LineSnapshot(Instant.EPOCH, "warm-up", r.name(), Mode.READY, stats.snapshot(),
-                        engine.snapshot(Instant.EPOCH), java.util.Map.of(), 0, 0, 0)).size();
+                        engine.snapshot(Instant.EPOCH), java.util.Map.of(), 0, 0, 0, "up", 150)).size();
                 stats.startLot(lot, Instant.EPOCH);
             }
             sum += engine.observe(d).size();

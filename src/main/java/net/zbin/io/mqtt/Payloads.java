@@ -35,12 +35,26 @@ public final class Payloads {
     }
 
     public static byte[] alarm(String code, String severity, boolean active, String message, Instant since) {
+        return bytes(alarmNode(code, severity, active, message, since));
+    }
+
+    private static ObjectNode alarmNode(String code, String severity, boolean active, String message, Instant since) {
         ObjectNode n = Json.object();
         n.put("code", code);
         n.put("severity", severity);
         n.put("active", active);
         n.put("message", message);
         n.put("since", since.toString());
+        return n;
+    }
+
+    /** An active alarm that an operator acknowledged: the alarm message with who, when and their note. */
+    public static byte[] alarm(String code, String severity, boolean active, String message, Instant since, String by, Instant at, String note) {
+        ObjectNode n = alarmNode(code, severity, active, message, since);
+        ObjectNode a = n.putObject("acknowledged");
+        a.put("by", by);
+        a.put("at", at.toString());
+        a.put("note", note);
         return bytes(n);
     }
 
