@@ -128,6 +128,12 @@ public final class DemoCommand implements Callable<Integer> {
                 o.println("  alarms during the run:");
                 for (String a : Files.readAllLines(history)) {
                     var j = Json.mapper().readTree(a);
+                    if (j.has("acknowledged")) {
+                        var a = j.path("acknowledged");
+                        o.printf(Locale.ROOT, "    %s %s acknowledged by %s%s%n", a.path("at").asText(), j.path("code").asText(), a.path("by").asText(),
+                                a.path("note").asText().isEmpty() ? "" : ": " + a.path("note").asText());
+                        continue;
+                    }
                     o.printf(Locale.ROOT, "    %s %s %s: %s%n", j.path("active").asBoolean() ? j.path("since").asText() : "        (cleared)",
                             j.path("code").asText(), j.path("active").asBoolean() ? "raised" : "cleared", j.path("message").asText());
                 }

@@ -212,7 +212,7 @@ abstract class DaemonEndToEndContract {
     @Test
     void meterLinkDown_givesFaultModeAndLineFaultRetests_thenRecovers() throws Exception {
         try (LineRig rig = new LineRig(dir, "flt", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
-             Tap tap = new Tap(broker(), "zbin/flt/decision", "zbin/flt/state", "zbin/flt/alarm")) {
+             Tap tap = new Tap(broker(), "zbin/flt/decision", "zbin/flt/state", "zbin/flt/alarm", "zbin/flt/command/result")) {
             rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
             tap.publish("zbin/flt/trigger", "{\"seq\":1}");
             tap.await(m -> isDecision(m) && m.json().path("grade").asText().equals("J"), 1, 5000);
@@ -224,6 +224,19 @@ abstract class DaemonEndToEndContract {
             assertEquals("retest", first.path("verdict").asText());
             tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("fault"), 1, 5000);
             tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-link-down") && m.json().path("active").asBoolean(), 1, 5000);
+            // acknowledged by MQTT command: it stays active, now with who and the note; a cleared or unknown one is refused
+            tap.publish("zbin/flt/command", "{\"cmd\":\"acknowledge\",\"id\":\"k1\",\"alarm\":\"meter-link-down\",\"by\":\"shift-lead\",\"note\":\"meter on the bench\"}");
+            assertTrue(tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("k1"), 1, 5000).get(0).json()
+                    .path("ok").asBoolean());
+            JsonNode acked = tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("acknowledged").path("by").asText().equals("shift-lead"), 1, 5000)
+                    .get(0).json();
+            assertTrue(acked.path("active").asBoolean() && acked.path("acknowledged").path("note").asText().equals("meter on the bench"), acked.toString());
+            tap.publish("zbin/flt/command", "{\"cmd\":\"acknowledge\",\"id\":\"k2\",\"alarm\":\"value-drift\",\"by\":\"shift-lead\"}");
+            JsonNode notActive = tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("k2"), 1, 5000).get(0).json();
+            assertTrue(!notActive.path("ok").asBoolean() && notActive.path("message").asText().contains("not active"), notActive.toString());
+            tap.publish("zbin/flt/command", "{\"cmd\":\"acknowledge\",\"id\":\"k3\",\"alarm\":\"meter-link-down\"}");
+            JsonNode noWho = tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("k3"), 1, 5000).get(0).json();
+            assertTrue(!noWho.path("ok").asBoolean() && noWho.path("message").asText().contains("by"), noWho.toString());
             tap.publish("zbin/flt/trigger", "{\"seq\":3,\"retest_of\":2}");
             JsonNode next = tap.await(m -> isDecision(m) && m.json().path("seq").asLong() == 3, 1, 5000).get(0).json();
             assertEquals("line-fault", next.path("reason").asText(), "while faulted, parts are sent back without counting");

@@ -86,4 +86,31 @@ class LineModeTest {
         assertTrue(out.on(topics.alarm()).stream().filter(a -> a.payload().contains("\"active\":false"))
                 .allMatch(a -> a.payload().contains("recipe changed to r2")));
     }
+
+    @Test
+    void anAcknowledgedAlarm_staysActiveWithWhoAndNote_isWrittenToTheHistory_andGoesWhenItClears(@org.junit.jupiter.api.io.TempDir java.nio.file.Path dir)
+            throws Exception {
+        java.nio.file.Path history = dir.resolve("alarms-l1.jsonl");
+        LineMode m = new LineMode(Clock.fixed(Instant.parse("2026-12-01T08:00:00Z"), ZoneOffset.UTC), topics, true, () -> "r1",
+                java.util.Set.of(), history);
+        m.attach(out);
+        var code = net.zbin.core.AlarmCode.VALUE_DRIFT;
+        org.junit.jupiter.api.Assertions.assertThrows(IllegalArgumentException.class, () -> m.acknowledge(code, "ana", "too early"),
+                "only an active alarm can be acknowledged");
+        m.alarm(code, true, "Cs drifted +0.3 %", true);
+        assertEquals("alarm value-drift acknowledged by ana", m.acknowledge(code, "ana", "fixture cleaned"));
+        LineMode.Alarm a = m.activeAlarms().get(code);
+        assertEquals("ana", a.ack().by());
+        assertEquals("fixture cleaned", a.ack().note());
+        assertEquals(Mode.READY, m.mode());
+        m.alarm(code, false, "back at its baseline", true);
+        m.drain(2000);
+        assertTrue(m.activeAlarms().isEmpty());
+        var sent = out.on(topics.alarm());
+        assertEquals(3, sent.size(), "raised, acknowledged, cleared: " + sent);
+        assertTrue(sent.get(1).payload().contains("\"active\":true") && sent.get(1).payload().contains("\"by\":\"ana\""), sent.get(1).payload());
+        var lines = java.nio.file.Files.readAllLines(history);
+        assertEquals(3, lines.size(), lines.toString());
+        assertTrue(lines.get(1).contains("\"acknowledged\"") && lines.get(1).contains("fixture cleaned"), lines.get(1));
+    }
 }
