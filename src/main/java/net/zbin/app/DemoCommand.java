@@ -129,9 +129,9 @@ public final class DemoCommand implements Callable<Integer> {
                 for (String a : Files.readAllLines(history)) {
                     var j = Json.mapper().readTree(a);
                     if (j.has("acknowledged")) {
-                        var a = j.path("acknowledged");
-                        o.printf(Locale.ROOT, "    %s %s acknowledged by %s%s%n", a.path("at").asText(), j.path("code").asText(), a.path("by").asText(),
-                                a.path("note").asText().isEmpty() ? "" : ": " + a.path("note").asText());
+                        var ack = j.path("acknowledged");
+                        o.printf(Locale.ROOT, "    %s %s acknowledged by %s%s%n", ack.path("at").asText(), j.path("code").asText(), ack.path("by").asText(),
+                                ack.path("note").asText().isEmpty() ? "" : ": " + ack.path("note").asText());
                         continue;
                     }
                     o.printf(Locale.ROOT, "    %s %s %s: %s%n", j.path("active").asBoolean() ? j.path("since").asText() : "        (cleared)",
