@@ -2,6 +2,7 @@ package net.zbin.app;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 import static org.junit.jupiter.api.Assertions.fail;
 
 import java.nio.file.Files;
@@ -29,6 +30,8 @@ class ConfigFilesTest {
             else if (rel.startsWith("meters/")) MeterProfileLoader.load(p);
             else if (rel.equals("line.yaml")) LineConfigLoader.load(p);
             else if (rel.startsWith("mosquitto/") || rel.startsWith("systemd/")) MosquittoAndSystemdFiles.check(p);
+            else if (rel.equals("operators.example.yaml")) net.zbin.io.Operators.load(p);
+            else if (rel.startsWith("prometheus/")) prometheusFile(p); // their metric names: StatusPageIT checks them against a scrape
             else fail("config/" + rel + " is shipped but no test loads it");
         }
     }
@@ -39,5 +42,16 @@ class ConfigFilesTest {
             for (Path p : s.toList()) Scenario.read(p);
         }
         assertEquals(Scenario.builtIn(), Scenario.read(Path.of("simulators/scenarios/harrowgate-mlcc-100n.yaml")));
+    }
+
+    /** A Prometheus config or rule file: valid YAML with the parts Prometheus requires. */
+    static void prometheusFile(Path p) throws Exception {
+        var n = net.zbin.io.Yaml.mapper().readTree(p.toFile());
+        if (p.getFileName().toString().contains("alerts")) {
+            for (var g : n.path("groups"))
+                for (var r : g.path("rules"))
+                    assertTrue(r.path("alert").isTextual() && r.path("expr").isTextual(), p + ": every rule has alert and expr: " + r);
+            assertTrue(n.path("groups").size() > 0, p + ": has groups");
+        } else assertTrue(n.path("scrape_configs").size() > 0, p + ": has scrape_configs");
     }
 }

@@ -60,6 +60,11 @@ class StatusConfigTest {
     }
 
     @Test
+    void theShippedOperatorsExample_loads() throws Exception {
+        assertEquals(2, net.zbin.io.Operators.load(Path.of("config/operators.example.yaml")).size());
+    }
+
+    @Test
     void mistakes_nameTheKeyAndWhatIsWrong() throws Exception {
         assertTrue(refused("status: {listen: nowhere}\n").getMessage().contains("status.listen"));
         assertTrue(refused("status: {listen: '127.0.0.1:70000'}\n").getMessage().contains("status.listen"));

@@ -349,6 +349,18 @@ class StatusPageIT {
         assertTrue(histogram, "the latency histogram has counts");
         HttpResponse<String> text = http.send(HttpRequest.newBuilder(URI.create(base + "/metrics")).build(), HttpResponse.BodyHandlers.ofString());
         assertTrue(text.body().contains("# TYPE zbin_parts_total counter") && text.body().contains("jvm_memory"), "text format with JVM metrics");
+        // the shipped alert rules name only metrics the line exports
+        JsonNode rules = net.zbin.io.Yaml.mapper().readTree(Path.of("config/prometheus/zbin-alerts.yml").toFile());
+        int named = 0;
+        for (JsonNode g : rules.path("groups"))
+            for (JsonNode rule : g.path("rules")) {
+                Matcher m = Pattern.compile("\\bzbin_[a-z_]+").matcher(rule.path("expr").asText());
+                while (m.find()) {
+                    named++;
+                    assertTrue(text.body().contains("# TYPE " + m.group() + " "), rule.path("alert").asText() + ": " + m.group() + " is exported");
+                }
+            }
+        assertTrue(named >= 5, "the rules use the line's metrics");
         return parts;
     }
 }
