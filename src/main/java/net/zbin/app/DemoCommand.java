@@ -176,16 +176,17 @@ public final class DemoCommand implements Callable<Integer> {
 
     /** The address asked for when its port is free (or 0), else the same host with any free port. */
     static String freeOrAny(String listen) throws UsageException {
-        int colon = listen.lastIndexOf(':');
-        if (colon <= 0) throw new UsageException("--status must be host:port or off (was '" + listen + "')");
-        String host = listen.substring(0, colon);
+        net.zbin.io.HostPort at;
+        try {
+            at = net.zbin.io.HostPort.parse(listen);
+        } catch (IllegalArgumentException e) {
+            throw new UsageException("--status " + e.getMessage() + " (or off)");
+        }
         try (var probe = new java.net.ServerSocket()) {
-            probe.bind(new java.net.InetSocketAddress(host, Integer.parseInt(listen.substring(colon + 1))));
-            return listen;
-        } catch (NumberFormatException e) {
-            throw new UsageException("--status must be host:port or off (was '" + listen + "')");
+            probe.bind(new java.net.InetSocketAddress(at.host(), at.port()));
+            return at.toString();
         } catch (IOException e) {
-            return host + ":0";
+            return new net.zbin.io.HostPort(at.host(), 0).toString();
         }
     }
 

@@ -44,21 +44,18 @@ public final class PanelCommand implements Callable<Integer> {
         if (broker.startsWith("ssl://") && caFile == null) throw new UsageException("--ca-file is required for an ssl:// broker");
         if (root.isEmpty() || root.contains("+") || root.contains("#") || root.startsWith("/") || root.endsWith("/"))
             throw new UsageException("--topic-root must be a plain topic prefix without wildcards or outer slashes (was '" + root + "')");
-        int colon = listen.lastIndexOf(':');
-        int port;
+        net.zbin.io.HostPort at;
         try {
-            port = colon > 0 ? Integer.parseInt(listen.substring(colon + 1)) : -1;
-        } catch (NumberFormatException e) {
-            port = -1;
+            at = net.zbin.io.HostPort.parse(listen);
+        } catch (IllegalArgumentException e) {
+            throw new UsageException("--listen " + e.getMessage());
         }
-        if (colon <= 0 || port < 0 || port > 65535) throw new UsageException("--listen must be host:port with a port 0..65535 (was '" + listen + "')");
         char[] password = null;
         if (passwordEnv != null) {
             String v = System.getenv(passwordEnv);
             if (v == null) throw new UsageException("--password-env: environment variable " + passwordEnv + " is not set");
             password = v.toCharArray();
         }
-        String host = listen.substring(0, colon);
         Boards boards = Boards.plant(Clock.systemUTC());
         var settings = new LineConfig.MqttSettings(broker, root, "zbin-panel-" + ProcessHandle.current().pid(), username, password, caFile,
                 null, null, 10);
@@ -77,7 +74,7 @@ public final class PanelCommand implements Callable<Integer> {
                 });
         StatusServer server;
         try {
-            server = StatusServer.start(boards, new StatusServer.Options(host, port, null, null, null, null));
+            server = StatusServer.start(boards, new StatusServer.Options(at.host(), at.port(), null, null, null, null));
         } catch (java.net.BindException e) {
             spec.commandLine().getErr().println("zbin: --listen: cannot listen on " + listen + ": " + e.getMessage());
             mqtt.close();

@@ -147,18 +147,12 @@ public final class LineConfigLoader {
     private static LineConfig.Status status(SpecNode n, Path base, boolean openSecretsAllowed) throws ConfigException {
         if (!n.has("status")) return null;
         SpecNode s = n.child("status");
-        String listen = s.text("listen");
-        int colon = listen.lastIndexOf(':');
-        String host = colon > 0 ? listen.substring(0, colon) : "";
-        if (host.startsWith("[") && host.endsWith("]")) host = host.substring(1, host.length() - 1);
-        int port;
+        HostPort at;
         try {
-            port = colon > 0 ? Integer.parseInt(listen.substring(colon + 1)) : -1;
-        } catch (NumberFormatException e) {
-            port = -1;
+            at = HostPort.parse(s.text("listen"));
+        } catch (IllegalArgumentException e) {
+            throw s.error("listen", e.getMessage());
         }
-        if (host.isEmpty() || port < 0 || port > 65535)
-            throw s.error("listen", "must be host:port with a port 0..65535, e.g. 127.0.0.1:8080 (was '" + listen + "')");
         String opFile = s.optText("operators_file", null);
         Operators ops = null;
         if (opFile != null) {
@@ -176,12 +170,10 @@ public final class LineConfigLoader {
         if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw s.error("tls.key_file", key + " " + problem);
         if (key != null) secretMode(s.file(), s.key("tls.key_file"), key, openSecretsAllowed);
         s.finish();
-        String h = host;
-        int pt = port;
         Operators o = ops;
-        LineConfig.Status st = s.build(null, () -> new LineConfig.Status(h, pt, o, cert, key));
+        LineConfig.Status st = s.build(null, () -> new LineConfig.Status(at.host(), at.port(), o, cert, key));
         if (o != null && !st.loopback() && !st.tls())
-            throw s.error("tls", "is required when operators may act from a page bound to " + host + " (not a loopback address): "
+            throw s.error("tls", "is required when operators may act from a page bound to " + at.host() + " (not a loopback address): "
                     + "give tls.cert_file and tls.key_file, or bind to 127.0.0.1");
         return st;
     }

@@ -17,11 +17,8 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 import org.openqa.selenium.OutputType;
 import org.openqa.selenium.chrome.ChromeDriver;
-import org.openqa.selenium.chrome.ChromeDriverService;
-import org.openqa.selenium.chrome.ChromeOptions;
 import org.openqa.selenium.logging.LogEntry;
 import org.openqa.selenium.logging.LogType;
-import org.openqa.selenium.logging.LoggingPreferences;
 
 /**
  * The HTML reports of {@code replay} and {@code tune}, opened in Debian's headless Chromium (driven by
@@ -35,15 +32,7 @@ class ReportBrowserIT {
     @BeforeAll
     static void open() throws Exception {
         Files.createDirectories(OUT);
-        ChromeOptions o = new ChromeOptions();
-        o.setBinary("/usr/bin/chromium");
-        o.addArguments("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking",
-                "--disable-component-update", "--disable-sync", "--window-size=1100,2800", "--user-data-dir=" + OUT.toAbsolutePath().resolve("profile"));
-        LoggingPreferences logs = new LoggingPreferences();
-        logs.enable(LogType.BROWSER, Level.ALL);
-        o.setCapability("goog:loggingPrefs", logs);
-        ChromeDriverService service = new ChromeDriverService.Builder().usingDriverExecutable(new java.io.File("/usr/bin/chromedriver")).build();
-        browser = new ChromeDriver(service, o);
+        browser = Chromium.open(OUT.resolve("profile"), "1100,2800");
     }
 
     @AfterAll

@@ -34,12 +34,9 @@ import org.openqa.selenium.Keys;
 import org.openqa.selenium.OutputType;
 import org.openqa.selenium.WebElement;
 import org.openqa.selenium.chrome.ChromeDriver;
-import org.openqa.selenium.chrome.ChromeDriverService;
-import org.openqa.selenium.chrome.ChromeOptions;
 import org.openqa.selenium.interactions.Actions;
 import org.openqa.selenium.logging.LogEntry;
 import org.openqa.selenium.logging.LogType;
-import org.openqa.selenium.logging.LoggingPreferences;
 
 /**
  * The line's status page in Debian's headless Chromium, against the real daemon: the demo on the drifting-fixture
@@ -57,15 +54,7 @@ class StatusPageIT {
     @BeforeEach
     void open() throws Exception {
         Files.createDirectories(OUT);
-        ChromeOptions o = new ChromeOptions();
-        o.setBinary("/usr/bin/chromium");
-        o.addArguments("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking",
-                "--disable-component-update", "--disable-sync", "--window-size=1280,800", "--user-data-dir=" + dir.resolve("profile"));
-        LoggingPreferences logs = new LoggingPreferences();
-        logs.enable(LogType.BROWSER, Level.ALL);
-        o.setCapability("goog:loggingPrefs", logs);
-        ChromeDriverService service = new ChromeDriverService.Builder().usingDriverExecutable(new java.io.File("/usr/bin/chromedriver")).build();
-        browser = new ChromeDriver(service, o);
+        browser = Chromium.open(dir.resolve("profile"), "1280,800");
     }
 
     @AfterEach

@@ -169,6 +169,31 @@ class StatusServerTest {
         }
     }
 
+    @Test
+    void withTls_thePageIsServedOverHttpsOnly(@org.junit.jupiter.api.io.TempDir java.nio.file.Path dir) throws Exception {
+        java.nio.file.Path cert = dir.resolve("page.pem"), key = dir.resolve("page.key");
+        Process p = new ProcessBuilder("openssl", "req", "-x509", "-newkey", "ec", "-pkeyopt", "ec_paramgen_curve:prime256v1", "-nodes",
+                "-keyout", key.toString(), "-out", cert.toString(), "-days", "2", "-subj", "/CN=127.0.0.1", "-addext", "subjectAltName=IP:127.0.0.1")
+                .redirectErrorStream(true).start();
+        String made = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
+        assertEquals(0, p.waitFor(), made);
+        assertEquals(null, net.zbin.io.mqtt.TlsFiles.keyProblem(key), "openssl wrote a PKCS#8 key");
+        boards = Boards.of("l1", Clock.systemUTC());
+        server = StatusServer.start(boards, new StatusServer.Options("127.0.0.1", 0, net.zbin.io.mqtt.TlsFiles.context(cert, cert, key),
+                Operators.of(Map.of("ana", TOKEN)), (who, action, alarm, note) -> "done", null));
+        assertTrue(server.url().startsWith("https://127.0.0.1:"), server.url());
+        HttpClient tls = HttpClient.newBuilder().sslContext(net.zbin.io.mqtt.TlsFiles.context(cert, null, null)).build();
+        String https = "https://127.0.0.1:" + server.port();
+        assertEquals(200, tls.send(HttpRequest.newBuilder(URI.create(https + "/line/l1")).build(), HttpResponse.BodyHandlers.ofString()).statusCode());
+        HttpResponse<String> acted = tls.send(HttpRequest.newBuilder(URI.create(https + "/api/line/l1/action")).header("Authorization", "Bearer " + TOKEN)
+                .header("Content-Type", "application/json").POST(HttpRequest.BodyPublishers.ofString("{\"action\":\"pause\"}")).build(),
+                HttpResponse.BodyHandlers.ofString());
+        assertEquals(200, acted.statusCode(), acted.body());
+        org.junit.jupiter.api.Assertions.assertThrows(java.io.IOException.class,
+                () -> http.send(HttpRequest.newBuilder(URI.create("http://127.0.0.1:" + server.port() + "/line/l1")).build(), HttpResponse.BodyHandlers.ofString()),
+                "plain HTTP gets no page from the HTTPS port");
+    }
+
     /** Sends bytes as they are (a client library refuses to send a malformed request) and returns the answer. */
     String raw(String request) throws Exception {
         try (var s = new java.net.Socket("127.0.0.1", server.port())) {
