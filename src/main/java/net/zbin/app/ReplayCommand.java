@@ -35,7 +35,7 @@ import picocli.CommandLine.Model.CommandSpec;
 public final class ReplayCommand implements Callable<Integer> {
     @Option(names = "--recipe", required = true, paramLabel = "FILE", description = "recipe to grade with")
     Path recipeFile;
-    @Option(names = "--in", required = true, paramLabel = "FILE.csv", description = "readings or record log")
+    @Option(names = "--in", paramLabel = "FILE.csv", description = "readings or record log (or --db with --line and --lot)")
     Path in;
     @Option(names = "--json", description = "print the summary as JSON")
     boolean json;
@@ -63,9 +63,9 @@ public final class ReplayCommand implements Callable<Integer> {
         RowProgress bar = reading.progress(err, in);
         long[] badRows = {0};
         ReadingSource.BadRow[] firstBad = {null};
-        try (ReadingSource src = ReadingSource.open(in, b -> {
+        try (ReadingSource src = reading.open(in, b -> {
             // with --strict the first bad row ends the run and is reported once, as what stopped it
-            if (!strict && badRows[0] < maxShown) err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)");
+            if (!strict && badRows[0] < maxShown) err.println("zbin: " + reading.inputName(in) + ": line " + b.line() + ": " + b.message() + " (skipped)");
             badRows[0]++;
             if (firstBad[0] == null) firstBad[0] = b;
         })) {
@@ -87,8 +87,8 @@ public final class ReplayCommand implements Callable<Integer> {
             throw new UsageException(e.getMessage());
         }
         if (strict && firstBad[0] != null)
-            throw new UsageException(in + ": line " + firstBad[0].line() + ": " + firstBad[0].message() + " (--strict)");
-        if (badRows[0] > maxShown) err.println("zbin: " + in + ": " + badRows[0] + " bad rows in all (skipped)");
+            throw new UsageException(reading.inputName(in) + ": line " + firstBad[0].line() + ": " + firstBad[0].message() + " (--strict)");
+        if (badRows[0] > maxShown) err.println("zbin: " + reading.inputName(in) + ": " + badRows[0] + " bad rows in all (skipped)");
         BinTally.Snapshot s = tally.snapshot();
         LineMonitor.Snapshot m = engine.snapshot(java.time.Instant.now());
         PrintWriter out = spec.commandLine().getOut();
@@ -105,8 +105,8 @@ public final class ReplayCommand implements Callable<Integer> {
             printMonitor(out, m, points);
         }
         if (plots != null) {
-            new net.zbin.app.report.HtmlReport("zbin replay: " + recipe.name() + " on " + in.getFileName())
-                    .para("Recipe " + recipe.name() + ", input " + in.getFileName() + ".").heading("Summary").summary(recipe, s)
+            new net.zbin.app.report.HtmlReport("zbin replay: " + recipe.name() + " on " + (in != null ? in.getFileName().toString() : reading.inputName(in)))
+                    .para("Recipe " + recipe.name() + ", input " + (in != null ? in.getFileName().toString() : reading.inputName(in)) + ".").heading("Summary").summary(recipe, s)
                     .heading("Line monitor").monitor(m).heading("Deviation").deviationHistogram(plots).heading("Loss").lossHistogram(plots)
                     .heading("Run chart").runChart(plots).write(reading.report);
             if (!json) out.println("  report: " + reading.report);

@@ -45,7 +45,7 @@ import picocli.CommandLine.Model.CommandSpec;
 public final class TuneCommand implements Callable<Integer> {
     @Option(names = "--recipe", required = true, paramLabel = "FILE", description = "the recipe to start from")
     Path recipeFile;
-    @Option(names = "--in", required = true, paramLabel = "FILE.csv", description = "readings or record log")
+    @Option(names = "--in", paramLabel = "FILE.csv", description = "readings or record log (or --db with --line and --lot)")
     Path in;
     @Option(names = "--vary", required = true, paramLabel = "SWEEP", description = "a quantity and its values (once or twice)")
     List<String> vary;
@@ -117,7 +117,7 @@ public final class TuneCommand implements Callable<Integer> {
         RowProgress bar = reading.progress(spec.commandLine().getErr(), in);
         Tuner tuner = new Tuner(recipe, sweeps, u);
         PrintWriter err = spec.commandLine().getErr();
-        try (ReadingSource src = ReadingSource.open(in, b -> err.println("zbin: " + in + ": line " + b.line() + ": " + b.message() + " (skipped)"))) {
+        try (ReadingSource src = reading.open(in, b -> err.println("zbin: " + reading.inputName(in) + ": line " + b.line() + ": " + b.message() + " (skipped)"))) {
             RecordedReading r;
             while ((r = src.next()) != null) {
                 tuner.add(r);
@@ -177,7 +177,7 @@ public final class TuneCommand implements Callable<Integer> {
         }
         if (targetFalseAccept != null && !json) out.println(why(results, pick, targetFalseAccept, worth));
         if (reading.report != null) {
-            var h = new net.zbin.app.report.HtmlReport("zbin tune: " + recipe.name() + " on " + in.getFileName())
+            var h = new net.zbin.app.report.HtmlReport("zbin tune: " + recipe.name() + " on " + (in != null ? in.getFileName().toString() : reading.inputName(in)))
                     .para("Sweeps: " + String.join(" and ", vary) + ". " + riskText(u, model));
             if (targetFalseAccept != null) h.para(why(results, pick, targetFalseAccept, worth));
             h.heading("Yield and risk against the setting").tuneCurves(results, sweeps, pick.orElse(null), targetFalseAccept, recipe.partType().unit())
