@@ -41,6 +41,8 @@ final class Historian implements AutoCloseable {
     private final Map<String, Map<String, long[]>> pos = new HashMap<>();
     final Map<String, LineFigures> figures = new HashMap<>();
     final AtomicLong dbErrors = new AtomicLong();
+    /** Lines whose record folder was missing at the last look (said once). */
+    private final java.util.Set<String> missing = new java.util.HashSet<>();
     private Instant lastRetention = Instant.EPOCH, lastReport = Instant.EPOCH;
 
     /** What the historian has done for one line, for its log and metrics. */
@@ -127,6 +129,11 @@ final class Historian implements AutoCloseable {
         boolean any = false;
         long backlog = 0;
         List<Path> files = new ArrayList<>();
+        if (!Files.isDirectory(l.records())) {
+            if (missing.add(l.line())) LOG.warn("line {}: record folder {} is not there (yet): waiting for it", l.line(), l.records());
+            return false;
+        }
+        missing.remove(l.line());
         try (var s = Files.list(l.records())) {
             s.filter(p -> {
                 String n = p.getFileName().toString();

@@ -31,6 +31,8 @@ class ConfigFilesTest {
             else if (rel.equals("line.yaml")) LineConfigLoader.load(p);
             else if (rel.startsWith("mosquitto/") || rel.startsWith("systemd/")) MosquittoAndSystemdFiles.check(p);
             else if (rel.equals("operators.example.yaml")) net.zbin.io.Operators.load(p);
+            else if (rel.equals("historian/historian.yaml")) net.zbin.io.db.HistorianConfig.load(p, false);
+            else if (rel.equals("historian/roles.sql")) assertTrue(Files.readString(p).contains("CREATE ROLE zbin_ingest")); // HistorianIT runs it
             else if (rel.startsWith("prometheus/")) prometheusFile(p); // their metric names: StatusPageIT checks them against a scrape
             else fail("config/" + rel + " is shipped but no test loads it");
         }

@@ -19,21 +19,23 @@ public record HistorianConfig(Path file, Db.Login ingest, Db.Login owner, List<F
     /** One line's durable record: its record folder and (for the alarm history) its state folder. */
     public record FollowedLine(String line, Path records, Path state) {}
 
-    public static HistorianConfig load(Path file) throws ConfigException {
+    public static HistorianConfig load(Path file) throws ConfigException { return load(file, true); }
+
+    /** @param secrets false: leave the passwords unread (checking a shipped example whose variables are not set here) */
+    public static HistorianConfig load(Path file, boolean secrets) throws ConfigException {
         SpecNode n = Yaml.read(file);
         Path base = file.toAbsolutePath().getParent();
         SpecNode db = n.child("database");
         if (!n.has("database")) throw n.error("database", "is required (url, user and owner_user)");
         String url = db.text("url");
         if (!url.startsWith("jdbc:postgresql://")) throw db.error("url", "must be a jdbc:postgresql:// URL (was '" + url + "')");
-        Db.Login ingest = new Db.Login(url, db.text("user"), password(db, base, "password_file", "password_env"));
-        Db.Login owner = new Db.Login(url, db.optText("owner_user", ingest.user()), password(db, base, "owner_password_file", "owner_password_env"));
+        Db.Login ingest = new Db.Login(url, db.text("user"), password(db, base, "password_file", "password_env", secrets));
+        Db.Login owner = new Db.Login(url, db.optText("owner_user", ingest.user()), password(db, base, "owner_password_file", "owner_password_env", secrets));
         db.finish();
         List<FollowedLine> lines = n.list("lines", l -> {
             String id = l.text("line");
             if (!id.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}")) throw l.error("line", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + id + "')");
-            Path rec = base.resolve(l.text("records")).normalize();
-            if (!Files.isDirectory(rec)) throw l.error("records", "folder " + rec + " does not exist");
+            Path rec = base.resolve(l.text("records")).normalize(); // a folder not there yet is waited for (a line not started yet)
             String st = l.optText("state", null);
             FollowedLine f = new FollowedLine(id, rec, st == null ? null : base.resolve(st).normalize());
             l.finish();
@@ -59,9 +61,10 @@ public record HistorianConfig(Path file, Db.Login ingest, Db.Login owner, List<F
         return new HistorianConfig(file, ingest, owner, List.copyOf(lines), batch, poll, keep, metrics);
     }
 
-    private static char[] password(SpecNode db, Path base, String fileKey, String envKey) throws ConfigException {
+    private static char[] password(SpecNode db, Path base, String fileKey, String envKey, boolean secrets) throws ConfigException {
         String f = db.optText(fileKey, null), env = db.optText(envKey, null);
         if (f != null && env != null) throw db.error(fileKey, "give " + fileKey + " or " + envKey + ", not both");
+        if (!secrets) return null;
         if (env != null) {
             String v = System.getenv(env);
             if (v == null) throw db.error(envKey, "environment variable " + env + " is not set");

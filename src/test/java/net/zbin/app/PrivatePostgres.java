@@ -1,0 +1,93 @@
+package net.zbin.app;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.sql.Connection;
+import java.sql.DriverManager;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+
+/**
+ * A PostgreSQL of the test's own (initdb in a temp folder, pg_ctl on a free port of the loopback), so the test can kill
+ * it. PostgreSQL refuses to run as root: as root the server runs as the system's {@code postgres} user.
+ */
+final class PrivatePostgres implements AutoCloseable {
+    final Path dir, data;
+    final int port;
+    final String admin = "zbin_admin";
+    private final boolean root = "root".equals(System.getProperty("user.name"));
+
+    PrivatePostgres() throws Exception {
+        dir = Files.createTempDirectory("zbin-pg-");
+        Files.setPosixFilePermissions(dir, java.nio.file.attribute.PosixFilePermissions.fromString("rwxr-xr-x"));
+        data = dir.resolve("data");
+        Files.createDirectories(data);
+        if (root) run("chown", "postgres:postgres", data.toString(), dir.toString());
+        try (var s = new java.net.ServerSocket(0)) {
+            port = s.getLocalPort();
+        }
+        asServer("/usr/local/bin/initdb", "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8");
+        start();
+    }
+
+    void start() throws Exception {
+        asServer("/usr/local/bin/pg_ctl", "-D", data.toString(), "-l", dir.resolve("server.log").toString(), "-w", "-t", "60",
+                "-o", "-p " + port + " -k " + dir + " -c listen_addresses=127.0.0.1 -c fsync=off", "start");
+    }
+
+    /** kill -9 of the server's main process: what a crash of the database host looks like to its clients. */
+    void kill9() throws Exception {
+        long pid = Long.parseLong(Files.readAllLines(data.resolve("postmaster.pid")).get(0).strip());
+        ProcessHandle.of(pid).ifPresent(ProcessHandle::destroyForcibly);
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
+        while (ProcessHandle.of(pid).map(ProcessHandle::isAlive).orElse(false) && System.nanoTime() < end) Thread.sleep(20);
+        // the server's other processes follow their parent; wait until the port is free again
+        while (System.nanoTime() < end) {
+            try (var s = new java.net.Socket("127.0.0.1", port)) {
+                Thread.sleep(50);
+            } catch (IOException gone) {
+                return;
+            }
+        }
+    }
+
+    String url(String db) { return "jdbc:postgresql://127.0.0.1:" + port + "/" + db; }
+
+    Connection connect(String db, String user) throws Exception {
+        var p = new java.util.Properties();
+        p.setProperty("user", user);
+        return DriverManager.getConnection(url(db), p);
+    }
+
+    /** Runs a psql script as the admin (psql's own \connect and all). */
+    void psql(Path script) throws Exception {
+        run("psql", "-v", "ON_ERROR_STOP=1", "-h", "127.0.0.1", "-p", Integer.toString(port), "-U", admin, "-d", "postgres", "-q", "-f", script.toString());
+    }
+
+    private void asServer(String... cmd) throws Exception {
+        List<String> c = new ArrayList<>();
+        if (root) c.addAll(List.of("runuser", "-u", "postgres", "--"));
+        c.addAll(List.of(cmd));
+        run(c.toArray(new String[0]));
+    }
+
+    static void run(String... cmd) throws Exception {
+        Process p = new ProcessBuilder(cmd).redirectErrorStream(true).start();
+        String out = new String(p.getInputStream().readAllBytes());
+        if (!p.waitFor(120, TimeUnit.SECONDS) || p.exitValue() != 0) throw new IOException(String.join(" ", cmd) + " failed: " + out);
+    }
+
+    @Override
+    public void close() throws Exception {
+        try {
+            asServer("/usr/local/bin/pg_ctl", "-D", data.toString(), "-m", "immediate", "-w", "stop");
+        } catch (IOException e) {
+            // already stopped
+        }
+        try (var w = Files.walk(dir)) {
+            w.sorted(java.util.Comparator.reverseOrder()).forEach(p -> p.toFile().delete());
+        }
+    }
+}
