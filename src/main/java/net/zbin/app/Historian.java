@@ -176,23 +176,37 @@ final class Historian implements AutoCloseable {
             backlog += Math.max(0, Files.size(f) - p[0]);
         }
         if (l.state() != null) {
-            Path alarms = l.state().resolve("alarms-" + l.line() + ".jsonl");
-            if (Files.exists(alarms)) {
-                String name = alarms.getFileName().toString();
-                long[] p = at.computeIfAbsent(name, k -> new long[] {0, 0});
-                if (p[0] != Long.MAX_VALUE) {
-                    FileTail.Chunk c = FileTail.read(alarms, p[0], cfg.batchRows());
-                    if (!c.empty()) {
-                        count(fig, Ingest.alarms(ingest, l.line(), name, c, p[1] + 1));
-                        p[0] = c.endOffset();
-                        p[1] += c.lines();
-                        any = true;
-                    }
-                    backlog += Math.max(0, Files.size(alarms) - p[0]);
-                }
-            }
+            long[] more = {0};
+            any |= followJsonl(l, l.state().resolve("alarms-" + l.line() + ".jsonl"), at, fig, more, Ingest::alarms);
+            any |= followJsonl(l, l.state().resolve(net.zbin.io.CompensationStore.HISTORY), at, fig, more, Ingest::captures);
+            backlog += more[0];
         }
         fig.backlogBytes = backlog;
+        return any;
+    }
+
+    /** How one kind of JSON-lines history goes into the database. */
+    @FunctionalInterface
+    interface JsonlIngest {
+        Ingest.Result write(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException;
+    }
+
+    /** One batch of a JSON-lines history file of the line's state folder; adds what is left to {@code backlog[0]}. */
+    private boolean followJsonl(HistorianConfig.FollowedLine l, Path f, Map<String, long[]> at, LineFigures fig, long[] backlog, JsonlIngest how)
+            throws SQLException, IOException {
+        if (!Files.exists(f)) return false;
+        String name = f.getFileName().toString();
+        long[] p = at.computeIfAbsent(name, k -> new long[] {0, 0});
+        if (p[0] == Long.MAX_VALUE) return false;
+        boolean any = false;
+        FileTail.Chunk c = FileTail.read(f, p[0], cfg.batchRows());
+        if (!c.empty()) {
+            count(fig, how.write(ingest, l.line(), name, c, p[1] + 1));
+            p[0] = c.endOffset();
+            p[1] += c.lines();
+            any = true;
+        }
+        backlog[0] += Math.max(0, Files.size(f) - p[0]);
         return any;
     }
 

@@ -9,7 +9,7 @@ import picocli.CommandLine.Command;
 @Command(name = "zbin", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Sorting controller for passive-component lines: measures each part through an impedance meter,"
                 + " grades it by recipe and tells the handler which bin it goes in.",
-        subcommands = {DemoCommand.class, RunCommand.class, PanelCommand.class, HistorianCommand.class, CalcCommand.class, CheckCommand.class, ReplayCommand.class, TuneCommand.class, CompensateCommand.class, SimCommand.class,
+        subcommands = {DemoCommand.class, RunCommand.class, PanelCommand.class, HistorianCommand.class, ReportCommand.class, CalcCommand.class, CheckCommand.class, ReplayCommand.class, TuneCommand.class, CompensateCommand.class, SimCommand.class,
                 CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
     public static final int EXIT_OK = 0;

@@ -50,15 +50,23 @@ final class ReadOptions {
         if (!db.startsWith("jdbc:postgresql://")) throw new UsageException("--db must be a jdbc:postgresql:// URL (was '" + db + "')");
         if (dbLine == null) throw new UsageException("--db needs --line ID");
         if (dbLot == null && from == null && to == null) throw new UsageException("--db needs --lot LOT, or a time range with --from/--to");
+        return new net.zbin.io.db.DbReadingSource(login(), dbLine, dbLot, instant("--from", from), instant("--to", to), bad);
+    }
+
+    /** The database role of {@code --db-user} (default: the operating-system user) with its password from the environment. */
+    net.zbin.io.db.Db.Login login() throws UsageException {
         char[] pw = null;
         if (dbPasswordEnv != null) {
             String v = System.getenv(dbPasswordEnv);
             if (v == null) throw new UsageException("--db-password-env: environment variable " + dbPasswordEnv + " is not set");
             pw = v.toCharArray();
         }
-        var login = new net.zbin.io.db.Db.Login(db, dbUser != null ? dbUser : System.getProperty("user.name"), pw);
-        return new net.zbin.io.db.DbReadingSource(login, dbLine, dbLot, instant("--from", from), instant("--to", to), bad);
+        return new net.zbin.io.db.Db.Login(db, dbUser != null ? dbUser : System.getProperty("user.name"), pw);
     }
+
+    java.time.Instant fromInstant() throws UsageException { return instant("--from", from); }
+
+    java.time.Instant toInstant() throws UsageException { return instant("--to", to); }
 
     private static java.time.Instant instant(String option, String text) throws UsageException {
         if (text == null) return null;

@@ -46,6 +46,12 @@ public final class CompensationStore {
     private final Path file;
     private final Map<Double, Entry> entries = new TreeMap<>();
 
+    /** Captures put since the store was loaded, written to the capture history at the next {@link #save}. */
+    private final List<ObjectNode> captured = new ArrayList<>();
+
+    /** Every capture, one JSON object a line, beside the store: the plant historian follows it. */
+    public static final String HISTORY = "compensation-history.jsonl";
+
     private CompensationStore(Path file) { this.file = file; }
 
     public Path file() { return file; }
@@ -103,17 +109,30 @@ public final class CompensationStore {
         return new Entry(freqHz, null, null, null, null);
     }
 
+    private void captured(String kind, Impedance z, Instant at) {
+        ObjectNode n = Json.object();
+        n.put("at", at.toString());
+        n.put("kind", kind);
+        n.put("freq_hz", z.freqHz());
+        n.put("r_ohm", z.rOhm());
+        n.put("x_ohm", z.xOhm());
+        captured.add(n);
+    }
+
     public void putOpen(Impedance z, Instant at) {
+        captured("open", z, at);
         Entry e = entryAt(z.freqHz());
         entries.put(e.freqHz(), new Entry(e.freqHz(), new Part(z, at), e.shortZ(), e.load(), e.loadTrue()));
     }
 
     public void putShort(Impedance z, Instant at) {
+        captured("short", z, at);
         Entry e = entryAt(z.freqHz());
         entries.put(e.freqHz(), new Entry(e.freqHz(), e.open(), new Part(z, at), e.load(), e.loadTrue()));
     }
 
     public void putLoad(Impedance z, Impedance standard, Instant at) {
+        captured("load", z, at);
         Entry e = entryAt(z.freqHz());
         entries.put(e.freqHz(), new Entry(e.freqHz(), e.open(), e.shortZ(), new Part(z, at), standard));
     }
@@ -140,6 +159,12 @@ public final class CompensationStore {
         Files.write(tmp, Yaml.mapper().writeValueAsBytes(root));
         if (Files.exists(file)) Files.copy(file, file.resolveSibling(FILE + ".prev"), StandardCopyOption.REPLACE_EXISTING);
         Files.move(tmp, file, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
+        if (captured.isEmpty()) return;
+        StringBuilder b = new StringBuilder();
+        for (ObjectNode n : captured) b.append(Json.mapper().writeValueAsString(n)).append('\n');
+        Files.writeString(file.resolveSibling(HISTORY), b, java.nio.charset.StandardCharsets.UTF_8, java.nio.file.StandardOpenOption.CREATE,
+                java.nio.file.StandardOpenOption.APPEND);
+        captured.clear();
     }
 
     private static void write(ObjectNode o, String key, Part p) {

@@ -101,6 +101,10 @@ class HistorianIT {
                     assertEquals(inFiles.get(l).longValue(), count(c, "SELECT count(*) FROM decisions WHERE line = '" + l + "'"), "line " + l + ": rows in the database = rows in its log");
                 assertEquals(0, count(c, "SELECT count(*) - count(DISTINCT (line, source_file, source_line)) FROM decisions"), "no row twice");
                 assertTrue(count(c, "SELECT count(*) FROM lots WHERE parts > 0") >= 3, "the lots view sees each line's lot");
+                for (String l : lines) // each rig captured open and short once, through the daemon's command
+                    assertEquals(2, count(c, "SELECT count(*) FROM compensation_captures WHERE line = '" + l + "'"), "captures of " + l);
+                assertEquals(0, count(c, "SELECT count(*) FROM compensation_age_at_lot_start WHERE lot <> '' AND newest_capture_age IS NULL"),
+                        "every lot started with a capture before it");
                 System.out.printf("historian: %d rows of 3 lines, %d batches committed, historian killed -9 twice, PostgreSQL once%n", total,
                         count(c, "SELECT count(*) FROM ingest_batches"));
             }
@@ -125,6 +129,26 @@ class HistorianIT {
                     "--lot", lot, "--json");
             assertEquals(0, fromDb.exit(), fromDb.err());
             assertEquals(fromFile.out(), fromDb.out(), "replay from the database = replay of the file");
+
+            // the lot's quality record, rendered in Chromium
+            Path html = dir.resolve("record.html");
+            Cli report = Cli.run("report", "--recipe", recipe.toString(), "--db", pg.url("zbin"), "--db-user", "zbin_reader", "--line", "hx2",
+                    "--lot", lot, "--out", html.toString());
+            assertEquals(0, report.exit(), report.err());
+            String text = Files.readString(html);
+            assertTrue(text.contains("Decisions as recorded") && text.contains("Cpk") && text.contains("in force at its start"), "record sections");
+            assertTrue(!text.contains("http:") && !text.contains("https:") && !text.contains("src="), "self-contained");
+            org.openqa.selenium.chrome.ChromeDriver browser = Chromium.open(dir.resolve("profile"), "1100,2400");
+            try {
+                browser.get(html.toUri().toString());
+                var console = browser.manage().logs().get(org.openqa.selenium.logging.LogType.BROWSER).getAll();
+                assertTrue(console.stream().noneMatch(e -> e.getLevel().intValue() >= java.util.logging.Level.WARNING.intValue()), "console: " + console);
+                assertTrue(browser.findElements(org.openqa.selenium.By.tagName("svg")).size() >= 3, "plots rendered");
+                Files.createDirectories(Path.of("target/historian-it"));
+                Files.write(Path.of("target/historian-it/quality-record.png"), browser.getScreenshotAs(org.openqa.selenium.OutputType.BYTES));
+            } finally {
+                browser.quit();
+            }
         }
     }
 

@@ -201,6 +201,20 @@ public final class HtmlReport {
         return this;
     }
 
+    /** A plain table; the first {@code leftColumns} columns are text (left-aligned), the others figures. */
+    public HtmlReport table(List<String> headers, List<List<String>> rows, int leftColumns) {
+        b.append("<table><tr>");
+        for (int i = 0; i < headers.size(); i++) b.append(i < leftColumns ? "<th class=\"l\">" : "<th>").append(Svg.esc(headers.get(i))).append("</th>");
+        b.append("</tr>");
+        for (List<String> r : rows) {
+            b.append("<tr>");
+            for (int i = 0; i < r.size(); i++) b.append(i < leftColumns ? "<td class=\"l\">" : "<td>").append(Svg.esc(r.get(i))).append("</td>");
+            b.append("</tr>");
+        }
+        b.append("</table>");
+        return this;
+    }
+
     public void write(Path file) throws IOException {
         b.append("<p class=\"note\">Written by zbin at ").append(Instant.now()).append(".</p></body></html>\n");
         Files.writeString(file, b, StandardCharsets.UTF_8);

@@ -186,6 +186,43 @@ public final class Ingest {
         return new Result(stored, chunk.lines() - stored - refused, refused);
     }
 
+    /** Compensation capture lines (one JSON object each: at, kind, freq_hz, r_ohm, x_ohm) as capture rows. */
+    public static Result captures(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
+        c.setAutoCommit(false);
+        long stored = 0, refused = 0;
+        String[] rows = new String(chunk.bytes(), StandardCharsets.UTF_8).split("\n", -1);
+        try (PreparedStatement p = c.prepareStatement("INSERT INTO compensation_captures (line, at, kind, freq_hz, r_ohm, x_ohm, source_file, source_line) "
+                + "VALUES (?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING")) {
+            for (int k = 0; k < rows.length - 1; k++) {
+                JsonNode a;
+                Instant at;
+                try {
+                    a = Json.mapper().readTree(rows[k]);
+                    if (a == null || !a.path("kind").isTextual() || !a.path("freq_hz").isNumber() || !a.path("r_ohm").isNumber() || !a.path("x_ohm").isNumber())
+                        throw new java.io.IOException("needs at, kind, freq_hz, r_ohm and x_ohm");
+                    at = Instant.parse(a.path("at").asText());
+                } catch (java.io.IOException | java.time.format.DateTimeParseException e) {
+                    refused++;
+                    LOG.warn("{}:{}: capture line not stored: {}", file, firstLine + k, e.getMessage());
+                    continue;
+                }
+                p.setString(1, line);
+                p.setTimestamp(2, Timestamp.from(at));
+                p.setString(3, a.path("kind").asText());
+                p.setDouble(4, a.path("freq_hz").asDouble());
+                p.setDouble(5, a.path("r_ohm").asDouble());
+                p.setDouble(6, a.path("x_ohm").asDouble());
+                p.setString(7, file);
+                p.setLong(8, firstLine + k);
+                p.addBatch();
+            }
+            for (int r : p.executeBatch()) if (r > 0) stored += r;
+        }
+        position(c, line, file, chunk, firstLine);
+        c.commit();
+        return new Result(stored, chunk.lines() - stored - refused, refused);
+    }
+
     private static void position(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
         try (PreparedStatement p = c.prepareStatement("INSERT INTO ingest_batches (line, file, end_offset, end_line, rows) VALUES (?, ?, ?, ?, ?)")) {
             p.setString(1, line);
