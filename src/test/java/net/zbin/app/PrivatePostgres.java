@@ -28,12 +28,12 @@ final class PrivatePostgres implements AutoCloseable {
         try (var s = new java.net.ServerSocket(0)) {
             port = s.getLocalPort();
         }
-        asServer("/usr/local/bin/initdb", "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8");
+        asServer(bin("initdb"), "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8");
         start();
     }
 
     void start() throws Exception {
-        asServer("/usr/local/bin/pg_ctl", "-D", data.toString(), "-l", dir.resolve("server.log").toString(), "-w", "-t", "60",
+        asServer(bin("pg_ctl"), "-D", data.toString(), "-l", dir.resolve("server.log").toString(), "-w", "-t", "60",
                 "-o", "-p " + port + " -k " + dir + " -c listen_addresses=127.0.0.1 -c fsync=off", "start");
     }
 
@@ -50,6 +50,17 @@ final class PrivatePostgres implements AutoCloseable {
             } catch (IOException gone) {
                 return;
             }
+        }
+    }
+
+    /** A server program: on the PATH, or Debian's newest /usr/lib/postgresql/N/bin. */
+    static String bin(String name) throws IOException {
+        for (String dirOnPath : System.getenv().getOrDefault("PATH", "").split(":"))
+            if (!dirOnPath.isEmpty() && Files.isExecutable(Path.of(dirOnPath, name))) return Path.of(dirOnPath, name).toString();
+        try (var versions = Files.list(Path.of("/usr/lib/postgresql"))) {
+            return versions.map(v -> v.resolve("bin").resolve(name)).filter(Files::isExecutable)
+                    .max(java.util.Comparator.comparingInt(p -> Integer.parseInt(p.getParent().getParent().getFileName().toString().replaceAll("\\D", "0"))))
+                    .map(Path::toString).orElseThrow(() -> new IOException(name + " not found: install Debian's postgresql"));
         }
     }
 
@@ -82,7 +93,7 @@ final class PrivatePostgres implements AutoCloseable {
     @Override
     public void close() throws Exception {
         try {
-            asServer("/usr/local/bin/pg_ctl", "-D", data.toString(), "-m", "immediate", "-w", "stop");
+            asServer(bin("pg_ctl"), "-D", data.toString(), "-m", "immediate", "-w", "stop");
         } catch (IOException e) {
             // already stopped
         }
