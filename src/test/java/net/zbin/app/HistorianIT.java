@@ -129,6 +129,16 @@ class HistorianIT {
                     "--lot", lot, "--json");
             assertEquals(0, fromDb.exit(), fromDb.err());
             assertEquals(fromFile.out(), fromDb.out(), "replay from the database = replay of the file");
+            Cli tuneFile = Cli.run("tune", "--recipe", recipe.toString(), "--in", file.toString(), "--json", "--quiet", "--vary", "guard=0.2:0.6:0.2");
+            Cli tuneDb = Cli.run("tune", "--recipe", recipe.toString(), "--db", pg.url("zbin"), "--db-user", "zbin_reader", "--line", "hx2",
+                    "--lot", lot, "--json", "--quiet", "--vary", "guard=0.2:0.6:0.2");
+            assertEquals(0, tuneDb.exit(), tuneDb.err());
+            assertEquals(tuneFile.out(), tuneDb.out(), "tune from the database = tune of the file");
+            // a shift (a time range) of the line, as well as a lot
+            Cli shift = Cli.run("report", "--recipe", recipe.toString(), "--db", pg.url("zbin"), "--db-user", "zbin_reader", "--line", "hx2",
+                    "--from", "2000-01-01T00:00:00Z", "--to", "2100-01-01T00:00:00Z", "--out", dir.resolve("shift.html").toString());
+            assertEquals(0, shift.exit(), shift.err());
+            assertTrue(shift.out().contains("quality record of line hx2:"), shift.out());
 
             // the lot's quality record, rendered in Chromium
             Path html = dir.resolve("record.html");

@@ -80,9 +80,16 @@ class HistorianIngestIT {
                     Thread.currentThread().interrupt();
                 }
             });
+            HistorianMetrics metrics = HistorianMetrics.start(h, "127.0.0.1:0");
             t.start();
             try (Connection c = pg.connect("zbin", pg.admin)) {
                 awaitCount(c, "SELECT count(*) FROM decisions", 2);
+                // the historian's own status: rows stored and backlog per line
+                String scraped = java.net.http.HttpClient.newHttpClient().send(java.net.http.HttpRequest.newBuilder(java.net.URI.create(metrics.url())).build(),
+                        java.net.http.HttpResponse.BodyHandlers.ofString()).body();
+                assertTrue(scraped.contains("zbin_historian_rows_stored_total{line=\"hi\"} 2.0") && scraped.contains("zbin_historian_backlog_bytes{line=\"hi\"}"),
+                        scraped);
+                metrics.close();
                 assertEquals(1, HistorianIT.count(c, "SELECT count(*) FROM decisions WHERE lot = '=LOT-7' AND part = '-P1'"), "text stored as meant");
                 assertEquals(1, h.figures.get("hi").refused.get(), "the bad row refused, the others stored");
                 Files.writeString(f, "\n", java.nio.file.StandardOpenOption.APPEND); // the torn line completes

@@ -17,24 +17,45 @@ final class PrivatePostgres implements AutoCloseable {
     final Path dir, data;
     final int port;
     final String admin = "zbin_admin";
+    private final boolean small;
     private final boolean root = "root".equals(System.getProperty("user.name"));
 
-    PrivatePostgres() throws Exception {
+    /** Where the data lives when it has a small file system of its own (a tmpfs the test mounts), else null. */
+    final Path disk;
+
+    PrivatePostgres() throws Exception { this(null); }
+
+    /**
+     * @param diskSize the size of a tmpfs of the server's own for its data (e.g. "120m"; root only), or null: the
+     *                 machine's disk. On a small disk the server writes its WAL in 1 MB segments and keeps few.
+     */
+    PrivatePostgres(String diskSize) throws Exception {
         dir = Files.createTempDirectory("zbin-pg-");
         Files.setPosixFilePermissions(dir, java.nio.file.attribute.PosixFilePermissions.fromString("rwxr-xr-x"));
-        data = dir.resolve("data");
+        if (diskSize != null) {
+            disk = Files.createDirectories(dir.resolve("disk"));
+            run("mount", "-t", "tmpfs", "-o", "size=" + diskSize, "tmpfs", disk.toString());
+            data = disk.resolve("data");
+        } else {
+            disk = null;
+            data = dir.resolve("data");
+        }
+        small = diskSize != null;
         Files.createDirectories(data);
         if (root) run("chown", "postgres:postgres", data.toString(), dir.toString());
+        if (root && disk != null) run("chown", "postgres:postgres", disk.toString());
         try (var s = new java.net.ServerSocket(0)) {
             port = s.getLocalPort();
         }
-        asServer(bin("initdb"), "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8");
+        if (small) asServer(bin("initdb"), "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8", "--wal-segsize=1");
+        else asServer(bin("initdb"), "-D", data.toString(), "-A", "trust", "-U", admin, "--no-sync", "-E", "UTF8");
         start();
     }
 
     void start() throws Exception {
         asServer(bin("pg_ctl"), "-D", data.toString(), "-l", dir.resolve("server.log").toString(), "-w", "-t", "60",
-                "-o", "-p " + port + " -k " + dir + " -c listen_addresses=127.0.0.1 -c fsync=off", "start");
+                "-o", "-p " + port + " -k " + dir + " -c listen_addresses=127.0.0.1 -c fsync=off"
+                        + (small ? " -c min_wal_size=2MB -c max_wal_size=8MB -c shared_buffers=16MB" : ""), "start");
     }
 
     /** kill -9 of the server's main process: what a crash of the database host looks like to its clients. */
@@ -64,12 +85,32 @@ final class PrivatePostgres implements AutoCloseable {
         }
     }
 
+    /** True while the server's main process runs. */
+    boolean alive() throws IOException {
+        if (!Files.exists(data.resolve("postmaster.pid"))) return false;
+        long pid = Long.parseLong(Files.readAllLines(data.resolve("postmaster.pid")).get(0).strip());
+        return ProcessHandle.of(pid).map(ProcessHandle::isAlive).orElse(false);
+    }
+
     String url(String db) { return "jdbc:postgresql://127.0.0.1:" + port + "/" + db; }
 
     Connection connect(String db, String user) throws Exception {
         var p = new java.util.Properties();
         p.setProperty("user", user);
         return DriverManager.getConnection(url(db), p);
+    }
+
+    /** A connection as soon as the server takes one (it may be starting or recovering from a crash), within 60 s. */
+    Connection connectWhenUp(String db, String user) throws Exception {
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
+        while (true) {
+            try {
+                return connect(db, user);
+            } catch (java.sql.SQLException e) {
+                if (System.nanoTime() > end) throw e;
+                Thread.sleep(100);
+            }
+        }
     }
 
     /** Runs a psql script as the admin (psql's own \connect and all). */
@@ -97,6 +138,7 @@ final class PrivatePostgres implements AutoCloseable {
         } catch (IOException e) {
             // already stopped
         }
+        if (disk != null) run("umount", "-l", disk.toString());
         try (var w = Files.walk(dir)) {
             w.sorted(java.util.Comparator.reverseOrder()).forEach(p -> p.toFile().delete());
         }
