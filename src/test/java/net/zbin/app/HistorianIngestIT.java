@@ -117,6 +117,16 @@ class HistorianIngestIT {
                 assertEquals(3, HistorianIT.count(c, "SELECT count(*) FROM decisions"), "no row twice");
                 assertTrue(HistorianIT.count(c, "SELECT count(*) FROM decisions WHERE source_line = 4 AND r_ohm = 1.25") == 1, "source line kept");
             }
+            // retention: a day's partition older than the limit is dropped whole, the others stay
+            try (Connection owner = pg.connect("zbin", "zbin_owner")) {
+                net.zbin.io.db.Partitions.ensure(owner, java.util.List.of(java.time.LocalDate.parse("2020-01-01")));
+                assertEquals(java.util.List.of("decisions_20200101"), net.zbin.io.db.Partitions.dropBefore(owner, java.time.LocalDate.parse("2021-01-01")));
+                assertEquals(3, HistorianIT.count(owner, "SELECT count(*) FROM decisions"), "the lot's day kept");
+            }
+            try (Connection ingest = pg.connect("zbin", "zbin_ingest"); var st = ingest.createStatement()) {
+                java.sql.SQLException e = org.junit.jupiter.api.Assertions.assertThrows(java.sql.SQLException.class, () -> st.execute("DROP TABLE decisions_20261201"));
+                assertEquals("42501", e.getSQLState(), "the ingest role cannot drop a day either: " + e.getMessage());
+            }
         }
     }
 }
