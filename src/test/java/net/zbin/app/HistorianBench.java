@@ -83,15 +83,8 @@ class HistorianBench {
                     "\\copy copy_floor (" + cols + ") FROM '" + big + "' WITH (FORMAT csv, HEADER true)");
             double copyS = (System.nanoTime() - t0) / 1e9;
             Historian h = new Historian(hc, Clock.systemUTC());
-            Thread t = new Thread(() -> {
-                try {
-                    h.run();
-                } catch (InterruptedException e) {
-                    Thread.currentThread().interrupt();
-                }
-            }, "bench-historian");
             long t1 = System.nanoTime();
-            t.start();
+            Thread t = HistorianIngestIT.inBackground(h);
             try (Connection c = admin(db)) {
                 while (count(c, "SELECT count(*) FROM decisions") < rows) {
                     if (System.nanoTime() - t1 > TimeUnit.MINUTES.toNanos(10)) throw new AssertionError("the historian did not finish in 10 min");

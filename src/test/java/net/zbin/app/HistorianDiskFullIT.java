@@ -46,14 +46,7 @@ class HistorianDiskFullIT {
                 while (pg.disk.toFile().getUsableSpace() > (6L << 20)) o.write(mb);
             }
             Historian h = new Historian(HistorianConfig.load(cfg), Clock.systemUTC());
-            Thread t = new Thread(() -> {
-                try {
-                    h.run();
-                } catch (InterruptedException e) {
-                    Thread.currentThread().interrupt();
-                }
-            });
-            t.start();
+            Thread t = HistorianIngestIT.inBackground(h);
             long end = System.nanoTime() + TimeUnit.MINUTES.toNanos(2);
             while (h.dbErrors.get() == 0 && System.nanoTime() < end) Thread.sleep(50);
             assertTrue(h.dbErrors.get() > 0, "the full disk refused the historian's writes");

@@ -44,6 +44,19 @@ class HistorianIngestIT {
         return String.join(",", cells) + "\n";
     }
 
+    /** Runs the historian on a thread of its own until it is closed. */
+    static Thread inBackground(Historian h) {
+        Thread t = new Thread(() -> {
+            try {
+                h.run();
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+            }
+        }, "historian");
+        t.start();
+        return t;
+    }
+
     static void awaitCount(Connection c, String sql, long n) throws Exception {
         long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60), got = -1;
         while (System.nanoTime() < end) {
@@ -73,15 +86,8 @@ class HistorianIngestIT {
             Files.writeString(cfg, "database: {url: '" + pg.url("zbin") + "', user: zbin_ingest, owner_user: zbin_owner}\n"
                     + "lines:\n  - {line: hi, records: records}\npoll_ms: 20\n");
             Historian h = new Historian(HistorianConfig.load(cfg), Clock.systemUTC());
-            Thread t = new Thread(() -> {
-                try {
-                    h.run();
-                } catch (InterruptedException e) {
-                    Thread.currentThread().interrupt();
-                }
-            });
             HistorianMetrics metrics = HistorianMetrics.start(h, "127.0.0.1:0");
-            t.start();
+            Thread t = inBackground(h);
             try (Connection c = pg.connect("zbin", pg.admin)) {
                 awaitCount(c, "SELECT count(*) FROM decisions", 2);
                 // the historian's own status: rows stored and backlog per line
@@ -101,14 +107,7 @@ class HistorianIngestIT {
                     s.execute("DELETE FROM ingest_batches");
                 }
                 Historian again = new Historian(HistorianConfig.load(cfg), Clock.systemUTC());
-                Thread t2 = new Thread(() -> {
-                    try {
-                        again.run();
-                    } catch (InterruptedException e) {
-                        Thread.currentThread().interrupt();
-                    }
-                });
-                t2.start();
+                Thread t2 = inBackground(again);
                 long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
                 while (again.figures.get("hi").already.get() < 3 && System.nanoTime() < end) Thread.sleep(50);
                 again.close();

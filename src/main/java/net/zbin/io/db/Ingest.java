@@ -181,36 +181,36 @@ public final class Ingest {
                 + " FROM staging_decisions ON CONFLICT DO NOTHING";
     }
 
-    /** Alarm history lines (one JSON object each) as alarm events. */
-    public static Result alarms(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
+    /** Binds one parsed history line to the INSERT's parameters 2.. (1 is the line; the last two the file and its line). */
+    @FunctionalInterface
+    private interface Binder {
+        void bind(JsonNode a, PreparedStatement p) throws SQLException, java.io.IOException;
+    }
+
+    /**
+     * One JSON object a line, each line an INSERT row; a line that is not such an object, or lacks what the row
+     * needs, is logged with its file and line and skipped.
+     */
+    private static Result jsonLines(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine, String what, String sql,
+                                    int params, Binder binder) throws SQLException {
         c.setAutoCommit(false);
         long stored = 0, refused = 0;
         String[] rows = new String(chunk.bytes(), StandardCharsets.UTF_8).split("\n", -1);
-        try (PreparedStatement p = c.prepareStatement("INSERT INTO alarm_events (line, code, severity, active, message, since, ack_by, ack_at, ack_note, "
-                + "source_file, source_line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING")) {
+        try (PreparedStatement p = c.prepareStatement(sql)) {
             for (int k = 0; k < rows.length - 1; k++) {
-                JsonNode a;
                 try {
-                    a = Json.mapper().readTree(rows[k]);
-                    if (a == null || !a.path("code").isTextual() || !a.path("since").isTextual()) throw new java.io.IOException("no code or since");
-                    Instant.parse(a.path("since").asText());
+                    JsonNode a = Json.mapper().readTree(rows[k]);
+                    if (a == null || !a.isObject()) throw new java.io.IOException("not a JSON object");
+                    p.setString(1, line);
+                    binder.bind(a, p);
                 } catch (java.io.IOException | java.time.format.DateTimeParseException e) {
+                    p.clearParameters();
                     refused++;
-                    LOG.warn("{}:{}: alarm line not stored: {}", file, firstLine + k, e.getMessage());
+                    LOG.warn("{}:{}: {} line not stored: {}", file, firstLine + k, what, e.getMessage());
                     continue;
                 }
-                JsonNode ack = a.path("acknowledged");
-                p.setString(1, line);
-                p.setString(2, a.path("code").asText());
-                p.setString(3, a.path("severity").asText(""));
-                p.setBoolean(4, a.path("active").asBoolean(false));
-                p.setString(5, a.path("message").asText(""));
-                p.setTimestamp(6, Timestamp.from(Instant.parse(a.path("since").asText())));
-                p.setString(7, ack.isObject() ? ack.path("by").asText() : null);
-                p.setTimestamp(8, ack.isObject() && ack.path("at").isTextual() ? Timestamp.from(Instant.parse(ack.path("at").asText())) : null);
-                p.setString(9, ack.isObject() ? ack.path("note").asText("") : null);
-                p.setString(10, file);
-                p.setLong(11, firstLine + k);
+                p.setString(params - 1, file);
+                p.setLong(params, firstLine + k);
                 p.addBatch();
             }
             for (int r : p.executeBatch()) if (r > 0) stored += r;
@@ -220,41 +220,35 @@ public final class Ingest {
         return new Result(stored, chunk.lines() - stored - refused, refused);
     }
 
+    /** Alarm history lines (one JSON object each) as alarm events. */
+    public static Result alarms(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
+        return jsonLines(c, line, file, chunk, firstLine, "alarm", "INSERT INTO alarm_events (line, code, severity, active, message, since, ack_by, "
+                + "ack_at, ack_note, source_file, source_line) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING", 11, (a, p) -> {
+            if (!a.path("code").isTextual() || !a.path("since").isTextual()) throw new java.io.IOException("no code or since");
+            JsonNode ack = a.path("acknowledged");
+            p.setString(2, a.path("code").asText());
+            p.setString(3, a.path("severity").asText(""));
+            p.setBoolean(4, a.path("active").asBoolean(false));
+            p.setString(5, a.path("message").asText(""));
+            p.setTimestamp(6, Timestamp.from(Instant.parse(a.path("since").asText())));
+            p.setString(7, ack.isObject() ? ack.path("by").asText() : null);
+            p.setTimestamp(8, ack.isObject() && ack.path("at").isTextual() ? Timestamp.from(Instant.parse(ack.path("at").asText())) : null);
+            p.setString(9, ack.isObject() ? ack.path("note").asText("") : null);
+        });
+    }
+
     /** Compensation capture lines (one JSON object each: at, kind, freq_hz, r_ohm, x_ohm) as capture rows. */
     public static Result captures(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
-        c.setAutoCommit(false);
-        long stored = 0, refused = 0;
-        String[] rows = new String(chunk.bytes(), StandardCharsets.UTF_8).split("\n", -1);
-        try (PreparedStatement p = c.prepareStatement("INSERT INTO compensation_captures (line, at, kind, freq_hz, r_ohm, x_ohm, source_file, source_line) "
-                + "VALUES (?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING")) {
-            for (int k = 0; k < rows.length - 1; k++) {
-                JsonNode a;
-                Instant at;
-                try {
-                    a = Json.mapper().readTree(rows[k]);
-                    if (a == null || !a.path("kind").isTextual() || !a.path("freq_hz").isNumber() || !a.path("r_ohm").isNumber() || !a.path("x_ohm").isNumber())
-                        throw new java.io.IOException("needs at, kind, freq_hz, r_ohm and x_ohm");
-                    at = Instant.parse(a.path("at").asText());
-                } catch (java.io.IOException | java.time.format.DateTimeParseException e) {
-                    refused++;
-                    LOG.warn("{}:{}: capture line not stored: {}", file, firstLine + k, e.getMessage());
-                    continue;
-                }
-                p.setString(1, line);
-                p.setTimestamp(2, Timestamp.from(at));
-                p.setString(3, a.path("kind").asText());
-                p.setDouble(4, a.path("freq_hz").asDouble());
-                p.setDouble(5, a.path("r_ohm").asDouble());
-                p.setDouble(6, a.path("x_ohm").asDouble());
-                p.setString(7, file);
-                p.setLong(8, firstLine + k);
-                p.addBatch();
-            }
-            for (int r : p.executeBatch()) if (r > 0) stored += r;
-        }
-        position(c, line, file, chunk, firstLine);
-        c.commit();
-        return new Result(stored, chunk.lines() - stored - refused, refused);
+        return jsonLines(c, line, file, chunk, firstLine, "capture", "INSERT INTO compensation_captures (line, at, kind, freq_hz, r_ohm, x_ohm, "
+                + "source_file, source_line) VALUES (?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING", 8, (a, p) -> {
+            if (!a.path("kind").isTextual() || !a.path("freq_hz").isNumber() || !a.path("r_ohm").isNumber() || !a.path("x_ohm").isNumber())
+                throw new java.io.IOException("needs at, kind, freq_hz, r_ohm and x_ohm");
+            p.setTimestamp(2, Timestamp.from(Instant.parse(a.path("at").asText())));
+            p.setString(3, a.path("kind").asText());
+            p.setDouble(4, a.path("freq_hz").asDouble());
+            p.setDouble(5, a.path("r_ohm").asDouble());
+            p.setDouble(6, a.path("x_ohm").asDouble());
+        });
     }
 
     private static void position(Connection c, String line, String file, FileTail.Chunk chunk, long firstLine) throws SQLException {
