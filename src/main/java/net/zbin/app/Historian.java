@@ -41,6 +41,8 @@ final class Historian implements AutoCloseable {
     private final Map<String, Map<String, long[]>> pos = new HashMap<>();
     final Map<String, LineFigures> figures = new HashMap<>();
     final AtomicLong dbErrors = new AtomicLong();
+    /** Day partitions known to exist on this connection: creating one locks the table, so it is done once per day. */
+    private final java.util.Set<LocalDate> partitions = new java.util.HashSet<>();
     /** Lines whose record folder was missing at the last look (said once). */
     private final java.util.Set<String> missing = new java.util.HashSet<>();
     private Instant lastRetention = Instant.EPOCH, lastReport = Instant.EPOCH;
@@ -105,10 +107,19 @@ final class Historian implements AutoCloseable {
         owner = Db.connect(cfg.owner(), "zbin-historian-owner");
         ingest = Db.connect(cfg.ingest(), "zbin-historian");
         LocalDate today = LocalDate.ofInstant(clock.instant(), ZoneOffset.UTC);
-        Partitions.ensure(owner, List.of(today, today.plusDays(1)));
+        partitions.clear();
+        partitions(List.of(today, today.plusDays(1)));
         pos.clear();
         for (var l : cfg.lines()) pos.put(l.line(), Ingest.positions(ingest, l.line()));
         LOG.info("connected to {} as {} (schema version {}); following {} line(s)", cfg.ingest().url(), cfg.ingest().user(), version, cfg.lines().size());
+    }
+
+    /** The partitions of these days, created where this historian has not seen them yet. */
+    private void partitions(java.util.Collection<LocalDate> days) throws SQLException {
+        List<LocalDate> missing = days.stream().filter(d -> !partitions.contains(d)).toList();
+        if (missing.isEmpty()) return;
+        Partitions.ensure(owner, missing);
+        partitions.addAll(missing);
     }
 
     private void disconnect() {
@@ -164,7 +175,7 @@ final class Historian implements AutoCloseable {
             }
             FileTail.Chunk c = FileTail.read(f, p[0], cfg.batchRows());
             if (!c.empty()) {
-                Partitions.ensure(owner, Ingest.days(c.bytes()));
+                partitions(Ingest.days(c.bytes()));
                 List<String> header = Arrays.asList(FileTail.firstLine(f).split(",", -1));
                 Ingest.Result r = Ingest.records(ingest, l.line(), name, header, c, p[1] + 1);
                 count(fig, r);
@@ -234,9 +245,11 @@ final class Historian implements AutoCloseable {
         Instant now = clock.instant();
         if (now.isAfter(lastRetention.plusSeconds(3600))) {
             LocalDate today = LocalDate.ofInstant(now, ZoneOffset.UTC);
-            Partitions.ensure(owner, List.of(today, today.plusDays(1)));
+            partitions(List.of(today, today.plusDays(1)));
             if (cfg.retentionDays() > 0) {
-                List<String> dropped = Partitions.dropBefore(owner, today.minusDays(cfg.retentionDays()));
+                LocalDate keepFrom = today.minusDays(cfg.retentionDays());
+                List<String> dropped = Partitions.dropBefore(owner, keepFrom);
+                partitions.removeIf(d -> d.isBefore(keepFrom));
                 if (!dropped.isEmpty()) LOG.info("retention {} days: dropped {}", cfg.retentionDays(), dropped);
             }
             lastRetention = now;
