@@ -23,8 +23,15 @@ public final class Partitions {
     /** Creates the partitions of these days where missing. */
     public static void ensure(Connection owner, Iterable<LocalDate> days) throws SQLException {
         try (Statement s = owner.createStatement()) {
-            for (LocalDate d : days)
-                s.execute("CREATE TABLE IF NOT EXISTS " + name(d) + " PARTITION OF decisions FOR VALUES FROM ('" + d + "') TO ('" + d.plusDays(1) + "')");
+            for (LocalDate d : days) {
+                try {
+                    s.execute("CREATE TABLE IF NOT EXISTS " + name(d) + " PARTITION OF decisions FOR VALUES FROM ('" + d + "') TO ('" + d.plusDays(1) + "')");
+                } catch (SQLException e) {
+                    // another historian made the same day's partition at the same moment: it is there, which is all we need
+                    if (!"23505".equals(e.getSQLState()) && !"42P07".equals(e.getSQLState())) throw e;
+                    if (!owner.getAutoCommit()) owner.rollback();
+                }
+            }
         }
         if (!owner.getAutoCommit()) owner.commit();
     }
