@@ -87,6 +87,11 @@ final class Historian implements AutoCloseable {
                 LOG.warn("record files: {}; trying again in {} ms", e.toString(), backoffMs);
                 sleep(backoffMs);
                 backoffMs = Math.min(30_000, backoffMs * 2);
+            } catch (RuntimeException e) { // a defect must not stop the plant's history: say it, start again from the database's position
+                LOG.error("historian: unexpected failure; starting again from the committed positions in {} ms", backoffMs, e);
+                disconnect();
+                sleep(backoffMs);
+                backoffMs = Math.min(30_000, backoffMs * 2);
             }
         }
         disconnect();

@@ -29,19 +29,26 @@ public final class FileTail {
         try (FileChannel ch = FileChannel.open(file, StandardOpenOption.READ)) {
             long size = ch.size();
             if (size <= offset) return new Chunk(new byte[0], offset, 0);
-            int want = (int) Math.min(size - offset, MAX_BYTES);
-            ByteBuffer buf = ByteBuffer.allocate(want);
-            while (buf.hasRemaining() && ch.read(buf, offset + buf.position()) > 0) { /* fill */ }
-            byte[] b = buf.array();
-            int n = buf.position(), lines = 0, end = 0;
-            for (int i = 0; i < n; i++) {
-                if (b[i] != '\n') continue;
-                lines++;
-                end = i + 1;
-                if (lines == maxLines) break;
+            long left = size - offset;
+            // about what maxLines take (a record row is some 330 bytes), more only when the lines are longer
+            int want = (int) Math.min(left, Math.min(MAX_BYTES, Math.max(64 << 10, (long) maxLines * 512)));
+            while (true) {
+                ByteBuffer buf = ByteBuffer.allocate(want);
+                while (buf.hasRemaining() && ch.read(buf, offset + buf.position()) > 0) { /* fill */ }
+                byte[] b = buf.array();
+                int n = buf.position(), lines = 0, end = 0;
+                for (int i = 0; i < n; i++) {
+                    if (b[i] != '\n') continue;
+                    lines++;
+                    end = i + 1;
+                    if (lines == maxLines) break;
+                }
+                if (lines < maxLines && n == want && want < left && want < MAX_BYTES) {
+                    want = (int) Math.min(left, Math.min(MAX_BYTES, 2L * want)); // the lines are longer than guessed: read more
+                    continue;
+                }
+                return new Chunk(java.util.Arrays.copyOf(b, end), offset + end, lines);
             }
-            byte[] out = java.util.Arrays.copyOf(b, end);
-            return new Chunk(out, offset + end, lines);
         }
     }
 

@@ -43,6 +43,17 @@ class FileTailTest {
     }
 
     @Test
+    void longLines_areReadWhole_howeverLongerThanGuessed() throws Exception {
+        Path f = dir.resolve("long.csv");
+        String line = "x".repeat(200_000) + "\n";
+        Files.writeString(f, "h\n" + line + line + "tail-without-newline");
+        FileTail.Chunk c = FileTail.read(f, 2, 2);
+        assertEquals(2, c.lines());
+        assertEquals(2L * line.length(), c.bytes().length);
+        assertEquals(2 + 2L * line.length(), c.endOffset());
+    }
+
+    @Test
     void numbered_putsTheFileAndLineInFront_quotingTheName() {
         byte[] out = Ingest.numbered("l \"x\".csv", "a,b\nc,d\n".getBytes(StandardCharsets.UTF_8), 7);
         assertEquals("\"l \"\"x\"\".csv\",7,a,b\n\"l \"\"x\"\".csv\",8,c,d\n", new String(out, StandardCharsets.UTF_8));
