@@ -47,10 +47,18 @@ final class ReadOptions {
             return net.zbin.io.ReadingSource.open(in, bad);
         }
         if (in != null) throw new UsageException("give --in or --db, not both");
+        checkDb();
+        return new net.zbin.io.db.DbReadingSource(login(), dbLine, dbLot, instant("--from", from), instant("--to", to), bad);
+    }
+
+    /** The database options make one selection: a URL, a line, and a lot or a time range (valid instants). */
+    void checkDb() throws UsageException {
+        if (db == null) throw new UsageException("give --db URL --line ID with --lot LOT or --from/--to");
         if (!db.startsWith("jdbc:postgresql://")) throw new UsageException("--db must be a jdbc:postgresql:// URL (was '" + db + "')");
         if (dbLine == null) throw new UsageException("--db needs --line ID");
         if (dbLot == null && from == null && to == null) throw new UsageException("--db needs --lot LOT, or a time range with --from/--to");
-        return new net.zbin.io.db.DbReadingSource(login(), dbLine, dbLot, instant("--from", from), instant("--to", to), bad);
+        instant("--from", from);
+        instant("--to", to);
     }
 
     /** The database role of {@code --db-user} (default: the operating-system user) with its password from the environment. */

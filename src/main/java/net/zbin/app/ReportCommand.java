@@ -41,16 +41,11 @@ public final class ReportCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        if (reading.db == null) throw new UsageException("give --db URL --line ID with --lot LOT or --from/--to");
+        reading.checkDb();
         if (reading.report != null) throw new UsageException("--report: the record is written to --out");
         ReadOptions.folderOf("--out", out);
         Recipe recipe = reading.forLine(RecipeLoader.load(recipeFile));
         LotRecord rec;
-        try (ReadingSource probe = reading.open(null, b -> { })) {
-            // opens the same selection as the regrade below: the options are checked once, here
-        } catch (java.io.IOException e) {
-            throw new UsageException(e.getMessage());
-        }
         try {
             rec = LotRecord.read(reading.login(), reading.dbLine, reading.dbLot, reading.fromInstant(), reading.toInstant());
         } catch (java.sql.SQLException e) {

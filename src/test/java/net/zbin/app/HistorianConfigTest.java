@@ -45,6 +45,28 @@ class HistorianConfigTest {
     }
 
     @Test
+    void databaseOptionMistakes_ofReplayTuneAndReport_exit2() throws Exception {
+        String recipe = "config/recipes/mlcc-x7r-100n.yaml", db = "jdbc:postgresql://127.0.0.1:1/zbin";
+        String[][] cases = {
+                {"replay", "--recipe", recipe}, {"replay", "--recipe", recipe, "--in", "x.csv", "--db", db, "--line", "l", "--lot", "a"},
+                {"replay", "--recipe", recipe, "--db", db, "--lot", "a"}, {"replay", "--recipe", recipe, "--db", db, "--line", "l"},
+                {"replay", "--recipe", recipe, "--db", "postgres://x", "--line", "l", "--lot", "a"},
+                {"replay", "--recipe", recipe, "--in", "x.csv", "--lot", "a"},
+                {"tune", "--recipe", recipe, "--db", db, "--line", "l", "--from", "yesterday", "--vary", "guard=0:0.4:0.2"},
+                {"report", "--recipe", recipe, "--out", dir.resolve("r.html").toString()},
+                {"report", "--recipe", recipe, "--out", dir.resolve("r.html").toString(), "--db", db, "--line", "l"}};
+        String[] said = {"--in", "not both", "--line", "--lot", "jdbc:postgresql", "go with --db", "--from", "--db", "--lot"};
+        for (int i = 0; i < cases.length; i++) {
+            Cli r = Cli.run(cases[i]);
+            assertEquals(2, r.exit(), String.join(" ", cases[i]) + ": " + r.out() + r.err());
+            assertTrue(r.err().contains(said[i]), String.join(" ", cases[i]) + " says " + said[i] + ": " + r.err());
+        }
+        Cli unreachable = Cli.run("replay", "--recipe", recipe, "--db", db, "--line", "l", "--lot", "a");
+        assertEquals(2, unreachable.exit(), unreachable.err());
+        assertTrue(unreachable.err().contains("database") && !unreachable.err().contains("\tat "), "a short reason: " + unreachable.err());
+    }
+
+    @Test
     void aPasswordIsNeverShown() throws Exception {
         Files.writeString(dir.resolve("db.pass"), "s3cret-pass-word\n");
         var cfg = net.zbin.io.db.HistorianConfig.load(write("database: {url: 'jdbc:postgresql://h/z', user: u, password_file: db.pass}\n"
