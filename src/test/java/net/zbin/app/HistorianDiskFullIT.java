@@ -57,8 +57,7 @@ class HistorianDiskFullIT {
                 before = -1; // the full disk stopped the server
             }
             Files.delete(ballast); // space is back
-            if (!pg.alive()) pg.start();
-            try (Connection c = pg.connectWhenUp("zbin", pg.admin)) {
+            try (Connection c = pg.revive("zbin", pg.admin)) {
                 HistorianIngestIT.awaitCount(c, "SELECT count(*) FROM decisions", ROWS);
                 Thread.sleep(300);
                 assertEquals(ROWS, HistorianIT.count(c, "SELECT count(*) FROM decisions"), "every row once");

@@ -100,15 +100,25 @@ final class PrivatePostgres implements AutoCloseable {
         return DriverManager.getConnection(url(db), p);
     }
 
-    /** A connection as soon as the server takes one (it may be starting or recovering from a crash), within 60 s. */
-    Connection connectWhenUp(String db, String user) throws Exception {
-        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
+    /**
+     * A connection once the server is back, starting it again whenever it is found stopped (a server that hit a full
+     * disk may still be shutting down when first looked at), within 90 s.
+     */
+    Connection revive(String db, String user) throws Exception {
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(90);
         while (true) {
             try {
                 return connect(db, user);
             } catch (java.sql.SQLException e) {
                 if (System.nanoTime() > end) throw e;
-                Thread.sleep(100);
+                if (!alive()) {
+                    try {
+                        start();
+                    } catch (IOException notYet) {
+                        // the old server's processes are still going away: look again
+                    }
+                }
+                Thread.sleep(200);
             }
         }
     }
