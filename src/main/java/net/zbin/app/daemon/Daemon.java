@@ -56,6 +56,9 @@ public final class Daemon implements AutoCloseable {
     private net.zbin.app.status.StatusServer status;
     /** The snapshot the last dashboard encoded: what {@code /metrics} reports, so a scrape agrees with the dashboard. */
     private volatile LineSnapshot lastSnapshot;
+    /** Periodic dashboards published: a finished lot's dashboard sent later is retained only if none came in between. */
+    private final java.util.concurrent.atomic.AtomicLong dashboards = new java.util.concurrent.atomic.AtomicLong();
+    static final long LOT_END_DASHBOARD_DELAY_MS = 200;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
         this.cfg = cfg;
@@ -99,18 +102,21 @@ public final class Daemon implements AutoCloseable {
         if (cfg.status() != null) startStatus(); // before the broker: a page that cannot listen stops the start, not a running line
         // The finished lot's last figures, retained until the next dashboard: snapshotted on the measuring thread before
         // they move to the new lot (copies only), encoded and published by the ticker (no encoding, file or send here).
+        // Sent LOT_END_DASHBOARD_DELAY_MS later, so that its encoding and its few kilobytes on the MQTT connection do not
+        // hold up the new lot's first decision (they would share the client's sender); retained only if no dashboard of the
+        // new lot went out meanwhile.
         path.onLotEnd(() -> {
             LineSnapshot s = snapshot(mode.mode());
-            ticker.execute(() -> {
+            long sentBefore = dashboards.get();
+            ticker.schedule(() -> {
                 try {
                     var node = DashboardJson.encode(s);
-                    if (boards != null) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
-                    byte[] last = Payloads.bytes(node);
-                    mqtt.publish(topics.dashboard(), last, 0, true);
+                    if (boards != null && dashboards.get() == sentBefore) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
+                    mqtt.publish(topics.dashboard(), Payloads.bytes(node), 0, dashboards.get() == sentBefore);
                 } catch (RuntimeException e) {
                     LOG.warn("dashboard: {}", e.toString());
                 }
-            });
+            }, LOT_END_DASHBOARD_DELAY_MS, TimeUnit.MILLISECONDS);
         });
         monitor.compensation(setup.compensation(), setup.stepCompensations());
         records.start();
@@ -147,7 +153,6 @@ public final class Daemon implements AutoCloseable {
                 monitor.compensation(setup.compensation(), setup.stepCompensations());
             }
         }), 1, 1, TimeUnit.SECONDS);
-        ticker.execute(this::publishDashboard); // the first dashboard now: a page opened at once has figures to show
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
 
@@ -282,6 +287,7 @@ public final class Daemon implements AutoCloseable {
             LineSnapshot snap = snapshot(mode.mode());
             var node = DashboardJson.encode(snap);
             lastSnapshot = snap;
+            dashboards.incrementAndGet();
             if (boards != null) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
             mqtt.publish(topics.dashboard(), Payloads.bytes(node), 0, true);
         } catch (RuntimeException e) {
