@@ -333,9 +333,7 @@ public final class StatusServer implements AutoCloseable {
                 long v = boards.version();
                 if (v != seen) {
                     seen = v;
-                    var now = boards.clock().instant();
-                    JsonNode body = line == null ? plant() : boards.line(line).view(now, canAct());
-                    out.write(("event: view\ndata: " + Json.mapper().writeValueAsString(body) + "\n\n").getBytes(StandardCharsets.UTF_8));
+                    out.write(event(line, v));
                 } else out.write(": alive\n\n".getBytes(StandardCharsets.US_ASCII));
                 out.flush();
                 try {
@@ -348,6 +346,25 @@ public final class StatusServer implements AutoCloseable {
         } finally {
             streams.decrementAndGet();
         }
+    }
+
+    /** The last event written for a page (a line, or "" for the plant): its version and bytes. */
+    private record Event(long version, byte[] bytes) {}
+
+    private final java.util.concurrent.ConcurrentHashMap<String, Event> events = new java.util.concurrent.ConcurrentHashMap<>();
+
+    /**
+     * The view event of {@code version}, encoded once for all the pages that show it (twenty open pages cost one
+     * encoding per change, not twenty).
+     */
+    private byte[] event(String line, long version) throws IOException {
+        String key = line == null ? "" : line;
+        Event e = events.get(key);
+        if (e != null && e.version() >= version) return e.bytes();
+        JsonNode body = line == null ? plant() : boards.line(line).view(boards.clock().instant(), canAct());
+        byte[] b = ("event: view\ndata: " + Json.mapper().writeValueAsString(body) + "\n\n").getBytes(StandardCharsets.UTF_8);
+        events.merge(key, new Event(version, b), (old, now) -> old.version() >= now.version() ? old : now);
+        return b;
     }
 
     private static void json(HttpExchange x, int code, JsonNode n) throws IOException {
