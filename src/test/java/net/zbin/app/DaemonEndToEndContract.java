@@ -42,7 +42,11 @@ abstract class DaemonEndToEndContract {
             assertEquals(0, s.missing(), "missing");
             assertEquals(0, s.duplicate(), "duplicate");
             assertEquals(0, s.contradictory(), "contradictory");
-            assertEquals(100, s.repeatsAnswered(), "every deliberate repeat answered as a repeat");
+            assertEquals(100, s.deliberateRepeats());
+            // every deliberate repeat is answered as a repeat; so is a trigger the handler sent again for want of an answer in
+            // time (a loaded machine), once its first presentation was decided
+            assertTrue(s.repeatsAnswered() >= 100 && s.repeatsAnswered() <= 100 + s.resent(),
+                    "repeats answered " + s.repeatsAnswered() + ", deliberate 100, re-sent " + s.resent());
             long expected = s.triggers() - 100;
             List<Tap.Msg> decisions = tap.await(m -> isDecision(m) && !m.json().path("repeat").asBoolean(), (int) expected, 30_000);
             Map<Long, List<JsonNode>> bySeq = decisions.stream().map(Tap.Msg::json).collect(Collectors.groupingBy(j -> j.path("seq").asLong()));
