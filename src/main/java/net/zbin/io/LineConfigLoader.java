@@ -3,10 +3,8 @@ package net.zbin.io;
 import net.zbin.core.FixtureBounds;
 import net.zbin.core.Unit;
 import java.io.IOException;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import org.slf4j.LoggerFactory;
 import java.util.List;
 import net.zbin.core.FixtureCheck;
 import net.zbin.core.FixtureLimits;
@@ -21,6 +19,9 @@ import net.zbin.io.meter.TransportSpecs;
  */
 public final class LineConfigLoader {
     private LineConfigLoader() {}
+
+    /** The key that accepts a secret file group or others can read, with a warning. */
+    static final String OPEN_SECRETS = "mqtt.allow_open_secrets";
 
     public static LineConfig load(Path file) throws ConfigException {
         SpecNode n = Yaml.read(file);
@@ -42,8 +43,7 @@ public final class LineConfigLoader {
         char[] password = null;
         boolean openSecretsAllowed = m.optBool("allow_open_secrets", false);
         if (pwFile != null) {
-            secretMode(file, m.key("password_file"), base.resolve(pwFile), openSecretsAllowed);
-            password = readSecret(file, m.key("password_file"), base.resolve(pwFile));
+            password = Secrets.password(file, m.key("password_file"), base.resolve(pwFile), openSecretsAllowed, OPEN_SECRETS);
         }
         if (pwEnv != null) {
             String v = System.getenv(pwEnv);
@@ -60,7 +60,7 @@ public final class LineConfigLoader {
         if (ca != null && (problem = TlsFiles.certificateProblem(ca)) != null) throw m.error("tls.ca_file", ca + " " + problem);
         if (cert != null && (problem = TlsFiles.certificateProblem(cert)) != null) throw m.error("tls.cert_file", cert + " " + problem);
         if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw m.error("tls.key_file", key + " " + problem);
-        if (key != null) secretMode(file, m.key("tls.key_file"), key, openSecretsAllowed);
+        if (key != null) Secrets.checkMode(file, m.key("tls.key_file"), key, openSecretsAllowed, OPEN_SECRETS);
         int keepAlive = m.optInteger("keepalive_s", 10);
         if (keepAlive < 2 || keepAlive > 600) throw m.error("keepalive_s", "must be 2..600 (was " + keepAlive + ")");
         m.finish();
@@ -158,7 +158,7 @@ public final class LineConfigLoader {
         if (opFile != null) {
             Path p = base.resolve(opFile);
             if (!Files.isReadable(p)) throw s.error("operators_file", "file " + p + " is missing or unreadable");
-            secretMode(s.file(), s.key("operators_file"), p, openSecretsAllowed);
+            Secrets.checkMode(s.file(), s.key("operators_file"), p, openSecretsAllowed, OPEN_SECRETS);
             ops = Operators.load(p);
         }
         SpecNode tls = s.child("tls");
@@ -168,7 +168,7 @@ public final class LineConfigLoader {
         String problem;
         if (cert != null && (problem = TlsFiles.certificateProblem(cert)) != null) throw s.error("tls.cert_file", cert + " " + problem);
         if (key != null && (problem = TlsFiles.keyProblem(key)) != null) throw s.error("tls.key_file", key + " " + problem);
-        if (key != null) secretMode(s.file(), s.key("tls.key_file"), key, openSecretsAllowed);
+        if (key != null) Secrets.checkMode(s.file(), s.key("tls.key_file"), key, openSecretsAllowed, OPEN_SECRETS);
         s.finish();
         Operators o = ops;
         LineConfig.Status st = s.build(null, () -> new LineConfig.Status(at.host(), at.port(), o, cert, key));
@@ -186,36 +186,4 @@ public final class LineConfigLoader {
         return p;
     }
 
-    /**
-     * A password file or private key that group or others may read is refused, as ssh refuses such a private key;
-     * {@code mqtt.allow_open_secrets: true} turns the refusal into a warning (a file system without POSIX modes is
-     * not checked).
-     */
-    private static void secretMode(Path config, String key, Path p, boolean allowed) throws ConfigException {
-        java.util.Set<java.nio.file.attribute.PosixFilePermission> perms;
-        try {
-            perms = Files.getPosixFilePermissions(p);
-        } catch (UnsupportedOperationException | IOException e) {
-            return;
-        }
-        var open = java.util.EnumSet.of(java.nio.file.attribute.PosixFilePermission.GROUP_READ,
-                java.nio.file.attribute.PosixFilePermission.GROUP_WRITE, java.nio.file.attribute.PosixFilePermission.OTHERS_READ,
-                java.nio.file.attribute.PosixFilePermission.OTHERS_WRITE);
-        open.retainAll(perms);
-        if (open.isEmpty()) return;
-        String mode = java.nio.file.attribute.PosixFilePermissions.toString(perms);
-        String why = p + " can be read or written by group or others (" + mode + "): chmod 600 it";
-        if (!allowed) throw new ConfigException(config, key, why + ", or set mqtt.allow_open_secrets: true to accept it with a warning");
-        LoggerFactory.getLogger(LineConfigLoader.class).warn("{}: {}: {} (accepted: mqtt.allow_open_secrets is true)", config, key, why);
-    }
-
-    private static char[] readSecret(Path config, String key, Path p) throws ConfigException {
-        try {
-            String s = Files.readString(p, StandardCharsets.UTF_8).strip();
-            if (s.isEmpty()) throw new ConfigException(config, key, "password file " + p + " is empty");
-            return s.toCharArray();
-        } catch (IOException e) {
-            throw new ConfigException(config, key, "cannot read password file " + p);
-        }
-    }
 }

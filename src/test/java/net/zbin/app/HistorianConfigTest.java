@@ -67,8 +67,20 @@ class HistorianConfigTest {
     }
 
     @Test
+    void aPasswordFileOthersCanRead_isRefusedLikeTheLineConfigsOwn() throws Exception {
+        Path pass = dir.resolve("open.pass");
+        Files.writeString(pass, "s3cret-pass-word\n");
+        Files.setPosixFilePermissions(pass, java.nio.file.attribute.PosixFilePermissions.fromString("rw-r--r--"));
+        Cli r = historian("database: {url: 'jdbc:postgresql://h/z', user: u, password_file: open.pass}\nlines:\n  - {line: l1, records: r}\n");
+        assertEquals(2, r.exit(), r.out() + r.err());
+        assertTrue(r.err().contains("database.password_file") && r.err().contains("chmod 600") && r.err().contains("database.allow_open_secrets"), r.err());
+        assertFalse(r.err().contains("s3cret"), r.err());
+    }
+
+    @Test
     void aPasswordIsNeverShown() throws Exception {
         Files.writeString(dir.resolve("db.pass"), "s3cret-pass-word\n");
+        Files.setPosixFilePermissions(dir.resolve("db.pass"), java.nio.file.attribute.PosixFilePermissions.fromString("rw-------"));
         var cfg = net.zbin.io.db.HistorianConfig.load(write("database: {url: 'jdbc:postgresql://h/z', user: u, password_file: db.pass}\n"
                 + "lines:\n  - {line: l1, records: r}\n"));
         assertEquals("s3cret-pass-word", new String(cfg.ingest().password()));

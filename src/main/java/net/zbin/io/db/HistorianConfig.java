@@ -1,6 +1,5 @@
 package net.zbin.io.db;
 
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
 import net.zbin.io.ConfigException;
@@ -29,8 +28,10 @@ public record HistorianConfig(Path file, Db.Login ingest, Db.Login owner, List<F
         if (!n.has("database")) throw n.error("database", "is required (url, user and owner_user)");
         String url = db.text("url");
         if (!url.startsWith("jdbc:postgresql://")) throw db.error("url", "must be a jdbc:postgresql:// URL (was '" + url + "')");
-        Db.Login ingest = new Db.Login(url, db.text("user"), password(db, base, "password_file", "password_env", secrets));
-        Db.Login owner = new Db.Login(url, db.optText("owner_user", ingest.user()), password(db, base, "owner_password_file", "owner_password_env", secrets));
+        boolean openOk = db.optBool("allow_open_secrets", false);
+        Db.Login ingest = new Db.Login(url, db.text("user"), password(db, base, "password_file", "password_env", secrets, openOk));
+        Db.Login owner = new Db.Login(url, db.optText("owner_user", ingest.user()),
+                password(db, base, "owner_password_file", "owner_password_env", secrets, openOk));
         db.finish();
         List<FollowedLine> lines = n.list("lines", l -> {
             String id = l.text("line");
@@ -61,7 +62,7 @@ public record HistorianConfig(Path file, Db.Login ingest, Db.Login owner, List<F
         return new HistorianConfig(file, ingest, owner, List.copyOf(lines), batch, poll, keep, metrics);
     }
 
-    private static char[] password(SpecNode db, Path base, String fileKey, String envKey, boolean secrets) throws ConfigException {
+    private static char[] password(SpecNode db, Path base, String fileKey, String envKey, boolean secrets, boolean openOk) throws ConfigException {
         String f = db.optText(fileKey, null), env = db.optText(envKey, null);
         if (f != null && env != null) throw db.error(fileKey, "give " + fileKey + " or " + envKey + ", not both");
         if (!secrets) return null;
@@ -71,12 +72,6 @@ public record HistorianConfig(Path file, Db.Login ingest, Db.Login owner, List<F
             return v.toCharArray();
         }
         if (f == null) return null;
-        try {
-            String s = Files.readString(base.resolve(f)).strip();
-            if (s.isEmpty()) throw db.error(fileKey, "password file " + base.resolve(f) + " is empty");
-            return s.toCharArray();
-        } catch (java.io.IOException e) {
-            throw db.error(fileKey, "cannot read password file " + base.resolve(f));
-        }
+        return net.zbin.io.Secrets.password(db.file(), db.key(fileKey), base.resolve(f), openOk, db.key("allow_open_secrets"));
     }
 }
