@@ -139,7 +139,6 @@ public final class Daemon implements AutoCloseable {
         watch.probe();
         warming.join();
         mqtt.connected(connecting, connectTimeoutMs);
-        mqtt.awaitSubscribed(connectTimeoutMs); // start() returns when a trigger from any client is heard, not only requested
         synchronized (startLock) {
             warm = true;
             if (subscribed) mode.announce();

@@ -144,33 +144,10 @@ public final class MqttLink implements Publisher, AutoCloseable {
             String[] topics = subscriptions.toArray(new String[0]);
             int[] qos = new int[topics.length];
             java.util.Arrays.fill(qos, 1);
-            IMqttToken t = client.subscribe(topics, qos); // asynchronous: never wait inside the callback
-            subscribeRequested.complete(t);
+            client.subscribe(topics, qos); // asynchronous: never wait inside the callback
         } catch (MqttException e) {
             LOG.error("subscribe failed: {}", e.toString());
         }
-    }
-
-    /** The first connection's subscribe request, once made (on Paho's thread, right after the connect). */
-    private final java.util.concurrent.CompletableFuture<IMqttToken> subscribeRequested = new java.util.concurrent.CompletableFuture<>();
-
-    /**
-     * Waits, up to the timeout, until the broker acknowledged the first connection's subscriptions: from then on a
-     * message published to them is delivered here, whatever connection it comes from.
-     */
-    public void awaitSubscribed(long timeoutMs) throws MqttException {
-        if (subscriptions.isEmpty()) return;
-        long end = System.nanoTime() + timeoutMs * 1_000_000L;
-        IMqttToken t;
-        try {
-            t = subscribeRequested.get(timeoutMs, java.util.concurrent.TimeUnit.MILLISECONDS);
-        } catch (java.util.concurrent.TimeoutException | java.util.concurrent.ExecutionException e) {
-            throw new MqttException(MqttException.REASON_CODE_CLIENT_TIMEOUT);
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-            throw new MqttException(MqttException.REASON_CODE_CLIENT_TIMEOUT);
-        }
-        t.waitForCompletion(Math.max(1, (end - System.nanoTime()) / 1_000_000L));
     }
 
     /** Connects, waiting up to the timeout for the first connection. */
