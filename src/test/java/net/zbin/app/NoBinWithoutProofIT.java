@@ -39,7 +39,8 @@ class NoBinWithoutProofIT {
     @Test
     void aMeterThatSendsStrayLines_neverPassesAPartOnOpenContacts() throws Exception {
         try (LineRig rig = new LineRig(dir, "stray", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
-             Tap tap = new Tap(broker.url(), "zbin/stray/decision")) {
+             Tap tap = new Tap(broker.url(), "zbin/stray/decision", "zbin/stray/state")) {
+            awaitReady(tap);
             PartModel good = new PartModel.Capacitor(100e-9, 0.02, 0, 0.01);
             int openPassed = 0, openSeen = 0, goodPassed = 0;
             for (long seq = 1; seq <= 300; seq++) {
@@ -67,6 +68,7 @@ class NoBinWithoutProofIT {
     void aRefusedFrequency_givesNoValueBin_faultStateAndACriticalAlarm_andCapturesAreRefused() throws Exception {
         try (LineRig rig = new LineRig(dir, "refuse", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
              Tap tap = new Tap(broker.url(), "zbin/refuse/#")) {
+            awaitReady(tap);
             Path recipes = rig.cfg.recipeDir();
             Files.writeString(recipes.resolve("c0g-at-100m.yaml"), Files.readString(recipes.resolve("mlcc-c0g-100p.yaml"))
                     .replace("recipe: mlcc-c0g-100p", "recipe: c0g-at-100m").replace("freq: 1M", "freq: 100M")
@@ -146,6 +148,7 @@ class NoBinWithoutProofIT {
     void aRecipeBoundAlarm_clearsWhenTheRecipeChanges_andAfterACaptureTheNewRecipeRaisesNothingStale() throws Exception {
         try (LineRig rig = new LineRig(dir, "ralarm", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-c0g-100p", "");
              Tap tap = new Tap(broker.url(), "zbin/ralarm/#")) {
+            awaitReady(tap);
             // the C0G recipe needs compensation and none is stored: raised at start
             tap.await(m -> m.topic().endsWith("/dashboard") && m.json().path("alarms").toString().contains("compensation-missing"), 1, 10_000);
             tap.publish("zbin/ralarm/command", "{\"cmd\":\"recipe\",\"name\":\"mlcc-x7r-100n\",\"id\":\"x\"}");
@@ -159,5 +162,13 @@ class NoBinWithoutProofIT {
             assertEquals("[]", dash.path("alarms").toString(), "no alarm of another recipe on the line: " + dash.path("alarms"));
             assertEquals(0, dash.path("monitor").path("alarms").size(), "the monitor agrees: " + dash.path("monitor").path("alarms"));
         }
+    }
+
+    /**
+     * The line's ready state, as a handler waits for it: the daemon publishes it after its subscribe on the same
+     * connection, so from then on a trigger from another client is heard (start() returning only means requested).
+     */
+    static void awaitReady(Tap tap) throws InterruptedException {
+        tap.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean() && m.json().path("mode").asText().equals("ready"), 1, 30_000);
     }
 }
