@@ -37,16 +37,21 @@ public final class DriftChart {
                        double ewma, double ewmaLimit, double cusumHigh, double cusumLow, double cusumH, boolean alarm, int direction,
                        long signals, double shift) {}
 
-    public DriftChart(MonitorSettings s) {
+    public DriftChart(MonitorSettings s) { this(s, s.design()); }
+
+    /** With the design already made for {@code s} (a monitor starting a lot reuses its own: no lookup at a lot change). */
+    DriftChart(MonitorSettings s, ChartDesign design) {
         this.s = s;
-        this.design = s.design();
+        this.design = design;
         this.ewma = new EwmaChart(design.lambda(), design.limitL(), false);
         this.cusum = new CusumChart(design.k(), design.h());
     }
 
     /** Uses a known baseline (mean, σ of one part) instead of learning one. */
-    public DriftChart(MonitorSettings s, double mean, double sigma) {
-        this(s);
+    public DriftChart(MonitorSettings s, double mean, double sigma) { this(s, s.design(), mean, sigma); }
+
+    DriftChart(MonitorSettings s, ChartDesign design, double mean, double sigma) {
+        this(s, design);
         if (!(sigma > 0)) throw new SpecException("monitor.sigma", "must be > 0 (was " + sigma + ")");
         mu0 = mean;
         sigma0 = sigma;

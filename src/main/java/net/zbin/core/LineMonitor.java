@@ -22,6 +22,8 @@ public final class LineMonitor {
     private final FixtureCheck.Limits checkLimits;
     private Recipe recipe;
     private DriftChart value, loss;
+    /** The charts' design for {@link #s}, made once: every lot's charts use it. */
+    private final ChartDesign design;
     private final RunningStats dev = new RunningStats();
     private final Window window;
     private final EnumMap<AlarmCode, String> active = new EnumMap<>(AlarmCode.class);
@@ -43,6 +45,7 @@ public final class LineMonitor {
     public LineMonitor(MonitorSettings s, FixtureCheck.Limits checkLimits, Recipe recipe) {
         this.s = s;
         this.checkLimits = checkLimits;
+        this.design = s.design();
         this.window = new Window(s.windowParts());
         startLot(recipe);
     }
@@ -50,8 +53,8 @@ public final class LineMonitor {
     /** A new lot (or recipe): figures and charts start again. Alarms of the fixture stay as they are. */
     public void startLot(Recipe r) {
         recipe = r;
-        value = s.statedBaseline() ? new DriftChart(s, s.baselineMeanPct(), s.baselineSigmaPct()) : new DriftChart(s);
-        loss = new DriftChart(s);
+        value = s.statedBaseline() ? new DriftChart(s, design, s.baselineMeanPct(), s.baselineSigmaPct()) : new DriftChart(s, design);
+        loss = new DriftChart(s, design);
         dev.reset();
         window.clear();
         cause = Cause.NONE;

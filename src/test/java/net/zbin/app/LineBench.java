@@ -46,6 +46,10 @@ class LineBench {
 
     /** Inside zbin, per decision of the paced run: its own latency_ms, from the trigger's arrival to the decision made (ns). */
     static final Histogram INSIDE = new Histogram(60_000_000_000L, 3);
+    /** The same figure for the first 100 decisions after start. */
+    static final Histogram INSIDE_FIRST = new Histogram(60_000_000_000L, 3);
+    /** The same figure for the first decision of each new lot. */
+    static final Histogram INSIDE_LOT = new Histogram(60_000_000_000L, 3);
 
     static MqttAsyncClient client(String url, Map<String, CompletableFuture<Long>> waiting, String... subs) throws Exception {
         MqttAsyncClient c = new MqttAsyncClient(url, "bench-" + System.nanoTime(), new MemoryPersistence());
@@ -61,11 +65,13 @@ class LineBench {
                 CompletableFuture<Long> f = waiting.get(p.substring(s, e).trim());
                 if (f != null) f.complete(System.nanoTime());
                 int l = p.indexOf("\"latency_ms\":");
-                if (l >= 0 && p.contains("\"part\":\"P\"")) { // the line's own figure: from the trigger's arrival to the decision made
+                Histogram inside = p.contains("\"part\":\"P\"") ? INSIDE : p.contains("\"part\":\"F\"") ? INSIDE_FIRST
+                        : p.contains("\"part\":\"L") && p.contains("0000,") ? INSIDE_LOT : null;
+                if (l >= 0 && inside != null) { // the line's own figure: from the trigger's arrival to the decision made
                     int ls = l + 13, le = ls;
                     while (le < p.length() && "0123456789.eE-".indexOf(p.charAt(le)) >= 0) le++;
-                    synchronized (INSIDE) {
-                        INSIDE.recordValue(Math.max(1, Math.round(Double.parseDouble(p.substring(ls, le)) * 1e6)));
+                    synchronized (inside) {
+                        inside.recordValue(Math.max(1, Math.round(Double.parseDouble(p.substring(ls, le)) * 1e6)));
                     }
                 }
             }
@@ -208,11 +214,13 @@ class LineBench {
                 out.set("lot_change_every_1000_at_" + PACE + "_per_s", json(lots));
                 out.set("first_decision_of_a_lot", json(firstOfLot));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
+                out.set("first_100_inside_zbin_arrival_to_decided", json(INSIDE_FIRST));
+                out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
                 System.out.printf(Locale.ROOT, "%n  %-46s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", echoH}, {"floor: meter request/response", meterH},
-                        {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line},
-                        {"first 100 decisions after start", first}, {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
-                        {"  the first decision of each lot", firstOfLot}, {"  of it inside zbin: arrival -> decided", INSIDE}}) {
+                        {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line}, {"  of it inside zbin: arrival -> decided", INSIDE},
+                        {"first 100 decisions after start", first}, {"  of it inside zbin: arrival -> decided", INSIDE_FIRST}, {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
+                        {"  the first decision of each lot", firstOfLot}, {"    of it inside zbin: arrival -> decided", INSIDE_LOT}}) {
                     Histogram h = (Histogram) e[1];
                     System.out.printf(Locale.ROOT, "  %-46s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
                             h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);

@@ -59,6 +59,8 @@ public final class Daemon implements AutoCloseable {
     /** Periodic dashboards published: a finished lot's dashboard sent later is retained only if none came in between. */
     private final java.util.concurrent.atomic.AtomicLong dashboards = new java.util.concurrent.atomic.AtomicLong();
     static final long LOT_END_DASHBOARD_DELAY_MS = 200;
+    /** The warm-up's time bound: with the broker connect and the meter probe beside it, the line is ready within ~0.4 s here. */
+    static final long WARM_UP_MS = 300;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
         this.cfg = cfg;
@@ -100,17 +102,19 @@ public final class Daemon implements AutoCloseable {
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
         recover();
         if (cfg.status() != null) startStatus(); // before the broker: a page that cannot listen stops the start, not a running line
-        // The finished lot's last figures, retained until the next dashboard: snapshotted on the measuring thread before
-        // they move to the new lot (copies only), encoded and published by the ticker (no encoding, file or send here).
+        // The finished lot's last figures, retained until the next dashboard: taken on the measuring thread as the lot ends
+        // (the tally and counts it ended with, the monitor's figures: references and copies, after the new lot's first
+        // answer is out), built into a dashboard, encoded and published by the ticker (no encoding, file or send here).
         // Sent LOT_END_DASHBOARD_DELAY_MS later, so that its encoding and its few kilobytes on the MQTT connection do not
         // hold up the new lot's first decision (they would share the client's sender); retained only if no dashboard of the
         // new lot went out meanwhile.
-        path.onLotEnd(() -> {
-            LineSnapshot s = snapshot(mode.mode());
+        path.onLotEnd(ended -> {
+            var at = clock.instant();
+            var figures = monitor.snapshot(); // the monitor's lot figures start again with the new lot's first decision, next
             long sentBefore = dashboards.get();
             ticker.schedule(() -> {
                 try {
-                    var node = DashboardJson.encode(s);
+                    var node = DashboardJson.encode(snapshot(at, mode.mode(), stats.snapshot(ended), figures));
                     if (boards != null && dashboards.get() == sentBefore) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
                     mqtt.publish(topics.dashboard(), Payloads.bytes(node), 0, dashboards.get() == sentBefore);
                 } catch (RuntimeException e) {
@@ -134,7 +138,12 @@ public final class Daemon implements AutoCloseable {
             }
         });
         var connecting = mqtt.connectStart();
-        Thread warming = named(() -> Warmup.run(setup.recipe(), setup.compensation(), 20_000, 300), "warm-up");
+        long[] warmed = new long[2];
+        Thread warming = named(() -> {
+            long w0 = System.nanoTime();
+            warmed[0] = Warmup.run(cfg, setup, 20_000, WARM_UP_MS);
+            warmed[1] = (System.nanoTime() - w0) / 1_000_000;
+        }, "warm-up");
         warming.start();
         watch.probe();
         warming.join();
@@ -143,7 +152,8 @@ public final class Daemon implements AutoCloseable {
             warm = true;
             if (subscribed) mode.announce();
         }
-        LOG.info("connected, decision path warm and meter probed in {} ms", (System.nanoTime() - t0) / 1_000_000);
+        LOG.info("connected, decision path warm ({} invented triggers in {} ms) and meter probed in {} ms", warmed[0], warmed[1],
+                (System.nanoTime() - t0) / 1_000_000);
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
         ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
@@ -302,8 +312,10 @@ public final class Daemon implements AutoCloseable {
     }
 
     /** The line now, in one immutable snapshot (only copies are taken: the measuring thread never waits on it). */
-    private LineSnapshot snapshot(Mode m) {
-        return new LineSnapshot(clock.instant(), cfg.line(), setup.recipe().name(), m, stats.snapshot(), monitor.snapshot(),
+    private LineSnapshot snapshot(Mode m) { return snapshot(clock.instant(), m, stats.snapshot(), monitor.snapshot()); }
+
+    private LineSnapshot snapshot(java.time.Instant at, Mode m, LineStats.Snapshot figures, net.zbin.core.LineMonitor.Snapshot monitorFigures) {
+        return new LineSnapshot(at, cfg.line(), setup.recipe().name(), m, figures, monitorFigures,
                 mode.activeAlarms(), records.backlog(), records.dropped(), mqtt == null ? 0 : mqtt.buffered(),
                 mode.linkDown() ? "down" : mode.setupRefused() ? "setup-refused" : "up", cfg.deadlineMs());
     }

@@ -72,6 +72,15 @@ final class LineMode {
         this.since = clock.instant();
     }
 
+    /** Alarms are not logged: a scratch line's (the warm-up's), whose alarms are invented and concern no one. */
+    private boolean quiet;
+
+    /** This mode logs no alarms (the warm-up's scratch line); returns itself. */
+    LineMode quiet() {
+        quiet = true;
+        return this;
+    }
+
     /** From now on state and alarms go here (until then they are only kept). */
     void attach(Publisher p) { out = p; }
 
@@ -180,12 +189,12 @@ final class LineMode {
             if (active.containsKey(code)) return;
             when = clock.instant();
             active.put(code, new Alarm(code, message, when, null));
-            LOG.warn("alarm {}: {}", key, message);
+            if (!quiet) LOG.warn("alarm {}: {}", key, message);
         } else {
             Alarm a = active.remove(code);
             if (a == null) return;
             when = a.since();
-            LOG.info("alarm {} cleared: {}", key, message);
+            if (!quiet) LOG.info("alarm {} cleared: {}", key, message);
         }
         byte[] b = Payloads.alarm(key, code.severity().key(), on, message, when);
         send(topics.alarm(), b, false);

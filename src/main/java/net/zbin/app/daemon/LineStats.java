@@ -13,12 +13,10 @@ import org.HdrHistogram.Histogram;
  * The line's running figures, fed as a {@link DecisionListener}. Counts only grow; the lot's figures
  * (and "since reset-counters") are the difference of the running tally and the snapshot taken when the
  * lot started or the counters were reset. Throughput is the parts finished in the last minute and the
- * last hour (a ring of per-second counts, so memory does not grow with the lot). Writers: the measuring
+ * last hour ({@link FinishedRing}: memory does not grow with the lot). Writers: the measuring
  * thread; reader: the dashboard thread, through {@link #snapshot}.
  */
 final class LineStats implements DecisionListener {
-    private static final int RING_S = 3600;
-
     private final Clock clock;
     private final int deadlineMs;
     private final BinTally tally = new BinTally();
@@ -28,9 +26,7 @@ final class LineStats implements DecisionListener {
     private final double[] bucketMs;
     private final long[] bucketCount;
     private double latencySumMs;
-    private final long[] ringCount = new long[RING_S];
-    private final long[] ringPassed = new long[RING_S];
-    private final long[] ringSecond = new long[RING_S];
+    private final FinishedRing finished = new FinishedRing();
     private BinTally.Snapshot base = BinTally.Snapshot.EMPTY;
     private String lot = "";
     private Instant lotSince;
@@ -95,29 +91,7 @@ final class LineStats implements DecisionListener {
             latencySumMs += d.latencyMs();
             if (d.latencyMs() > deadlineMs) late++;
         }
-        if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) countFinished(e.time().getEpochSecond(), g.verdict() == Verdict.PASS);
-    }
-
-    private void countFinished(long second, boolean passed) {
-        int i = (int) Math.floorMod(second, (long) RING_S);
-        if (ringSecond[i] != second) {
-            ringSecond[i] = second;
-            ringCount[i] = 0;
-            ringPassed[i] = 0;
-        }
-        ringCount[i]++;
-        if (passed) ringPassed[i]++;
-    }
-
-    /** Parts finished and passed in the seconds (from, now]. */
-    private Window finishedSince(long fromSecond, long nowSecond) {
-        long n = 0, p = 0;
-        for (int i = 0; i < RING_S; i++)
-            if (ringSecond[i] > fromSecond && ringSecond[i] <= nowSecond) {
-                n += ringCount[i];
-                p += ringPassed[i];
-            }
-        return new Window(n, p);
+        if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) finished.add(e.time().getEpochSecond(), g.verdict() == Verdict.PASS);
     }
 
     synchronized void repeated() { repeats++; }
@@ -129,12 +103,25 @@ final class LineStats implements DecisionListener {
     synchronized void busy() { busy++; }
 
     /** A new lot: its figures start from here. */
-    synchronized void startLot(String l, Instant when) {
+    synchronized Ended startLot(String l, Instant when) {
+        BinTally.Snapshot now = tally.snapshot();
+        Ended e = new Ended(lot, lotSince, base, now, decisions, late, repeats, rejected, reusedSeqs, busy);
         lot = l;
         lotSince = when;
         resetAt = null;
-        base = tally.snapshot();
+        base = now;
+        return e;
     }
+
+    /**
+     * The figures a lot ended with, taken as it ended — a few references and counts, so the measuring thread pays next
+     * to nothing at a lot change; its dashboard is built from them later ({@link #snapshot(Ended)}).
+     *
+     * @param from the running tally when the lot's figures started (the lot's start or its last reset-counters)
+     * @param to   the running tally when it ended
+     */
+    record Ended(String lot, Instant lotSince, BinTally.Snapshot from, BinTally.Snapshot to, long decisions, long late, long repeats,
+                 long rejected, long reusedSeqs, long busy) {}
 
     /** reset-counters: the lot's figures start again from here (totals keep counting). */
     synchronized void reset() { resetAt(clock.instant()); }
@@ -163,7 +150,13 @@ final class LineStats implements DecisionListener {
      * The figures now. Only copies are taken under the lock (the tally, the ring's sums, the latency histogram);
      * the percentiles are read from the copy after it, so the measuring thread never waits on the dashboard.
      */
-    Snapshot snapshot() {
+    Snapshot snapshot() { return snapshot(null); }
+
+    /**
+     * The figures of a lot that ended ({@code ended}; null: the line now): its lot, tally, yield and counts as it ended,
+     * the rolling windows and the latency as they are now.
+     */
+    Snapshot snapshot(Ended ended) {
         BinTally.Snapshot all, l;
         double minute;
         Window h, m10;
@@ -179,9 +172,9 @@ final class LineStats implements DecisionListener {
             all = tally.snapshot();
             l = all.minus(base);
             long now = clock.instant().getEpochSecond();
-            minute = finishedSince(now - 60, now).parts() * 60.0;
-            h = finishedSince(now - 3600, now);
-            m10 = finishedSince(now - 600, now);
+            minute = finished.window(now, 60).parts() * 60.0;
+            h = finished.window(now, 3600);
+            m10 = finished.window(now, 600);
             lat = latencyUs.copy();
             lotNow = lot;
             since = lotSince;
@@ -191,6 +184,18 @@ final class LineStats implements DecisionListener {
             rej = rejected;
             reused = reusedSeqs;
             bz = busy;
+        }
+        if (ended != null) {
+            all = ended.to();
+            l = all.minus(ended.from());
+            lotNow = ended.lot();
+            since = ended.lotSince();
+            dec = ended.decisions();
+            lt = ended.late();
+            rep = ended.repeats();
+            rej = ended.rejected();
+            reused = ended.reusedSeqs();
+            bz = ended.busy();
         }
         double[] ci = Wilson.interval(l.passed(), l.parts(), Wilson.Z95);
         boolean any = lat.getTotalCount() > 0;

@@ -45,7 +45,10 @@ final class TriggerPath {
     private final List<DecisionListener> listeners;
     private final Clock clock;
     private String lastReusedWarning = null;
-    private volatile Runnable lotEnded = () -> { };
+    private volatile java.util.function.Consumer<LineStats.Ended> lotEnded = e -> { };
+    /** A new lot's start, entered by a trigger and run once that trigger's answer is out (measuring thread only). */
+    private Runnable lotStart;
+    private final Runnable startPendingLot = this::startPendingLot;
     /**
      * The repeat window's clock: monotonic milliseconds, so a step of the wall clock neither re-measures a re-sent
      * trigger nor keeps every decision "inside the window".
@@ -77,6 +80,7 @@ final class TriggerPath {
         DecisionBook.Lookup found = book.find(t, lotId, now);
         if (found instanceof DecisionBook.Repeat r) {
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
+            startPendingLot();
             stats.repeated();
             return;
         }
@@ -85,7 +89,7 @@ final class TriggerPath {
         Recipe r = setup.recipe();
         Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d)), now);
+        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), startPendingLot), now);
     }
 
     /**
@@ -109,16 +113,17 @@ final class TriggerPath {
         Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
                 Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
         stats.busy();
-        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d));
+        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), null);
     }
 
     /**
      * Records, publishes and tells the listeners; returns the decision the handler got. A measured decision whose
      * row did not reach the operating system is not published as it is (unless the line is set to sort on without
      * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
-     * handler acted on, and that answer's row is kept for when the log is writable again.
+     * handler acted on, and that answer's row is kept for when the log is writable again. {@code afterPublish} (or
+     * null) runs between the publish and the listeners.
      */
-    private synchronized Decision deliver(net.zbin.core.DecisionEvent e) {
+    private synchronized Decision deliver(net.zbin.core.DecisionEvent e, Runnable afterPublish) {
         if (!records.write(e)) {
             Decision d = e.decision();
             if (cfg.records().pauseOnFailure() && d.grading().reason().kind() != Reason.Kind.NOT_MEASURED) {
@@ -129,6 +134,7 @@ final class TriggerPath {
             records.keep(e);
         }
         out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(e.decision())), 1, false);
+        if (afterPublish != null) afterPublish.run();
         for (DecisionListener l : listeners) {
             try {
                 l.decided(e);
@@ -153,21 +159,46 @@ final class TriggerPath {
         out.publish(topics.rejected(), Payloads.rejected(topic, reason), 1, false);
     }
 
-    /** The trigger's lot, or the line's; a lot different from the book's starts a fresh book and lot figures. */
+    /**
+     * The trigger's lot, or the line's. A lot different from the book's starts a fresh book at once (the trigger is
+     * looked up in the new lot's); the finished lot's last figures and the new lot's start are taken after this
+     * trigger's answer was published ({@link #lotStart}), so the first part of a lot waits on no bookkeeping.
+     */
     private String lotOf(Trigger t) {
         String l = t.lot().isEmpty() ? book.lot() : t.lot();
-        enterLot(l, clock.instant());
+        if (l.equals(book.lot())) return l;
+        boolean ended = !book.lot().isEmpty();
+        java.time.Instant when = clock.instant();
+        book.enterLot(l);
+        lastReusedWarning = null;
+        lotStart = () -> {
+            LineStats.Ended e = stats.startLot(l, when);
+            if (ended) lotEnded.accept(e);
+        };
         return l;
     }
 
-    /** The {@code lot} command, a trigger of another lot, or a lot found in the record log at start. */
-    /** Runs on the measuring thread when a lot ends (another starts), before the figures move to the new lot. */
-    void onLotEnd(Runnable r) { lotEnded = r; }
+    /** Runs the lot start a trigger of a new lot left for after its answer; before the listeners hear of that answer. */
+    private void startPendingLot() {
+        Runnable r = lotStart;
+        if (r == null) return;
+        lotStart = null;
+        r.run();
+    }
 
+    /**
+     * Runs on the measuring thread when a lot ended (another started), with the figures it ended with, before the
+     * listeners hear of the new lot's first decision. Must be quick: it is on the trigger path.
+     */
+    void onLotEnd(java.util.function.Consumer<LineStats.Ended> r) { lotEnded = r; }
+
+    /** The {@code lot} command or a lot found in the record log at start: the lot's figures start now. */
     void enterLot(String l, java.time.Instant when) {
-        if (!l.equals(book.lot()) && !book.lot().isEmpty()) lotEnded.run();
+        startPendingLot();
+        boolean ended = !l.equals(book.lot()) && !book.lot().isEmpty();
         if (book.enterLot(l)) {
-            stats.startLot(l, when);
+            LineStats.Ended e = stats.startLot(l, when);
+            if (ended) lotEnded.accept(e);
             lastReusedWarning = null;
         }
     }

@@ -1,69 +1,147 @@
 package net.zbin.app.daemon;
 
-import java.time.Instant;
-import net.zbin.core.Compensation;
-import net.zbin.core.Decision;
-import net.zbin.core.Grading;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.List;
 import net.zbin.core.Reading;
 import net.zbin.core.Recipe;
-import net.zbin.core.Trigger;
-import net.zbin.io.DecisionFields;
-import net.zbin.core.FixtureCheck;
-import net.zbin.core.LineEngine;
+import net.zbin.core.TestConditions;
 import net.zbin.io.Json;
+import net.zbin.io.LineConfig;
 import net.zbin.io.RecordLog;
-import net.zbin.io.mqtt.PayloadException;
+import net.zbin.io.meter.MeterReading;
+import net.zbin.io.meter.MeterSession;
 import net.zbin.io.mqtt.Payloads;
-import net.zbin.io.mqtt.TriggerCodec;
-import org.HdrHistogram.Histogram;
+import net.zbin.io.mqtt.Publisher;
+import net.zbin.io.mqtt.Topics;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
 
 /**
- * Runs the decision path on invented triggers and readings before the line says it is ready — class loading
- * and JIT of the trigger decoder, grading, the line monitor, the latency histogram, and the decision's JSON and
- * record-row encodings, a lot change every 64 parts and the dashboard's encoding — so the first real part of a
- * shift, and the first of each new lot, is answered inside the handler's deadline. Nothing it computes leaves this
- * class (the engine, its monitor, the figures and the histogram are scratch copies).
+ * Runs invented triggers through the line's own {@link TriggerPath} before the line says it is ready — the trigger
+ * decode, the decision book, the test plan and grading, the record row written to a file, the decision's encoding,
+ * the figures, the line monitor, and at every lot change the finished lot's snapshot and dashboard — so the first
+ * real part of a shift, and the first of each new lot, runs compiled code rather than the interpreter. Everything
+ * it touches is a scratch copy: its meter answers from memory, its record log lives in a temporary folder deleted
+ * afterwards, its publisher sends nothing, and its figures, book and monitor are its own; only the recipe, the
+ * compensation and the config are the line's, and they are only read.
  */
 final class Warmup {
+    private static final Logger LOG = LoggerFactory.getLogger(Warmup.class);
+    /** Parts per invented lot: a lot change (and its dashboard) every this many. */
+    static final int LOT_PARTS = 64;
+
     private Warmup() {}
 
     /**
-     * Runs up to {@code rounds} rounds, but no longer than {@code maxMs}: on a loaded machine the line says ready
-     * in time rather than after a fixed amount of work. Returns a checksum so the work cannot be optimised away.
+     * Runs up to {@code rounds} triggers, but no longer than {@code maxMs} once a first lot and the next one's start
+     * ran: on a loaded machine the line says ready in time rather than after a fixed amount of work. Returns how many
+     * triggers it ran.
      */
-    static long run(Recipe r, Compensation comp, int rounds, long maxMs) {
+    static long run(LineConfig cfg, LineSetup setup, int rounds, long maxMs) {
         long end = System.nanoTime() + maxMs * 1_000_000L;
-        double ideal = r.idealZOhm(), f = r.freqHz();
-        double sign = switch (r.partType()) { case CAPACITOR -> -1; case INDUCTOR -> 1; case RESISTOR -> 0; };
-        long sum = 0;
-        LineEngine engine = new LineEngine(r, r.monitor(), FixtureCheck.Limits.DEFAULT);
-        LineStats stats = new LineStats(java.time.Clock.systemUTC(), 150);
-        Histogram latency = new Histogram(60_000_000L, 2);
-        com.fasterxml.jackson.databind.node.ObjectNode trigger = Json.object();
-        for (int i = 0; i < rounds && (i % 256 != 0 || System.nanoTime() < end); i++) {
-            String lot = "warm-up-" + (i / 64) % 2;
-            trigger.put("seq", i).put("part", "W" + i).put("lot", lot).put("kind", "part");
-            try {
-                sum += TriggerCodec.decode(Payloads.bytes(trigger)).seq();
-            } catch (PayloadException e) {
-                throw new IllegalStateException("warm-up trigger refused: " + e.getMessage(), e);
-            }
-            double dev = ((i * 7919) % 400 - 200) / 1000.0;
-            double z = ideal * (1 + dev);
-            Reading rd = sign == 0 ? new Reading(f, z, z * 1e-4) : new Reading(f, z * 0.01, sign * z);
-            Grading g = engine.session(Trigger.Kind.PART, comp, i % 2).offer(rd, false);
-            Decision d = new Decision(i, "warm-up", lot, Trigger.Kind.PART, r.name(), g, 0.1, false, i % 2);
-            if (i % 64 == 0) { // a lot change: the finished lot's dashboard, then new figures
-                sum += DashboardJson.encode(new LineSnapshot(Instant.EPOCH, "warm-up", r.name(), Mode.READY, stats.snapshot(),
-                        engine.snapshot(Instant.EPOCH), java.util.Map.of(), 0, 0, 0, "up", 150)).size();
-                stats.startLot(lot, Instant.EPOCH);
-            }
-            sum += engine.observe(d).size();
-            stats.decided(new net.zbin.core.DecisionEvent(Instant.EPOCH, "warm-up", d));
-            latency.recordValue(100 + i % 1000);
-            sum += Payloads.bytes(DecisionFields.json(d)).length;
-            sum += RecordLog.encode(new net.zbin.core.DecisionEvent(Instant.EPOCH, "warm-up", d)).length;
+        Path dir = null;
+        try {
+            dir = Files.createTempDirectory("zbin-warm-up-");
+        } catch (IOException e) {
+            LOG.debug("warm-up without a record file: {}", e.toString()); // its log then keeps rows in memory: still the same code
         }
-        return sum + latency.getTotalCount();
+        Clock clock = Clock.systemUTC();
+        Topics topics = new Topics(cfg.mqtt().topicRoot(), cfg.line());
+        Counting out = new Counting();
+        LineMode mode = new LineMode(clock, topics, false, () -> setup.recipe().name()).quiet();
+        LineStats stats = new LineStats(clock, cfg.deadlineMs());
+        MonitorListener monitor = new MonitorListener(cfg, mode, clock, setup.recipe());
+        monitor.compensation(setup.compensation(), setup.stepCompensations());
+        DecisionBook book = new DecisionBook(cfg.repeatWindowMs(), 20_000);
+        var rs = cfg.records();
+        RecordLog records = new RecordLog(new LineConfig.RecordSettings(dir != null ? dir : Path.of("zbin-warm-up-absent"), rs.flushMs(),
+                rs.rotateBytes(), false), cfg.line(), null);
+        Canned meter = new Canned(setup.plan());
+        TriggerPath path = new TriggerPath(cfg, topics, setup, meter, out, records, mode, stats, book, List.of(stats, monitor), clock);
+        path.onLotEnd(ended -> {
+            LineSnapshot s = new LineSnapshot(clock.instant(), cfg.line(), setup.recipe().name(), Mode.READY, stats.snapshot(ended),
+                    monitor.snapshot(), mode.activeAlarms(), records.backlog(), records.dropped(), 0, "up", cfg.deadlineMs());
+            out.publish(topics.dashboard(), Payloads.bytes(DashboardJson.encode(s)), 0, false);
+        });
+        ObjectNode trigger = Json.object();
+        int i = 0;
+        try {
+            // at least one lot and the start of the next, whatever the clock says; then up to the time bound
+            for (; i < rounds && (i <= LOT_PARTS || i % 32 != 0 || System.nanoTime() < end); i++) {
+                String lot = "warm-up-" + (i / LOT_PARTS) % 2;
+                // every 16th trigger comes again at once: the repeat answered from the book
+                int seq = i % 16 == 15 ? i - 1 : i;
+                trigger.put("seq", seq).put("part", "W" + seq).put("lot", lot).put("kind", "part");
+                path.onTrigger(Payloads.bytes(trigger), System.nanoTime());
+            }
+        } finally {
+            records.close();
+            if (dir != null) delete(dir);
+        }
+        return i;
+    }
+
+    private static void delete(Path dir) {
+        try (var files = Files.walk(dir)) {
+            files.sorted(java.util.Comparator.reverseOrder()).forEach(p -> p.toFile().delete());
+        } catch (IOException | RuntimeException e) {
+            LOG.debug("warm-up folder {} not removed: {}", dir, e.toString());
+        }
+    }
+
+    /** Sends nothing; counts, so the work that built each message cannot be left out. */
+    private static final class Counting implements Publisher {
+        long messages, bytes;
+
+        @Override
+        public void publish(String topic, byte[] payload, int qos, boolean retained) {
+            messages++;
+            bytes += payload.length;
+        }
+    }
+
+    /**
+     * A meter that answers from memory: at each step's conditions, readings spread ±20 % around the step's ideal
+     * impedance (pass, fail and the guard zone alike), so every branch of the grading runs.
+     */
+    private static final class Canned implements MeterSession {
+        private final Recipe[] plan;
+        private TestConditions now;
+        private int n;
+
+        Canned(Recipe[] plan) { this.plan = plan.clone(); }
+
+        @Override
+        public String identify() { return "warm-up"; }
+
+        @Override
+        public void apply(TestConditions c) { now = c; }
+
+        @Override
+        public MeterReading measure() {
+            Recipe step = plan[0];
+            for (Recipe r : plan) if (r.test().equals(now)) step = r;
+            double dev = ((n++ * 7919) % 400 - 200) / 1000.0;
+            double z = step.idealZOhm() * (1 + dev), f = step.freqHz();
+            Reading rd = switch (step.partType()) {
+                case CAPACITOR -> new Reading(f, z * 0.01, -z);
+                case INDUCTOR -> new Reading(f, z * 0.01, z);
+                case RESISTOR -> new Reading(f, z, z * 1e-4);
+            };
+            return new MeterReading(rd, 0);
+        }
+
+        @Override
+        public long reconnects() { return 0; }
+
+        @Override
+        public long unaskedBytes() { return 0; }
+
+        @Override
+        public void close() { }
     }
 }

@@ -84,6 +84,7 @@ class TriggerPathTest {
     TriggerPath path;
     RecordLog records;
     LineConfig cfg;
+    LineStats stats;
 
     @BeforeEach
     void line() throws Exception {
@@ -103,7 +104,7 @@ class TriggerPathTest {
         var topics = new net.zbin.io.mqtt.Topics(cfg.mqtt().topicRoot(), cfg.line());
         LineSetup setup = new LineSetup(cfg);
         LineMode mode = new LineMode(clock, topics, true, () -> setup.recipe().name(), cfg.monitor().pauseOn(), null);
-        LineStats stats = new LineStats(clock, cfg.deadlineMs());
+        stats = new LineStats(clock, cfg.deadlineMs());
         records = new RecordLog(cfg.records(), cfg.line(), null);
         records.start();
         meter = new ScriptedMeter();
@@ -118,6 +119,36 @@ class TriggerPathTest {
         List<JsonNode> d = new java.util.ArrayList<>();
         for (var s : out.on("zbin/tp/decision")) d.add(Json.mapper().readTree(s.payload()));
         return d;
+    }
+
+    @Test
+    void aLotChange_endsTheLotAfterTheNewLotsFirstAnswer_withTheFinishedLotsFigures() throws Exception {
+        List<LineStats.Ended> ended = new java.util.ArrayList<>();
+        List<Integer> answersWhenEnded = new java.util.ArrayList<>();
+        path.onLotEnd(e -> {
+            ended.add(e);
+            answersWhenEnded.add(out.on("zbin/tp/decision").size());
+        });
+        for (int i = 1; i <= 3; i++) {
+            meter.reading(1.0);
+            trigger("{\"seq\": " + i + ", \"part\": \"A" + i + "\", \"lot\": \"LOT-A\"}");
+        }
+        assertTrue(ended.isEmpty(), "the first lot of a line ends nothing");
+        meter.reading(1.0);
+        trigger("{\"seq\": 1, \"part\": \"B1\", \"lot\": \"LOT-B\"}");
+        assertEquals(1, ended.size());
+        assertEquals(List.of(4), answersWhenEnded, "the lot ends after the new lot's first answer went out, not before it");
+        LineStats.Snapshot finished = stats.snapshot(ended.get(0));
+        assertEquals("LOT-A", finished.lot());
+        assertEquals(3, finished.lotTally().parts());
+        assertEquals(3, finished.decisions());
+        LineStats.Snapshot now = stats.snapshot();
+        assertEquals("LOT-B", now.lot());
+        assertEquals(1, now.lotTally().parts(), "the new lot's first part counts in the new lot");
+        assertEquals(4, now.total().parts());
+        // seq 1 of the new lot is a new part, not a repeat of LOT-A's seq 1
+        assertEquals("B1", decisions().get(3).path("part").asText());
+        assertEquals(4, meter.measured);
     }
 
     @Test
