@@ -1,7 +1,10 @@
 package net.zbin.io.mqtt;
 
+import java.io.BufferedInputStream;
 import java.io.IOException;
+import java.io.InputStream;
 import java.net.InetAddress;
+import java.net.InetSocketAddress;
 import java.net.Socket;
 import javax.net.SocketFactory;
 import javax.net.ssl.SSLSocketFactory;
@@ -18,16 +21,45 @@ public final class NoDelaySockets {
         return s;
     }
 
-    /** Plain TCP. */
+    /**
+     * Plain TCP, read through a buffer: Paho reads a packet's fixed header a byte at a time from the socket's own
+     * stream (one system call per byte), so a buffer takes each packet — often several — in one read.
+     */
     public static SocketFactory plain() {
-        SocketFactory base = SocketFactory.getDefault();
         return new SocketFactory() {
-            @Override public Socket createSocket() throws IOException { return nodelay(base.createSocket()); }
-            @Override public Socket createSocket(String h, int p) throws IOException { return nodelay(base.createSocket(h, p)); }
-            @Override public Socket createSocket(String h, int p, InetAddress la, int lp) throws IOException { return nodelay(base.createSocket(h, p, la, lp)); }
-            @Override public Socket createSocket(InetAddress a, int p) throws IOException { return nodelay(base.createSocket(a, p)); }
-            @Override public Socket createSocket(InetAddress a, int p, InetAddress la, int lp) throws IOException { return nodelay(base.createSocket(a, p, la, lp)); }
+            @Override public Socket createSocket() throws IOException { return nodelay(new ReadBuffered()); }
+            @Override public Socket createSocket(String h, int p) throws IOException { return connected(new InetSocketAddress(h, p), null); }
+            @Override public Socket createSocket(String h, int p, InetAddress la, int lp) throws IOException {
+                return connected(new InetSocketAddress(h, p), new InetSocketAddress(la, lp));
+            }
+            @Override public Socket createSocket(InetAddress a, int p) throws IOException { return connected(new InetSocketAddress(a, p), null); }
+            @Override public Socket createSocket(InetAddress a, int p, InetAddress la, int lp) throws IOException {
+                return connected(new InetSocketAddress(a, p), new InetSocketAddress(la, lp));
+            }
         };
+    }
+
+    private static Socket connected(InetSocketAddress to, InetSocketAddress from) throws IOException {
+        Socket s = nodelay(new ReadBuffered());
+        try {
+            if (from != null) s.bind(from);
+            s.connect(to);
+            return s;
+        } catch (IOException e) {
+            s.close();
+            throw e;
+        }
+    }
+
+    /** A socket whose input stream is buffered (a read timeout leaves the buffer as it was: nothing is lost). */
+    static final class ReadBuffered extends Socket {
+        private InputStream in;
+
+        @Override
+        public synchronized InputStream getInputStream() throws IOException {
+            if (in == null) in = new BufferedInputStream(super.getInputStream(), 16 * 1024);
+            return in;
+        }
     }
 
     /** TLS over a no-delay socket. */
