@@ -35,11 +35,12 @@ import org.junit.jupiter.api.io.TempDir;
  * The line end to end through a Mosquitto it starts itself, side by side with its floor in the same run:
  * trigger → decision latency at a handler's pace against a bare MQTT echo through the same broker plus
  * one request/response with the meter simulator at zero measurement time; the first 100 decisions after
- * start against the handler's deadline; and open-loop rates with lost and duplicated decisions counted.
+ * start against the handler's deadline; and open-loop rates with lost and duplicated decisions counted. The line
+ * and its floor are measured in alternating blocks of the same run, so a shared machine's changing load weighs on both.
  * Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
  */
 class LineBench {
-    static final int PACE = 200, SAMPLES = 3000, LOTS = 5;
+    static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6;
 
     @TempDir
     Path dir;
@@ -109,6 +110,23 @@ class LineBench {
         return h;
     }
 
+    /** {@code n} request/response exchanges with the meter simulator, at {@code rate} per second (0: back to back), recorded in {@code h} (or not). */
+    static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h) throws Exception {
+        long period = rate == 0 ? 0 : 1_000_000_000L / rate, next = System.nanoTime();
+        for (int i = 0; i < n; i++) {
+            long t0 = System.nanoTime();
+            o.write("TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII));
+            o.flush();
+            in.readLine();
+            if (h != null) h.recordValue(Math.max(1, System.nanoTime() - t0));
+            if (rate == 0) continue;
+            next += period;
+            long wait = next - System.nanoTime();
+            if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+            else next = System.nanoTime();
+        }
+    }
+
     /** The daemon's threads in this JVM: its own (line-…, ticker, record-log-…, mqtt-…, overflow-…) and its MQTT client's (client id zbin-bench). */
     static boolean daemonThread(String n) {
         if (n.contains("zbin-bench")) return true;
@@ -160,39 +178,33 @@ class LineBench {
             echo.subscribe("bench/req", 1).waitForCompletion(10_000);
             MqttAsyncClient req = client(broker.url(), echoWaiting, "bench/resp");
             paced(req, echoWaiting, "bench/req", "", 500, PACE, 0);
-            Histogram echoH = paced(req, echoWaiting, "bench/req", "", SAMPLES, PACE, 1_000_000);
 
             try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
-                    "handler: {deadline_ms: 150}\n")) {
+                    "handler: {deadline_ms: 150}\n");
+                 Socket meter = new Socket("127.0.0.1", rig.meterServer.port())) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
                 // Floor 2: one request/response with the meter simulator at zero measurement time, at the line's pace
                 // (as the echo and the line are; back to back, both threads stay hot and the figure is lower: kept beside it).
+                meter.setTcpNoDelay(true);
+                OutputStream mo = meter.getOutputStream();
+                BufferedReader mi = new BufferedReader(new InputStreamReader(meter.getInputStream(), StandardCharsets.US_ASCII));
                 Histogram meterH = new Histogram(60_000_000_000L, 3), meterTight = new Histogram(60_000_000_000L, 3);
-                try (Socket s = new Socket("127.0.0.1", rig.meterServer.port())) {
-                    s.setTcpNoDelay(true);
-                    OutputStream o = s.getOutputStream();
-                    BufferedReader in = new BufferedReader(new InputStreamReader(s.getInputStream(), StandardCharsets.US_ASCII));
-                    long period = 1_000_000_000L / PACE, next = System.nanoTime();
-                    for (int i = 0; i < 2 * SAMPLES + 500; i++) {
-                        boolean paced = i >= SAMPLES + 500;
-                        long t0 = System.nanoTime();
-                        o.write("TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII));
-                        o.flush();
-                        in.readLine();
-                        if (i >= 500) (paced ? meterH : meterTight).recordValue(Math.max(1, System.nanoTime() - t0));
-                        if (!paced) continue;
-                        next += period;
-                        long wait = next - System.nanoTime();
-                        if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
-                        else next = System.nanoTime();
-                    }
-                }
-                // The first 100 decisions after start, then the line at a handler's pace.
+                meterExchanges(mo, mi, 500, 0, null);
+                meterExchanges(mo, mi, SAMPLES, 0, meterTight);
+                // The first 100 decisions after start.
                 Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
                 MqttAsyncClient handler = client(broker.url(), waiting, "zbin/bench/decision");
                 Histogram first = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"F\"", 100, PACE, 0);
                 paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 500, PACE, 10_000);
-                Histogram line = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", SAMPLES, PACE, 100_000);
+                // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
+                // seconds, so each figure and its floor are taken over the same stretch of time.
+                Histogram echoH = new Histogram(60_000_000_000L, 3), line = new Histogram(60_000_000_000L, 3);
+                int block = SAMPLES / ROUNDS;
+                for (int r = 0; r < ROUNDS; r++) {
+                    echoH.add(paced(req, echoWaiting, "bench/req", "", block, PACE, 1_000_000 + r * block));
+                    meterExchanges(mo, mi, block, PACE, meterH);
+                    line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block, PACE, 100_000 + r * block));
+                }
                 // A lot change every 1 000 parts at the handler's pace: every decision, and the first of each new lot.
                 Histogram lots = new Histogram(60_000_000_000L, 3), firstOfLot = new Histogram(60_000_000_000L, 3);
                 for (int k = 0; k < LOTS; k++) {

@@ -20,24 +20,29 @@ final class FinishedRing {
 
     /** One part finished in {@code second} (epoch seconds). */
     void add(long second, boolean passed) {
-        int i = (int) Math.floorMod(second, (long) SECONDS);
-        if (secStamp[i] != second) {
-            secStamp[i] = second;
-            secCount[i] = 0;
-            secPassed[i] = 0;
+        bump(secStamp, secCount, secPassed, second, passed);
+        bump(minStamp, minCount, minPassed, Math.floorDiv(second, 60L), passed);
+    }
+
+    private static void bump(long[] stamp, long[] count, long[] pass, long key, boolean passed) {
+        int i = (int) Math.floorMod(key, (long) stamp.length);
+        if (stamp[i] != key) {
+            stamp[i] = key;
+            count[i] = 0;
+            pass[i] = 0;
         }
-        secCount[i]++;
-        long minute = Math.floorDiv(second, 60L);
-        int m = (int) Math.floorMod(minute, (long) MINUTES);
-        if (minStamp[m] != minute) {
-            minStamp[m] = minute;
-            minCount[m] = 0;
-            minPassed[m] = 0;
-        }
-        minCount[m]++;
-        if (passed) {
-            secPassed[i]++;
-            minPassed[m]++;
+        count[i]++;
+        if (passed) pass[i]++;
+    }
+
+    /** Adds the slots of keys {@code from}..{@code to} (inclusive) that still hold those keys to {@code sum} (parts, passed). */
+    private static void sum(long[] stamp, long[] count, long[] pass, long from, long to, long[] sum) {
+        for (long k = from; k <= to; k++) {
+            int i = (int) Math.floorMod(k, (long) stamp.length);
+            if (stamp[i] == k) {
+                sum[0] += count[i];
+                sum[1] += pass[i];
+            }
         }
     }
 
@@ -50,26 +55,14 @@ final class FinishedRing {
         if (windowS < 1 || windowS > SECONDS) throw new IllegalArgumentException("windowS: 1.." + SECONDS + " (was " + windowS + ")");
         long first = nowSecond - windowS + 1;
         long firstMin = Math.floorDiv(first, 60L), lastMin = Math.floorDiv(nowSecond, 60L);
-        long n = 0, p = 0;
+        long[] sum = new long[2];
         if (firstMin == lastMin) {
-            for (long s = first; s <= nowSecond; s++) {
-                int i = (int) Math.floorMod(s, (long) SECONDS);
-                if (secStamp[i] == s) { n += secCount[i]; p += secPassed[i]; }
-            }
-            return new LineStats.Window(n, p);
+            sum(secStamp, secCount, secPassed, first, nowSecond, sum);
+        } else {
+            sum(secStamp, secCount, secPassed, first, (firstMin + 1) * 60 - 1, sum); // the seconds of the oldest minute inside
+            sum(minStamp, minCount, minPassed, firstMin + 1, lastMin - 1, sum); // whole minutes
+            sum(secStamp, secCount, secPassed, lastMin * 60, nowSecond, sum); // the current minute so far
         }
-        for (long s = first; s < (firstMin + 1) * 60; s++) { // the seconds of the oldest minute inside the window
-            int i = (int) Math.floorMod(s, (long) SECONDS);
-            if (secStamp[i] == s) { n += secCount[i]; p += secPassed[i]; }
-        }
-        for (long m = firstMin + 1; m < lastMin; m++) { // whole minutes
-            int k = (int) Math.floorMod(m, (long) MINUTES);
-            if (minStamp[k] == m) { n += minCount[k]; p += minPassed[k]; }
-        }
-        for (long s = lastMin * 60; s <= nowSecond; s++) { // the seconds of the current minute so far
-            int i = (int) Math.floorMod(s, (long) SECONDS);
-            if (secStamp[i] == s) { n += secCount[i]; p += secPassed[i]; }
-        }
-        return new LineStats.Window(n, p);
+        return new LineStats.Window(sum[0], sum[1]);
     }
 }
