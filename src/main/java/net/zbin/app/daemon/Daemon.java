@@ -148,6 +148,9 @@ public final class Daemon implements AutoCloseable {
         watch.probe();
         warming.join();
         mqtt.connected(connecting, connectTimeoutMs);
+        // start() returns once a trigger from any client is heard, not when the subscriptions were only requested: a
+        // handler (or a test) that publishes right after start would otherwise race the broker's SUBACK
+        mqtt.awaitSubscribed(connectTimeoutMs);
         synchronized (startLock) {
             warm = true;
             if (subscribed) mode.announce();

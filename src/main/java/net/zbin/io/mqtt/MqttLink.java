@@ -144,9 +144,34 @@ public final class MqttLink implements Publisher, AutoCloseable {
             String[] topics = subscriptions.toArray(new String[0]);
             int[] qos = new int[topics.length];
             java.util.Arrays.fill(qos, 1);
-            client.subscribe(topics, qos); // asynchronous: never wait inside the callback
+            IMqttToken t = client.subscribe(topics, qos); // asynchronous: never wait inside the callback
+            subscribeRequested.complete(t);
         } catch (MqttException e) {
             LOG.error("subscribe failed: {}", e.toString());
+        }
+    }
+
+    /** The first connection's subscribe request, once made (on Paho's thread, right after the connect). */
+    private final java.util.concurrent.CompletableFuture<IMqttToken> subscribeRequested = new java.util.concurrent.CompletableFuture<>();
+
+    /**
+     * Waits, up to the timeout, until the broker acknowledged the first connection's subscriptions: from then on a
+     * message published to them by any client is delivered here. False (and logged) when no acknowledgement came in
+     * time — the link goes on as before (a lost connection is dialled and subscribed again), the caller decides.
+     */
+    public boolean awaitSubscribed(long timeoutMs) {
+        if (subscriptions.isEmpty()) return true;
+        long end = System.nanoTime() + timeoutMs * 1_000_000L;
+        try {
+            IMqttToken t = subscribeRequested.get(timeoutMs, java.util.concurrent.TimeUnit.MILLISECONDS);
+            t.waitForCompletion(Math.max(1, (end - System.nanoTime()) / 1_000_000L));
+            return true;
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            return false;
+        } catch (java.util.concurrent.TimeoutException | java.util.concurrent.ExecutionException | MqttException e) {
+            LOG.warn("subscriptions not acknowledged by the broker within {} ms: {}", timeoutMs, e.toString());
+            return false;
         }
     }
 
