@@ -10,6 +10,7 @@ import java.util.concurrent.atomic.AtomicLong;
 import java.util.function.BiConsumer;
 import javax.net.ssl.SSLContext;
 import net.zbin.io.LineConfig;
+import org.eclipse.paho.client.mqttv3.IMqttActionListener;
 import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
 import org.eclipse.paho.client.mqttv3.IMqttToken;
 import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
@@ -144,33 +145,41 @@ public final class MqttLink implements Publisher, AutoCloseable {
             String[] topics = subscriptions.toArray(new String[0]);
             int[] qos = new int[topics.length];
             java.util.Arrays.fill(qos, 1);
-            IMqttToken t = client.subscribe(topics, qos); // asynchronous: never wait inside the callback
-            subscribeRequested.complete(t);
+            // asynchronous: never wait inside the callback; the broker's acknowledgement is heard by the listener
+            client.subscribe(topics, qos, null, new IMqttActionListener() {
+                @Override
+                public void onSuccess(IMqttToken t) { subscribed.complete(null); }
+
+                @Override
+                public void onFailure(IMqttToken t, Throwable e) {
+                    LOG.debug("subscribe not acknowledged: {}", String.valueOf(e)); // the connection went: the next one subscribes again
+                }
+            });
         } catch (MqttException e) {
             LOG.error("subscribe failed: {}", e.toString());
         }
     }
 
-    /** The first connection's subscribe request, once made (on Paho's thread, right after the connect). */
-    private final java.util.concurrent.CompletableFuture<IMqttToken> subscribeRequested = new java.util.concurrent.CompletableFuture<>();
+    /** Completed by the first acknowledged subscription, on whichever connection it came. */
+    private final java.util.concurrent.CompletableFuture<Void> subscribed = new java.util.concurrent.CompletableFuture<>();
 
     /**
-     * Waits, up to the timeout, until the broker acknowledged the first connection's subscriptions: from then on a
-     * message published to them by any client is delivered here. False (and logged) when no acknowledgement came in
-     * time — the link goes on as before (a lost connection is dialled and subscribed again), the caller decides.
+     * Waits, up to the timeout, until the broker acknowledged the line's subscriptions on some connection: from then
+     * on a message published to them by any client is delivered here. A broker may drop a connection that subscribes
+     * the moment it is accepted (the embedded Moquette does, on a loaded machine: "SUBSCRIBE received on already closed
+     * connection"); the link then dials again and subscribes again, and this waits for that. False (and logged) when
+     * no acknowledgement came in time: the link goes on as before, the caller decides.
      */
     public boolean awaitSubscribed(long timeoutMs) {
         if (subscriptions.isEmpty()) return true;
-        long end = System.nanoTime() + timeoutMs * 1_000_000L;
         try {
-            IMqttToken t = subscribeRequested.get(timeoutMs, java.util.concurrent.TimeUnit.MILLISECONDS);
-            t.waitForCompletion(Math.max(1, (end - System.nanoTime()) / 1_000_000L));
+            subscribed.get(timeoutMs, TimeUnit.MILLISECONDS);
             return true;
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
             return false;
-        } catch (java.util.concurrent.TimeoutException | java.util.concurrent.ExecutionException | MqttException e) {
-            LOG.warn("subscriptions not acknowledged by the broker within {} ms: {}", timeoutMs, e.toString());
+        } catch (java.util.concurrent.TimeoutException | java.util.concurrent.ExecutionException e) {
+            LOG.warn("subscriptions not acknowledged by the broker within {} ms", timeoutMs);
             return false;
         }
     }
