@@ -141,7 +141,11 @@ public final class Daemon implements AutoCloseable {
         long[] warmed = new long[2];
         Thread warming = named(() -> {
             long w0 = System.nanoTime();
-            warmed[0] = Warmup.run(cfg, setup, 20_000, WARM_UP_MS);
+            try {
+                warmed[0] = Warmup.run(cfg, setup, 20_000, WARM_UP_MS);
+            } catch (RuntimeException e) { // e.g. a command changed the compensation store under it: the line starts all the same
+                LOG.warn("warm-up stopped early: {}", e.toString());
+            }
             warmed[1] = (System.nanoTime() - w0) / 1_000_000;
         }, "warm-up");
         warming.start();
