@@ -87,7 +87,9 @@ abstract class DaemonEndToEndContract {
             assertEquals("offline", dash.path("mode").asText(), "the retained dashboard says offline after a clean stop");
             assertEquals(parts, dash.path("last_hour").path("parts").asLong(), "a lot of less than an hour: all of it in the rolling hour");
             assertTrue(dash.path("last_10_min").path("parts").asLong() > 0 && dash.path("last_10_min").has("yield_low_pct"), dash.toString());
-            assertEquals(100, dash.path("repeats").asLong());
+            // the line's count of repeats answered: the deliberate ones, plus triggers re-sent for want of an answer in time
+            long lineRepeats = dash.path("repeats").asLong();
+            assertTrue(lineRepeats >= 100 && lineRepeats <= 100 + s.resent(), "line repeats " + lineRepeats + ", re-sent " + s.resent());
             double y = dash.path("yield_pct").asDouble();
             assertTrue(dash.path("yield_low_pct").asDouble() < y && y < dash.path("yield_high_pct").asDouble(), dash.toString());
             assertTrue(dash.path("latency_ms").path("p99").asDouble() > 0, dash.toString());
