@@ -46,8 +46,13 @@ final class Warmup {
         Path dir = null;
         try {
             dir = Files.createTempDirectory("zbin-warm-up-");
-        } catch (IOException e) {
-            LOG.debug("warm-up without a record file: {}", e.toString()); // its log then keeps rows in memory: still the same code
+        } catch (IOException e) { // no temporary folder: a scratch folder in the line's own state folder, removed the same way
+            try {
+                dir = Files.createTempDirectory(Files.createDirectories(cfg.stateDir()), "zbin-warm-up-");
+            } catch (IOException | RuntimeException again) {
+                LOG.warn("warm-up skipped: no scratch folder ({})", again.toString());
+                return 0;
+            }
         }
         Clock clock = Clock.systemUTC();
         Topics topics = new Topics(cfg.mqtt().topicRoot(), cfg.line());
@@ -58,7 +63,7 @@ final class Warmup {
         monitor.compensation(setup.compensation(), setup.stepCompensations());
         DecisionBook book = new DecisionBook(cfg.repeatWindowMs(), 20_000);
         var rs = cfg.records();
-        RecordLog records = new RecordLog(new LineConfig.RecordSettings(dir != null ? dir : Path.of("zbin-warm-up-absent"), rs.flushMs(),
+        RecordLog records = new RecordLog(new LineConfig.RecordSettings(dir, rs.flushMs(),
                 rs.rotateBytes(), false), cfg.line(), null);
         Canned meter = new Canned(setup.plan());
         TriggerPath path = new TriggerPath(cfg, topics, setup, meter, out, records, mode, stats, book, List.of(stats, monitor), clock);
@@ -80,7 +85,7 @@ final class Warmup {
             }
         } finally {
             records.close();
-            if (dir != null) delete(dir);
+            delete(dir);
         }
         return i;
     }
