@@ -218,8 +218,7 @@ class DaemonPromisesIT {
             o.setMaxInflight(1000);
             o.setCleanSession(true);
             o.setSocketFactory(NoDelaySockets.plain());
-            c.connect(o).waitForCompletion(10_000);
-            c.subscribe(new String[] {"zbin/burst/decision", "zbin/burst/rejected"}, new int[] {1, 1}).waitForCompletion(10_000);
+            net.zbin.sim.BrokerDial.connectAndSubscribe(c, o, new String[] {"zbin/burst/decision", "zbin/burst/rejected"}, new int[] {1, 1}, 10_000);
             long t0 = System.nanoTime();
             for (int i = 0; i < 30_000; i++) {
                 String p = i % 3 == 2 ? "{\"seq\": \"bad-" + i + "\"}" : "{\"seq\": " + i + ", \"part\": \"B" + i + "\", \"lot\": \"BURST\"}";

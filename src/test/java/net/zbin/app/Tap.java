@@ -56,21 +56,11 @@ public final class Tap implements AutoCloseable {
             o.setUserName(user);
             o.setPassword(password.toCharArray());
         }
-        // A broker that has just bound its port may drop the very first connection (Moquette): try again, briefly.
-        for (int attempt = 1; ; attempt++) {
-            try {
-                c.connect(o).waitForCompletion(10_000);
-                break;
-            } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
-                boolean dropped = e.getReasonCode() == org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_CONNECTION_LOST
-                        || e.getReasonCode() == org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_SERVER_CONNECT_ERROR;
-                if (!dropped || attempt >= 5) throw e;
-                Thread.sleep(200);
-            }
-        }
+        // A broker that has just bound its port, or a loaded Moquette, may drop the connection at CONNECT or at the
+        // SUBSCRIBE right after it: dial again, briefly.
         int[] qos = new int[filters.length];
         java.util.Arrays.fill(qos, 1);
-        c.subscribe(filters, qos).waitForCompletion(10_000);
+        net.zbin.sim.BrokerDial.connectAndSubscribe(c, o, filters, qos, 10_000);
     }
 
     public void publish(String topic, byte[] payload) throws Exception { c.publish(topic, payload, 1, false); }

@@ -150,8 +150,7 @@ public final class HandlerSim implements AutoCloseable {
         if (o.sockets() != null) c.setSocketFactory(o.sockets());
         if (o.username() != null) c.setUserName(o.username());
         if (o.password() != null) c.setPassword(o.password());
-        client.connect(c).waitForCompletion(10_000);
-        client.subscribe(new String[] {base + "decision", base + "state"}, new int[] {1, 1}).waitForCompletion(10_000);
+        BrokerDial.connectAndSubscribe(client, c, new String[] {base + "decision", base + "state"}, new int[] {1, 1}, 10_000);
         redial.scheduleWithFixedDelay(() -> {
             if (client.isConnected()) return;
             try {

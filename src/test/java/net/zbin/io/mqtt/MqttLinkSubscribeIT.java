@@ -148,4 +148,45 @@ class MqttLinkSubscribeIT {
             }
         }
     }
+    @Test
+    void aTestOrSimulatorClientDroppedAtItsSubscribe_dialsAgainAndHears() throws Exception {
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
+             DropFirstSubscribe proxy = new DropFirstSubscribe(broker.port)) {
+            CompletableFuture<String> heard = new CompletableFuture<>();
+            MqttAsyncClient c = new MqttAsyncClient(proxy.url(), "dial-" + System.nanoTime(), new MemoryPersistence());
+            c.setCallback(new org.eclipse.paho.client.mqttv3.MqttCallback() {
+                public void connectionLost(Throwable t) { }
+
+                public void messageArrived(String topic, org.eclipse.paho.client.mqttv3.MqttMessage m) {
+                    heard.complete(new String(m.getPayload(), StandardCharsets.UTF_8));
+                }
+
+                public void deliveryComplete(org.eclipse.paho.client.mqttv3.IMqttDeliveryToken t) { }
+            });
+            net.zbin.sim.BrokerDial.connectAndSubscribe(c, new MqttConnectOptions(), new String[] {"line/decision"}, new int[] {1}, 10_000);
+            assertEquals(1, proxy.dropped.get(), "the first connection was dropped at its SUBSCRIBE");
+            assertEquals(2, proxy.connections.get(), "dialled once more");
+            MqttAsyncClient other = new MqttAsyncClient(broker.url(), "other-" + System.nanoTime(), new MemoryPersistence());
+            other.connect(new MqttConnectOptions()).waitForCompletion(10_000);
+            other.publish("line/decision", "bin 3".getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
+            assertEquals("bin 3", heard.get(10, TimeUnit.SECONDS), "subscribed on the second connection");
+            other.disconnect().waitForCompletion(5_000);
+            other.close();
+            c.disconnect().waitForCompletion(5_000);
+            c.close();
+        }
+    }
+
+    @Test
+    void withoutDiallingAgain_theDroppedSubscribeFails_soTheProxyReallyDrops() throws Exception {
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
+             DropFirstSubscribe proxy = new DropFirstSubscribe(broker.port)) {
+            MqttAsyncClient c = new MqttAsyncClient(proxy.url(), "plain-" + System.nanoTime(), new MemoryPersistence());
+            c.connect(new MqttConnectOptions()).waitForCompletion(10_000);
+            org.eclipse.paho.client.mqttv3.MqttException e = org.junit.jupiter.api.Assertions.assertThrows(
+                    org.eclipse.paho.client.mqttv3.MqttException.class, () -> c.subscribe("line/decision", 1).waitForCompletion(10_000));
+            assertEquals(org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_CONNECTION_LOST, e.getReasonCode(), e.toString());
+            c.close(true);
+        }
+    }
 }
