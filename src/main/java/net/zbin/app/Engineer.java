@@ -21,7 +21,6 @@ final class Engineer implements AutoCloseable {
         this.topics = topics;
         LineConfig.MqttSettings s = new LineConfig.MqttSettings(broker, topics.root(), "zbin-engineer-" + ProcessHandle.current().pid(),
                 null, null, null, null, null, 10);
-        CompletableFuture<Void> subscribed = new CompletableFuture<>();
         link = new MqttLink(s, null, null, List.of(topics.commandResult()), (t, p) -> {
             CompletableFuture<JsonNode> f = pending.get();
             if (f == null) return;
@@ -31,10 +30,9 @@ final class Engineer implements AutoCloseable {
                 f.completeExceptionally(e);
             }
         });
-        link.onConnect(() -> subscribed.complete(null));
         link.connect(10_000);
-        subscribed.get(10, TimeUnit.SECONDS);
-        Thread.sleep(100); // let the subscription settle at the broker
+        if (!link.awaitSubscribed(10_000)) throw new java.io.IOException("the broker did not acknowledge the subscription to " + topics.commandResult()
+                + " within 10 s");
     }
 
     /** Sends a command and returns "cmd: message" from its result. */

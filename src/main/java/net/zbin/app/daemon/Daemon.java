@@ -129,8 +129,8 @@ public final class Daemon implements AutoCloseable {
         // only when all three are done, so the first part is measured on a warm path.
         long t0 = System.nanoTime();
         mode.attach(mqtt);
-        // The state goes out after the subscriptions were requested on the same connection (the connect callback
-        // requests them first), so a handler that sees "ready" is heard; and only once the path is warm.
+        // The state goes out once the broker acknowledged the subscriptions on that connection (also after each
+        // reconnect), so a handler that sees "ready" is heard; and only once the path is warm.
         mqtt.onConnect(() -> {
             synchronized (startLock) {
                 subscribed = true;

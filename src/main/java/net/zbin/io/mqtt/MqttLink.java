@@ -104,8 +104,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
             public void connectComplete(boolean reconnect, String uri) {
                 LOG.info("{} to {}", everConnected ? "reconnected" : "connected", uri);
                 everConnected = true;
-                subscribe();
-                onConnect.run();
+                if (!subscribe()) onConnect.run();
                 wake();
             }
 
@@ -136,11 +135,15 @@ public final class MqttLink implements Publisher, AutoCloseable {
         }
     }
 
-    /** Runs on Paho's thread after each (re)connect, after the subscriptions were requested. Must not block. */
+    /**
+     * Runs on Paho's thread after each (re)connect once the broker acknowledged the subscriptions on that connection
+     * (at once when there are none): from then on what another client publishes to them is heard. Must not block.
+     */
     public void onConnect(Runnable r) { this.onConnect = r; }
 
-    private void subscribe() {
-        if (subscriptions.isEmpty()) return;
+    /** Requests the subscriptions; false when there are none to request. */
+    private boolean subscribe() {
+        if (subscriptions.isEmpty()) return false;
         try {
             String[] topics = subscriptions.toArray(new String[0]);
             int[] qos = new int[topics.length];
@@ -148,7 +151,10 @@ public final class MqttLink implements Publisher, AutoCloseable {
             // asynchronous: never wait inside the callback; the broker's acknowledgement is heard by the listener
             client.subscribe(topics, qos, null, new IMqttActionListener() {
                 @Override
-                public void onSuccess(IMqttToken t) { subscribed.complete(null); }
+                public void onSuccess(IMqttToken t) {
+                    onConnect.run();
+                    subscribed.complete(null);
+                }
 
                 @Override
                 public void onFailure(IMqttToken t, Throwable e) {
@@ -158,6 +164,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
         } catch (MqttException e) {
             LOG.error("subscribe failed: {}", e.toString());
         }
+        return true;
     }
 
     /** Completed by the first acknowledged subscription, on whichever connection it came. */

@@ -28,7 +28,8 @@ import org.junit.jupiter.api.io.TempDir;
  * A broker that drops the connection on which the line subscribes the moment it is accepted (the embedded Moquette
  * does so on a loaded machine: "SUBSCRIBE received on already closed connection"), played by a proxy in front of a
  * real Mosquitto that closes the first client connection when its SUBSCRIBE comes. {@code awaitSubscribed} returns
- * only once a later connection's subscription was acknowledged, and from then on another client's message is heard.
+ * only once a later connection's subscription was acknowledged, the connect callback (where the daemon says "ready")
+ * runs only for that connection, and from then on another client's message is heard.
  */
 class MqttLinkSubscribeIT {
     @TempDir
@@ -135,10 +136,13 @@ class MqttLinkSubscribeIT {
                     null, null, null, 5);
             try (MqttLink link = new MqttLink(s, null, null, List.of("line/trigger"),
                     (t, p) -> heard.complete(new String(p, StandardCharsets.UTF_8)))) {
+                AtomicInteger announced = new AtomicInteger();
+                link.onConnect(announced::incrementAndGet); // the daemon says "ready" here
                 link.connect(10_000);
                 assertTrue(link.awaitSubscribed(20_000), "subscribed on a later connection");
                 assertEquals(1, proxy.dropped.get(), "the first connection was dropped at its SUBSCRIBE");
                 assertTrue(proxy.connections.get() >= 2, "the link dialled again");
+                assertEquals(1, announced.get(), "the connection dropped before its subscription was acknowledged announced nothing");
                 MqttAsyncClient other = new MqttAsyncClient(broker.url(), "other-" + System.nanoTime(), new MemoryPersistence());
                 other.connect(new MqttConnectOptions()).waitForCompletion(10_000);
                 other.publish("line/trigger", "part 1".getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
