@@ -4,9 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import java.io.BufferedReader;
-import java.io.InputStreamReader;
 import java.io.OutputStream;
-import java.net.Socket;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -35,12 +33,14 @@ import org.junit.jupiter.api.io.TempDir;
  * The line end to end through a Mosquitto it starts itself, side by side with its floor in the same run:
  * trigger → decision latency at a handler's pace against a bare MQTT echo through the same broker plus
  * one request/response with the meter simulator at zero measurement time; the first 100 decisions after
- * start against the handler's deadline; and open-loop rates with lost and duplicated decisions counted. The line
- * and its floor are measured in alternating blocks of the same run, so a shared machine's changing load weighs on both.
- * Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
+ * start, the first decision of each of 45 lots (5 of 1 000 parts, 40 of 100), against the floor's p99; and open-loop
+ * rates (3 000/s for 60 s, the others for 10 s: {@code -Dzbin.bench.long.seconds}, {@code -Dzbin.bench.seconds}) with
+ * lost and duplicated decisions counted and the cores each part of the rig used. The line and its floor
+ * ({@link BenchFloor}) are measured in alternating blocks of the same run, so a shared machine's changing load weighs
+ * on both. Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
  */
 class LineBench {
-    static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6;
+    static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6, SHORT_LOTS = 40, SHORT_LOT = 100, LONG_RATE = 3000;
 
     @TempDir
     Path dir;
@@ -153,6 +153,17 @@ class LineBench {
         return (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L; // fields 14 and 15 of stat (utime, stime)
     }
 
+    /** How many of {@code h}'s values are at most {@code ms}. */
+    static long count(Histogram h, double ms) { return h.getCountBetweenValues(0, Math.round(ms * 1e6)); }
+
+    /** The machine's busy and total jiffies since boot, from the first line of /proc/stat (busy = all but idle and iowait). */
+    static long[] machineJiffies() throws java.io.IOException {
+        String[] f = Files.readAllLines(Path.of("/proc/stat")).get(0).trim().split("\\s+");
+        long total = 0, idle = Long.parseLong(f[4]) + Long.parseLong(f[5]);
+        for (int i = 1; i < f.length && i <= 8; i++) total += Long.parseLong(f[i]); // user … steal (proc(5)); guest is inside user
+        return new long[] {total - idle, total};
+    }
+
     static ObjectNode json(Histogram h) {
         ObjectNode n = Json.object();
         for (double p : new double[] {50, 99, 99.9}) n.put("p" + (p == 99.9 ? "999" : Integer.toString((int) p)) + "_ms", h.getValueAtPercentile(p) / 1e6);
@@ -164,33 +175,13 @@ class LineBench {
     void theLine_againstItsFloor() throws Exception {
         ObjectNode out = Json.object();
         out.put("machine", Runtime.getRuntime().availableProcessors() + " cores, " + System.getProperty("java.vm.name") + " " + System.getProperty("java.version"));
-        try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n")) {
-            // Floor 1: a bare MQTT echo through the same broker.
-            Map<String, CompletableFuture<Long>> echoWaiting = new ConcurrentHashMap<>();
-            MqttAsyncClient echo = client(broker.url(), new ConcurrentHashMap<>());
-            echo.setCallback(new MqttCallback() {
-                public void connectionLost(Throwable t) { }
-
-                public void messageArrived(String topic, MqttMessage m) throws MqttException { echo.publish("bench/resp", m.getPayload(), 1, false); }
-
-                public void deliveryComplete(IMqttDeliveryToken t) { }
-            });
-            echo.subscribe("bench/req", 1).waitForCompletion(10_000);
-            MqttAsyncClient req = client(broker.url(), echoWaiting, "bench/resp");
-            paced(req, echoWaiting, "bench/req", "", 500, PACE, 0);
-
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
+             BenchFloor floor = new BenchFloor(broker.url())) {
             try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
-                    "handler: {deadline_ms: 150}\n");
-                 Socket meter = new Socket("127.0.0.1", rig.meterServer.port())) {
+                    "handler: {deadline_ms: 150}\n")) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-                // Floor 2: one request/response with the meter simulator at zero measurement time, at the line's pace
-                // (as the echo and the line are; back to back, both threads stay hot and the figure is lower: kept beside it).
-                meter.setTcpNoDelay(true);
-                OutputStream mo = meter.getOutputStream();
-                BufferedReader mi = new BufferedReader(new InputStreamReader(meter.getInputStream(), StandardCharsets.US_ASCII));
-                Histogram meterH = new Histogram(60_000_000_000L, 3), meterTight = new Histogram(60_000_000_000L, 3);
-                meterExchanges(mo, mi, 500, 0, null);
-                meterExchanges(mo, mi, SAMPLES, 0, meterTight);
+                floor.meterAt(rig.meterServer.port());
+                Histogram meterTight = floor.meterBackToBack(SAMPLES);
                 // The first 100 decisions after start.
                 Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
                 MqttAsyncClient handler = client(broker.url(), waiting, "zbin/bench/decision");
@@ -198,47 +189,66 @@ class LineBench {
                 paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 500, PACE, 10_000);
                 // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
                 // seconds, so each figure and its floor are taken over the same stretch of time.
-                Histogram echoH = new Histogram(60_000_000_000L, 3), line = new Histogram(60_000_000_000L, 3);
+                Histogram line = new Histogram(60_000_000_000L, 3);
                 int block = SAMPLES / ROUNDS;
                 for (int r = 0; r < ROUNDS; r++) {
-                    echoH.add(paced(req, echoWaiting, "bench/req", "", block, PACE, 1_000_000 + r * block));
-                    meterExchanges(mo, mi, block, PACE, meterH);
+                    floor.block(block);
                     line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block, PACE, 100_000 + r * block));
                 }
-                // A lot change every 1 000 parts at the handler's pace: every decision, and the first of each new lot.
+                // A lot change every 1 000 parts at the handler's pace (a floor block between lots): every decision, and
+                // the first of each new lot.
                 Histogram lots = new Histogram(60_000_000_000L, 3), firstOfLot = new Histogram(60_000_000_000L, 3);
                 for (int k = 0; k < LOTS; k++) {
+                    floor.block(block);
                     String lotPart = ", \"part\": \"L" + k + "\", \"lot\": \"BENCH-LOT-" + k + "\"";
                     Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 300_000 + k * 10_000L);
                     firstOfLot.add(first1);
                     lots.add(first1);
                     lots.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, 999, PACE, 300_001 + k * 10_000L));
                 }
-                double floorP50 = (echoH.getValueAtPercentile(50) + meterH.getValueAtPercentile(50)) / 1e6;
-                double floorP99 = (echoH.getValueAtPercentile(99) + meterH.getValueAtPercentile(99)) / 1e6;
-                out.set("echo", json(echoH));
-                out.set("meter", json(meterH));
+                // Many short lots, so the first decision of a lot has a distribution and not five samples: a lot change
+                // every SHORT_LOT parts, each lot's first decision beside the rest of that stretch.
+                Histogram shortRest = new Histogram(60_000_000_000L, 3);
+                for (int k = 0; k < SHORT_LOTS; k++) {
+                    if (k % 10 == 0) floor.block(block / 2);
+                    String lotPart = ", \"part\": \"L" + (LOTS + k) + "\", \"lot\": \"BENCH-SHORT-" + k + "\"";
+                    firstOfLot.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 500_000 + k * 10_000L));
+                    shortRest.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, SHORT_LOT - 1, PACE, 500_001 + k * 10_000L));
+                }
+                double floorP50 = floor.ms(50), floorP99 = floor.ms(99);
+                out.set("echo", json(floor.echo));
+                out.set("meter", json(floor.meter));
                 out.set("meter_back_to_back", json(meterTight));
                 out.put("floor_p50_ms", floorP50);
                 out.put("floor_p99_ms", floorP99);
                 out.set("line_at_" + PACE + "_per_s", json(line));
-                out.set("first_100_after_start", json(first));
+                ObjectNode f = json(first);
+                f.put("within_floor_p99", count(first, floorP99));
+                out.set("first_100_after_start", f);
                 out.set("lot_change_every_1000_at_" + PACE + "_per_s", json(lots));
-                out.set("first_decision_of_a_lot", json(firstOfLot));
+                ObjectNode fl = json(firstOfLot);
+                fl.put("lots", firstOfLot.getTotalCount());
+                fl.put("within_floor_p99", count(firstOfLot, floorP99));
+                out.set("first_decision_of_a_lot", fl);
+                out.set("rest_of_the_short_lots", json(shortRest));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_100_inside_zbin_arrival_to_decided", json(INSIDE_FIRST));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
-                System.out.printf(Locale.ROOT, "%n  %-46s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
-                for (var e : new Object[][] {{"floor: MQTT echo", echoH}, {"floor: meter request/response", meterH},
+                System.out.printf(Locale.ROOT, "%n  %-52s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
+                for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
                         {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line}, {"  of it inside zbin: arrival -> decided", INSIDE},
-                        {"first 100 decisions after start", first}, {"  of it inside zbin: arrival -> decided", INSIDE_FIRST}, {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
-                        {"  the first decision of each lot", firstOfLot}, {"    of it inside zbin: arrival -> decided", INSIDE_LOT}}) {
+                        {"first 100 decisions after start", first}, {"  of it inside zbin: arrival -> decided", INSIDE_FIRST},
+                        {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
+                        {"the first decision of a lot (" + firstOfLot.getTotalCount() + " lots)", firstOfLot}, {"  of it inside zbin: arrival -> decided", INSIDE_LOT},
+                        {"  the rest of the " + SHORT_LOTS + " short lots (" + SHORT_LOT + " parts)", shortRest}}) {
                     Histogram h = (Histogram) e[1];
-                    System.out.printf(Locale.ROOT, "  %-46s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
+                    System.out.printf(Locale.ROOT, "  %-52s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
                             h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
                 }
                 System.out.printf(Locale.ROOT, "  floor (echo + meter): p50 %.3f ms, p99 %.3f ms; targets p50 <= %.3f, p99 <= %.3f%n", floorP50, floorP99,
                         floorP50 + 0.2, 1.5 * floorP99);
+                System.out.printf(Locale.ROOT, "  within the floor's p99: %d of the first 100, %d of %d lots' first decisions%n", count(first, floorP99),
+                        count(firstOfLot, floorP99), firstOfLot.getTotalCount());
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
@@ -268,16 +278,18 @@ class LineBench {
                 co.setMaxInflight(5000);
                 counter.connect(co).waitForCompletion(10_000);
                 counter.subscribe("zbin/bench/decision", 1).waitForCompletion(10_000);
-                int seconds = Integer.getInteger("zbin.bench.seconds", 10);
-                long seq = 1_000_000;
+                int shortS = Integer.getInteger("zbin.bench.seconds", 10), longS = Integer.getInteger("zbin.bench.long.seconds", 60);
+                long seq = 1_000_000, self = ProcessHandle.current().pid();
                 for (int rate : new int[] {1000, 2000, 3000, 4000}) {
+                    int seconds = rate == LONG_RATE ? longS : shortS;
                     answered.set(0);
                     dup.set(0);
                     busy.set(0);
                     seen.clear();
                     sentAt.clear();
                     synchronized (openLat) { openLat.reset(); }
-                    long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid());
+                    long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid()), jvm0 = processCpuNs(self);
+                    long[] machine0 = machineJiffies();
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
                         sentAt.put("R" + rate + "-" + i, System.nanoTime());
@@ -300,7 +312,14 @@ class LineBench {
                     while (answered.get() < n && System.currentTimeMillis() < end) Thread.sleep(20);
                     double doneS = (System.nanoTime() - start) / 1e9;
                     double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
-                    double brokerUs = (processCpuNs(broker.pid()) - broker0) / 1e3 / Math.max(1, answered.get());
+                    long daemonNs = daemonCpuNs() - cpu0, brokerNs = processCpuNs(broker.pid()) - broker0, jvmNs = processCpuNs(self) - jvm0;
+                    long[] machine1 = machineJiffies();
+                    double brokerUs = brokerNs / 1e3 / Math.max(1, answered.get());
+                    // Cores in use over the run: zbin's threads, the rest of this JVM (the fixed-rate client, the meter
+                    // simulator, GC and JIT), Mosquitto, and the whole machine (anything else running counts here too).
+                    double wallNs = doneS * 1e9, cores = Runtime.getRuntime().availableProcessors();
+                    double zbinCores = daemonNs / wallNs, rigCores = Math.max(0, jvmNs - daemonNs) / wallNs, brokerCores = brokerNs / wallNs;
+                    double machineBusy = (double) (machine1[0] - machine0[0]) / Math.max(1, machine1[1] - machine0[1]) * cores;
                     ObjectNode r = rates.putObject(Integer.toString(rate));
                     double p50, p99;
                     synchronized (openLat) {
@@ -317,17 +336,22 @@ class LineBench {
                     r.put("line_busy", busy.get());
                     r.put("send_s", sendS);
                     r.put("all_answered_after_s", doneS);
+                    r.put("cores_zbin", zbinCores);
+                    r.put("cores_rig_client_meter_gc_jit", rigCores);
+                    r.put("cores_mosquitto", brokerCores);
+                    r.put("cores_machine_busy", machineBusy);
+                    r.put("machine_cores", cores);
                     System.out.printf(Locale.ROOT, "  open loop %5d/s for %ds: %d sent in %.1f s, %d answered (%d duplicated, %d line-busy), all answered after %.1f s;"
                                     + " trigger -> decision p50 %.1f ms, p99 %.1f ms; CPU per decision: zbin %.0f µs, Mosquitto %.0f µs (%.1f ×)%n",
                             rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS, p50, p99, zbinUs, brokerUs, zbinUs / brokerUs);
+                    System.out.printf(Locale.ROOT, "    cores in use: zbin %.2f, the rest of the bench JVM (client, meter simulator, GC, JIT) %.2f, Mosquitto %.2f;"
+                            + " the machine %.2f of %.0f%n", zbinCores, rigCores, brokerCores, machineBusy, cores);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }
                 counter.disconnect().waitForCompletion(5000);
                 handler.disconnect().waitForCompletion(5000);
             }
-            req.disconnect().waitForCompletion(5000);
-            echo.disconnect().waitForCompletion(5000);
         }
         Files.createDirectories(Path.of("target/bench"));
         Files.writeString(Path.of("target/bench/line.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
