@@ -1,0 +1,135 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.Arrays;
+import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.TimeUnit;
+import net.zbin.io.Json;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.SimMeter;
+import net.zbin.sim.SimTcpServer;
+import org.HdrHistogram.Histogram;
+import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * The real {@code zbin run} started as its own process, {@value #STARTS} times: from the process's start to its first
+ * {@code ready}, then its first 100 decisions at a handler's pace against the floor ({@link BenchFloor}) measured in a
+ * block after each start. A JVM that already ran the daemon's code (as the other benches' does) would hide a cold path;
+ * a fresh process cannot. Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false};
+ * results in {@code target/bench/fresh-start.json}.
+ */
+class FreshStartBench {
+    static final int STARTS = 8, FIRST = 100;
+
+    @TempDir
+    Path dir;
+
+    /** The daemon's process, on this JVM's own class path (no packaged jar needed: the bench runs at the test phase). */
+    Process start(Path cfg, int i) throws Exception {
+        java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString()));
+        String extra = System.getProperty("zbin.bench.daemon.jvm", ""); // e.g. -Xlog:class+load to see what the first parts still load
+        if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
+        cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main", "run", "--config", cfg.toString()));
+        return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + i + ".log").toFile()).start();
+    }
+
+    @Test
+    void aFreshProcess_readyAndItsFirst100_againstTheFloor() throws Exception {
+        SimMeter meter = new SimMeter(new Contacts(), net.zbin.sim.Fixture.IDEAL, Clock.systemUTC(), 9, 0, SimMeter.RandomFaults.NONE);
+        meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        Histogram first = new Histogram(60_000_000_000L, 3), veryFirst = new Histogram(60_000_000_000L, 3);
+        Histogram inside = new Histogram(60_000_000_000L, 3);
+        long[] readyMs = new long[STARTS];
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
+             SimTcpServer sim = new SimTcpServer(meter, 0);
+             BenchFloor floor = new BenchFloor(broker.url());
+             Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
+            floor.meterAt(sim.port());
+            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n");
+            Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
+            java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
+            MqttAsyncClient handler = LineBench.client(broker.url(), waiting, p -> {
+                if (!p.contains("\"part\":\"S")) return null;
+                int l = p.indexOf("\"latency_ms\":"), q = p.indexOf("\"seq\":");
+                if (l >= 0 && q >= 0) {
+                    long seq = Long.parseLong(p.substring(q + 6, p.indexOf(',', q)).trim());
+                    if (seq % 1000 < 5) firstFive.add(seq + ": " + p.substring(l + 13, p.indexOf(',', l)));
+                }
+                return inside;
+            }, "zbin/fresh/decision");
+            for (int i = 0; i < STARTS; i++) {
+                floor.block(FIRST);
+                int mark = tap.msgs.size();
+                long t0 = System.nanoTime();
+                Process daemon = start(cfg, i);
+                try {
+                    tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                    readyMs[i] = (System.nanoTime() - t0) / 1_000_000;
+                    String part = ", \"part\": \"S" + i + "\"";
+                    Histogram one = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 1, LineBench.PACE, i * 1_000L);
+                    first.add(one);
+                    veryFirst.add(one);
+                    first.add(LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 1, LineBench.PACE, i * 1_000L + 1));
+                } finally {
+                    daemon.destroy(); // SIGTERM: a clean stop
+                    if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+                }
+            }
+            handler.disconnect().waitForCompletion(5000);
+            handler.close();
+            double floorP50 = floor.ms(50), floorP99 = floor.ms(99);
+            long[] sorted = readyMs.clone();
+            Arrays.sort(sorted);
+            ObjectNode out = Json.object();
+            out.put("machine", Runtime.getRuntime().availableProcessors() + " cores, " + System.getProperty("java.vm.name") + " " + System.getProperty("java.version"));
+            out.put("starts", STARTS);
+            ArrayNode r = out.putArray("ready_after_start_ms");
+            for (long v : readyMs) r.add(v);
+            out.put("ready_median_ms", sorted[STARTS / 2]);
+            out.put("ready_max_ms", sorted[STARTS - 1]);
+            out.set("echo", LineBench.json(floor.echo));
+            out.set("meter", LineBench.json(floor.meter));
+            out.put("floor_p50_ms", floorP50);
+            out.put("floor_p99_ms", floorP99);
+            ObjectNode f = LineBench.json(first);
+            f.put("decisions", first.getTotalCount());
+            f.put("within_floor_p99", LineBench.count(first, floorP99));
+            out.set("first_100_after_each_start", f);
+            out.set("first_100_inside_zbin_arrival_to_decided", LineBench.json(inside));
+            ArrayNode ff = out.putArray("inside_zbin_first_five_after_each_start_seq_ms");
+            firstFive.forEach(ff::add);
+            ObjectNode v = LineBench.json(veryFirst);
+            v.put("within_floor_p99", LineBench.count(veryFirst, floorP99));
+            out.set("first_decision_after_each_start", v);
+            System.out.printf(Locale.ROOT, "%n  ready after process start, ms: %s (median %d, max %d)%n", Arrays.toString(readyMs), sorted[STARTS / 2], sorted[STARTS - 1]);
+            System.out.printf(Locale.ROOT, "  %-52s %9s %9s %9s %9s%n", "latency at " + LineBench.PACE + "/s, ms", "p50", "p99", "p99.9", "max");
+            for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
+                    {"first " + FIRST + " decisions after each of " + STARTS + " starts", first}, {"  of it inside zbin: arrival -> decided", inside},
+                    {"  the very first decision after each start", veryFirst}}) {
+                Histogram h = (Histogram) e[1];
+                System.out.printf(Locale.ROOT, "  %-52s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
+                        h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
+            }
+            System.out.printf(Locale.ROOT, "  floor (echo + meter): p50 %.3f ms, p99 %.3f ms; within the floor's p99: %d of the %d first 100s' decisions,"
+                    + " %d of the %d very first%n", floorP50, floorP99, LineBench.count(first, floorP99), first.getTotalCount(),
+                    LineBench.count(veryFirst, floorP99), veryFirst.getTotalCount());
+            assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
+            Files.createDirectories(Path.of("target/bench/fresh-start-logs"));
+            for (int i = 0; i < STARTS; i++) Files.copy(dir.resolve("daemon-" + i + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + i + ".log"),
+                    java.nio.file.StandardCopyOption.REPLACE_EXISTING);
+            Files.writeString(Path.of("target/bench/fresh-start.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
+        }
+    }
+}
