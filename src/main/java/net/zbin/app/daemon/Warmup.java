@@ -72,23 +72,40 @@ final class Warmup {
                     monitor.snapshot(), mode.activeAlarms(), records.backlog(), records.dropped(), 0, "up", cfg.deadlineMs());
             out.publish(topics.dashboard(), Payloads.bytes(DashboardJson.encode(s)), 0, false);
         });
-        ObjectNode trigger = Json.object();
         int i = 0;
         try {
             // at least one lot and the start of the next, whatever the clock says; then up to the time bound
-            for (; i < rounds && (i <= LOT_PARTS || i % 32 != 0 || System.nanoTime() < end); i++) {
-                String lot = "warm-up-" + (i / LOT_PARTS) % 2;
-                // every 16th trigger comes again at once: the repeat answered from the book
-                int seq = i % 16 == 15 ? i - 1 : i;
-                trigger.put("seq", seq).put("part", "W" + seq).put("lot", lot).put("kind", "part");
-                path.onTrigger(Payloads.bytes(trigger), System.nanoTime());
-            }
+            for (; i < rounds && (i <= LOT_PARTS || i % 32 != 0 || System.nanoTime() < end); i++) path.onTrigger(trigger(i), System.nanoTime());
         } finally {
             records.close();
             delete(dir);
         }
         return i;
     }
+
+    /**
+     * The {@code i}-th invented trigger, shaped as handlers send them: with and without part, lot and kind, compact
+     * and with white space, now and then a retest. The compiler optimises for what it saw; a shape the warm-up never
+     * sent would throw that code away at the first real part and run it slowly again until it is compiled anew.
+     */
+    static byte[] trigger(int i) {
+        // every 16th trigger comes again at once: the repeat answered from the book
+        int seq = i % 16 == 15 ? i - 1 : i;
+        ObjectNode t = Json.object();
+        t.put("seq", seq);
+        if (i % 7 != 3) t.put("part", "W" + seq);
+        if (i % 5 != 1) t.put("lot", "warm-up-" + (i / LOT_PARTS) % 2); // absent: the current lot goes on
+        if (i % 3 == 0) t.put("kind", "part");
+        if (i % 29 == 28) t.put("retest_of", seq - 1);
+        if (i % 2 == 0) return Payloads.bytes(t);
+        try {
+            return PRETTY.writeValueAsBytes(t);
+        } catch (com.fasterxml.jackson.core.JsonProcessingException e) {
+            throw new IllegalStateException("a tree always serialises", e);
+        }
+    }
+
+    private static final com.fasterxml.jackson.databind.ObjectWriter PRETTY = Json.mapper().writerWithDefaultPrettyPrinter();
 
     private static void delete(Path dir) {
         try (var files = Files.walk(dir)) {

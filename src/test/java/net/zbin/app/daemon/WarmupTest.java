@@ -61,4 +61,21 @@ class WarmupTest {
         assertEquals(0, n % 32, "stops only where it reads the clock: " + n);
         assertTrue(n > Warmup.LOT_PARTS && n <= 100_000, "ran " + n + " of the million asked for");
     }
+    @Test
+    void inventedTriggers_comeInEveryShapeAHandlerSends() throws Exception {
+        int noPart = 0, noLot = 0, kind = 0, retest = 0, spaced = 0, compact = 0;
+        for (int i = 0; i < 2 * Warmup.LOT_PARTS; i++) {
+            byte[] b = Warmup.trigger(i);
+            net.zbin.core.Trigger t = net.zbin.io.mqtt.TriggerCodec.decode(b); // each one is a valid trigger
+            String text = new String(b, java.nio.charset.StandardCharsets.UTF_8);
+            if (t.part().isEmpty()) noPart++;
+            if (t.lot().isEmpty()) noLot++;
+            if (text.contains("\"kind\"")) kind++;
+            if (text.contains("\"retest_of\"")) retest++;
+            if (text.contains("\n")) spaced++;
+            else compact++;
+        }
+        assertTrue(noPart > 0 && noLot > 0 && kind > 0 && retest > 0 && spaced > 0 && compact > 0,
+                "without part " + noPart + ", without lot " + noLot + ", with kind " + kind + ", retests " + retest + ", pretty " + spaced + ", compact " + compact);
+    }
 }
