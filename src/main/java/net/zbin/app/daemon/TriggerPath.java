@@ -167,6 +167,7 @@ final class TriggerPath {
     private String lotOf(Trigger t) {
         String l = t.lot().isEmpty() ? book.lot() : t.lot();
         if (l.equals(book.lot())) return l;
+        startPendingLot(); // a lot whose first trigger got no answer (it failed on the way) still starts, and ends, in order
         boolean ended = !book.lot().isEmpty();
         java.time.Instant when = clock.instant();
         book.enterLot(l);

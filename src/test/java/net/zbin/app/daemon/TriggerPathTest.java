@@ -1,6 +1,7 @@
 package net.zbin.app.daemon;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import com.fasterxml.jackson.databind.JsonNode;
@@ -149,6 +150,23 @@ class TriggerPathTest {
         // seq 1 of the new lot is a new part, not a repeat of LOT-A's seq 1
         assertEquals("B1", decisions().get(3).path("part").asText());
         assertEquals(4, meter.measured);
+    }
+
+    @Test
+    void aLotWhoseFirstTriggerFailedOnTheWay_stillStartsAndEnds_beforeTheNextLot() throws Exception {
+        List<LineStats.Ended> ended = new java.util.ArrayList<>();
+        path.onLotEnd(ended::add);
+        meter.reading(1.0);
+        trigger("{\"seq\": 1, \"part\": \"A1\", \"lot\": \"LOT-A\"}");
+        // nothing scripted: the meter fails in a way the path does not handle, and LOT-B's first trigger gets no answer
+        assertThrows(AssertionError.class, () -> trigger("{\"seq\": 1, \"part\": \"B1\", \"lot\": \"LOT-B\"}"));
+        meter.reading(1.0);
+        trigger("{\"seq\": 1, \"part\": \"C1\", \"lot\": \"LOT-C\"}");
+        assertEquals(List.of("LOT-A", "LOT-B"), ended.stream().map(LineStats.Ended::lot).toList(), "both lots ended, in order");
+        assertEquals(1, stats.snapshot(ended.get(0)).lotTally().parts(), "LOT-A's part stays LOT-A's");
+        assertEquals(0, stats.snapshot(ended.get(1)).lotTally().parts(), "LOT-B decided nothing");
+        assertEquals("LOT-C", stats.snapshot().lot());
+        assertEquals(1, stats.snapshot().lotTally().parts());
     }
 
     @Test

@@ -61,6 +61,7 @@ class WarmupTest {
         assertEquals(0, n % 32, "stops only where it reads the clock: " + n);
         assertTrue(n > Warmup.LOT_PARTS && n <= 100_000, "ran " + n + " of the million asked for");
     }
+
     @Test
     void inventedTriggers_comeInEveryShapeAHandlerSends() throws Exception {
         int noPart = 0, noLot = 0, kind = 0, retest = 0, spaced = 0, compact = 0;
