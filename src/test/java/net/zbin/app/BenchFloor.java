@@ -31,13 +31,11 @@ final class BenchFloor implements AutoCloseable {
 
     /** Connects the echo's two clients and warms them with 500 echoes not recorded. */
     BenchFloor(String brokerUrl) throws Exception {
-        MqttAsyncClient[] self = new MqttAsyncClient[1];
         responder = LineBench.client(brokerUrl, new ConcurrentHashMap<>());
-        self[0] = responder;
         responder.setCallback(new MqttCallback() {
             public void connectionLost(Throwable t) { }
 
-            public void messageArrived(String topic, MqttMessage m) throws MqttException { self[0].publish("bench/resp", m.getPayload(), 1, false); }
+            public void messageArrived(String topic, MqttMessage m) throws MqttException { responder.publish("bench/resp", m.getPayload(), 1, false); }
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });

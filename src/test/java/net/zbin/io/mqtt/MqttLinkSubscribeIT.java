@@ -127,6 +127,15 @@ class MqttLinkSubscribeIT {
         public void close() throws IOException { server.close(); }
     }
 
+    /** Another client, straight to the broker: publishes one message at QoS 1, waits for its acknowledgement, leaves. */
+    static void publishFromAnotherClient(String brokerUrl, String topic, String text) throws Exception {
+        MqttAsyncClient other = new MqttAsyncClient(brokerUrl, "other-" + System.nanoTime(), new MemoryPersistence());
+        other.connect(new MqttConnectOptions()).waitForCompletion(10_000);
+        other.publish(topic, text.getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
+        other.disconnect().waitForCompletion(5_000);
+        other.close();
+    }
+
     @Test
     void aConnectionDroppedAtItsSubscribe_awaitSubscribedWaitsForTheNextOnes_thenAnotherClientIsHeard() throws Exception {
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
@@ -143,12 +152,8 @@ class MqttLinkSubscribeIT {
                 assertEquals(1, proxy.dropped.get(), "the first connection was dropped at its SUBSCRIBE");
                 assertTrue(proxy.connections.get() >= 2, "the link dialled again");
                 assertEquals(1, announced.get(), "the connection dropped before its subscription was acknowledged announced nothing");
-                MqttAsyncClient other = new MqttAsyncClient(broker.url(), "other-" + System.nanoTime(), new MemoryPersistence());
-                other.connect(new MqttConnectOptions()).waitForCompletion(10_000);
-                other.publish("line/trigger", "part 1".getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
+                publishFromAnotherClient(broker.url(), "line/trigger", "part 1");
                 assertEquals("part 1", heard.get(10, TimeUnit.SECONDS), "right after awaitSubscribed, another client's message is heard");
-                other.disconnect().waitForCompletion(5_000);
-                other.close();
             }
         }
     }
@@ -170,12 +175,8 @@ class MqttLinkSubscribeIT {
             net.zbin.sim.BrokerDial.connectAndSubscribe(c, new MqttConnectOptions(), new String[] {"line/decision"}, new int[] {1}, 10_000);
             assertEquals(1, proxy.dropped.get(), "the first connection was dropped at its SUBSCRIBE");
             assertEquals(2, proxy.connections.get(), "dialled once more");
-            MqttAsyncClient other = new MqttAsyncClient(broker.url(), "other-" + System.nanoTime(), new MemoryPersistence());
-            other.connect(new MqttConnectOptions()).waitForCompletion(10_000);
-            other.publish("line/decision", "bin 3".getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
+            publishFromAnotherClient(broker.url(), "line/decision", "bin 3");
             assertEquals("bin 3", heard.get(10, TimeUnit.SECONDS), "subscribed on the second connection");
-            other.disconnect().waitForCompletion(5_000);
-            other.close();
             c.disconnect().waitForCompletion(5_000);
             c.close();
         }
