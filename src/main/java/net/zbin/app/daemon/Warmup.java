@@ -89,14 +89,15 @@ final class Warmup {
      * sent would throw that code away at the first real part and run it slowly again until it is compiled anew.
      */
     static byte[] trigger(int i) {
-        // every 16th trigger comes again at once: the repeat answered from the book
+        // every 16th trigger comes again at once: the repeat answered from the book. What it says follows from its seq
+        // alone, so a repeat is the same presentation (a handler reusing seqs would be logged as such in the line's log)
         int seq = i % 16 == 15 ? i - 1 : i;
         ObjectNode t = Json.object();
         t.put("seq", seq);
-        if (i % 7 != 3) t.put("part", "W" + seq);
-        if (i % 5 != 1) t.put("lot", "warm-up-" + (i / LOT_PARTS) % 2); // absent: the current lot goes on
-        if (i % 3 == 0) t.put("kind", "part");
-        if (i % 29 == 28) t.put("retest_of", seq - 1);
+        if (seq % 7 != 3) t.put("part", "W" + seq);
+        if (seq % 5 != 1) t.put("lot", "warm-up-" + (seq / LOT_PARTS) % 2); // absent: the current lot goes on
+        if (seq % 3 == 0) t.put("kind", "part");
+        if (seq % 29 == 28) t.put("retest_of", seq - 1);
         if (i % 2 == 0) return Payloads.bytes(t);
         try {
             return PRETTY.writeValueAsBytes(t);

@@ -53,6 +53,26 @@ class WarmupTest {
     }
 
     @Test
+    void warmup_writesNoWarningIntoTheLinesLog() throws Exception {
+        // invented parts must not read as a handler's mistakes (a reused seq, a retest of nothing) in the line's own log
+        var root = (ch.qos.logback.classic.Logger) org.slf4j.LoggerFactory.getLogger(org.slf4j.Logger.ROOT_LOGGER_NAME);
+        var heard = new ch.qos.logback.core.read.ListAppender<ch.qos.logback.classic.spi.ILoggingEvent>();
+        heard.start();
+        root.addAppender(heard);
+        try {
+            for (String recipe : new String[] {"mlcc-x7r-100n", "polymer-cap-100u-esr", "mlcc-x7r-100n-remeasure"}) {
+                LineConfig cfg = line(recipe);
+                Warmup.run(cfg, new LineSetup(cfg), 6 * Warmup.LOT_PARTS, 60_000);
+            }
+        } finally {
+            root.detachAppender(heard);
+        }
+        var warnings = heard.list.stream().filter(e -> e.getLevel().isGreaterOrEqual(ch.qos.logback.classic.Level.WARN))
+                .map(ch.qos.logback.classic.spi.ILoggingEvent::getFormattedMessage).toList();
+        assertEquals(java.util.List.of(), warnings, "warnings logged by the warm-up");
+    }
+
+    @Test
     void warmup_stopsAtItsTimeBound_notAtItsRoundCount() throws Exception {
         LineConfig cfg = line("mlcc-x7r-100n");
         long n = Warmup.run(cfg, new LineSetup(cfg), 1_000_000, 1);
