@@ -22,13 +22,15 @@ public final class RunLength {
     public static double cusumOneSided(double k, double h, double mu) {
         int m = CUSUM_STATES;
         double w = 2 * h / (2 * m - 1);
+        // the step from state i to j depends on j − i only: Φ at the upper edge of j seen from i, for each j − i once
+        double[] edge = new double[2 * m - 1];
+        for (int d = -(m - 1); d < m; d++) edge[d + m - 1] = phi((d + 0.5) * w + k - mu);
         double[][] a = new double[m][m];
         for (int i = 0; i < m; i++) {
-            double from = i * w;
-            double prev = phi(w / 2 - from + k - mu);
+            double prev = edge[m - 1 - i];
             a[i][0] = (i == 0 ? 1 : 0) - prev;
             for (int j = 1; j < m; j++) {
-                double up = phi((j + 0.5) * w - from + k - mu);
+                double up = edge[j - i + m - 1];
                 a[i][j] = (i == j ? 1 : 0) - (up - prev);
                 prev = up;
             }
