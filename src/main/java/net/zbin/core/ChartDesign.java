@@ -57,12 +57,44 @@ public record ChartDesign(double k, double h, double lambda, double limitL, bool
         }
     }
 
-    /** The design for these settings (computed once per distinct setting, tens of milliseconds). */
-    public static ChartDesign of(MonitorSettings s) {
-        return MEMO.computeIfAbsent(s.withCompMaxAgeH(1).withBaseline(Double.NaN, Double.NaN), ChartDesign::design);
+    /**
+     * How far a known limit's false-alarm rate per point may lie from its share of the budget, as |ln(rate/share)|:
+     * a fresh solve lands within about 1e-6; the margin allows another machine's last bits of {@code exp}.
+     */
+    static final double KNOWN_LIMIT_TOLERANCE = 1e-3;
+
+    /** The design for these settings (computed once per distinct setting: 0.1–0.3 s, the most a line's start computes). */
+    public static ChartDesign of(MonitorSettings s) { return MEMO.computeIfAbsent(key(s), k -> design(k, Double.NaN, Double.NaN)); }
+
+    /** A design solved afresh, not remembered: what {@link #of} would give for settings it has not seen. */
+    public static ChartDesign designed(MonitorSettings s) { return design(key(s), Double.NaN, Double.NaN); }
+
+    /** Whether these settings' design is made already (in this process). */
+    public static boolean known(MonitorSettings s) { return MEMO.containsKey(key(s)); }
+
+    /** What a design depends on: the settings without the compensation age limit and a stated baseline. */
+    public static MonitorSettings key(MonitorSettings s) { return s.withCompMaxAgeH(1).withBaseline(Double.NaN, Double.NaN); }
+
+    /**
+     * Takes limits solved before (a line keeps them in its state folder, so a restart need not solve again) as the
+     * design for these settings — only if each designed limit meets its share of the false-alarm budget as a fresh
+     * solve would ({@link #KNOWN_LIMIT_TOLERANCE}): checking costs two rate evaluations per chart where solving costs
+     * a dozen, and nothing read back can hand the line limits the budget does not give. Limits the settings state
+     * are the settings' own whatever is passed. Returns the design taken, or null (the settings are designed afresh
+     * when asked for).
+     */
+    public static ChartDesign adopt(MonitorSettings s, double h, double limitL) {
+        if (!(h > 0) || !(limitL > 0)) return null;
+        MonitorSettings k = key(s);
+        ChartDesign d = design(k, h, limitL);
+        return d == null ? null : MEMO.computeIfAbsent(k, x -> d);
     }
 
-    private static ChartDesign design(MonitorSettings s) {
+    /**
+     * Solves the limits the settings leave open, or with {@code knownH}/{@code knownL} (not NaN) checks those instead:
+     * null when a known limit misses its share of the budget.
+     */
+    private static ChartDesign design(MonitorSettings s, double knownH, double knownL) {
         int n = s.subgroup();
         double p = s.partsPerS() * 3600 * s.shiftH() / n;
         double m = (double) s.learnParts() / n;
@@ -73,11 +105,21 @@ public record ChartDesign(double k, double h, double lambda, double limitL, bool
         double sd = 1 / Math.sqrt(m);
         DoubleUnaryOperator cusumRate = h -> averaged(e -> 1 / RunLength.cusum(k, h, e), sd);
         DoubleUnaryOperator ewmaRate = l -> averaged(e -> 1 / RunLength.ewma(lambda, l, e), sd);
-        double h = Double.isNaN(s.cusumH()) ? solve(cusumRate, perChart, 0.5, 40) : s.cusumH();
-        double l = Double.isNaN(s.ewmaL()) ? solve(ewmaRate, perChart, 1.0, 12) : s.ewmaL();
-        double expected = 2 * p * (cusumRate.applyAsDouble(h) + ewmaRate.applyAsDouble(l));
-        return new ChartDesign(k, h, lambda, l, Double.isNaN(s.cusumH()), Double.isNaN(s.ewmaL()), p, m, RunLength.cusum(k, h, 0),
+        boolean designH = Double.isNaN(s.cusumH()), designL = Double.isNaN(s.ewmaL());
+        double h = !designH ? s.cusumH() : Double.isNaN(knownH) ? solve(cusumRate, perChart, 0.5, 40) : knownH;
+        double l = !designL ? s.ewmaL() : Double.isNaN(knownL) ? solve(ewmaRate, perChart, 1.0, 12) : knownL;
+        double cusumAt = cusumRate.applyAsDouble(h), ewmaAt = ewmaRate.applyAsDouble(l);
+        if (designH && !Double.isNaN(knownH) && !meets(cusumAt, perChart, h, 0.5, 40)) return null;
+        if (designL && !Double.isNaN(knownL) && !meets(ewmaAt, perChart, l, 1.0, 12)) return null;
+        double expected = 2 * p * (cusumAt + ewmaAt);
+        return new ChartDesign(k, h, lambda, l, designH, designL, p, m, RunLength.cusum(k, h, 0),
                 RunLength.ewma(lambda, l, 0), expected, shift, RunLength.cusum(k, h, shift), RunLength.ewma(lambda, l, shift));
+    }
+
+    /** A known limit is what a solve would give: at its share of the budget, or at the end of the range a solve clamps to. */
+    private static boolean meets(double rate, double target, double limit, double lo, double hi) {
+        double off = Math.log(rate) - Math.log(target);
+        return Math.abs(off) <= KNOWN_LIMIT_TOLERANCE || limit == hi && off > 0 || limit == lo && off < 0;
     }
 
     /** E[f(ε)] for ε ~ N(0, sd²); f even, so each ± pair of nodes is evaluated once. */

@@ -64,4 +64,20 @@ class RunLengthTest {
         assertTrue(!c.designedH() && !c.designedL());
         assertTrue(c.falseAlarmsPerShift() > 100, "ARL-500 charts at 30 parts/s raise hundreds of alarms a shift: " + c.falseAlarmsPerShift());
     }
+    @Test
+    void limitsSolvedBefore_areTakenOnlyWhereTheyMeetTheBudget() {
+        // settings no other test designs (the designs are remembered per process)
+        MonitorSettings s = MonitorSettings.DEFAULT.toBuilder().falseAlarmsPerShift(0.61).build();
+        MonitorSettings other = MonitorSettings.DEFAULT.toBuilder().falseAlarmsPerShift(0.62).build();
+        ChartDesign solved = ChartDesign.designed(s);
+        assertTrue(!ChartDesign.known(s), "solving afresh does not remember");
+        assertEquals(null, ChartDesign.adopt(other, solved.h(), solved.limitL()), "another setting's limits miss this budget");
+        assertEquals(null, ChartDesign.adopt(s, solved.h() * 0.97, solved.limitL()), "an h 3 % low spends more than the budget");
+        assertEquals(null, ChartDesign.adopt(s, solved.h(), solved.limitL() * 1.03), "an L 3 % high spends less than the budget");
+        assertEquals(null, ChartDesign.adopt(s, Double.NaN, solved.limitL()));
+        assertTrue(!ChartDesign.known(s), "nothing refused is remembered");
+        assertEquals(solved, ChartDesign.adopt(s, solved.h(), solved.limitL()), "the solve's own limits give the solve's design");
+        assertTrue(ChartDesign.known(s));
+        assertEquals(solved, s.design());
+    }
 }

@@ -97,6 +97,7 @@ public final class Daemon implements AutoCloseable {
     /** Recovers from the record log, warms up, connects and serves; waits up to {@code connectTimeoutMs} for the broker. */
     public void start(long connectTimeoutMs) throws Exception {
         lock();
+        monitor.keepLimits(setup.recipe());
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);

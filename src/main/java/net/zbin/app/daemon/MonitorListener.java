@@ -23,11 +23,26 @@ final class MonitorListener implements DecisionListener {
     private final LineEngine engine;
     private boolean recovering;
 
+    /** The line's monitor under a recipe; the charts' limits taken from the line's state folder where they still meet the budget. */
     MonitorListener(LineConfig cfg, LineMode mode, Clock clock, Recipe recipe) {
         this.cfg = cfg;
         this.mode = mode;
         this.clock = clock;
+        this.recalled = net.zbin.io.ChartLimits.recall(cfg.stateDir(), cfg.line(), cfg.monitorSettings(recipe));
         this.engine = cfg.engine(recipe);
+    }
+
+    /** Whether the charts' limits at construction were read back rather than solved. */
+    private final boolean recalled;
+
+    /** Keeps the limits solved at construction in the line's state folder (once the line holds its lock: the folder is its). */
+    void keepLimits(Recipe recipe) {
+        if (!recalled) keep(recipe);
+    }
+
+    private void keep(Recipe r) {
+        var s = cfg.monitorSettings(r);
+        net.zbin.io.ChartLimits.keep(cfg.stateDir(), cfg.line(), s, s.design());
     }
 
     @Override
@@ -44,7 +59,9 @@ final class MonitorListener implements DecisionListener {
      */
     synchronized void recipe(Recipe r, Compensation comp, List<Compensation> atSteps) {
         mode.clearRecipeBound("recipe changed to " + r.name());
+        boolean known = net.zbin.io.ChartLimits.recall(cfg.stateDir(), cfg.line(), cfg.monitorSettings(r)); // a recipe run before: no solve on this thread
         engine.recipe(r, cfg.monitorSettings(r));
+        if (!known) keep(r);
         compensation(comp, atSteps);
     }
 
