@@ -104,6 +104,40 @@ abstract class DaemonEndToEndContract {
     }
 
     @Test
+    void theStartsRehearsal_goesThroughTheBrokerAndTheMeterBeforeReady_andLeavesNoDecisionRowOrCount() throws Exception {
+        try (Tap tap = new Tap(broker(), "zbin/reh/#");
+             LineRig rig = new LineRig(dir, "reh", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "")) {
+            long readingsAtReady = rig.meter.measurements();
+            Tap.Msg ready = tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 10_000).get(0);
+            int readyAt = tap.msgs.indexOf(ready);
+            List<Tap.Msg> before = tap.msgs.subList(0, readyAt);
+            long asks = before.stream().filter(m -> m.topic().equals("zbin/reh/rehearsal/ask")).count();
+            long answers = before.stream().filter(m -> m.topic().equals("zbin/reh/rehearsal/answer")).count();
+            assertTrue(asks >= 1 && answers >= 1, "rehearsal rounds through the broker before ready: asks " + asks + ", answers " + answers);
+            assertTrue(answers <= asks, "an answer per ask at most");
+            assertTrue(readingsAtReady >= answers, "the meter took a reading per round (" + readingsAtReady + " for " + answers + " answers)");
+            assertTrue(tap.on("/decision").isEmpty() && tap.on("/rejected").isEmpty(), "no decision or notice for a rehearsal");
+            // after ready the daemon no longer listens there: an ask sent now gets no answer, though a trigger sent after it does
+            long answersBefore = tap.on("/rehearsal/answer").size();
+            tap.publishAcknowledged("zbin/reh/rehearsal/ask", "{\"seq\": 1}");
+            tap.publishAcknowledged("zbin/reh/trigger", "{\"seq\": 1, \"lot\": \"R1\"}");
+            tap.await(DaemonEndToEndContract::isDecision, 1, 10_000);
+            assertEquals(answersBefore, tap.on("/rehearsal/answer").size(), "an ask after ready is not answered");
+            rig.close();
+            assertEquals(1, rig.recordFiles().stream().mapToLong(f -> {
+                try (var lines = Files.lines(f)) {
+                    return lines.count() - 1;
+                } catch (java.io.IOException e) {
+                    throw new java.io.UncheckedIOException(e);
+                }
+            }).sum(), "one record row: the trigger's, none for the rehearsal");
+            JsonNode dash = tap.await(m -> m.topic().endsWith("/dashboard") && m.json().path("mode").asText().equals("offline"), 1, 10_000).get(0).json();
+            assertEquals(1, dash.path("presentations").asLong(), "the line counts the one presentation only: " + dash);
+            assertEquals(1, dash.path("decisions").asLong(), "the line counts the one decision only: " + dash);
+        }
+    }
+
+    @Test
     void thousandMalformedPayloads_eachGetARejectedNotice_andTheDaemonKeepsServing() throws Exception {
         try (LineRig rig = new LineRig(dir, "bad", broker(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
              Tap tap = new Tap(broker(), "zbin/bad/rejected", "zbin/bad/decision")) {

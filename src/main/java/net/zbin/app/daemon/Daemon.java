@@ -61,6 +61,10 @@ public final class Daemon implements AutoCloseable {
     static final long LOT_END_DASHBOARD_DELAY_MS = 200;
     /** The warm-up's time bound: with the broker connect and the meter probe beside it, the line is ready within ~0.4 s here. */
     static final long WARM_UP_MS = 300;
+    /** The rehearsal's time bound, beside the rest of the warm-up once the broker acknowledged the subscriptions. */
+    static final long REHEARSAL_MS = 200;
+    /** The start's rehearsal while it runs (Paho's thread hands it its messages), null after. */
+    private volatile Rehearsal rehearsal;
 
     public Daemon(LineConfig cfg, MeterSession meter, Clock clock) throws ConfigException {
         this.cfg = cfg;
@@ -99,6 +103,10 @@ public final class Daemon implements AutoCloseable {
         lock();
         monitor.keepLimits(setup.recipe());
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
+        // Connected now, subscribed only when the line can take triggers: a Paho connect waits ~0.3 s on its own threads
+        // starting, which passes under reading the record log back and the rest of the start.
+        mqtt.holdSubscriptions();
+        var connecting = mqtt.connectStart();
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
         recover();
@@ -138,7 +146,6 @@ public final class Daemon implements AutoCloseable {
                 if (warm) mode.announce();
             }
         });
-        var connecting = mqtt.connectStart();
         long[] warmed = new long[2];
         Thread warming = named(() -> {
             long w0 = System.nanoTime();
@@ -151,17 +158,28 @@ public final class Daemon implements AutoCloseable {
         }, "warm-up");
         warming.start();
         watch.probe();
-        warming.join();
         mqtt.connected(connecting, connectTimeoutMs);
+        mqtt.hear();
         // start() returns once a trigger from any client is heard, not when the subscriptions were only requested: a
         // handler (or a test) that publishes right after start would otherwise race the broker's SUBACK
-        mqtt.awaitSubscribed(connectTimeoutMs);
+        boolean heard = mqtt.awaitSubscribed(connectTimeoutMs);
+        long subscribedMs = (System.nanoTime() - t0) / 1_000_000;
+        warming.join();
+        int rounds = 0;
+        long readings = 0;
+        if (heard) { // the real I/O of a part's way (broker both ways, hand-over, a meter reading), after the warm-up: each has the cores
+            var r = new Rehearsal(topics, mqtt, dispatch, meter, !mode.linkDown() && !mode.setupRefused());
+            rehearsal = r;
+            rounds = r.run(REHEARSAL_MS);
+            rehearsal = null;
+            readings = r.readings();
+        }
         synchronized (startLock) {
             warm = true;
             if (subscribed) mode.announce();
         }
-        LOG.info("connected, decision path warm ({} invented triggers in {} ms) and meter probed in {} ms", warmed[0], warmed[1],
-                (System.nanoTime() - t0) / 1_000_000);
+        LOG.info("meter probed and broker subscribed in {} ms; decision path warm ({} invented triggers in {} ms; {} rehearsal rounds with {}"
+                + " meter readings after): ready in {} ms", subscribedMs, warmed[0], warmed[1], rounds, readings, (System.nanoTime() - t0) / 1_000_000);
         long period = cfg.dashboardMs();
         ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
         ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
@@ -271,6 +289,8 @@ public final class Daemon implements AutoCloseable {
      * refused in its turn without being kept, so a waiting queue never holds more than that size per message.
      */
     private void route(String topic, byte[] payload) {
+        var r = rehearsal;
+        if (r != null && r.heard(topic, payload)) return;
         boolean trigger = topic.equals(topics.trigger());
         if (!trigger && !topic.equals(topics.command())) return;
         if (payload.length > TriggerCodec.MAX_BYTES) dispatch.submit(oversize(topic, payload.length), new byte[0]);

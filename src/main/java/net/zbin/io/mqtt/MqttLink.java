@@ -71,11 +71,16 @@ public final class MqttLink implements Publisher, AutoCloseable {
     /**
      * @param onMessage receives (topic, payload) on Paho's thread: must not block
      */
+    /** Paho's threads, started without its 100 ms sleeps (see {@link PromptStarts}). */
+    final PromptStarts threads;
+
     public MqttLink(LineConfig.MqttSettings s, String willTopic, byte[] willPayload, List<String> subscriptions,
                     BiConsumer<String, byte[]> onMessage) throws Exception {
         this.subscriptions = List.copyOf(subscriptions);
         this.onMessage = onMessage;
-        this.client = new MqttAsyncClient(s.broker(), s.clientId(), new MemoryPersistence());
+        this.threads = new PromptStarts("mqtt-" + s.clientId());
+        this.client = new MqttAsyncClient(s.broker(), s.clientId(), new MemoryPersistence(), new org.eclipse.paho.client.mqttv3.TimerPingSender(),
+                threads);
         options = new MqttConnectOptions();
         options.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         options.setCleanSession(true);
@@ -104,6 +109,9 @@ public final class MqttLink implements Publisher, AutoCloseable {
             public void connectComplete(boolean reconnect, String uri) {
                 LOG.info("{} to {}", everConnected ? "reconnected" : "connected", uri);
                 everConnected = true;
+                synchronized (subscribing) {
+                    connections++;
+                }
                 if (!subscribe()) onConnect.run();
                 wake();
             }
@@ -141,9 +149,41 @@ public final class MqttLink implements Publisher, AutoCloseable {
      */
     public void onConnect(Runnable r) { this.onConnect = r; }
 
-    /** Requests the subscriptions; false when there are none to request. */
+    /** Guards {@link #hearing}, {@link #connections} and {@link #requestedOn}: one request of the subscriptions per connection. */
+    private final Object subscribing = new Object();
+    /** False while {@link #holdSubscriptions} holds them back. */
+    private boolean hearing = true;
+    /** Connections made so far (counted as each completes), and the one the subscriptions were last requested on. */
+    private long connections, requestedOn;
+
+    /**
+     * Connects without subscribing until {@link #hear}: the connect can start before the owner is ready to take
+     * messages (a Paho connect waits some 0.3 s on its own threads starting, which then passes under other work).
+     * Call before {@link #connectStart}.
+     */
+    public void holdSubscriptions() {
+        synchronized (subscribing) {
+            hearing = false;
+        }
+    }
+
+    /** Requests the subscriptions held back, on the present connection if there is one, and on every one after. */
+    public void hear() {
+        boolean now;
+        synchronized (subscribing) {
+            hearing = true;
+            now = connections > 0;
+        }
+        if (now) subscribe();
+    }
+
+    /** Requests the subscriptions (once per connection); false when there are none to request. */
     private boolean subscribe() {
         if (subscriptions.isEmpty()) return false;
+        synchronized (subscribing) {
+            if (!hearing || requestedOn == connections) return true; // held (hear() asks), or asked on this connection already
+            requestedOn = connections;
+        }
         try {
             String[] topics = subscriptions.toArray(new String[0]);
             int[] qos = new int[topics.length];
@@ -188,6 +228,33 @@ public final class MqttLink implements Publisher, AutoCloseable {
         } catch (java.util.concurrent.TimeoutException | java.util.concurrent.ExecutionException e) {
             LOG.warn("subscriptions not acknowledged by the broker within {} ms", timeoutMs);
             return false;
+        }
+    }
+
+    /**
+     * Subscribes to more topics on the present connection only (not again after a reconnect), waiting up to the timeout
+     * for the broker's acknowledgement; false when it did not come or was refused. For the start's rehearsal.
+     */
+    public boolean subscribeHere(List<String> topics, long timeoutMs) {
+        int[] qos = new int[topics.size()];
+        java.util.Arrays.fill(qos, 1);
+        try {
+            IMqttToken t = client.subscribe(topics.toArray(new String[0]), qos);
+            t.waitForCompletion(timeoutMs);
+            int[] granted = t.getGrantedQos();
+            return granted != null && java.util.Arrays.stream(granted).allMatch(g -> g >= 0 && g <= 2);
+        } catch (MqttException e) {
+            LOG.debug("subscribe to {} not acknowledged: {}", topics, e.toString());
+            return false;
+        }
+    }
+
+    /** Undoes {@link #subscribeHere}, waiting up to the timeout. */
+    public void unsubscribeHere(List<String> topics, long timeoutMs) {
+        try {
+            client.unsubscribe(topics.toArray(new String[0])).waitForCompletion(timeoutMs);
+        } catch (MqttException e) {
+            LOG.debug("unsubscribe from {} not acknowledged: {}", topics, e.toString());
         }
     }
 

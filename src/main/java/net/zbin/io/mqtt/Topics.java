@@ -11,4 +11,8 @@ public record Topics(String root, String line) {
     public String command() { return base() + "command"; }
     public String commandResult() { return base() + "command/result"; }
     public String rejected() { return base() + "rejected"; }
+    /** The start's rehearsal: what the daemon sends itself before it says ready (the trigger's way in). */
+    public String rehearsalAsk() { return base() + "rehearsal/ask"; }
+    /** The start's rehearsal: the answer's way out, heard by the daemon itself. */
+    public String rehearsalAnswer() { return base() + "rehearsal/answer"; }
 }

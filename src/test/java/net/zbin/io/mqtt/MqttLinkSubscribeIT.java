@@ -194,4 +194,32 @@ class MqttLinkSubscribeIT {
             c.close(true);
         }
     }
+    @Test
+    void heldSubscriptions_areRequestedOnlyOnHear_andTheConnectWaitsOnNoSleepingThread() throws Exception {
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "")) {
+            var heard = new java.util.concurrent.LinkedBlockingQueue<String>();
+            LineConfig.MqttSettings s = new LineConfig.MqttSettings(broker.url(), "zbin", "held-" + System.nanoTime(), null, null,
+                    null, null, null, 5);
+            try (MqttLink link = new MqttLink(s, null, null, List.of("line/trigger"), (t, p) -> heard.add(new String(p, StandardCharsets.UTF_8)))) {
+                AtomicInteger announced = new AtomicInteger();
+                link.onConnect(announced::incrementAndGet);
+                link.holdSubscriptions();
+                link.connect(10_000);
+                assertTrue(link.isConnected());
+                // Paho's receiver, sender and callback each found running at their first check (no 100 ms sleep); a Paho
+                // whose start differs would count here as plain
+                assertEquals(3, link.threads.prompt.get(), "Paho workers started promptly");
+                assertEquals(0, link.threads.plain.get(), "Paho workers started the slow way");
+                publishFromAnotherClient(broker.url(), "line/trigger", "before hear");
+                assertTrue(!link.awaitSubscribed(300), "held: no subscription acknowledged");
+                assertEquals(0, announced.get(), "held: the connect callback waits for the subscriptions");
+                link.hear();
+                assertTrue(link.awaitSubscribed(10_000));
+                link.hear(); // a second call on the same connection requests nothing more
+                publishFromAnotherClient(broker.url(), "line/trigger", "after hear");
+                assertEquals("after hear", heard.poll(10, TimeUnit.SECONDS), "heard from hear() on, nothing from before");
+                assertEquals(1, announced.get(), "one announcement for the connection");
+            }
+        }
+    }
 }

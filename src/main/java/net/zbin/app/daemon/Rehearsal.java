@@ -1,0 +1,121 @@
+package net.zbin.app.daemon;
+
+import java.util.List;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.TimeUnit;
+import net.zbin.io.meter.MeterException;
+import net.zbin.io.meter.MeterSession;
+import net.zbin.io.mqtt.MqttLink;
+import net.zbin.io.mqtt.Topics;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The start's rehearsal of a part's way through the line, before the line says ready: the daemon sends itself a
+ * trigger-shaped message through the broker ({@link Topics#rehearsalAsk}); Paho's thread hands it to the measuring
+ * thread as it would a trigger; there the meter takes one reading under the conditions the probe applied (thrown
+ * away: never graded, recorded or counted) and an answer goes out through the broker ({@link Topics#rehearsalAnswer})
+ * as a decision would; its arrival starts the next round. The warm-up ({@link Warmup}) cannot run these — the
+ * broker's client, the hand-over and the meter link are real I/O — and a fresh process ran them in the interpreter for
+ * its first real parts. Bounded by rounds and time; a meter that refuses a reading (an open fixture may read as an
+ * overload) ends the readings, not the rehearsal; a broker that refuses the topics ends it at once.
+ */
+final class Rehearsal {
+    private static final Logger LOG = LoggerFactory.getLogger(Rehearsal.class);
+    /** Rounds at most: enough for the compiler's first tier on the way's code. */
+    static final int MAX_ROUNDS = 600;
+    /** What an answer carries: about a decision's size. */
+    private static final byte[] ANSWER = ("{\"rehearsal\":true,\"bin\":\"none\",\"note\":\"sent by the line to itself before it says ready;"
+            + " nothing was measured for a part, graded or recorded\",\"pad\":\"" + "-".repeat(160) + "\"}").getBytes(java.nio.charset.StandardCharsets.UTF_8);
+
+    private final Topics topics;
+    private final MqttLink mqtt;
+    private final Dispatch dispatch;
+    private final MeterSession meter;
+    private volatile CompletableFuture<Void> answered;
+    /** Measuring thread only: false once the meter refused a reading. */
+    private boolean measuring;
+    private long readings;
+
+    /** @param measure whether the meter takes readings (false when the probe found the link down or the setup refused) */
+    Rehearsal(Topics topics, MqttLink mqtt, Dispatch dispatch, MeterSession meter, boolean measure) {
+        this.topics = topics;
+        this.mqtt = mqtt;
+        this.dispatch = dispatch;
+        this.meter = meter;
+        this.measuring = measure;
+    }
+
+    /** Paho's thread: true when the message is the rehearsal's (handed on, never blocking). */
+    boolean heard(String topic, byte[] payload) {
+        if (topic.equals(topics.rehearsalAsk())) {
+            dispatch.submit(onMeasuringThread, payload);
+            return true;
+        }
+        if (topic.equals(topics.rehearsalAnswer())) {
+            var f = answered;
+            if (f != null) f.complete(null);
+            return true;
+        }
+        return false;
+    }
+
+    private final Dispatch.Handler onMeasuringThread = new Dispatch.Handler() {
+        public void handle(byte[] payload, long arrivedNanos) {
+            if (measuring) {
+                try {
+                    meter.measure();
+                    readings++;
+                } catch (MeterException | RuntimeException e) {
+                    measuring = false;
+                    LOG.debug("rehearsal: no more readings ({})", e.toString());
+                }
+            }
+            mqtt.publish(topics.rehearsalAnswer(), ANSWER, 1, false);
+        }
+
+        public Runnable overflow(byte[] payload, long arrivedNanos) { return () -> { }; }
+    };
+
+    /** Runs rounds, one at a time, for up to {@code maxMs}; returns the rounds answered. */
+    int run(long maxMs) {
+        long end = System.nanoTime() + maxMs * 1_000_000L;
+        List<String> both = List.of(topics.rehearsalAsk(), topics.rehearsalAnswer());
+        if (!mqtt.subscribeHere(both, maxMs)) {
+            LOG.info("rehearsal skipped: the broker did not grant {} (the line's account needs them, see the README)", both);
+            return 0;
+        }
+        int rounds = 0;
+        try {
+            for (; rounds < MAX_ROUNDS; rounds++) {
+                long left = end - System.nanoTime();
+                if (left <= 0) break;
+                var f = new CompletableFuture<Void>();
+                answered = f;
+                mqtt.publish(topics.rehearsalAsk(), Warmup.trigger(rounds), 1, false);
+                f.get(left, TimeUnit.NANOSECONDS);
+            }
+        } catch (java.util.concurrent.TimeoutException e) {
+            LOG.debug("rehearsal: round {} unanswered within the time bound", rounds);
+        } catch (java.util.concurrent.ExecutionException e) {
+            LOG.debug("rehearsal: {}", e.toString());
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        } finally {
+            answered = null;
+            mqtt.unsubscribeHere(both, 1000);
+        }
+        return rounds;
+    }
+
+    /** Readings the meter took (the measuring thread's count; read after {@link #run}). */
+    long readings() {
+        var f = new CompletableFuture<Long>();
+        if (!dispatch.onMeasuringThread(() -> f.complete(readings))) return -1;
+        try {
+            return f.get(1, TimeUnit.SECONDS);
+        } catch (Exception e) {
+            return -1;
+        }
+    }
+}
