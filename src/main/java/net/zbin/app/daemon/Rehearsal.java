@@ -35,7 +35,8 @@ final class Rehearsal {
     private volatile CompletableFuture<Void> answered;
     /** Measuring thread only: false once the meter refused a reading. */
     private boolean measuring;
-    private long readings;
+    /** Readings taken (written by the measuring thread, read after the rounds). */
+    private final java.util.concurrent.atomic.AtomicLong readings = new java.util.concurrent.atomic.AtomicLong();
 
     /** @param measure whether the meter takes readings (false when the probe found the link down or the setup refused) */
     Rehearsal(Topics topics, MqttLink mqtt, Dispatch dispatch, MeterSession meter, boolean measure) {
@@ -65,7 +66,7 @@ final class Rehearsal {
             if (measuring) {
                 try {
                     meter.measure();
-                    readings++;
+                    readings.incrementAndGet();
                 } catch (MeterException | RuntimeException e) {
                     measuring = false;
                     LOG.debug("rehearsal: no more readings ({})", e.toString());
@@ -108,14 +109,6 @@ final class Rehearsal {
         return rounds;
     }
 
-    /** Readings the meter took (the measuring thread's count; read after {@link #run}). */
-    long readings() {
-        var f = new CompletableFuture<Long>();
-        if (!dispatch.onMeasuringThread(() -> f.complete(readings))) return -1;
-        try {
-            return f.get(1, TimeUnit.SECONDS);
-        } catch (Exception e) {
-            return -1;
-        }
-    }
+    /** Readings the meter took so far (a round still on the measuring thread may add one). */
+    long readings() { return readings.get(); }
 }
