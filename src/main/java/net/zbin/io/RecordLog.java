@@ -90,7 +90,7 @@ public final class RecordLog implements AutoCloseable {
 
     public void start() {
         long period = Math.max(1, Math.min(settings.flushMs(), RETRY_MS));
-        timer.scheduleWithFixedDelay(this::tick, period, period, TimeUnit.MILLISECONDS);
+        timer.scheduleWithFixedDelay(FatalErrors.surfaced(this::tick), period, period, TimeUnit.MILLISECONDS);
     }
 
     /**

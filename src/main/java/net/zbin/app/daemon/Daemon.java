@@ -7,6 +7,7 @@ import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
 import net.zbin.io.ConfigException;
+import net.zbin.io.FatalErrors;
 import net.zbin.io.LineConfig;
 import net.zbin.io.LineState;
 import net.zbin.io.RecordLog;
@@ -121,7 +122,7 @@ public final class Daemon implements AutoCloseable {
             var at = clock.instant();
             var figures = monitor.snapshot(); // the monitor's lot figures start again with the new lot's first decision, next
             long sentBefore = dashboards.get();
-            ticker.schedule(() -> {
+            ticker.schedule(FatalErrors.surfaced(() -> {
                 try {
                     var node = DashboardJson.encode(snapshot(at, mode.mode(), stats.snapshot(ended), figures));
                     if (boards != null && dashboards.get() == sentBefore) boards.heard(cfg.line(), net.zbin.app.status.Boards.Kind.DASHBOARD, node);
@@ -129,7 +130,7 @@ public final class Daemon implements AutoCloseable {
                 } catch (RuntimeException e) {
                     LOG.warn("dashboard: {}", e.toString());
                 }
-            }, LOT_END_DASHBOARD_DELAY_MS, TimeUnit.MILLISECONDS);
+            }), LOT_END_DASHBOARD_DELAY_MS, TimeUnit.MILLISECONDS);
         });
         monitor.compensation(setup.compensation(), setup.stepCompensations());
         records.start();
@@ -181,14 +182,14 @@ public final class Daemon implements AutoCloseable {
         LOG.info("meter probed and broker subscribed in {} ms; decision path warm ({} invented triggers in {} ms; {} rehearsal rounds with {}"
                 + " meter readings after): ready in {} ms", subscribedMs, warmed[0], warmed[1], rounds, readings, (System.nanoTime() - t0) / 1_000_000);
         long period = cfg.dashboardMs();
-        ticker.scheduleAtFixedRate(this::publishDashboard, period, period, TimeUnit.MILLISECONDS);
-        ticker.scheduleWithFixedDelay(() -> watch.tick(dispatch), 200, 200, TimeUnit.MILLISECONDS);
-        ticker.scheduleWithFixedDelay(() -> dispatch.onMeasuringThread(() -> {
+        ticker.scheduleAtFixedRate(FatalErrors.surfaced(this::publishDashboard), period, period, TimeUnit.MILLISECONDS);
+        ticker.scheduleWithFixedDelay(FatalErrors.surfaced(() -> watch.tick(dispatch)), 200, 200, TimeUnit.MILLISECONDS);
+        ticker.scheduleWithFixedDelay(FatalErrors.surfaced(() -> dispatch.onMeasuringThread(() -> {
             if (setup.reloadIfChanged()) {
                 LOG.info("compensation file changed on disk: read again");
                 monitor.compensation(setup.compensation(), setup.stepCompensations());
             }
-        }), 1, 1, TimeUnit.SECONDS);
+        })), 1, 1, TimeUnit.SECONDS);
         LOG.info("line {} serving {} with recipe {}", cfg.line(), topics.base(), setup.recipe().name());
     }
 

@@ -269,7 +269,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
         t.waitForCompletion(timeoutMs);
         if (!flusher.isAlive()) {
             flusher.start();
-            redial.scheduleWithFixedDelay(this::redial, RECONNECT_EVERY_MS, RECONNECT_EVERY_MS, TimeUnit.MILLISECONDS);
+            redial.scheduleWithFixedDelay(net.zbin.io.FatalErrors.surfaced(this::redial), RECONNECT_EVERY_MS, RECONNECT_EVERY_MS, TimeUnit.MILLISECONDS);
         }
     }
 

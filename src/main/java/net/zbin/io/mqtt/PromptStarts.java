@@ -2,7 +2,6 @@ package net.zbin.io.mqtt;
 
 import java.lang.reflect.Field;
 import java.util.concurrent.Future;
-import java.util.concurrent.FutureTask;
 import java.util.concurrent.ScheduledThreadPoolExecutor;
 import org.eclipse.paho.client.mqttv3.internal.CommsCallback;
 import org.eclipse.paho.client.mqttv3.internal.CommsReceiver;
@@ -35,23 +34,25 @@ final class PromptStarts extends ScheduledThreadPoolExecutor {
     }
 
     @Override
-    public void execute(Runnable task) { begin(task, task); }
+    public void execute(Runnable task) { begin(task); }
 
+    /**
+     * Runs the task on a thread of its own, as Paho would; what it throws reaches the thread's uncaught-exception handler
+     * (a pool's future would keep an {@link OutOfMemoryError} to itself, and the process would live on deaf). The future
+     * is what Paho uses of it: {@code cancel(true)} interrupts the thread.
+     */
     @Override
-    public Future<?> submit(Runnable task) {
-        var f = new FutureTask<Void>(task, null); // Paho cancels it to stop the thread, as with a pool's
-        begin(f, task);
-        return f;
-    }
+    public Future<?> submit(Runnable task) { return begin(task); }
 
-    private void begin(Runnable run, Runnable paho) {
-        Thread t = new Thread(run, name);
+    private Running begin(Runnable paho) {
+        Thread t = new Thread(paho, name);
         t.setDaemon(true);
+        var running = new Running(t);
         t.start();
         Object lock = lifecycle(paho);
         if (lock == null || !Thread.holdsLock(lock)) {
             if (running(paho) != null) plain.incrementAndGet(); // a Paho worker, its lock not where it was: Paho sleeps as it would
-            return;
+            return running;
         }
         long end = System.nanoTime() + WAIT_MS * 1_000_000L;
         synchronized (lock) {
@@ -61,6 +62,41 @@ final class PromptStarts extends ScheduledThreadPoolExecutor {
                 Thread.currentThread().interrupt();
             }
             (running(paho) == Boolean.TRUE ? prompt : plain).incrementAndGet();
+        }
+        return running;
+    }
+
+    /** A task's thread as a future: done when the thread ended; cancelling interrupts it. */
+    private static final class Running implements Future<Void> {
+        private final Thread thread;
+        private volatile boolean cancelled;
+
+        Running(Thread thread) { this.thread = thread; }
+
+        @Override
+        public boolean cancel(boolean interrupt) {
+            cancelled = true;
+            if (interrupt) thread.interrupt();
+            return true;
+        }
+
+        @Override
+        public boolean isCancelled() { return cancelled; }
+
+        @Override
+        public boolean isDone() { return !thread.isAlive(); }
+
+        @Override
+        public Void get() throws InterruptedException {
+            thread.join();
+            return null;
+        }
+
+        @Override
+        public Void get(long timeout, java.util.concurrent.TimeUnit unit) throws InterruptedException, java.util.concurrent.TimeoutException {
+            thread.join(Math.max(1, unit.toMillis(timeout)));
+            if (thread.isAlive()) throw new java.util.concurrent.TimeoutException();
+            return null;
         }
     }
 
