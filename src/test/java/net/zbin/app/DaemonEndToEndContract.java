@@ -117,7 +117,7 @@ abstract class DaemonEndToEndContract {
             assertTrue(answers <= asks, "an answer per ask at most");
             assertTrue(readingsAtReady >= answers, "the meter took a reading per round (" + readingsAtReady + " for " + answers + " answers)");
             assertTrue(tap.on("/decision").isEmpty() && tap.on("/rejected").isEmpty(), "no decision or notice for a rehearsal");
-            // after ready the daemon no longer listens there: an ask sent now gets no answer, though a trigger sent after it does
+            // after ready the daemon ignores the rehearsal's topics: an ask sent now gets no answer, though a trigger sent after it does
             long answersBefore = tap.on("/rehearsal/answer").size();
             tap.publishAcknowledged("zbin/reh/rehearsal/ask", "{\"seq\": 1}");
             tap.publishAcknowledged("zbin/reh/trigger", "{\"seq\": 1, \"lot\": \"R1\"}");

@@ -24,6 +24,8 @@ final class Rehearsal {
     private static final Logger LOG = LoggerFactory.getLogger(Rehearsal.class);
     /** Rounds at most: enough for the compiler's first tier on the way's code. */
     static final int MAX_ROUNDS = 600;
+    /** How long past the time bound the last round's answer is waited for. */
+    static final long LAST_ANSWER_MS = 100;
     /** What an answer carries: about a decision's size. */
     private static final byte[] ANSWER = ("{\"rehearsal\":true,\"bin\":\"none\",\"note\":\"sent by the line to itself before it says ready;"
             + " nothing was measured for a part, graded or recorded\",\"pad\":\"" + "-".repeat(160) + "\"}").getBytes(java.nio.charset.StandardCharsets.UTF_8);
@@ -88,24 +90,26 @@ final class Rehearsal {
         }
         int rounds = 0;
         try {
-            for (; rounds < MAX_ROUNDS; rounds++) {
-                long left = end - System.nanoTime();
-                if (left <= 0) break;
+            for (; rounds < MAX_ROUNDS && System.nanoTime() < end; rounds++) {
                 var f = new CompletableFuture<Void>();
                 answered = f;
                 mqtt.publish(topics.rehearsalAsk(), Warmup.trigger(rounds), 1, false);
-                f.get(left, TimeUnit.NANOSECONDS);
+                // the round ends with its answer: nothing of the rehearsal is left on its way when the line says ready
+                f.get(Math.max(end - System.nanoTime(), 0) + LAST_ANSWER_MS * 1_000_000L, TimeUnit.NANOSECONDS);
             }
         } catch (java.util.concurrent.TimeoutException e) {
-            LOG.debug("rehearsal: round {} unanswered within the time bound", rounds);
+            LOG.debug("rehearsal: round {} unanswered", rounds);
         } catch (java.util.concurrent.ExecutionException e) {
             LOG.debug("rehearsal: {}", e.toString());
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
         } finally {
             answered = null;
-            mqtt.unsubscribeHere(both, 1000);
         }
+        // The subscriptions stay for this connection (the broker drops them with it: clean session); from now on the
+        // daemon ignores what comes there. Unsubscribing would race the acknowledgement of the last answer, which Paho
+        // sends only after its callback returned, and the embedded broker is known to mishandle such a late
+        // acknowledgement (io.netty IllegalReferenceCountException in Moquette 0.17's session loop).
         return rounds;
     }
 

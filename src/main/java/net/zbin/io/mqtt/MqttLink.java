@@ -232,8 +232,9 @@ public final class MqttLink implements Publisher, AutoCloseable {
     }
 
     /**
-     * Subscribes to more topics on the present connection only (not again after a reconnect), waiting up to the timeout
-     * for the broker's acknowledgement; false when it did not come or was refused. For the start's rehearsal.
+     * Subscribes to more topics on the present connection only (not again after a reconnect; the broker drops them with
+     * the connection), waiting up to the timeout for the broker's acknowledgement; false when it did not come or was
+     * refused. For the start's rehearsal.
      */
     public boolean subscribeHere(List<String> topics, long timeoutMs) {
         int[] qos = new int[topics.size()];
@@ -246,15 +247,6 @@ public final class MqttLink implements Publisher, AutoCloseable {
         } catch (MqttException e) {
             LOG.debug("subscribe to {} not acknowledged: {}", topics, e.toString());
             return false;
-        }
-    }
-
-    /** Undoes {@link #subscribeHere}, waiting up to the timeout. */
-    public void unsubscribeHere(List<String> topics, long timeoutMs) {
-        try {
-            client.unsubscribe(topics.toArray(new String[0])).waitForCompletion(timeoutMs);
-        } catch (MqttException e) {
-            LOG.debug("unsubscribe from {} not acknowledged: {}", topics, e.toString());
         }
     }
 
