@@ -60,9 +60,9 @@ public final class Daemon implements AutoCloseable {
     /** Periodic dashboards published: a finished lot's dashboard sent later is retained only if none came in between. */
     private final java.util.concurrent.atomic.AtomicLong dashboards = new java.util.concurrent.atomic.AtomicLong();
     static final long LOT_END_DASHBOARD_DELAY_MS = 200;
-    /** The warm-up's time bound: with the broker connect and the meter probe beside it, the line is ready within ~0.4 s here. */
+    /** The warm-up's time bound (the broker connect and the meter probe run beside it). */
     static final long WARM_UP_MS = 300;
-    /** The rehearsal's time bound, beside the rest of the warm-up once the broker acknowledged the subscriptions. */
+    /** The rehearsal's time bound: after the warm-up, once the broker acknowledged the subscriptions. */
     static final long REHEARSAL_MS = 200;
     /** The start's rehearsal while it runs (Paho's thread hands it its messages), null after. */
     private volatile Rehearsal rehearsal;
@@ -135,8 +135,9 @@ public final class Daemon implements AutoCloseable {
         monitor.compensation(setup.compensation(), setup.stepCompensations());
         records.start();
         records.prepare(clock.instant()); // today's file opened now, not at the first part
-        // The broker connect, the warm-up (CPU) and the meter probe (I/O) run side by side; the line says ready
-        // only when all three are done, so the first part is measured on a warm path.
+        // The warm-up (CPU) runs beside the meter probe and the broker's connect and subscription (I/O); then the
+        // rehearsal runs the real I/O of a part's way; the line says ready only after both, so the first part is measured
+        // on a warm path.
         long t0 = System.nanoTime();
         mode.attach(mqtt);
         // The state goes out once the broker acknowledged the subscriptions on that connection (also after each

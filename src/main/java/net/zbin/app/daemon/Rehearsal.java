@@ -35,6 +35,12 @@ final class Rehearsal {
     private final Dispatch dispatch;
     private final MeterSession meter;
     private volatile CompletableFuture<Void> answered;
+    /**
+     * The ask of the round under way, handed to the measuring thread once; null between hand-over and the next round and
+     * after the rehearsal. Only it makes the line take a reading: another client's messages on the topic (or a copy of
+     * the ask) are dropped on Paho's thread, so nothing sent there can keep the measuring thread and the meter busy.
+     */
+    private final java.util.concurrent.atomic.AtomicReference<byte[]> awaited = new java.util.concurrent.atomic.AtomicReference<>();
     /** Measuring thread only: false once the meter refused a reading. */
     private boolean measuring;
     /** Readings taken (written by the measuring thread, read after the rounds). */
@@ -52,7 +58,8 @@ final class Rehearsal {
     /** Paho's thread: true when the message is the rehearsal's (handed on, never blocking). */
     boolean heard(String topic, byte[] payload) {
         if (topic.equals(topics.rehearsalAsk())) {
-            dispatch.submit(onMeasuringThread, payload);
+            byte[] ask = awaited.get();
+            if (ask != null && java.util.Arrays.equals(ask, payload) && awaited.compareAndSet(ask, null)) dispatch.submit(onMeasuringThread, payload);
             return true;
         }
         if (topic.equals(topics.rehearsalAnswer())) {
@@ -93,7 +100,9 @@ final class Rehearsal {
             for (; rounds < MAX_ROUNDS && System.nanoTime() < end; rounds++) {
                 var f = new CompletableFuture<Void>();
                 answered = f;
-                mqtt.publish(topics.rehearsalAsk(), Warmup.trigger(rounds), 1, false);
+                byte[] ask = Warmup.trigger(rounds); // each round's ask differs (its seq)
+                awaiting(ask);
+                mqtt.publish(topics.rehearsalAsk(), ask, 1, false);
                 // the round ends with its answer: nothing of the rehearsal is left on its way when the line says ready
                 f.get(Math.max(end - System.nanoTime(), 0) + LAST_ANSWER_MS * 1_000_000L, TimeUnit.NANOSECONDS);
             }
@@ -105,6 +114,7 @@ final class Rehearsal {
             Thread.currentThread().interrupt();
         } finally {
             answered = null;
+            awaited.set(null);
         }
         // The subscriptions stay for this connection (the broker drops them with it: clean session); from now on the
         // daemon ignores what comes there. Unsubscribing would race the acknowledgement of the last answer, which Paho
@@ -112,6 +122,9 @@ final class Rehearsal {
         // acknowledgement (io.netty IllegalReferenceCountException in Moquette 0.17's session loop).
         return rounds;
     }
+
+    /** The ask the next hand-over must carry. */
+    void awaiting(byte[] ask) { awaited.set(ask); }
 
     /** Readings the meter took so far (a round still on the measuring thread may add one). */
     long readings() { return readings.get(); }
