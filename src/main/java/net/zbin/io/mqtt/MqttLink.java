@@ -58,8 +58,16 @@ public final class MqttLink implements Publisher, AutoCloseable {
     private final List<String> subscriptions;
     private final BiConsumer<String, byte[]> onMessage;
     private volatile Runnable onConnect = () -> { };
-    /** Guards {@link #outbox}; notified when the window frees, the outbox changes or the link connects. */
+    /** Guards {@link #outbox} and {@link #windowWaiters}; notified when the window frees, the outbox changes or the link connects. */
     private final Object window = new Object();
+    /**
+     * Threads waiting for the in-flight window to free (a publisher, or the outbox thread after a refused publish). The
+     * broker's acknowledgement of each message wakes them only while there are any: waking the idle outbox thread on
+     * every acknowledgement cost a thread switch per decision.
+     */
+    private int windowWaiters;
+    /** Wake-ups of the idle outbox thread (guarded by {@link #window}): it should turn when there is something to send, not per message sent. */
+    private long flusherTurns;
     private final ArrayDeque<Out> outbox = new ArrayDeque<>();
     private final ScheduledExecutorService redial;
     private final Thread flusher;
@@ -132,7 +140,9 @@ public final class MqttLink implements Publisher, AutoCloseable {
 
             @Override
             public void deliveryComplete(IMqttDeliveryToken token) {
-                wake();
+                synchronized (window) {
+                    if (windowWaiters > 0) window.notifyAll();
+                }
             }
         });
     }
@@ -315,6 +325,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
     private boolean await(long ms) {
         waits.incrementAndGet();
         synchronized (window) {
+            windowWaiters++;
             try {
                 window.wait(ms);
                 return true;
@@ -322,6 +333,8 @@ public final class MqttLink implements Publisher, AutoCloseable {
                 Thread.currentThread().interrupt();
                 notOffered.incrementAndGet();
                 return false;
+            } finally {
+                windowWaiters--;
             }
         }
     }
@@ -332,7 +345,10 @@ public final class MqttLink implements Publisher, AutoCloseable {
             Out m;
             synchronized (window) {
                 try {
-                    while (!closing && (outbox.isEmpty() || !client.isConnected())) window.wait(100);
+                    while (!closing && (outbox.isEmpty() || !client.isConnected())) {
+                        window.wait(100);
+                        flusherTurns++;
+                    }
                 } catch (InterruptedException e) {
                     return;
                 }
@@ -347,10 +363,13 @@ public final class MqttLink implements Publisher, AutoCloseable {
                 }
             } catch (MqttException e) {
                 synchronized (window) {
+                    windowWaiters++;
                     try {
                         window.wait(20); // a full window, or the connection went again
                     } catch (InterruptedException ie) {
                         return;
+                    } finally {
+                        windowWaiters--;
                     }
                 }
             }
@@ -366,6 +385,13 @@ public final class MqttLink implements Publisher, AutoCloseable {
 
     /** Messages that could not be handed to the client (only when closing, or when the publisher was interrupted). */
     public long notOffered() { return notOffered.get(); }
+
+    /** How often the outbox thread woke to look at the outbox. */
+    long flusherTurns() {
+        synchronized (window) {
+            return flusherTurns;
+        }
+    }
 
     /** Messages held for the broker's return. */
     public int buffered() {
