@@ -157,6 +157,37 @@ class LineBench {
         return sum;
     }
 
+    /**
+     * The operating system's name of one of the daemon's threads (Linux keeps the first 15 characters): its own, and
+     * its MQTT client's (Paho names them "MQTT Rec: " + the client id, here zbin-bench; the bench's clients are bench-…).
+     */
+    static boolean daemonTask(String comm) {
+        if (comm.startsWith("MQTT ")) return comm.contains("zbin-") || comm.contains(": zbin");
+        return daemonThread(comm);
+    }
+
+    /**
+     * Voluntary thread switches (a thread going to sleep to wait for something: each is one wake-up) of a process's
+     * threads that {@code which} accepts by name, from /proc/PID/task/TID/status (proc(5)). Unlike CPU time this is
+     * a count: it does not move with the machine's speed.
+     */
+    static long switches(long pid, java.util.function.Predicate<String> which) throws java.io.IOException {
+        long sum = 0;
+        try (var tasks = Files.list(Path.of("/proc", Long.toString(pid), "task"))) {
+            for (Path t : tasks.toList()) {
+                try {
+                    if (!which.test(Files.readString(t.resolve("comm")).strip())) continue;
+                    for (String l : Files.readAllLines(t.resolve("status"))) {
+                        if (l.startsWith("voluntary_ctxt_switches:")) sum += Long.parseLong(l.substring(l.indexOf(':') + 1).strip());
+                    }
+                } catch (java.io.IOException | RuntimeException gone) {
+                    // the thread ended in between: its switches are not counted (the figure is a floor)
+                }
+            }
+        }
+        return sum;
+    }
+
     /** User + system CPU time of a process from /proc/PID/stat, ns (clock ticks of 10 ms, Linux's USER_HZ). */
     static long processCpuNs(long pid) throws java.io.IOException {
         String stat = java.nio.file.Files.readString(java.nio.file.Path.of("/proc", Long.toString(pid), "stat"));
@@ -295,6 +326,7 @@ class LineBench {
                     sentAt.clear();
                     synchronized (openLat) { openLat.reset(); }
                     long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid()), jvm0 = processCpuNs(self);
+                    long zbinSw0 = switches(self, LineBench::daemonTask), brokerSw0 = switches(broker.pid(), c -> true);
                     long[] machine0 = machineJiffies();
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
@@ -320,6 +352,8 @@ class LineBench {
                     double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
                     long daemonNs = daemonCpuNs() - cpu0, brokerNs = processCpuNs(broker.pid()) - broker0, jvmNs = processCpuNs(self) - jvm0;
                     long[] machine1 = machineJiffies();
+                    double zbinSw = (double) (switches(self, LineBench::daemonTask) - zbinSw0) / Math.max(1, answered.get());
+                    double brokerSw = (double) (switches(broker.pid(), c -> true) - brokerSw0) / Math.max(1, answered.get());
                     double brokerUs = brokerNs / 1e3 / Math.max(1, answered.get());
                     // Cores in use over the run: zbin's threads, the rest of this JVM (the fixed-rate client, the meter
                     // simulator, GC and JIT), Mosquitto, and the whole machine (anything else running counts here too).
@@ -336,6 +370,8 @@ class LineBench {
                     r.put("p99_ms", p99);
                     r.put("zbin_cpu_us_per_decision", zbinUs);
                     r.put("broker_cpu_us_per_decision", brokerUs);
+                    r.put("zbin_thread_switches_per_decision", zbinSw);
+                    r.put("broker_thread_switches_per_decision", brokerSw);
                     r.put("sent", n);
                     r.put("answered", answered.get());
                     r.put("duplicated", dup.get());
@@ -352,6 +388,7 @@ class LineBench {
                             rate, seconds, n, sendS, answered.get(), dup.get(), busy.get(), doneS, p50, p99, zbinUs, brokerUs, zbinUs / brokerUs);
                     System.out.printf(Locale.ROOT, "    cores in use: zbin %.2f, the rest of the bench JVM (client, meter simulator, GC, JIT) %.2f, Mosquitto %.2f;"
                             + " the machine %.2f of %.0f%n", zbinCores, rigCores, brokerCores, machineBusy, cores);
+                    System.out.printf(Locale.ROOT, "    thread switches per decision: zbin %.2f, Mosquitto %.2f%n", zbinSw, brokerSw);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }
