@@ -27,7 +27,9 @@ import org.junit.jupiter.api.io.TempDir;
  * The real {@code zbin run} started as its own process, {@value #STARTS} times: from the process's start to its first
  * {@code ready}, then its first 100 decisions at a handler's pace against the floor ({@link BenchFloor}) measured in a
  * block after each start. A JVM that already ran the daemon's code (as the other benches' does) would hide a cold path;
- * a fresh process cannot. Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false};
+ * a fresh process cannot. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows}
+ * (30 000) parts, and three starts are timed to ready with those rows in today's record log (the start reads them back).
+ * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false};
  * results in {@code target/bench/fresh-start.json}.
  */
 class FreshStartBench {
@@ -43,6 +45,21 @@ class FreshStartBench {
         if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
         cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main", "run", "--config", cfg.toString()));
         return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + i + ".log").toFile()).start();
+    }
+
+    /** Rows in the line's record files (lines other than each file's header; counting lines, not reading the rows). */
+    static long recordLines(Path dir) throws java.io.IOException {
+        Path records = dir.resolve("records-fresh");
+        if (!Files.isDirectory(records)) return 0;
+        long n = 0;
+        try (var files = Files.list(records)) {
+            for (Path f : files.filter(x -> x.getFileName().toString().endsWith(".csv")).toList()) {
+                try (var lines = Files.lines(f)) {
+                    n += Math.max(0, lines.count() - 1);
+                }
+            }
+        }
+        return n;
     }
 
     @Test
@@ -87,6 +104,51 @@ class FreshStartBench {
                     if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
                 }
             }
+            // A restart late in a busy shift: the start reads the day's record log back. The starts above found at most 800
+            // rows; a line running for hours has tens of thousands. One more daemon decides that many, then three starts
+            // are timed to ready with them in the log.
+            int busyRows = Integer.getInteger("zbin.bench.readback.rows", 30_000);
+            long rowsBefore = recordLines(dir);
+            Process filler = start(cfg, STARTS);
+            try {
+                int mark = tap.msgs.size();
+                tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                long period = 1_000_000_000L / 2000, next = System.nanoTime();
+                for (int i = 0; i < busyRows; i++) {
+                    byte[] t = ("{\"seq\": " + (5_000_000L + i) + ", \"part\": \"B" + i + "\"}").getBytes(java.nio.charset.StandardCharsets.UTF_8);
+                    while (true) {
+                        try {
+                            handler.publish("zbin/fresh/trigger", t, 1, false);
+                            break;
+                        } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
+                            if (e.getReasonCode() != org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_MAX_INFLIGHT) throw e;
+                            Thread.onSpinWait();
+                        }
+                    }
+                    next += period;
+                    long wait = next - System.nanoTime();
+                    if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+                }
+                long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
+                while (recordLines(dir) < rowsBefore + busyRows && System.nanoTime() < end) Thread.sleep(100);
+            } finally {
+                filler.destroy();
+                if (!filler.waitFor(20, TimeUnit.SECONDS)) filler.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+            }
+            long readBackRows = recordLines(dir);
+            long[] readyWithRows = new long[3];
+            for (int i = 0; i < readyWithRows.length; i++) {
+                int mark = tap.msgs.size();
+                long t0 = System.nanoTime();
+                Process daemon = start(cfg, STARTS + 1 + i);
+                try {
+                    tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                    readyWithRows[i] = (System.nanoTime() - t0) / 1_000_000;
+                } finally {
+                    daemon.destroy();
+                    if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+                }
+            }
             handler.disconnect().waitForCompletion(5000);
             handler.close();
             double floorP50 = floor.ms(50), floorP99 = floor.ms(99);
@@ -99,6 +161,9 @@ class FreshStartBench {
             for (long v : readyMs) r.add(v);
             out.put("ready_median_ms", sorted[STARTS / 2]);
             out.put("ready_max_ms", sorted[STARTS - 1]);
+            out.put("read_back_rows", readBackRows);
+            ArrayNode rb = out.putArray("ready_with_those_rows_in_the_record_log_ms");
+            for (long v : readyWithRows) rb.add(v);
             out.set("echo", LineBench.json(floor.echo));
             out.set("meter", LineBench.json(floor.meter));
             out.put("floor_p50_ms", floorP50);
@@ -114,6 +179,8 @@ class FreshStartBench {
             v.put("within_floor_p99", LineBench.count(veryFirst, floorP99));
             out.set("first_decision_after_each_start", v);
             System.out.printf(Locale.ROOT, "%n  ready after process start, ms: %s (median %d, max %d)%n", Arrays.toString(readyMs), sorted[STARTS / 2], sorted[STARTS - 1]);
+            System.out.printf(Locale.ROOT, "  ready after process start with %d rows of today in the record log, ms: %s%n", readBackRows,
+                    Arrays.toString(readyWithRows));
             System.out.printf(Locale.ROOT, "  %-52s %9s %9s %9s %9s%n", "latency at " + LineBench.PACE + "/s, ms", "p50", "p99", "p99.9", "max");
             for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
                     {"first " + FIRST + " decisions after each of " + STARTS + " starts", first}, {"  of it inside zbin: arrival -> decided", inside},
