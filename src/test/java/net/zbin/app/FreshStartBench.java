@@ -47,6 +47,17 @@ class FreshStartBench {
         return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + i + ".log").toFile()).start();
     }
 
+    /** Waits for the line's {@code ready} state among what the tap heard after its first {@code mark} messages. */
+    static void awaitReady(Tap tap, int mark) throws Exception {
+        tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+    }
+
+    /** SIGTERM (a clean stop), forcibly when it takes more than 20 s. */
+    static void stop(Process daemon) throws InterruptedException {
+        daemon.destroy();
+        if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+    }
+
     /** Rows in the line's record files (lines other than each file's header; counting lines, not reading the rows). */
     static long recordLines(Path dir) throws java.io.IOException {
         Path records = dir.resolve("records-fresh");
@@ -92,7 +103,7 @@ class FreshStartBench {
                 long t0 = System.nanoTime();
                 Process daemon = start(cfg, i);
                 try {
-                    tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                    awaitReady(tap, mark);
                     readyMs[i] = (System.nanoTime() - t0) / 1_000_000;
                     String part = ", \"part\": \"S" + i + "\"";
                     Histogram one = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 1, LineBench.PACE, i * 1_000L);
@@ -100,8 +111,7 @@ class FreshStartBench {
                     veryFirst.add(one);
                     first.add(LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 1, LineBench.PACE, i * 1_000L + 1));
                 } finally {
-                    daemon.destroy(); // SIGTERM: a clean stop
-                    if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+                    stop(daemon);
                 }
             }
             // A restart late in a busy shift: the start reads the day's record log back. The starts above found at most 800
@@ -112,19 +122,10 @@ class FreshStartBench {
             Process filler = start(cfg, STARTS);
             try {
                 int mark = tap.msgs.size();
-                tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                awaitReady(tap, mark);
                 long period = 1_000_000_000L / 2000, next = System.nanoTime();
                 for (int i = 0; i < busyRows; i++) {
-                    byte[] t = ("{\"seq\": " + (5_000_000L + i) + ", \"part\": \"B" + i + "\"}").getBytes(java.nio.charset.StandardCharsets.UTF_8);
-                    while (true) {
-                        try {
-                            handler.publish("zbin/fresh/trigger", t, 1, false);
-                            break;
-                        } catch (org.eclipse.paho.client.mqttv3.MqttException e) {
-                            if (e.getReasonCode() != org.eclipse.paho.client.mqttv3.MqttException.REASON_CODE_MAX_INFLIGHT) throw e;
-                            Thread.onSpinWait();
-                        }
-                    }
+                    tap.publishWaiting("zbin/fresh/trigger", "{\"seq\": " + (5_000_000L + i) + ", \"part\": \"B" + i + "\"}");
                     next += period;
                     long wait = next - System.nanoTime();
                     if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
@@ -132,8 +133,7 @@ class FreshStartBench {
                 long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
                 while (recordLines(dir) < rowsBefore + busyRows && System.nanoTime() < end) Thread.sleep(100);
             } finally {
-                filler.destroy();
-                if (!filler.waitFor(20, TimeUnit.SECONDS)) filler.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+                stop(filler);
             }
             long readBackRows = recordLines(dir);
             long[] readyWithRows = new long[3];
@@ -142,11 +142,10 @@ class FreshStartBench {
                 long t0 = System.nanoTime();
                 Process daemon = start(cfg, STARTS + 1 + i);
                 try {
-                    tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+                    awaitReady(tap, mark);
                     readyWithRows[i] = (System.nanoTime() - t0) / 1_000_000;
                 } finally {
-                    daemon.destroy();
-                    if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+                    stop(daemon);
                 }
             }
             handler.disconnect().waitForCompletion(5000);
