@@ -9,13 +9,15 @@ import java.util.Properties;
 /**
  * Moquette 0.17 in this process, for the demo and tests: loopback only, a free port, no
  * persistence, no telemetry, messages up to 64 KiB (so an oversized trigger reaches zbin and is
- * rejected there, instead of being dropped by the broker).
+ * rejected there, instead of being dropped by the broker). A {@link SessionLoopKeeper} starts again any of Moquette's
+ * session loops that a failing command ended, so one broker fault does not silence a line for the rest of the run.
  */
 public final class EmbeddedBroker implements AutoCloseable {
     private static final long LISTEN_WAIT_NS = 60_000_000_000L; // generous: on a loaded machine the listener has taken over 10 s
 
     private final Server server;
     private final int port;
+    private final SessionLoopKeeper keeper;
 
     /**
      * Starts on a free port chosen here (not Moquette's port 0, whose bound port it reports asynchronously through a
@@ -27,18 +29,22 @@ public final class EmbeddedBroker implements AutoCloseable {
         for (int attempt = 0; attempt < 3; attempt++) {
             int candidate = freePort();
             Server s = new Server();
+            SessionLoopKeeper k = new SessionLoopKeeper();
             try {
-                s.startServer(new MemoryConfig(properties(dataDir, candidate)));
+                s.startServer(new MemoryConfig(properties(dataDir, candidate)), java.util.List.of(k));
             } catch (IOException | RuntimeException e) {
                 last = new IOException("embedded broker did not start on port " + candidate + ": " + e, e);
                 stopQuietly(s);
                 continue;
             }
+            k.watch(s);
             if (listening(candidate)) {
                 server = s;
                 port = candidate;
+                keeper = k;
                 return;
             }
+            k.close();
             stopQuietly(s);
             last = new IOException("embedded broker did not listen on port " + candidate + " within 60 s");
         }
@@ -111,8 +117,18 @@ public final class EmbeddedBroker implements AutoCloseable {
 
     public int port() { return port; }
 
+    /** The Moquette server itself, for tests that reach into it. */
+    Server server() { return server; }
+
     public String url() { return "tcp://127.0.0.1:" + port(); }
 
+    /** Moquette session loops started again after one ended (see {@link SessionLoopKeeper}). */
+    public long sessionLoopsRevived() { return keeper.revived(); }
+
+    /** Stops the loop keeper first: the loops Moquette ends at its stop must stay ended. */
     @Override
-    public void close() { server.stopServer(); }
+    public void close() {
+        keeper.close();
+        server.stopServer();
+    }
 }
