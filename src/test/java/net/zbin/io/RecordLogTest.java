@@ -87,6 +87,29 @@ class RecordLogTest {
         assertEquals(List.of(row(0, t), row(2, t)), back);
     }
 
+    @Test
+    void awkwardDoubles_readBackAsTheSameBits() throws Exception {
+        // shortest-repr edge cases of IEEE 754 binary64 (common practice: subnormal, largest finite, 17-digit values)
+        double[] xs = {0.1 + 0.2, Double.MIN_VALUE, Double.MAX_VALUE, 1.2345678901234567e-300, -1591.4999999999998, 2.2250738585072014E-308};
+        Path recs = dir.resolve("awkward");
+        Instant t = Instant.parse("2026-11-30T10:00:00Z");
+        List<net.zbin.core.DecisionEvent> written = new java.util.ArrayList<>();
+        for (int i = 0; i < xs.length; i++) {
+            double x = xs[i];
+            Grading g = new Grading(new Grading.Outcome(1, "J", Verdict.PASS, Reason.IN_GRADE),
+                    new Grading.Measurement(1000, new Impedance(1000, Math.abs(x), x), x, -x, CompensationSource.USER),
+                    new Grading.Value(EquivalentModel.SERIES, PrimaryParam.CS, x, x));
+            written.add(new net.zbin.core.DecisionEvent(t, "l1", new Decision(i, "P-" + i, "LOT-1", Trigger.Kind.PART, "mlcc-x7r-100n", g, x, false, 0)));
+        }
+        try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
+            log.start();
+            for (var e : written) log.append(e);
+        }
+        List<net.zbin.core.DecisionEvent> back = new java.util.ArrayList<>();
+        assertEquals(0, RecordLogReader.read(recs, "l1", t, back::add));
+        assertEquals(written, back);
+    }
+
     /** Rows 0..n−1 of line l1 at t, through a log that is then closed. */
     static void writeRows(Path recs, int n, Instant t) {
         try (RecordLog log = new RecordLog(new LineConfig.RecordSettings(recs, 0, 1 << 20, true), "l1", null)) {
