@@ -60,7 +60,7 @@ public final class Daemon implements AutoCloseable {
     /** Periodic dashboards published: a finished lot's dashboard sent later is retained only if none came in between. */
     private final java.util.concurrent.atomic.AtomicLong dashboards = new java.util.concurrent.atomic.AtomicLong();
     static final long LOT_END_DASHBOARD_DELAY_MS = 200;
-    /** The warm-up's time bound (the broker connect and the meter probe run beside it). */
+    /** The warm-up's time bound (the read-back of the record log, the broker connect and the meter probe run beside it). */
     static final long WARM_UP_MS = 300;
     /** The rehearsal's time bound: after the warm-up, once the broker acknowledged the subscriptions. */
     static final long REHEARSAL_MS = 200;
@@ -110,6 +110,21 @@ public final class Daemon implements AutoCloseable {
         var connecting = mqtt.connectStart();
         path = new TriggerPath(cfg, topics, setup, meter, mqtt, records, mode, stats, book, List.of(stats, monitor), clock);
         commands = new LineCommands(topics, mqtt, setup, mode, stats, path, meter, clock, monitor, this::saveState);
+        // The warm-up (CPU, on scratch copies of everything it touches) runs beside reading the record log back (the two
+        // share the figures' and the monitor's code, which each warms for the other), the rest of the start, the meter
+        // probe and the broker's connect and subscription (I/O); then the rehearsal runs the real I/O of a part's way;
+        // the line says ready only after both, so the first part is measured on a warm path.
+        long[] warmed = new long[2];
+        Thread warming = named(() -> {
+            long w0 = System.nanoTime();
+            try {
+                warmed[0] = Warmup.run(cfg, setup, 20_000, WARM_UP_MS);
+            } catch (RuntimeException e) { // e.g. a command changed the compensation store under it: the line starts all the same
+                LOG.warn("warm-up stopped early: {}", e.toString());
+            }
+            warmed[1] = (System.nanoTime() - w0) / 1_000_000;
+        }, "warm-up");
+        warming.start();
         recover();
         if (cfg.status() != null) startStatus(); // before the broker: a page that cannot listen stops the start, not a running line
         // The finished lot's last figures, retained until the next dashboard: taken on the measuring thread as the lot ends
@@ -135,9 +150,6 @@ public final class Daemon implements AutoCloseable {
         monitor.compensation(setup.compensation(), setup.stepCompensations());
         records.start();
         records.prepare(clock.instant()); // today's file opened now, not at the first part
-        // The warm-up (CPU) runs beside the meter probe and the broker's connect and subscription (I/O); then the
-        // rehearsal runs the real I/O of a part's way; the line says ready only after both, so the first part is measured
-        // on a warm path.
         long t0 = System.nanoTime();
         mode.attach(mqtt);
         // The state goes out once the broker acknowledged the subscriptions on that connection (also after each
@@ -148,17 +160,6 @@ public final class Daemon implements AutoCloseable {
                 if (warm) mode.announce();
             }
         });
-        long[] warmed = new long[2];
-        Thread warming = named(() -> {
-            long w0 = System.nanoTime();
-            try {
-                warmed[0] = Warmup.run(cfg, setup, 20_000, WARM_UP_MS);
-            } catch (RuntimeException e) { // e.g. a command changed the compensation store under it: the line starts all the same
-                LOG.warn("warm-up stopped early: {}", e.toString());
-            }
-            warmed[1] = (System.nanoTime() - w0) / 1_000_000;
-        }, "warm-up");
-        warming.start();
         watch.probe();
         mqtt.connected(connecting, connectTimeoutMs);
         mqtt.hear();
