@@ -75,12 +75,13 @@ public final class RecordLogReader {
             String firstBad = null;
             try (CsvTable t = new CsvTable(f)) {
                 Columns c = new Columns(t);
+                RowTimes times = new RowTimes();
                 CsvTable.Row row;
                 while ((row = t.next()) != null) {
                     if (row.torn()) break; // a torn last line is cut when the log reopens the file; never read as a row
                     net.zbin.core.DecisionEvent e;
                     try {
-                        e = entry(c, row.record());
+                        e = entry(c, times, row.record());
                     } catch (RuntimeException ex) {
                         unreadable++;
                         if (firstBad == null) firstBad = "line " + row.line() + ": " + ex.getMessage();
@@ -153,9 +154,9 @@ public final class RecordLogReader {
     private static String text(CsvRecord r, int i, String name) { return SpreadsheetSafe.read(cell(r, i, name)); }
 
     /** One row as the decision it recorded; a row that is not whole throws, saying why. */
-    static net.zbin.core.DecisionEvent entry(Columns c, CsvRecord r) {
+    static net.zbin.core.DecisionEvent entry(Columns c, RowTimes times, CsvRecord r) {
         if (r.getFieldCount() != c.width) throw new IllegalArgumentException("has " + r.getFieldCount() + " fields, header has " + c.width);
-        Instant time = Instant.parse(cell(r, c.time, "time"));
+        Instant time = times.parse(cell(r, c.time, "time"));
         double f = num(r, c.freq, "freq_hz"), rr = num(r, c.r, "r_ohm"), x = num(r, c.x, "x_ohm");
         Impedance z = Double.isFinite(f) && f > 0 && Double.isFinite(rr) && Double.isFinite(x) ? new Impedance(f, rr, x) : null;
         String n = c.readings < 0 ? "" : r.getField(c.readings);
