@@ -6,10 +6,14 @@ import java.util.Locale;
 public enum CompensationSource {
     NONE, FACTORY, USER;
 
-    public String key() { return name().toLowerCase(Locale.ROOT); }
+    private static final CompensationSource[] ALL = values();
+    /** Made once: every record row and decision writes it and every read-back row reads it. */
+    private final String key = name().toLowerCase(Locale.ROOT);
+
+    public String key() { return key; }
 
     public static CompensationSource parse(String s) {
-        for (CompensationSource c : values()) if (c.key().equalsIgnoreCase(s)) return c;
+        for (CompensationSource c : ALL) if (c.key.equalsIgnoreCase(s)) return c;
         throw new IllegalArgumentException("unknown compensation source '" + s + "' (expected none, factory or user)");
     }
 }

@@ -16,10 +16,14 @@ public record Trigger(long seq, String part, String lot, Kind kind, long retestO
     public enum Kind {
         PART, OPEN, SHORT, REFERENCE;
 
-        public String key() { return name().toLowerCase(Locale.ROOT); }
+        private static final Kind[] ALL = values();
+        /** Made once: every trigger and record row reads it and every decision writes it. */
+        private final String key = name().toLowerCase(Locale.ROOT);
+
+        public String key() { return key; }
 
         public static Kind parse(String s) {
-            for (Kind k : values()) if (k.key().equals(s)) return k;
+            for (Kind k : ALL) if (k.key.equals(s)) return k;
             throw new IllegalArgumentException("kind must be part, open, short or reference (was '" + s + "')");
         }
     }
