@@ -19,13 +19,20 @@ final class RowTimes {
         int n = s.length();
         int digits = n - SECONDS_END - 2; // between the '.' and the 'Z'
         if (second != null && digits >= 1 && digits <= 9 && s.charAt(SECONDS_END) == '.' && s.charAt(n - 1) == 'Z'
-                && Character.isDigit(s.charAt(SECONDS_END + 1)) && s.regionMatches(0, second, 0, SECONDS_END)) {
-            int fraction = Integer.parseInt(s, SECONDS_END + 1, n - 1, 10);
+                && s.regionMatches(0, second, 0, SECONDS_END)) {
+            int fraction = 0;
+            for (int i = SECONDS_END + 1; i < n - 1; i++) {
+                char c = s.charAt(i);
+                if (c < '0' || c > '9') return Instant.parse(s); // only ASCII digits are a fraction (Instant.parse says what is wrong)
+                fraction = fraction * 10 + (c - '0');
+            }
             for (int i = digits; i < 9; i++) fraction *= 10;
             return Instant.ofEpochSecond(epochSecond, fraction);
         }
         Instant t = Instant.parse(s);
-        if (n > SECONDS_END && (s.charAt(SECONDS_END) == '.' || s.charAt(SECONDS_END) == 'Z') && s.charAt(n - 1) == 'Z') { // UTC, no offset
+        // Kept only when the text up to the seconds is the instant's own (as toString writes it, in UTC): not a lower-case
+        // 't', an offset, 24:00 or a leap second, which Instant.parse reads differently once a fraction follows.
+        if (n > SECONDS_END && s.charAt(n - 1) == 'Z' && t.toString().regionMatches(0, s, 0, SECONDS_END)) {
             second = s.substring(0, SECONDS_END);
             epochSecond = t.getEpochSecond();
         }

@@ -40,5 +40,19 @@ class RowTimesTest {
         assertThrows(RuntimeException.class, () -> times.parse("2026-12-03T05:59:01.-5Z"));
         assertThrows(RuntimeException.class, () -> times.parse("2026-12-03T05:59:01.1234567890Z"));
         assertThrows(RuntimeException.class, () -> times.parse("not a time"));
+        // digits Instant.parse does not take (Arabic-Indic five), after a row of the same second
+        assertThrows(RuntimeException.class, () -> times.parse("2026-12-03T05:59:01.\u0665Z"));
+        assertThrows(RuntimeException.class, () -> times.parse("2026-12-03T05:59:01.1\u0665Z"));
+    }
+
+    @Test
+    void secondsInstantParseReadsAsAnotherSecond_areNotKept() {
+        RowTimes times = new RowTimes();
+        // 24:00 is the next day's start for Instant.parse, but only without a fraction
+        assertEquals(Instant.parse("2026-12-03T24:00:00Z"), times.parse("2026-12-03T24:00:00Z"));
+        assertThrows(RuntimeException.class, () -> times.parse("2026-12-03T24:00:00.5Z"));
+        // ISO 8601 lets the 'T' be lower case; the next row's upper-case 'T' must not be matched against it blindly
+        assertEquals(Instant.parse("2026-12-03t05:59:01.5Z"), times.parse("2026-12-03t05:59:01.5Z"));
+        assertEquals(Instant.parse("2026-12-03T05:59:01.25Z"), times.parse("2026-12-03T05:59:01.25Z"));
     }
 }
