@@ -2,7 +2,6 @@ package net.zbin.app;
 
 import io.moquette.broker.Server;
 import io.moquette.interception.AbstractInterceptHandler;
-import java.lang.reflect.Array;
 import java.lang.reflect.Constructor;
 import java.lang.reflect.Field;
 import java.util.concurrent.BlockingQueue;
@@ -37,7 +36,7 @@ final class SessionLoopKeeper extends AbstractInterceptHandler implements AutoCl
         t.setDaemon(true);
         return t;
     });
-    private Object loops; // the SessionEventLoop[] inside the broker
+    private Thread[] loops; // the broker's own SessionEventLoop[]: an element set here replaces the loop there
     private BlockingQueue<?>[] queues;
     private Constructor<?> newLoop;
 
@@ -53,7 +52,7 @@ final class SessionLoopKeeper extends AbstractInterceptHandler implements AutoCl
         try {
             Object postOffice = field(server, "dispatcher");
             Object group = field(postOffice, "sessionLoops");
-            loops = field(group, "sessionExecutors");
+            loops = (Thread[]) field(group, "sessionExecutors");
             queues = (BlockingQueue<?>[]) field(group, "sessionQueues");
             newLoop = Class.forName("io.moquette.broker.SessionEventLoop").getDeclaredConstructor(BlockingQueue.class);
             newLoop.setAccessible(true);
@@ -68,14 +67,14 @@ final class SessionLoopKeeper extends AbstractInterceptHandler implements AutoCl
     long revived() { return revived.get(); }
 
     private void look() {
-        for (int i = 0; i < Array.getLength(loops); i++) {
-            Thread old = (Thread) Array.get(loops, i);
+        for (int i = 0; i < loops.length; i++) {
+            Thread old = loops[i];
             if (old.isAlive()) continue;
             try {
                 Thread fresh = (Thread) newLoop.newInstance(queues[i]);
                 fresh.setName(old.getName());
                 fresh.setUncaughtExceptionHandler(old.getUncaughtExceptionHandler());
-                Array.set(loops, i, fresh);
+                loops[i] = fresh;
                 fresh.start();
                 revived.incrementAndGet();
                 Throwable why = errors.poll();
