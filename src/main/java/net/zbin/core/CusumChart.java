@@ -35,6 +35,12 @@ public final class CusumChart {
 
     public double h() { return h; }
 
+    /** Takes up the sums of a chart with the same k and h (see {@link #upper()}, {@link #lower()}). */
+    public void restore(double upper, double lower) {
+        hi = upper;
+        lo = lower;
+    }
+
     public void restart() {
         hi = 0;
         lo = 0;

@@ -1,5 +1,7 @@
 package net.zbin.core;
 
+import java.util.List;
+
 /**
  * Drift watch on one quantity of a lot: a baseline learned from the first parts, then EWMA and two-sided
  * CUSUM on the standardized means of subgroups of {@code subgroup} consecutive parts, with the limits of the
@@ -130,6 +132,47 @@ public final class DriftChart {
     /** Standard error of {@link #shift()}. */
     public double shiftError() {
         return lastGroups.isEmpty() ? Double.NaN : sigmaPoint / Math.sqrt(lastGroups.size());
+    }
+
+    /**
+     * Everything the chart holds, to carry it across a restart of the daemon (the settings and design are not in it:
+     * they come from the recipe the chart is restored under).
+     */
+    public record State(RunningStats.State baseline, RunningStats.State baselineGroups, RunningStats.State group, double ewma,
+                        long ewmaPoints, double cusumHigh, double cusumLow, List<Double> lastGroups, double mu0, double sigma0,
+                        double sigmaPoint, boolean alarm, int direction, long quiet, long signals, long points, long charted,
+                        double zSinceSignal, long nSinceSignal) {
+        public State {
+            lastGroups = List.copyOf(lastGroups);
+        }
+    }
+
+    public State state() {
+        return new State(baseline.state(), baselineGroups.state(), group.state(), ewma.statistic(), ewma.points(), cusum.upper(),
+                cusum.lower(), List.copyOf(lastGroups), mu0, sigma0, sigmaPoint, alarm, direction, quiet, signals, points, charted,
+                zSinceSignal, nSinceSignal);
+    }
+
+    /** Takes up {@code st}, a {@link #state()} of a chart under the same settings. */
+    public void restore(State st) {
+        baseline.restore(st.baseline());
+        baselineGroups.restore(st.baselineGroups());
+        group.restore(st.group());
+        ewma.restore(st.ewma(), st.ewmaPoints());
+        cusum.restore(st.cusumHigh(), st.cusumLow());
+        lastGroups.clear();
+        lastGroups.addAll(st.lastGroups());
+        mu0 = st.mu0();
+        sigma0 = st.sigma0();
+        sigmaPoint = st.sigmaPoint();
+        alarm = st.alarm();
+        direction = st.direction();
+        quiet = st.quiet();
+        signals = st.signals();
+        points = st.points();
+        charted = st.charted();
+        zSinceSignal = st.zSinceSignal();
+        nSinceSignal = st.nSinceSignal();
     }
 
     public boolean alarm() { return alarm; }

@@ -47,6 +47,12 @@ public final class EwmaChart {
 
     public long points() { return i; }
 
+    /** Takes up the {@link #statistic()} and {@link #points()} of a chart with the same λ and L (a restart of the daemon). */
+    public void restore(double z, long points) {
+        this.z = z;
+        this.i = points;
+    }
+
     public void restart() {
         z = 0;
         i = 0;

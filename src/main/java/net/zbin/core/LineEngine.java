@@ -108,4 +108,24 @@ public final class LineEngine {
     public List<AlarmCode.Change> tick(Instant now) { return monitor.tick(now); }
 
     public LineMonitor.Snapshot snapshot(Instant now) { return monitor.snapshot(now); }
+
+    /**
+     * What the decisions built up, to carry it across a restart of the daemon: the lot and recipe the monitor's lot
+     * figures are for (null before the first decision) and the monitor's state.
+     */
+    public record State(String lot, String lotRecipe, LineMonitor.State monitor) {
+        public State {
+            java.util.Objects.requireNonNull(monitor, "monitor");
+        }
+    }
+
+    public State state() { return new State(lot, lotRecipe, monitor.state()); }
+
+    /** Takes up {@code st}, a {@link #state()} of an engine under the same recipe and monitor settings; returns the alarm changes. */
+    public List<AlarmCode.Change> restore(State st) {
+        List<AlarmCode.Change> out = monitor.restore(st.monitor());
+        lot = st.lot();
+        lotRecipe = st.lotRecipe();
+        return out;
+    }
 }

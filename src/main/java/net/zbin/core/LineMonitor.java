@@ -273,6 +273,78 @@ public final class LineMonitor {
         out.add(new AlarmCode.Change(code, on, message));
     }
 
+    /** The alarms the decisions raise and clear (the compensation's presence and age are judged by {@link #tick} instead). */
+    private static boolean fromDecisions(AlarmCode c) {
+        return c.recipeBound() && c != AlarmCode.COMPENSATION_MISSING && c != AlarmCode.COMPENSATION_OLD;
+    }
+
+    /**
+     * Everything the decisions built up in the monitor, to carry it across a restart of the daemon: the lot's charts,
+     * figures and window, the fixture checks, and the alarms the decisions raised (by code). The compensation and its
+     * alarms are not in it: the restarted line tells the monitor its compensation itself.
+     */
+    public record State(DriftChart.State value, DriftChart.State loss, RunningStats.State dev, Window.State window,
+                        Map<String, String> active, Cause cause, String causeText, double openResidual, double openStart,
+                        double openG, double shortR, double shortX, double shortStartR, double shortStartX, double refAbs,
+                        double refStart, RunningStats.State openLearn, RunningStats.State shortRLearn,
+                        RunningStats.State shortXLearn, RunningStats.State refLearn, int refOffRun, int refOkRun, long parts) {
+        public State {
+            active = java.util.Collections.unmodifiableMap(new java.util.TreeMap<>(active));
+        }
+    }
+
+    public State state() {
+        Map<String, String> a = new java.util.TreeMap<>();
+        active.forEach((k, v) -> {
+            if (fromDecisions(k)) a.put(k.code(), v);
+        });
+        return new State(value.state(), loss.state(), dev.state(), window.state(), a, cause, causeText, openResidual, openStart, openG,
+                shortR, shortX, shortStartR, shortStartX, refAbs, refStart, openLearn.state(), shortRLearn.state(), shortXLearn.state(),
+                refLearn.state(), refOffRun, refOkRun, parts);
+    }
+
+    /**
+     * Takes up {@code st}, a {@link #state()} of a monitor under the same settings and recipe. Returns the changes of
+     * the decisions' alarms that brings (the compensation's alarms stay as they are).
+     *
+     * @throws IllegalArgumentException an alarm code this version does not know
+     */
+    public List<AlarmCode.Change> restore(State st) {
+        Map<AlarmCode, String> want = new EnumMap<>(AlarmCode.class);
+        st.active().forEach((k, v) -> want.put(AlarmCode.parse(k), v));
+        value.restore(st.value());
+        loss.restore(st.loss());
+        dev.restore(st.dev());
+        window.restore(st.window());
+        cause = st.cause();
+        causeText = st.causeText();
+        openResidual = st.openResidual();
+        openStart = st.openStart();
+        openG = st.openG();
+        shortR = st.shortR();
+        shortX = st.shortX();
+        shortStartR = st.shortStartR();
+        shortStartX = st.shortStartX();
+        refAbs = st.refAbs();
+        refStart = st.refStart();
+        openLearn.restore(st.openLearn());
+        shortRLearn.restore(st.shortRLearn());
+        shortXLearn.restore(st.shortXLearn());
+        refLearn.restore(st.refLearn());
+        refOffRun = st.refOffRun();
+        refOkRun = st.refOkRun();
+        parts = st.parts();
+        List<AlarmCode.Change> out = new ArrayList<>();
+        for (AlarmCode c : AlarmCode.values()) {
+            if (!fromDecisions(c)) continue;
+            boolean was = active.containsKey(c), wanted = want.containsKey(c);
+            if (was && !wanted) set(out, c, false, "as before the restart");
+            else if (wanted && !was) set(out, c, true, want.get(c));
+            else if (wanted) active.put(c, want.get(c));
+        }
+        return out;
+    }
+
     /** Immutable figures of the lot. */
     public record Snapshot(long parts, double devMeanPct, double devSigmaPct, double cp, double cpk, DriftChart.View value,
                            DriftChart.View loss, String lossName, Window.View window, Cause cause, String causeText,
@@ -318,15 +390,17 @@ public final class LineMonitor {
             java.util.Arrays.fill(perReason, 0);
         }
 
-        void add(Grading g) {
+        void add(Grading g) { add(g.reason(), g.verdict() == Verdict.PASS, g.verdict() != Verdict.RETEST); }
+
+        private void add(Reason reason, boolean pass, boolean finish) {
             if (size == reasons.length) { // the oldest leaves
                 perReason[reasons[next]]--;
                 if (passed[next]) nPassed--;
                 if (finished[next]) nFinished--;
             } else size++;
-            reasons[next] = (byte) g.reason().ordinal();
-            passed[next] = g.verdict() == Verdict.PASS;
-            finished[next] = g.verdict() != Verdict.RETEST;
+            reasons[next] = (byte) reason.ordinal();
+            passed[next] = pass;
+            finished[next] = finish;
             perReason[reasons[next]]++;
             if (passed[next]) nPassed++;
             if (finished[next]) nFinished++;
@@ -334,6 +408,39 @@ public final class LineMonitor {
         }
 
         int size() { return size; }
+
+        /**
+         * The presentations in the window, oldest first: their reason codes, and their outcomes as one letter each —
+         * {@code p} passed, {@code f} finished and not passed, {@code r} a retest (not finished).
+         */
+        public record State(List<String> reasons, String outcomes) {
+            public State {
+                reasons = List.copyOf(reasons);
+                if (outcomes.length() != reasons.size() || !outcomes.chars().allMatch(c -> c == 'p' || c == 'f' || c == 'r'))
+                    throw new IllegalArgumentException("window: outcomes must be one of p, f, r per reason (" + reasons.size()
+                            + " reasons, outcomes '" + (outcomes.length() > 40 ? outcomes.substring(0, 40) + "…" : outcomes) + "')");
+            }
+        }
+
+        State state() {
+            List<String> r = new ArrayList<>(size);
+            StringBuilder o = new StringBuilder(size);
+            Reason[] all = Reason.values();
+            for (int k = 0, i = Math.floorMod(next - size, reasons.length); k < size; k++, i = (i + 1) % reasons.length) {
+                r.add(all[reasons[i]].code());
+                o.append(passed[i] ? 'p' : finished[i] ? 'f' : 'r');
+            }
+            return new State(r, o.toString());
+        }
+
+        /** Takes up {@code st} (the newest entries, if it holds more than this window does). */
+        void restore(State st) {
+            clear();
+            for (int k = Math.max(0, st.reasons().size() - reasons.length); k < st.reasons().size(); k++) {
+                char c = st.outcomes().charAt(k);
+                add(Reason.parse(st.reasons().get(k)), c == 'p', c != 'r');
+            }
+        }
 
         double pct(Reason r) { return size == 0 ? 0 : 100.0 * perReason[r.ordinal()] / size; }
 

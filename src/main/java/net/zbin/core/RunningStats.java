@@ -35,6 +35,20 @@ public final class RunningStats {
 
     public double max() { return n == 0 ? Double.NaN : max; }
 
+    /** Everything the accumulator holds, to carry it across a restart. */
+    public record State(long n, double mean, double m2, double min, double max) {}
+
+    public State state() { return new State(n, mean, m2, min, max); }
+
+    /** Takes up {@code s} as if the values behind it had been added here. */
+    public void restore(State s) {
+        n = s.n();
+        mean = s.mean();
+        m2 = s.m2();
+        min = s.min();
+        max = s.max();
+    }
+
     public void reset() {
         n = 0;
         mean = m2 = 0;
