@@ -112,6 +112,21 @@ public final class BinTally {
         return t;
     }
 
+    /** Takes up the counts of {@code s} in place of this tally's (a snapshot taken before a restart of the daemon). */
+    public void restore(Snapshot s) {
+        bins.clear();
+        reasons.clear();
+        retestReasons.clear();
+        for (BinCount c : s.bins()) bins.put(new BinKey(c.bin(), c.grade(), c.verdict()), new long[] {c.count()});
+        s.reasons().forEach((k, v) -> reasons.put(k, new long[] {v}));
+        s.retestReasons().forEach((k, v) -> retestReasons.put(k, new long[] {v}));
+        parts = s.parts();
+        passed = s.passed();
+        retests = s.retests();
+        checks = s.checks();
+        checksPassed = s.checksPassed();
+    }
+
     /** Counts one open, short or reference check presentation. */
     public void addCheck(boolean passed) {
         checks++;

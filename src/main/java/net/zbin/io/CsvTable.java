@@ -29,26 +29,56 @@ final class CsvTable implements AutoCloseable {
     private final int width;
     private final boolean tornTail;
 
-    CsvTable(Path file) throws IOException, ConfigException {
+    CsvTable(Path file) throws IOException, ConfigException { this(file, 0, -1); }
+
+    /**
+     * The rows in bytes {@code from} (0, or an offset where a row starts) up to {@code to} (an offset where a row starts
+     * or the file ends; −1: the file's end) under the file's header. Row line numbers count from {@code from}.
+     */
+    CsvTable(Path file, long from, long to) throws IOException, ConfigException {
         this.file = file;
         if (!Files.exists(file)) throw new ConfigException(file, null, "file not found");
-        this.tornTail = endsWithoutNewline(file);
+        this.tornTail = to < 0 && endsWithoutNewline(file);
         // a spreadsheet export starts with a UTF-8 byte-order mark: it is not part of the first column name
-        this.reader = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).detectBomHeader(true)
-                .ofCsvRecord(file, StandardCharsets.UTF_8);
-        this.it = reader.iterator();
+        CsvReader.CsvReaderBuilder b = CsvReader.builder().skipEmptyLines(true).ignoreDifferentFieldCount(true).detectBomHeader(true);
         int fields = 0;
+        CsvReader<CsvRecord> r = b.ofCsvRecord(file, StandardCharsets.UTF_8);
+        Iterator<CsvRecord> h0 = r.iterator();
         try {
-            if (it.hasNext()) {
-                CsvRecord h = it.next();
+            if (h0.hasNext()) {
+                CsvRecord h = h0.next();
                 fields = h.getFieldCount();
                 for (int i = 0; i < fields; i++) header.putIfAbsent(h.getField(i).trim(), i);
             }
         } catch (CsvParseException | UncheckedIOException e) {
-            reader.close();
+            r.close();
             throw new ConfigException(file, "line 1", "unreadable CSV header: " + e.getMessage());
         }
         width = fields; // the header's own field count: a repeated column name does not shorten the rows
+        if (from > 0 || to >= 0) { // the rows from an offset: a reader of their bytes only
+            r.close();
+            r = b.ofCsvRecord(rangeReader(file, from, to));
+            h0 = r.iterator();
+        }
+        this.reader = r;
+        this.it = h0;
+    }
+
+    private static java.io.Reader rangeReader(Path file, long from, long to) throws IOException {
+        java.nio.channels.FileChannel ch = java.nio.channels.FileChannel.open(file, java.nio.file.StandardOpenOption.READ);
+        try {
+            ch.position(from);
+            java.io.InputStream in = java.nio.channels.Channels.newInputStream(ch);
+            if (to >= 0) { // a bounded span (rows already read once): read into memory
+                byte[] bytes = in.readNBytes((int) Math.min(Integer.MAX_VALUE - 8, Math.max(0, to - from)));
+                ch.close();
+                return new java.io.InputStreamReader(new java.io.ByteArrayInputStream(bytes), StandardCharsets.UTF_8);
+            }
+            return new java.io.BufferedReader(new java.io.InputStreamReader(in, StandardCharsets.UTF_8), 1 << 16);
+        } catch (IOException | RuntimeException e) {
+            ch.close();
+            throw e;
+        }
     }
 
     /** The column's index, or −1 when the header has no such column. */

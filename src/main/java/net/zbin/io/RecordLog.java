@@ -56,6 +56,30 @@ public final class RecordLog implements AutoCloseable {
     /** A row waiting to be written, encoded already. */
     private record Kept(Instant time, byte[] row, boolean measured) {}
 
+    /** A place in the log: a file and a byte offset in it that starts a row (or ends the file). */
+    public record Position(Path file, long offset) {
+        public Position {
+            java.util.Objects.requireNonNull(file, "file");
+            if (offset < 0) throw new IllegalArgumentException("offset: must be >= 0 (was " + offset + ")");
+        }
+    }
+
+    /**
+     * Where the log stands: {@code end} just after the last row written, {@code from} the first row written in the
+     * second {@code spanMs} before that row's (at the latest), and the last row's time.
+     */
+    public record Cut(Position end, Position from, Instant lastRow) {}
+
+    /** The first row written in a second, where it went. */
+    private record Mark(long second, Path file, long offset) {}
+
+    /** Marks of the last {@link #MARK_SPAN_S} seconds of rows written, oldest first: one per second that had rows. */
+    private final ArrayDeque<Mark> marks = new ArrayDeque<>();
+    private static final long MARK_SPAN_S = 7200;
+    private Instant lastRowTime;
+    /** The last row the log held before this run wrote any (read back at the start), or null: none. */
+    private Instant priorLastRow;
+
     private final LineConfig.RecordSettings settings;
     private final String line;
     private final Listener listener;
@@ -158,6 +182,30 @@ public final class RecordLog implements AutoCloseable {
         return false;
     }
 
+    /**
+     * Where the log stands, for a checkpoint of what its rows built up; null while rows are kept from a failure (the
+     * file is not every row handed over), before this log wrote a row, or when the rows it wrote do not reach back
+     * {@code spanMs} before the last one and rows of an earlier run ({@link #priorLastRow}) fall in that span (their
+     * place in the file is not known here).
+     */
+    public synchronized Cut cut(long spanMs) {
+        if (failing || !backlog.isEmpty() || current == null || lastRowTime == null || marks.isEmpty()) return null;
+        long fromSecond = Math.floorDiv(lastRowTime.toEpochMilli() - spanMs, 1000L);
+        boolean priorBefore = priorLastRow == null || priorLastRow.getEpochSecond() < fromSecond;
+        if (marks.peekFirst().second() >= fromSecond && !priorBefore) return null;
+        Mark m = null;
+        for (var it = marks.descendingIterator(); it.hasNext(); ) {
+            Mark k = it.next();
+            if (k.second() < fromSecond) break;
+            m = k;
+        }
+        Position end = new Position(current, fileBytes);
+        return new Cut(end, m == null ? end : new Position(m.file(), m.offset()), lastRowTime);
+    }
+
+    /** The last row the log held before this run (read back at the start; null: none), for {@link #cut}. */
+    public synchronized void priorLastRow(Instant t) { priorLastRow = t; }
+
     public long written() { return written.get(); }
 
     /** Rows dropped because the kept rows reached their bound while the log could not be written. */
@@ -175,6 +223,12 @@ public final class RecordLog implements AutoCloseable {
     /** Writes one encoded row through to the operating system (no fsync); rotates past the size limit. */
     private void writeRow(Instant time, byte[] row) throws IOException {
         ensureFile(time);
+        long second = time.getEpochSecond();
+        if (marks.isEmpty() || marks.peekLast().second() != second) {
+            marks.addLast(new Mark(second, current, fileBytes));
+            while (marks.size() > 1 && (marks.peekFirst().second() < second - MARK_SPAN_S || marks.size() > MARK_SPAN_S * 2)) marks.pollFirst();
+        }
+        lastRowTime = time;
         ByteBuffer b = ByteBuffer.wrap(row);
         while (b.hasRemaining()) channel.write(b);
         fileBytes += row.length;

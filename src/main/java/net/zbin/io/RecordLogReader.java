@@ -63,46 +63,70 @@ public final class RecordLogReader {
      */
     public static long read(Path dir, String line, Instant since, Instant until, Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
         long skipped = 0;
-        LocalDate lastDay = until.equals(Instant.MAX) ? LocalDate.MAX : LocalDate.ofInstant(until, ZoneOffset.UTC);
-        for (Path f : files(dir, line, LocalDate.ofInstant(since, ZoneOffset.UTC))) {
-            LocalDate day = dayOf(f, line);
-            if (day.isAfter(lastDay)) {
-                org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} is dated after today ({}): set aside, "
-                        + "not read back (a clock that was wrong when it was written?)", f, lastDay);
-                continue;
-            }
-            long future = 0, unreadable = 0;
-            String firstBad = null;
-            try (CsvTable t = new CsvTable(f)) {
-                Columns c = new Columns(t);
-                RowTimes times = new RowTimes();
-                CsvTable.Row row;
-                while ((row = t.next()) != null) {
-                    if (row.torn()) break; // a torn last line is cut when the log reopens the file; never read as a row
-                    net.zbin.core.DecisionEvent e;
-                    try {
-                        e = entry(c, times, row.record());
-                    } catch (RuntimeException ex) {
-                        unreadable++;
-                        if (firstBad == null) firstBad = "line " + row.line() + ": " + ex.getMessage();
-                        continue;
-                    }
-                    if (e.time().isAfter(until)) {
-                        future++;
-                        continue;
-                    }
-                    sink.accept(e);
-                }
-            } catch (ConfigException | IOException e) {
-                org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} unreadable, not read back: {}", f, e.getMessage());
-            }
-            skipped += unreadable;
-            if (unreadable > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows could not be read back"
-                    + " (first at {})", f, unreadable, firstBad);
-            if (future > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows stamped after {} "
-                    + "set aside, not read back", f, future, until);
+        for (Path f : files(dir, line, LocalDate.ofInstant(since, ZoneOffset.UTC))) skipped += readFile(f, line, 0, -1, until, sink);
+        return skipped;
+    }
+
+    /**
+     * The rows from {@code from} (a place where a row starts) up to {@code to} (the same; null: the log's end), in the
+     * files of {@code from}'s on, in writing order; otherwise as {@link #read(Path, String, Instant, Instant, Consumer)}.
+     *
+     * @throws IOException {@code from}'s file is not among the line's log files
+     */
+    public static long readRange(Path dir, String line, RecordLog.Position from, RecordLog.Position to, Instant until,
+                                 Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
+        List<Path> all = files(dir, line, dayOf(from.file(), line));
+        int i = all.indexOf(from.file());
+        if (i < 0) throw new IOException(from.file() + ": not among the record files of line " + line + " in " + dir);
+        long skipped = 0;
+        for (; i < all.size(); i++) {
+            Path f = all.get(i);
+            boolean last = to != null && f.equals(to.file());
+            skipped += readFile(f, line, f.equals(from.file()) ? from.offset() : 0, last ? to.offset() : -1, until, sink);
+            if (last) break;
         }
         return skipped;
+    }
+
+    private static long readFile(Path f, String line, long fromByte, long toByte, Instant until,
+                                 Consumer<net.zbin.core.DecisionEvent> sink) throws IOException {
+        LocalDate lastDay = until.equals(Instant.MAX) ? LocalDate.MAX : LocalDate.ofInstant(until, ZoneOffset.UTC);
+        LocalDate day = dayOf(f, line);
+        if (day.isAfter(lastDay)) {
+            org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} is dated after today ({}): set aside, "
+                    + "not read back (a clock that was wrong when it was written?)", f, lastDay);
+            return 0;
+        }
+        long future = 0, unreadable = 0;
+        String firstBad = null;
+        try (CsvTable t = new CsvTable(f, fromByte, toByte)) {
+            Columns c = new Columns(t);
+            RowTimes times = new RowTimes();
+            CsvTable.Row row;
+            while ((row = t.next()) != null) {
+                if (row.torn()) break; // a torn last line is cut when the log reopens the file; never read as a row
+                net.zbin.core.DecisionEvent e;
+                try {
+                    e = entry(c, times, row.record());
+                } catch (RuntimeException ex) {
+                    unreadable++;
+                    if (firstBad == null) firstBad = "line " + row.line() + ": " + ex.getMessage();
+                    continue;
+                }
+                if (e.time().isAfter(until)) {
+                    future++;
+                    continue;
+                }
+                sink.accept(e);
+            }
+        } catch (ConfigException | IOException e) {
+            org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {} unreadable, not read back: {}", f, e.getMessage());
+        }
+        if (unreadable > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows could not be read back"
+                + " (first at {})", f, unreadable, firstBad);
+        if (future > 0) org.slf4j.LoggerFactory.getLogger(RecordLogReader.class).warn("record file {}: {} rows stamped after {} "
+                + "set aside, not read back", f, future, until);
+        return unreadable;
     }
 
     private static LocalDate dayOf(Path f, String line) {

@@ -254,7 +254,7 @@ public final class Daemon implements AutoCloseable {
         java.time.Instant[] lastRow = {null};
         long[] rows = {0};
         monitor.recovering(true);
-        RecordLogReader.read(cfg.records().dir(), cfg.line(), now.minus(Duration.ofDays(1)), now.plusSeconds(5), e -> {
+        java.util.function.Consumer<net.zbin.core.DecisionEvent> apply = e -> {
             path.enterLot(e.decision().lot(), e.time());
             if (pendingReset[0] != null && !e.time().isBefore(pendingReset[0]) && e.decision().lot().equals(saved.lot())) {
                 stats.resetAt(pendingReset[0]);
@@ -263,8 +263,28 @@ public final class Daemon implements AutoCloseable {
             path.recovered(e);
             lastRow[0] = e.time();
             rows[0]++;
-        });
+        };
+        java.nio.file.Path dir = cfg.records().dir();
+        ReadBackCheckpoint ck = ReadBackCheckpoint.load(cfg.stateDir(), cfg.line(), fingerprint(), dir, cfg.deadlineMs(), monitor::scratch);
+        String from = "the whole log of the last 24 h";
+        if (ck != null) { // the figures as of the checkpoint, then only the rows after it
+            java.util.List<net.zbin.core.DecisionEvent> window = new java.util.ArrayList<>();
+            RecordLogReader.readRange(dir, cfg.line(), ck.bookFrom(dir), ck.at(dir), now.plusSeconds(5), window::add);
+            window.forEach(path::forBook);
+            path.checkpointLot(ck.bookLot());
+            stats.restore(ck.stats());
+            monitor.restore(ck.monitor());
+            if (pendingReset[0] != null && ck.stats().resetAt() != null && pendingReset[0].equals(java.time.Instant.parse(ck.stats().resetAt())))
+                pendingReset[0] = null; // the checkpoint's figures hold it
+            lastRow[0] = java.time.Instant.parse(ck.lastRowAt());
+            RecordLogReader.readRange(dir, cfg.line(), ck.at(dir), null, now.plusSeconds(5), apply);
+            from = "the checkpoint as of " + ck.lastRowAt() + " (" + ck.file() + " at byte " + ck.offset() + "; " + window.size()
+                    + " rows before it re-read for the repeat window) and the rows after it";
+        } else {
+            RecordLogReader.read(dir, cfg.line(), now.minus(Duration.ofDays(1)), now.plusSeconds(5), apply);
+        }
         monitor.recovering(false);
+        records.priorLastRow(lastRow[0]);
         int inBook = path.readBackDone();
         if (saved != null) {
             stats.restore(saved.repeats(), saved.rejected(), saved.reusedSeqs(), saved.busy());
@@ -273,7 +293,38 @@ public final class Daemon implements AutoCloseable {
             if (pendingReset[0] != null && saved.lot().equals(stats.lot())) stats.resetAt(pendingReset[0]);
         }
         recovered = true;
-        LOG.info("{} rows read back from the record log; lot '{}', {} presentations in the repeat window", rows[0], stats.lot(), inBook);
+        LOG.info("{} rows read back from the record log ({}); lot '{}', {} presentations in the repeat window", rows[0], from, stats.lot(), inBook);
+    }
+
+    /** What a read-back checkpoint's state depends on besides the rows: it is used only under the same. */
+    private String fingerprint() {
+        var r = setup.recipe();
+        return cfg.line() + "|" + r.name() + "|" + cfg.monitorSettings(r) + "|deadline " + cfg.deadlineMs() + "|repeat " + cfg.repeatWindowMs();
+    }
+
+    /** A checkpoint's state, taken on the measuring thread between two decisions; null when the log cannot say where it stands. */
+    private ReadBackCheckpoint.Taken takeCheckpoint() {
+        return path.settled(() -> {
+            var cut = records.cut(cfg.repeatWindowMs());
+            return cut == null ? null : new ReadBackCheckpoint.Taken(cut, fingerprint(), path.lot(), stats.state(), monitor.state());
+        });
+    }
+
+    private final java.util.concurrent.atomic.AtomicReference<ReadBackCheckpoint.Taken> taken = new java.util.concurrent.atomic.AtomicReference<>();
+
+    /** The ticker: writes the state the measuring thread took at the last period, and asks it for the next. */
+    private void checkpoint() {
+        writeCheckpoint(taken.getAndSet(null));
+        dispatch.onMeasuringThread(() -> taken.set(takeCheckpoint()));
+    }
+
+    private void writeCheckpoint(ReadBackCheckpoint.Taken t) {
+        if (t == null) return;
+        try {
+            ReadBackCheckpoint.write(cfg.stateDir(), cfg.line(), t);
+        } catch (java.io.IOException | RuntimeException e) {
+            LOG.warn("read-back checkpoint not written: {}", e.toString());
+        }
     }
 
     /** The line's state file: written by the ticker, after lot and reset commands, and at a clean stop. */
@@ -332,6 +383,7 @@ public final class Daemon implements AutoCloseable {
 
     private void publishDashboard() {
         saveState();
+        checkpoint();
         try {
             monitor.tick();
             LineSnapshot snap = snapshot(mode.mode());
@@ -392,6 +444,7 @@ public final class Daemon implements AutoCloseable {
         if (status != null) status.close();
         records.close();
         saveState();
+        if (recovered && path != null) writeCheckpoint(takeCheckpoint()); // the measuring thread has stopped: taken here
         meter.close();
         locks.forEach(net.zbin.io.LineLock::close);
         LOG.info("line {} stopped", cfg.line());

@@ -46,6 +46,42 @@ final class FinishedRing {
         }
     }
 
+    /** One slot that holds a key: a second (or minute) since the epoch, its parts finished and passed. */
+    record Slot(long key, long parts, long passed) {}
+
+    /** The slots in use, to carry the windows across a restart of the daemon. */
+    record State(java.util.List<Slot> seconds, java.util.List<Slot> minutes) {
+        State {
+            seconds = java.util.List.copyOf(seconds);
+            minutes = java.util.List.copyOf(minutes);
+        }
+    }
+
+    State state() { return new State(slots(secStamp, secCount, secPassed), slots(minStamp, minCount, minPassed)); }
+
+    private static java.util.List<Slot> slots(long[] stamp, long[] count, long[] pass) {
+        java.util.List<Slot> out = new java.util.ArrayList<>();
+        for (int i = 0; i < stamp.length; i++) if (stamp[i] != Long.MIN_VALUE) out.add(new Slot(stamp[i], count[i], pass[i]));
+        return out;
+    }
+
+    /** Takes up {@code s} in place of what this ring holds. */
+    void restore(State s) {
+        java.util.Arrays.fill(secStamp, Long.MIN_VALUE);
+        java.util.Arrays.fill(minStamp, Long.MIN_VALUE);
+        put(secStamp, secCount, secPassed, s.seconds());
+        put(minStamp, minCount, minPassed, s.minutes());
+    }
+
+    private static void put(long[] stamp, long[] count, long[] pass, java.util.List<Slot> slots) {
+        for (Slot sl : slots) {
+            int i = (int) Math.floorMod(sl.key(), (long) stamp.length);
+            stamp[i] = sl.key();
+            count[i] = sl.parts();
+            pass[i] = sl.passed();
+        }
+    }
+
     /**
      * Parts finished and passed in the seconds ({@code nowSecond} − {@code windowS}, {@code nowSecond}].
      *

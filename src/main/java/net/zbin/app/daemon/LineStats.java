@@ -94,6 +94,62 @@ final class LineStats implements DecisionListener {
         if (d.kind() == Trigger.Kind.PART && g.verdict() != Verdict.RETEST) finished.add(e.time().getEpochSecond(), g.verdict() == Verdict.PASS);
     }
 
+    /**
+     * What the decisions built up, to carry it across a restart of the daemon: the running tally and the lot's base,
+     * the latency (HdrHistogram's compressed form, Base64) and its buckets, the finished parts per second and minute,
+     * the lot and its start, the last reset-counters. Not in it: the counters of answers that write no row (the line's
+     * state file keeps those).
+     */
+    record State(BinTally.Snapshot tally, BinTally.Snapshot base, String latencyUs, java.util.List<Long> bucketCounts, double latencySumMs,
+                 FinishedRing.State finished, String lot, String lotSince, String resetAt, long decisions, long late) {
+        State {
+            bucketCounts = java.util.List.copyOf(bucketCounts);
+        }
+    }
+
+    synchronized State state() {
+        java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(latencyUs.getNeededByteBufferCapacity());
+        int n = latencyUs.encodeIntoCompressedByteBuffer(b);
+        String lat = java.util.Base64.getEncoder().encodeToString(java.util.Arrays.copyOf(b.array(), n));
+        return new State(tally.snapshot(), base, lat, java.util.Arrays.stream(bucketCount).boxed().toList(), latencySumMs, finished.state(),
+                lot, lotSince == null ? null : lotSince.toString(), resetAt == null ? null : resetAt.toString(), decisions, late);
+    }
+
+    /**
+     * Takes up {@code s} in place of what the decisions built up here.
+     *
+     * @throws IllegalArgumentException the latency buckets are not this line's (another deadline), the histogram or a time is unreadable
+     */
+    synchronized void restore(State s) {
+        if (s.bucketCounts().size() != bucketCount.length)
+            throw new IllegalArgumentException("bucketCounts: " + s.bucketCounts().size() + " buckets, this line has " + bucketCount.length);
+        Histogram h;
+        Instant since, reset;
+        try {
+            since = s.lotSince() == null ? null : Instant.parse(s.lotSince());
+            reset = s.resetAt() == null ? null : Instant.parse(s.resetAt());
+        } catch (java.time.format.DateTimeParseException e) {
+            throw new IllegalArgumentException("lotSince/resetAt: not an instant (" + e.getMessage() + ")", e);
+        }
+        try {
+            h = Histogram.decodeFromCompressedByteBuffer(java.nio.ByteBuffer.wrap(java.util.Base64.getDecoder().decode(s.latencyUs())), 0);
+        } catch (java.util.zip.DataFormatException | RuntimeException e) {
+            throw new IllegalArgumentException("latencyUs: not a histogram (" + e.getMessage() + ")", e);
+        }
+        tally.restore(s.tally());
+        base = s.base();
+        latencyUs.reset();
+        latencyUs.add(h);
+        for (int i = 0; i < bucketCount.length; i++) bucketCount[i] = s.bucketCounts().get(i);
+        latencySumMs = s.latencySumMs();
+        finished.restore(s.finished());
+        lot = s.lot();
+        lotSince = since;
+        resetAt = reset;
+        decisions = s.decisions();
+        late = s.late();
+    }
+
     synchronized void repeated() { repeats++; }
 
     synchronized void rejected() { rejected++; }

@@ -85,6 +85,15 @@ final class MonitorListener implements DecisionListener {
 
     synchronized LineMonitor.Snapshot snapshot() { return engine.snapshot(clock.instant()); }
 
+    /** What the decisions built up in the monitor (see {@link LineEngine#state}). */
+    synchronized LineEngine.State state() { return engine.state(); }
+
+    /** Takes up a {@link #state} of a monitor under the same recipe and settings; its alarms go to the line as read-back alarms do. */
+    synchronized void restore(LineEngine.State s) { forward(engine.restore(s)); }
+
+    /** A monitor of the line's recipe and settings that belongs to nothing, to try a state on. */
+    LineEngine scratch() { return cfg.engine(engine.recipe()); }
+
     private void forward(List<AlarmCode.Change> changes) {
         for (AlarmCode.Change c : changes) mode.alarm(c.code(), c.active(), c.message(), !recovering);
     }

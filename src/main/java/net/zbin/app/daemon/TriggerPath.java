@@ -251,14 +251,34 @@ final class TriggerPath {
 
     /** Puts back what the record log says was decided before a restart: the lot's figures now, the book at {@link #readBackDone}. */
     void recovered(net.zbin.core.DecisionEvent e) {
+        enterLot(e.decision().lot(), e.time());
+        forBook(e);
+        for (DecisionListener l : listeners) l.decided(e);
+    }
+
+    /**
+     * A row the figures already hold (a read-back checkpoint's): only kept for the book, if it is in the last repeat
+     * window at {@link #readBackDone}.
+     */
+    void forBook(net.zbin.core.DecisionEvent e) {
         Decision d = e.decision();
-        enterLot(d.lot(), e.time());
         if (!readBack.isEmpty() && !readBack.peekLast().decision().lot().equals(d.lot())) readBack.clear();
         readBack.add(e);
         while (readBack.size() > 20_000 || e.time().toEpochMilli() - readBack.peekFirst().time().toEpochMilli() > cfg.repeatWindowMs())
             readBack.pollFirst();
-        for (DecisionListener l : listeners) l.decided(e);
     }
+
+    /** The book's lot as a read-back checkpoint has it (the figures' lot is in the figures' state). */
+    void checkpointLot(String lot) { book.enterLot(lot); }
+
+    /**
+     * {@code s}'s result, taken between two decisions with every row written also heard by the listeners (the lock
+     * {@link #deliver} holds); null while a new lot's start waits for its first answer.
+     */
+    synchronized <T> T settled(java.util.function.Supplier<T> s) { return lotStart == null ? s.get() : null; }
+
+    /** The book's lot. */
+    String lot() { return book.lot(); }
 
     /**
      * The read-back ended: the decisions of the last repeat window of the log go into the book with the ages they had
