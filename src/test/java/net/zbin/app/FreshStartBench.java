@@ -207,7 +207,7 @@ class FreshStartBench {
                     LineBench.count(second10, floorP99), second10.getTotalCount(), LineBench.count(rest, floorP99), rest.getTotalCount());
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             Files.createDirectories(Path.of("target/bench/fresh-start-logs"));
-            for (int i = 0; i < STARTS; i++) Files.copy(dir.resolve("daemon-" + i + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + i + ".log"),
+            for (int i = 0; i < STARTS + 1 + readyWithRows.length; i++) Files.copy(dir.resolve("daemon-" + i + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + i + ".log"),
                     java.nio.file.StandardCopyOption.REPLACE_EXISTING);
             Files.writeString(Path.of("target/bench/fresh-start.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
         }

@@ -71,7 +71,9 @@ record ReadBackCheckpoint(int format, String line, String fingerprint, String fi
         if (!Files.exists(f)) return null;
         String why;
         try {
-            ReadBackCheckpoint c = Json.mapper().readValue(f.toFile(), ReadBackCheckpoint.class);
+            // every field present: a file whose state lacks one (another version's) is not read as zeros
+            ReadBackCheckpoint c = Json.mapper().readerFor(ReadBackCheckpoint.class)
+                    .with(com.fasterxml.jackson.databind.DeserializationFeature.FAIL_ON_MISSING_CREATOR_PROPERTIES).readValue(f.toFile());
             Path data = recordsDir.resolve(c.file());
             if (c.format() != FORMAT) why = "format " + c.format() + ", this version reads " + FORMAT;
             else if (!line.equals(c.line()) || !fingerprint.equals(c.fingerprint())) why = "taken under another recipe or settings";
