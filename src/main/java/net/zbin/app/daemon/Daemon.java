@@ -306,7 +306,7 @@ public final class Daemon implements AutoCloseable {
     private ReadBackCheckpoint.Taken takeCheckpoint() {
         return path.settled(() -> {
             var cut = records.cut(cfg.repeatWindowMs());
-            return cut == null ? null : new ReadBackCheckpoint.Taken(cut, fingerprint(), path.lot(), stats.state(), monitor.state());
+            return cut == null ? null : new ReadBackCheckpoint.Taken(cut, fingerprint(), path.lot(), stats.capture(), monitor.state());
         });
     }
 

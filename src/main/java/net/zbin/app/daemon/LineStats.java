@@ -107,12 +107,26 @@ final class LineStats implements DecisionListener {
         }
     }
 
-    synchronized State state() {
-        java.nio.ByteBuffer b = java.nio.ByteBuffer.allocate(latencyUs.getNeededByteBufferCapacity());
-        int n = latencyUs.encodeIntoCompressedByteBuffer(b);
-        String lat = java.util.Base64.getEncoder().encodeToString(java.util.Arrays.copyOf(b.array(), n));
-        return new State(tally.snapshot(), base, lat, java.util.Arrays.stream(bucketCount).boxed().toList(), latencySumMs, finished.state(),
-                lot, lotSince == null ? null : lotSince.toString(), resetAt == null ? null : resetAt.toString(), decisions, late);
+    State state() { return capture().get(); }
+
+    /**
+     * The {@link State} as it is now: copies taken under the lock (the measuring thread pays for those only), the
+     * histogram compressed when the supplier is called (by the thread that writes the checkpoint).
+     */
+    synchronized java.util.function.Supplier<State> capture() {
+        Histogram lat = latencyUs.copy();
+        BinTally.Snapshot all = tally.snapshot(), b = base;
+        java.util.List<Long> buckets = java.util.Arrays.stream(bucketCount).boxed().toList();
+        double sum = latencySumMs;
+        FinishedRing.State ring = finished.state();
+        String l = lot, since = lotSince == null ? null : lotSince.toString(), reset = resetAt == null ? null : resetAt.toString();
+        long dec = decisions, lt = late;
+        return () -> {
+            java.nio.ByteBuffer buf = java.nio.ByteBuffer.allocate(lat.getNeededByteBufferCapacity());
+            int n = lat.encodeIntoCompressedByteBuffer(buf);
+            return new State(all, b, java.util.Base64.getEncoder().encodeToString(java.util.Arrays.copyOf(buf.array(), n)), buckets, sum, ring,
+                    l, since, reset, dec, lt);
+        };
     }
 
     /**

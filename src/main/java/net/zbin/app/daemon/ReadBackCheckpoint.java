@@ -39,8 +39,9 @@ record ReadBackCheckpoint(int format, String line, String fingerprint, String fi
     static final int FORMAT = 1;
     static final int CRC_BYTES = 4096;
 
-    /** The state at a cut of the log, taken on the measuring thread (copies: written later by the ticker). */
-    record Taken(RecordLog.Cut cut, String fingerprint, String bookLot, LineStats.State stats, LineEngine.State monitor) {}
+    /** The state at a cut of the log, taken on the measuring thread (copies; the figures' finished by the writer, later). */
+    record Taken(RecordLog.Cut cut, String fingerprint, String bookLot, java.util.function.Supplier<LineStats.State> stats,
+                 LineEngine.State monitor) {}
 
     static Path file(Path stateDir, String line) { return stateDir.resolve("readback-" + line + ".json"); }
 
@@ -49,12 +50,12 @@ record ReadBackCheckpoint(int format, String line, String fingerprint, String fi
     RecordLog.Position bookFrom(Path recordsDir) { return new RecordLog.Position(recordsDir.resolve(bookFile), bookOffset); }
 
     /** Writes {@code t} atomically (temp file + rename; no fsync: a checkpoint lost to a power cut only costs a longer start). */
-    static void write(Path stateDir, String line, Taken t) throws IOException {
+    static synchronized void write(Path stateDir, String line, Taken t) throws IOException { // the ticker and a stop: one at a time
         RecordLog.Position end = t.cut().end(), from = t.cut().from();
         int n = (int) Math.min(CRC_BYTES, end.offset());
         var c = new ReadBackCheckpoint(FORMAT, line, t.fingerprint(), end.file().getFileName().toString(), end.offset(),
                 crc(end.file(), end.offset(), n), n, from.file().getFileName().toString(), from.offset(), t.cut().lastRow().toString(),
-                t.bookLot(), t.stats(), t.monitor());
+                t.bookLot(), t.stats().get(), t.monitor());
         Path f = file(stateDir, line), tmp = f.resolveSibling(f.getFileName() + ".tmp");
         Files.createDirectories(stateDir);
         Files.write(tmp, Json.mapper().writeValueAsBytes(c));

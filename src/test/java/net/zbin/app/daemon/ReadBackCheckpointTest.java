@@ -56,7 +56,7 @@ class ReadBackCheckpointTest {
             cut = records.cut(cfg.repeatWindowMs());
         }
         assertNotNull(cut);
-        ReadBackCheckpoint.write(cfg.stateDir(), cfg.line(), new ReadBackCheckpoint.Taken(cut, "fp", "HG-7", stats.state(), monitor.state()));
+        ReadBackCheckpoint.write(cfg.stateDir(), cfg.line(), new ReadBackCheckpoint.Taken(cut, "fp", "HG-7", stats.capture(), monitor.state()));
         file = ReadBackCheckpoint.file(cfg.stateDir(), cfg.line());
         data = cut.end().file();
     }
