@@ -38,12 +38,19 @@ class FreshStartBench {
     @TempDir
     Path dir;
 
-    /** The daemon's process, on this JVM's own class path (no packaged jar needed: the bench runs at the test phase). */
+    /**
+     * The daemon's process, on this JVM's own class path (no packaged jar needed: the bench runs at the test phase), or
+     * from the jar named by {@code zbin.bench.daemon.jar} (as the systemd unit starts it; with
+     * {@code -Dzbin.bench.daemon.jvm=-XX:SharedArchiveFile=…} and its class-data archive, too). A jar is the caller's to
+     * have built from the same sources.
+     */
     Process start(Path cfg, int i) throws Exception {
         java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString()));
         String extra = System.getProperty("zbin.bench.daemon.jvm", ""); // e.g. -Xlog:class+load to see what the first parts still load
         if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
-        cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main", "run", "--config", cfg.toString()));
+        String jar = System.getProperty("zbin.bench.daemon.jar", "");
+        cmd.addAll(jar.isBlank() ? java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main") : java.util.List.of("-jar", jar));
+        cmd.addAll(java.util.List.of("run", "--config", cfg.toString()));
         return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + i + ".log").toFile()).start();
     }
 

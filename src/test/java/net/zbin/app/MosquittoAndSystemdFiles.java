@@ -34,6 +34,11 @@ final class MosquittoAndSystemdFiles {
                 assertTrue(lines.contains("KillSignal=SIGTERM"), name + " stops with SIGTERM (clean offline)");
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("ExecStart=") && l.contains("-XX:+ExitOnOutOfMemoryError")),
                         name + " ends the process on out of memory");
+                for (String l : lines) {
+                    if (!l.startsWith("ExecStart") || !l.contains("/bin/sh -c")) continue;
+                    assertTrue(l.startsWith("ExecStartPre=") || l.contains("exec /usr/bin/java"), name + ": the shell hands over to the JVM, so SIGTERM reaches zbin: " + l);
+                    assertTrue(!l.replace("$$", "").contains("$"), name + ": a shell variable is written $$ (systemd expands a single $ itself): " + l);
+                }
             }
             default -> throw new AssertionError("no check for " + p);
         }
