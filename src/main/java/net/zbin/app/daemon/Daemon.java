@@ -318,10 +318,14 @@ public final class Daemon implements AutoCloseable {
         dispatch.onMeasuringThread(() -> taken.set(takeCheckpoint()));
     }
 
-    private void writeCheckpoint(ReadBackCheckpoint.Taken t) {
-        if (t == null) return;
+    /** Where the last checkpoint written stands in the log: an idle line's is not written again and again. */
+    private net.zbin.io.RecordLog.Position lastCheckpointAt;
+
+    private synchronized void writeCheckpoint(ReadBackCheckpoint.Taken t) {
+        if (t == null || t.cut().end().equals(lastCheckpointAt)) return; // no row since: the same figures (commands are in the state file)
         try {
             ReadBackCheckpoint.write(cfg.stateDir(), cfg.line(), t);
+            lastCheckpointAt = t.cut().end();
         } catch (java.io.IOException | RuntimeException e) {
             LOG.warn("read-back checkpoint not written: {}", e.toString());
         }

@@ -46,23 +46,41 @@ final class FinishedRing {
         }
     }
 
-    /** One slot that holds a key: a second (or minute) since the epoch, its parts finished and passed. */
-    record Slot(long key, long parts, long passed) {}
-
-    /** The slots in use, to carry the windows across a restart of the daemon. */
-    record State(java.util.List<Slot> seconds, java.util.List<Slot> minutes) {
-        State {
-            seconds = java.util.List.copyOf(seconds);
-            minutes = java.util.List.copyOf(minutes);
+    /**
+     * The slots in use of one ring, compact (a busy hour is 3 600 of them, written every checkpoint): the newest key (a
+     * second or minute since the epoch), and for each slot in use how many keys before the newest it is, its parts
+     * finished and passed.
+     */
+    record Slots(long newest, int[] before, long[] parts, long[] passed) {
+        Slots {
+            if (before.length != parts.length || passed.length != parts.length)
+                throw new IllegalArgumentException("slots: before, parts and passed must be as long (were " + before.length + ", "
+                        + parts.length + ", " + passed.length + ")");
         }
     }
 
+    /** The slots in use, to carry the windows across a restart of the daemon. */
+    record State(Slots seconds, Slots minutes) {}
+
     State state() { return new State(slots(secStamp, secCount, secPassed), slots(minStamp, minCount, minPassed)); }
 
-    private static java.util.List<Slot> slots(long[] stamp, long[] count, long[] pass) {
-        java.util.List<Slot> out = new java.util.ArrayList<>();
-        for (int i = 0; i < stamp.length; i++) if (stamp[i] != Long.MIN_VALUE) out.add(new Slot(stamp[i], count[i], pass[i]));
-        return out;
+    private static Slots slots(long[] stamp, long[] count, long[] pass) {
+        long newest = Long.MIN_VALUE;
+        int n = 0;
+        for (long k : stamp)
+            if (k != Long.MIN_VALUE) {
+                n++;
+                newest = Math.max(newest, k);
+            }
+        int[] before = new int[n];
+        long[] c = new long[n], p = new long[n];
+        for (int i = 0, j = 0; i < stamp.length; i++)
+            if (stamp[i] != Long.MIN_VALUE) {
+                before[j] = (int) (newest - stamp[i]); // a ring holds keys within its length of the newest
+                c[j] = count[i];
+                p[j++] = pass[i];
+            }
+        return new Slots(n == 0 ? 0 : newest, before, c, p);
     }
 
     /** Takes up {@code s} in place of what this ring holds. */
@@ -73,12 +91,13 @@ final class FinishedRing {
         put(minStamp, minCount, minPassed, s.minutes());
     }
 
-    private static void put(long[] stamp, long[] count, long[] pass, java.util.List<Slot> slots) {
-        for (Slot sl : slots) {
-            int i = (int) Math.floorMod(sl.key(), (long) stamp.length);
-            stamp[i] = sl.key();
-            count[i] = sl.parts();
-            pass[i] = sl.passed();
+    private static void put(long[] stamp, long[] count, long[] pass, Slots s) {
+        for (int j = 0; j < s.parts().length; j++) {
+            long key = s.newest() - s.before()[j];
+            int i = (int) Math.floorMod(key, (long) stamp.length);
+            stamp[i] = key;
+            count[i] = s.parts()[j];
+            pass[i] = s.passed()[j];
         }
     }
 

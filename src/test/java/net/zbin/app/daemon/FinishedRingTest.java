@@ -40,9 +40,17 @@ class FinishedRingTest {
             all.add(x);
             ring.add(x.second(), x.passed());
         }
+        FinishedRing restored = new FinishedRing(); // carried across a restart: its state through JSON
+        try {
+            restored.restore(net.zbin.io.Json.mapper().readValue(net.zbin.io.Json.mapper().writeValueAsString(ring.state()), FinishedRing.State.class));
+        } catch (com.fasterxml.jackson.core.JsonProcessingException e) {
+            throw new AssertionError(e);
+        }
         for (long now : new long[] {t, t + r.nextInt(120), t + windowS, t + 3599, t + 4000})
-            for (int w : new int[] {windowS, 60, 600, 3600})
+            for (int w : new int[] {windowS, 60, 600, 3600}) {
                 assertEquals(count(all, now, w), ring.window(now, w), "now " + now + ", window " + w + " s");
+                assertEquals(count(all, now, w), restored.window(now, w), "restored: now " + now + ", window " + w + " s");
+            }
     }
 
     @Test
