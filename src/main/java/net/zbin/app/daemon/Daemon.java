@@ -304,10 +304,7 @@ public final class Daemon implements AutoCloseable {
 
     /** A checkpoint's state, taken on the measuring thread between two decisions; null when the log cannot say where it stands. */
     private ReadBackCheckpoint.Taken takeCheckpoint() {
-        return path.settled(() -> {
-            var cut = records.cut(cfg.repeatWindowMs());
-            return cut == null ? null : new ReadBackCheckpoint.Taken(cut, fingerprint(), path.lot(), stats.capture(), monitor.state());
-        });
+        return ReadBackCheckpoint.take(path, records, stats, monitor, cfg.repeatWindowMs(), fingerprint());
     }
 
     private final java.util.concurrent.atomic.AtomicReference<ReadBackCheckpoint.Taken> taken = new java.util.concurrent.atomic.AtomicReference<>();

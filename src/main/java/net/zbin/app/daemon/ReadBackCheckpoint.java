@@ -43,6 +43,17 @@ record ReadBackCheckpoint(int format, String line, String fingerprint, String fi
     record Taken(RecordLog.Cut cut, String fingerprint, String bookLot, java.util.function.Supplier<LineStats.State> stats,
                  LineEngine.State monitor) {}
 
+    /**
+     * The line's state as of where its log stands, taken between two decisions (on the measuring thread, or once it
+     * stopped); null when the log cannot say where it stands or a lot's start is pending.
+     */
+    static Taken take(TriggerPath path, RecordLog records, LineStats stats, MonitorListener monitor, long repeatWindowMs, String fingerprint) {
+        return path.settled(() -> {
+            var cut = records.cut(repeatWindowMs);
+            return cut == null ? null : new Taken(cut, fingerprint, path.lot(), stats.capture(), monitor.state());
+        });
+    }
+
     static Path file(Path stateDir, String line) { return stateDir.resolve("readback-" + line + ".json"); }
 
     RecordLog.Position at(Path recordsDir) { return new RecordLog.Position(recordsDir.resolve(file), offset); }

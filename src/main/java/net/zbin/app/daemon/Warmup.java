@@ -23,7 +23,8 @@ import org.slf4j.LoggerFactory;
 /**
  * Runs invented triggers through the line's own {@link TriggerPath} before the line says it is ready — the trigger
  * decode, the decision book, the test plan and grading, the record row written to a file, the decision's encoding,
- * the figures, the line monitor, and at every lot change the finished lot's snapshot and dashboard — so the first
+ * the figures, the line monitor, at every lot change the finished lot's snapshot and dashboard, and every 64 parts the
+ * read-back checkpoint taken between two parts (written into its scratch folder) — so the first
  * real part of a shift, and the first of each new lot, runs compiled code rather than the interpreter. Everything
  * it touches is a scratch copy: its meter answers from memory, its record log lives in a temporary folder deleted
  * afterwards, its publisher sends nothing, and its figures, book and monitor are its own; only the recipe, the
@@ -75,12 +76,26 @@ final class Warmup {
         int i = 0;
         try {
             // at least one lot and the start of the next, whatever the clock says; then up to the time bound
-            for (; i < rounds && (i <= LOT_PARTS || i % 32 != 0 || System.nanoTime() < end); i++) path.onTrigger(trigger(i), System.nanoTime());
+            for (; i < rounds && (i <= LOT_PARTS || i % 32 != 0 || System.nanoTime() < end); i++) {
+                path.onTrigger(trigger(i), System.nanoTime());
+                // the read-back checkpoint, taken between two parts as the line takes it, written into the scratch folder
+                if (i % 64 == 63) checkpoint(path, records, stats, monitor, cfg, dir);
+            }
         } finally {
             records.close();
             delete(dir);
         }
         return i;
+    }
+
+    private static void checkpoint(TriggerPath path, RecordLog records, LineStats stats, MonitorListener monitor, LineConfig cfg, Path dir) {
+        var t = ReadBackCheckpoint.take(path, records, stats, monitor, cfg.repeatWindowMs(), "warm-up");
+        if (t == null) return;
+        try {
+            ReadBackCheckpoint.write(dir, cfg.line(), t);
+        } catch (IOException e) {
+            LOG.debug("warm-up checkpoint not written: {}", e.toString());
+        }
     }
 
     /**
