@@ -69,16 +69,45 @@ final class CsvTable implements AutoCloseable {
         try {
             ch.position(from);
             java.io.InputStream in = java.nio.channels.Channels.newInputStream(ch);
-            if (to >= 0) { // a bounded span (rows already read once): read into memory
-                byte[] bytes = in.readNBytes((int) Math.min(Integer.MAX_VALUE - 8, Math.max(0, to - from)));
-                ch.close();
-                return new java.io.InputStreamReader(new java.io.ByteArrayInputStream(bytes), StandardCharsets.UTF_8);
-            }
+            if (to >= 0) in = upTo(in, to - from); // a bounded span, streamed: it may be ten minutes of rows
             return new java.io.BufferedReader(new java.io.InputStreamReader(in, StandardCharsets.UTF_8), 1 << 16);
         } catch (IOException | RuntimeException e) {
             ch.close();
             throw e;
         }
+    }
+
+    /** {@code in} ending after {@code limit} bytes (closing it closes {@code in}). */
+    private static java.io.InputStream upTo(java.io.InputStream in, long limit) {
+        return new java.io.FilterInputStream(in) {
+            private long left = Math.max(0, limit);
+
+            @Override
+            public int read() throws IOException {
+                if (left <= 0) return -1;
+                int b = super.read();
+                if (b >= 0) left--;
+                return b;
+            }
+
+            @Override
+            public int read(byte[] buf, int off, int len) throws IOException {
+                if (left <= 0) return -1;
+                int n = super.read(buf, off, (int) Math.min(len, left));
+                if (n > 0) left -= n;
+                return n;
+            }
+
+            @Override
+            public long skip(long n) throws IOException {
+                long s = super.skip(Math.min(n, left));
+                left -= s;
+                return s;
+            }
+
+            @Override
+            public int available() throws IOException { return (int) Math.min(super.available(), left); }
+        };
     }
 
     /** The column's index, or −1 when the header has no such column. */

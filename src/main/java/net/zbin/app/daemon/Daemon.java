@@ -268,9 +268,11 @@ public final class Daemon implements AutoCloseable {
         ReadBackCheckpoint ck = ReadBackCheckpoint.load(cfg.stateDir(), cfg.line(), fingerprint(), dir, cfg.deadlineMs(), monitor::scratch);
         String from = "the whole log of the last 24 h";
         if (ck != null) { // the figures as of the checkpoint, then only the rows after it
-            java.util.List<net.zbin.core.DecisionEvent> window = new java.util.ArrayList<>();
-            RecordLogReader.readRange(dir, cfg.line(), ck.bookFrom(dir), ck.at(dir), now.plusSeconds(5), window::add);
-            window.forEach(path::forBook);
+            long[] window = {0};
+            RecordLogReader.readRange(dir, cfg.line(), ck.bookFrom(dir), ck.at(dir), now.plusSeconds(5), e -> { // streamed: up to 10 min of rows
+                path.forBook(e);
+                window[0]++;
+            });
             path.checkpointLot(ck.bookLot());
             stats.restore(ck.stats());
             monitor.restore(ck.monitor());
@@ -278,7 +280,7 @@ public final class Daemon implements AutoCloseable {
                 pendingReset[0] = null; // the checkpoint's figures hold it
             lastRow[0] = java.time.Instant.parse(ck.lastRowAt());
             RecordLogReader.readRange(dir, cfg.line(), ck.at(dir), null, now.plusSeconds(5), apply);
-            from = "the checkpoint as of " + ck.lastRowAt() + " (" + ck.file() + " at byte " + ck.offset() + "; " + window.size()
+            from = "the checkpoint as of " + ck.lastRowAt() + " (" + ck.file() + " at byte " + ck.offset() + "; " + window[0]
                     + " rows before it re-read for the repeat window) and the rows after it";
         } else {
             RecordLogReader.read(dir, cfg.line(), now.minus(Duration.ofDays(1)), now.plusSeconds(5), apply);
