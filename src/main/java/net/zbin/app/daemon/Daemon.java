@@ -317,7 +317,8 @@ public final class Daemon implements AutoCloseable {
         dispatch.onMeasuringThread(() -> taken.set(takeCheckpoint()));
     }
 
-    /** Where the last checkpoint written stands in the log: an idle line's is not written again and again. */
+    /** Where the last checkpoint written stands in the log: an idle line's is not written again and again. The ticker and a
+     * stop write under this object's lock, one at a time (they share the temp file). */
     private net.zbin.io.RecordLog.Position lastCheckpointAt;
 
     private synchronized void writeCheckpoint(ReadBackCheckpoint.Taken t) {

@@ -61,7 +61,7 @@ record ReadBackCheckpoint(int format, String line, String fingerprint, String fi
     RecordLog.Position bookFrom(Path recordsDir) { return new RecordLog.Position(recordsDir.resolve(bookFile), bookOffset); }
 
     /** Writes {@code t} atomically (temp file + rename; no fsync: a checkpoint lost to a power cut only costs a longer start). */
-    static synchronized void write(Path stateDir, String line, Taken t) throws IOException { // the ticker and a stop: one at a time
+    static void write(Path stateDir, String line, Taken t) throws IOException {
         RecordLog.Position end = t.cut().end(), from = t.cut().from();
         int n = (int) Math.min(CRC_BYTES, end.offset());
         var c = new ReadBackCheckpoint(FORMAT, line, t.fingerprint(), end.file().getFileName().toString(), end.offset(),
