@@ -20,7 +20,9 @@ public enum AlarmCode {
     public enum Severity {
         WARNING, CRITICAL;
 
-        public String key() { return name().toLowerCase(Locale.ROOT); }
+        private final String key = name().toLowerCase(Locale.ROOT); // once: keys are written per decision
+
+        public String key() { return key; }
     }
 
     private final Severity severity;
@@ -34,7 +36,9 @@ public enum AlarmCode {
     /** Raised by the line monitor about the active recipe's parts and compensation: re-judged when the recipe changes. */
     public boolean recipeBound() { return recipeBound; }
 
-    public String code() { return name().toLowerCase(Locale.ROOT).replace('_', '-'); }
+    private final String code = name().toLowerCase(Locale.ROOT).replace('_', '-');
+
+    public String code() { return code; }
 
     public Severity severity() { return severity; }
 

@@ -6,5 +6,7 @@ import java.util.Locale;
 public enum EquivalentModel {
     SERIES, PARALLEL;
 
-    public String key() { return name().toLowerCase(Locale.ROOT); }
+    private final String key = name().toLowerCase(Locale.ROOT); // once: keys are written per decision
+
+    public String key() { return key; }
 }

@@ -40,7 +40,7 @@ public record FixtureBounds(double openMaxF, double openMaxGS, double shortMaxOh
 
     /** |Z| in Ω at and above which an uncompensated reading may be the empty fixture. */
     public double openZOhm(double freqHz) {
-        return 1 / Math.hypot(openMaxGS, 2 * Math.PI * freqHz * openMaxF);
+        return 1 / Impedance.magnitude(openMaxGS, 2 * Math.PI * freqHz * openMaxF);
     }
 
     /** Whether a reading is the empty fixture: near the stored open, or in the range of any uncompensated open. */

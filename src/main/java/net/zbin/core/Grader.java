@@ -49,8 +49,8 @@ public final class Grader {
         if (!Compensation.matches(z.freqHz(), recipe.freqHz()))
             return unclean(recipe, attempt, Reason.FREQUENCY_MISMATCH, Grading.Measurement.of(raw, null, source));
         boolean missing = source == CompensationSource.NONE && recipe.compensationRequired()
-                || recipe.needsOpenCompensation() && !openCompensated
-                || recipe.needsShortCompensation() && !shortCompensated;
+                || !openCompensated && recipe.needsOpenCompensation() // the side applied first: the need is a few divisions
+                || !shortCompensated && recipe.needsShortCompensation();
         if (missing) return unclean(recipe, attempt, Reason.NO_COMPENSATION, Grading.Measurement.of(raw, null, source));
         double ideal = recipe.idealZOhm();
         ContactCheck contact = recipe.contact();

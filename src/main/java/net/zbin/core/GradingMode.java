@@ -10,7 +10,9 @@ import java.util.Locale;
 public enum GradingMode {
     CONCENTRIC, LADDER;
 
-    public String key() { return name().toLowerCase(Locale.ROOT); }
+    private final String key = name().toLowerCase(Locale.ROOT); // once: keys are written per decision
+
+    public String key() { return key; }
 
     public static GradingMode parse(String s) {
         String t = s.trim().toLowerCase(Locale.ROOT);

@@ -37,9 +37,12 @@ public record Impedance(double freqHz, double rOhm, double xOhm) {
      * |Z| in ohms: √(R² + X²) directly (a few ns; {@code Math.hypot} is ten times that and too big to inline on the
      * hot path), falling back to hypot only where the squares would overflow or underflow.
      */
-    public double zOhm() {
-        double s = Math.sqrt(rOhm * rOhm + xOhm * xOhm);
-        return s == Double.POSITIVE_INFINITY || s < 1e-150 && (rOhm != 0 || xOhm != 0) ? Math.hypot(rOhm, xOhm) : s;
+    public double zOhm() { return magnitude(rOhm, xOhm); }
+
+    /** √(a² + b²) without {@code Math.hypot}'s cost where the squares neither overflow nor underflow (see {@link #zOhm}). */
+    public static double magnitude(double a, double b) {
+        double s = Math.sqrt(a * a + b * b);
+        return s == Double.POSITIVE_INFINITY || s < 1e-150 && (a != 0 || b != 0) ? Math.hypot(a, b) : s;
     }
 
     /** Phase angle in degrees, −90 (pure C) … +90 (pure L). */

@@ -26,7 +26,9 @@ public enum PartType {
         };
     }
 
-    public String key() { return name().toLowerCase(Locale.ROOT); }
+    private final String key = name().toLowerCase(Locale.ROOT); // once: keys are written per decision
+
+    public String key() { return key; }
 
     /** "a capacitor", "an inductor", "a resistor". */
     public String withArticle() { return (this == INDUCTOR ? "an " : "a ") + key(); }

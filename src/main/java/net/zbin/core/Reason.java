@@ -54,7 +54,9 @@ public enum Reason {
     public enum RejectClass {
         LOW, HIGH, GATE, CONTACT, SHORT, OVERLOAD, FAULT, GUARD;
 
-        public String key() { return name().toLowerCase(Locale.ROOT); }
+        private final String key = name().toLowerCase(Locale.ROOT); // once: keys are written per decision
+
+        public String key() { return key; }
     }
 
     private final String code;

@@ -64,6 +64,8 @@ public enum Unit {
         return null;
     }
 
+    private final String key = name().toLowerCase(Locale.ROOT);
+
     @Override
-    public String toString() { return name().toLowerCase(Locale.ROOT); }
+    public String toString() { return key; }
 }
