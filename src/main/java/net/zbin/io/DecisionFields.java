@@ -101,7 +101,7 @@ public final class DecisionFields {
         for (Field f : ALL) {
             if (f.use() == Use.PAYLOAD) continue;
             Object v = f.value().apply(e);
-            out[i++] = v == null ? "" : v instanceof Double x ? (Double.isFinite(x) ? Double.toString(x) : "")
+            out[i++] = v == null ? "" : v instanceof Double x ? (Double.isFinite(x) ? Json.text(x) : "")
                     : f.text() ? SpreadsheetSafe.write(v.toString()) : v.toString();
         }
         return out;

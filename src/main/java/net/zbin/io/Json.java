@@ -1,12 +1,20 @@
 package net.zbin.io;
 
+import com.fasterxml.jackson.core.StreamWriteFeature;
+import com.fasterxml.jackson.core.io.NumberOutput;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
+import com.fasterxml.jackson.databind.json.JsonMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 
 /** The one JSON mapper, and helpers that keep NaN/Infinity out of payloads (written as null). */
 public final class Json {
-    private static final ObjectMapper MAPPER = new ObjectMapper().disable(SerializationFeature.FAIL_ON_EMPTY_BEANS);
+    /**
+     * Doubles are written as the shortest decimal that reads back as the same double (Jackson's fast writer, the
+     * Schubfach algorithm): the same number as {@code Double.toString} gives, at a fraction of its cost per decision.
+     */
+    private static final ObjectMapper MAPPER = JsonMapper.builder().enable(StreamWriteFeature.USE_FAST_DOUBLE_WRITER)
+            .disable(SerializationFeature.FAIL_ON_EMPTY_BEANS).build();
 
     private Json() {}
 
@@ -20,6 +28,9 @@ public final class Json {
         else n.putNull(key);
         return n;
     }
+
+    /** A finite double as the record log writes it: the shortest decimal that reads back as the same double. */
+    public static String text(double v) { return NumberOutput.toString(v, true); }
 
     public static ObjectNode str(ObjectNode n, String key, String v) {
         if (v == null) n.putNull(key);

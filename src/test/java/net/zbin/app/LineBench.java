@@ -145,6 +145,30 @@ class LineBench {
         return false;
     }
 
+    /** The daemon's thread groups a CPU split is reported by: the measuring thread, its MQTT client's threads, the rest. */
+    static String daemonGroup(String n) {
+        return n.startsWith("line-") ? "measuring" : n.contains("zbin-bench") ? "mqtt_client" : "other";
+    }
+
+    /**
+     * CPU time of the daemon's live threads by {@link #daemonGroup}: {total ns, user ns} per group. Where a decision's CPU
+     * goes (the measuring thread's own work, or the MQTT client's threads and their hand-offs), and how much of it is
+     * the kernel's (system = total − user).
+     */
+    static Map<String, long[]> daemonCpuByGroup() {
+        java.lang.management.ThreadMXBean mx = java.lang.management.ManagementFactory.getThreadMXBean();
+        Map<String, long[]> out = new java.util.TreeMap<>();
+        for (java.lang.management.ThreadInfo ti : mx.getThreadInfo(mx.getAllThreadIds())) {
+            if (ti == null || !daemonThread(ti.getThreadName())) continue;
+            long c = mx.getThreadCpuTime(ti.getThreadId()), u = mx.getThreadUserTime(ti.getThreadId());
+            if (c <= 0) continue;
+            long[] g = out.computeIfAbsent(daemonGroup(ti.getThreadName()), k -> new long[2]);
+            g[0] += c;
+            g[1] += Math.max(0, u);
+        }
+        return out;
+    }
+
     /** CPU time of the daemon's live threads, ns (a thread that ended in between is not counted: the figure is a floor). */
     static long daemonCpuNs() {
         java.lang.management.ThreadMXBean mx = java.lang.management.ManagementFactory.getThreadMXBean();
@@ -325,6 +349,7 @@ class LineBench {
                     seen.clear();
                     sentAt.clear();
                     synchronized (openLat) { openLat.reset(); }
+                    Map<String, long[]> groups0 = daemonCpuByGroup();
                     long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid()), jvm0 = processCpuNs(self);
                     long zbinSw0 = switches(self, LineBench::daemonTask), brokerSw0 = switches(broker.pid(), c -> true);
                     long[] machine0 = machineJiffies();
@@ -352,6 +377,7 @@ class LineBench {
                     double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
                     long daemonNs = daemonCpuNs() - cpu0, brokerNs = processCpuNs(broker.pid()) - broker0, jvmNs = processCpuNs(self) - jvm0;
                     long[] machine1 = machineJiffies();
+                    Map<String, long[]> groups1 = daemonCpuByGroup();
                     double zbinSw = (double) (switches(self, LineBench::daemonTask) - zbinSw0) / Math.max(1, answered.get());
                     double brokerSw = (double) (switches(broker.pid(), c -> true) - brokerSw0) / Math.max(1, answered.get());
                     double brokerUs = brokerNs / 1e3 / Math.max(1, answered.get());
@@ -389,6 +415,18 @@ class LineBench {
                     System.out.printf(Locale.ROOT, "    cores in use: zbin %.2f, the rest of the bench JVM (client, meter simulator, GC, JIT) %.2f, Mosquitto %.2f;"
                             + " the machine %.2f of %.0f%n", zbinCores, rigCores, brokerCores, machineBusy, cores);
                     System.out.printf(Locale.ROOT, "    thread switches per decision: zbin %.2f, Mosquitto %.2f%n", zbinSw, brokerSw);
+                    ObjectNode split = r.putObject("zbin_cpu_us_per_decision_by_thread");
+                    StringBuilder byThread = new StringBuilder("    zbin's CPU per decision by thread (of it in the kernel):");
+                    for (var g : groups1.entrySet()) {
+                        long[] before = groups0.getOrDefault(g.getKey(), new long[2]);
+                        double totalUs = (g.getValue()[0] - before[0]) / 1e3 / Math.max(1, answered.get());
+                        double userUs = (g.getValue()[1] - before[1]) / 1e3 / Math.max(1, answered.get());
+                        ObjectNode gn = split.putObject(g.getKey());
+                        gn.put("total", totalUs);
+                        gn.put("system", Math.max(0, totalUs - userUs));
+                        byThread.append(String.format(Locale.ROOT, " %s %.0f µs (%.0f)", g.getKey().replace('_', ' '), totalUs, Math.max(0, totalUs - userUs)));
+                    }
+                    System.out.println(byThread);
                     assertEquals(n, answered.get(), "every trigger answered at " + rate + "/s");
                     assertEquals(0, dup.get());
                 }
