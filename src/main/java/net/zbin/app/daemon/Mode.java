@@ -6,5 +6,7 @@ import java.util.Locale;
 public enum Mode {
     READY, PAUSED, FAULT, OFFLINE;
 
-    public String key() { return name().toLowerCase(Locale.ROOT); }
+    private final String key = name().toLowerCase(Locale.ROOT); // once, as the core's enums do
+
+    public String key() { return key; }
 }
