@@ -49,7 +49,7 @@ public final class Grader {
         if (!Compensation.matches(z.freqHz(), recipe.freqHz()))
             return unclean(recipe, attempt, Reason.FREQUENCY_MISMATCH, Grading.Measurement.of(raw, null, source));
         boolean missing = source == CompensationSource.NONE && recipe.compensationRequired()
-                || !openCompensated && recipe.needsOpenCompensation() // the side applied first: the need is a few divisions
+                || !openCompensated && recipe.needsOpenCompensation() // asked only for a side not applied: a few divisions a reading
                 || !shortCompensated && recipe.needsShortCompensation();
         if (missing) return unclean(recipe, attempt, Reason.NO_COMPENSATION, Grading.Measurement.of(raw, null, source));
         double ideal = recipe.idealZOhm();

@@ -11,7 +11,8 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 public final class Json {
     /**
      * Doubles are written as the shortest decimal that reads back as the same double (Jackson's fast writer, the
-     * Schubfach algorithm): the same number as {@code Double.toString} gives, at a fraction of its cost per decision.
+     * Schubfach algorithm): the double {@code Double.toString}'s text reads as, in the same form, now and then in fewer
+     * digits, at a fraction of its cost per decision.
      */
     private static final ObjectMapper MAPPER = JsonMapper.builder().enable(StreamWriteFeature.USE_FAST_DOUBLE_WRITER)
             .disable(SerializationFeature.FAIL_ON_EMPTY_BEANS).build();
