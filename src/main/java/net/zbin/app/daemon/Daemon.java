@@ -355,32 +355,32 @@ public final class Daemon implements AutoCloseable {
      * Paho's thread: only hand the message over. A payload beyond the size any trigger or command may have is
      * refused in its turn without being kept, so a waiting queue never holds more than that size per message.
      */
-    private void route(String topic, byte[] payload) {
+    private void route(String topic, byte[] payload, net.zbin.io.mqtt.Ack ack) {
         var r = rehearsal;
-        if (r != null && r.heard(topic, payload)) return;
+        if (r != null && r.heard(topic, payload, ack)) return;
         boolean trigger = topic.equals(topics.trigger());
         if (!trigger && !topic.equals(topics.command())) return;
-        if (payload.length > TriggerCodec.MAX_BYTES) dispatch.submit(oversize(topic, payload.length), new byte[0]);
-        else dispatch.submit(trigger ? triggers : commandsIn, payload);
+        if (payload.length > TriggerCodec.MAX_BYTES) dispatch.submit(oversize(topic, payload.length), new byte[0], ack);
+        else dispatch.submit(trigger ? triggers : commandsIn, payload, ack);
     }
 
     private Dispatch.Handler oversize(String topic, int bytes) {
         Runnable refuse = () -> path.reject(topic, "payload is " + bytes + " bytes, limit " + TriggerCodec.MAX_BYTES);
         return new Dispatch.Handler() {
-            public void handle(byte[] p, long at) { refuse.run(); }
+            public void handle(byte[] p, long at, net.zbin.io.mqtt.Ack ack) { refuse.run(); }
 
             public Runnable overflow(byte[] p, long at) { return refuse; }
         };
     }
 
     private final Dispatch.Handler triggers = new Dispatch.Handler() {
-        public void handle(byte[] p, long at) { path.onTrigger(p, at); }
+        public void handle(byte[] p, long at, net.zbin.io.mqtt.Ack ack) { path.onTrigger(p, at, ack); }
 
         public Runnable overflow(byte[] p, long at) { return path.busy(p, at); }
     };
 
     private final Dispatch.Handler commandsIn = new Dispatch.Handler() {
-        public void handle(byte[] p, long at) { commands.handle(p); }
+        public void handle(byte[] p, long at, net.zbin.io.mqtt.Ack ack) { commands.handle(p); }
 
         public Runnable overflow(byte[] p, long at) { return () -> path.reject(topics.command(), "line busy: send the command again"); }
     };

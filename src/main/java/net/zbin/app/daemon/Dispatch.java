@@ -4,6 +4,7 @@ import java.util.concurrent.ArrayBlockingQueue;
 import java.util.concurrent.RejectedExecutionException;
 import java.util.concurrent.ThreadPoolExecutor;
 import java.util.concurrent.TimeUnit;
+import net.zbin.io.mqtt.Ack;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -24,7 +25,11 @@ final class Dispatch {
 
     /** What a message becomes on the measuring thread, and on the overflow thread when the queue is full. */
     interface Handler {
-        void handle(byte[] payload, long arrivedNanos);
+        /**
+         * @param ack the message's acknowledgement to the broker, held for the answer when the message went straight to an
+         *            idle measuring thread: send it right after the answer's publish (it is sent when this returns in any case)
+         */
+        void handle(byte[] payload, long arrivedNanos, Ack ack);
 
         /**
          * Called on the submitting (Paho's) thread when the queue is full: reduces the message to the small task
@@ -40,18 +45,31 @@ final class Dispatch {
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "line-" + line), (r, ex) -> {
+                    if (r instanceof Job j) j.ack.send();
                     if (!ex.isShutdown() && r instanceof Job j) overflow.execute(j.handler.overflow(j.payload, j.arrived));
                 });
     }
 
-    private record Job(Handler handler, byte[] payload, long arrived) implements Runnable {
-        public void run() { handler.handle(payload, arrived); }
+    private record Job(Handler handler, byte[] payload, long arrived, Ack ack) implements Runnable {
+        public void run() {
+            try {
+                handler.handle(payload, arrived, ack);
+            } finally {
+                ack.send();
+            }
+        }
     }
 
-    /** Paho's thread: hands over, never blocks. */
-    void submit(Handler h, byte[] payload) {
+    /**
+     * Paho's thread: hands over, never blocks. A message that finds nothing waiting holds its acknowledgement until its
+     * answer is out (at most two are held at once: the one measured and the one next); one that queues behind others
+     * is acknowledged at once, so a flood waits in this queue and is answered, not held back at the broker, whose
+     * window of unacknowledged messages to a client is small and whose queue beyond it drops.
+     */
+    void submit(Handler h, byte[] payload, Ack ack) {
+        if (work.getQueue().isEmpty()) ack.hold();
         try {
-            work.execute(new Job(h, payload, System.nanoTime()));
+            work.execute(new Job(h, payload, System.nanoTime(), ack));
         } catch (RejectedExecutionException e) {
             LOG.debug("stopping: message dropped");
         }

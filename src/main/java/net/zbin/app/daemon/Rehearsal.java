@@ -56,10 +56,10 @@ final class Rehearsal {
     }
 
     /** Paho's thread: true when the message is the rehearsal's (handed on, never blocking). */
-    boolean heard(String topic, byte[] payload) {
+    boolean heard(String topic, byte[] payload, net.zbin.io.mqtt.Ack ack) {
         if (topic.equals(topics.rehearsalAsk())) {
             byte[] ask = awaited.get();
-            if (ask != null && java.util.Arrays.equals(ask, payload) && awaited.compareAndSet(ask, null)) dispatch.submit(onMeasuringThread, payload);
+            if (ask != null && java.util.Arrays.equals(ask, payload) && awaited.compareAndSet(ask, null)) dispatch.submit(onMeasuringThread, payload, ack);
             return true;
         }
         if (topic.equals(topics.rehearsalAnswer())) {
@@ -71,7 +71,7 @@ final class Rehearsal {
     }
 
     private final Dispatch.Handler onMeasuringThread = new Dispatch.Handler() {
-        public void handle(byte[] payload, long arrivedNanos) {
+        public void handle(byte[] payload, long arrivedNanos, net.zbin.io.mqtt.Ack ack) {
             if (measuring) {
                 try {
                     meter.measure();

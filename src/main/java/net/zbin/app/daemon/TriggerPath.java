@@ -16,6 +16,7 @@ import net.zbin.io.RecordLog;
 import net.zbin.io.meter.MeterException;
 import net.zbin.io.meter.MeterReading;
 import net.zbin.io.meter.MeterSession;
+import net.zbin.io.mqtt.Ack;
 import net.zbin.io.mqtt.PayloadException;
 import net.zbin.io.mqtt.Payloads;
 import net.zbin.io.mqtt.Publisher;
@@ -72,7 +73,10 @@ final class TriggerPath {
         this.clock = clock;
     }
 
-    void onTrigger(byte[] payload, long arrivedNanos) {
+    void onTrigger(byte[] payload, long arrivedNanos) { onTrigger(payload, arrivedNanos, Ack.NONE); }
+
+    /** @param ack the trigger's acknowledgement to the broker: sent right after its answer's publish (if it was held) */
+    void onTrigger(byte[] payload, long arrivedNanos, Ack ack) {
         Trigger t = decode(payload);
         if (t == null) return;
         String lotId = lotOf(t);
@@ -80,6 +84,7 @@ final class TriggerPath {
         DecisionBook.Lookup found = book.find(t, lotId, now);
         if (found instanceof DecisionBook.Repeat r) {
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
+            ack.send();
             startPendingLot();
             stats.repeated();
             return;
@@ -89,7 +94,7 @@ final class TriggerPath {
         Recipe r = setup.recipe();
         Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), startPendingLot), now);
+        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot), now);
     }
 
     /**
@@ -113,17 +118,18 @@ final class TriggerPath {
         Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
                 Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
         stats.busy();
-        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), null);
+        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), Ack.NONE, null);
     }
 
     /**
      * Records, publishes and tells the listeners; returns the decision the handler got. A measured decision whose
      * row did not reach the operating system is not published as it is (unless the line is set to sort on without
      * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
-     * handler acted on, and that answer's row is kept for when the log is writable again. {@code afterPublish} (or
-     * null) runs between the publish and the listeners.
+     * handler acted on, and that answer's row is kept for when the log is writable again. The trigger's {@code ack} goes
+     * right after the publish (the two leave on one turn of the MQTT client's sender); {@code afterPublish} (or null)
+     * runs between the publish and the listeners.
      */
-    private synchronized Decision deliver(net.zbin.core.DecisionEvent e, Runnable afterPublish) {
+    private synchronized Decision deliver(net.zbin.core.DecisionEvent e, Ack ack, Runnable afterPublish) {
         if (!records.write(e)) {
             Decision d = e.decision();
             if (cfg.records().pauseOnFailure() && d.grading().reason().kind() != Reason.Kind.NOT_MEASURED) {
@@ -134,6 +140,7 @@ final class TriggerPath {
             records.keep(e);
         }
         out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(e.decision())), 1, false);
+        ack.send();
         if (afterPublish != null) afterPublish.run();
         for (DecisionListener l : listeners) {
             try {

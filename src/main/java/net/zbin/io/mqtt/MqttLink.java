@@ -56,7 +56,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
     private final MqttAsyncClient client;
     private final MqttConnectOptions options;
     private final List<String> subscriptions;
-    private final BiConsumer<String, byte[]> onMessage;
+    private final Inbound onMessage;
     private volatile Runnable onConnect = () -> { };
     /** Guards {@link #outbox} and {@link #windowWaiters}; notified when the window frees, the outbox changes or the link connects. */
     private final Object window = new Object();
@@ -76,19 +76,32 @@ public final class MqttLink implements Publisher, AutoCloseable {
     private volatile boolean closing;
     private volatile boolean everConnected;
 
-    /**
-     * @param onMessage receives (topic, payload) on Paho's thread: must not block
-     */
     /** Paho's threads, started without its 100 ms sleeps (see {@link PromptStarts}). */
     final PromptStarts threads;
 
+    /** Receives a message on Paho's callback thread (must not block); may {@link Ack#hold hold} its acknowledgement. */
+    @FunctionalInterface
+    public interface Inbound {
+        void arrived(String topic, byte[] payload, Ack ack);
+    }
+
+    /**
+     * @param onMessage receives (topic, payload) on Paho's thread: must not block; each message is acknowledged to the
+     *                  broker when it returns
+     */
     public MqttLink(LineConfig.MqttSettings s, String willTopic, byte[] willPayload, List<String> subscriptions,
                     BiConsumer<String, byte[]> onMessage) throws Exception {
+        this(s, willTopic, willPayload, subscriptions, (Inbound) (t, p, a) -> onMessage.accept(t, p));
+    }
+
+    public MqttLink(LineConfig.MqttSettings s, String willTopic, byte[] willPayload, List<String> subscriptions,
+                    Inbound onMessage) throws Exception {
         this.subscriptions = List.copyOf(subscriptions);
         this.onMessage = onMessage;
         this.threads = new PromptStarts("mqtt-" + s.clientId());
         this.client = new MqttAsyncClient(s.broker(), s.clientId(), new MemoryPersistence(), new org.eclipse.paho.client.mqttv3.TimerPingSender(),
                 threads);
+        client.setManualAcks(true); // this link acknowledges, see Ack
         options = new MqttConnectOptions();
         options.setMqttVersion(MqttConnectOptions.MQTT_VERSION_3_1_1);
         options.setCleanSession(true);
@@ -131,10 +144,13 @@ public final class MqttLink implements Publisher, AutoCloseable {
 
             @Override
             public void messageArrived(String topic, MqttMessage message) {
+                Ack ack = new Ack(MqttLink.this, message.getId(), message.getQos(), connection());
                 try {
-                    MqttLink.this.onMessage.accept(topic, message.getPayload());
+                    MqttLink.this.onMessage.arrived(topic, message.getPayload(), ack);
                 } catch (RuntimeException e) {
                     LOG.error("message handler failed on {}", topic, e);
+                } finally {
+                    if (!ack.held()) ack.send();
                 }
             }
 
@@ -259,6 +275,37 @@ public final class MqttLink implements Publisher, AutoCloseable {
             return false;
         }
     }
+
+    /** The connection count now (a message is acknowledged only on the connection it came on). */
+    private long connection() {
+        synchronized (subscribing) {
+            return connections;
+        }
+    }
+
+    /** Counted acknowledgements sent, and those dropped because their connection had gone. */
+    private final AtomicLong acks = new AtomicLong(), staleAcks = new AtomicLong();
+
+    /** {@link Ack#send}: the broker's acknowledgement of message {@code id}, on its own connection only. */
+    void acknowledge(int id, int qos, long onConnection) {
+        if (qos == 0) return;
+        if (connection() != onConnection) {
+            staleAcks.incrementAndGet();
+            return;
+        }
+        try {
+            client.messageArrivedComplete(id, qos);
+            acks.incrementAndGet();
+        } catch (MqttException | RuntimeException e) {
+            LOG.debug("acknowledgement of message {} not sent: {}", id, e.toString()); // the connection went: the broker forgets it
+        }
+    }
+
+    /** QoS 1 acknowledgements handed to the client so far. */
+    public long acksSent() { return acks.get(); }
+
+    /** Acknowledgements not sent because their message's connection had gone by then. */
+    public long acksStale() { return staleAcks.get(); }
 
     /** Connects, waiting up to the timeout for the first connection. */
     public void connect(long timeoutMs) throws MqttException { connected(connectStart(), timeoutMs); }

@@ -53,18 +53,18 @@ class RehearsalTest {
         var s = new LineConfig.MqttSettings("tcp://127.0.0.1:1", "zbin", "reh-" + System.nanoTime(), null, null, null, null, null, 5);
         try (MqttLink link = new MqttLink(s, null, null, List.of(), (t, p) -> { })) {
             Rehearsal r = new Rehearsal(topics, link, dispatch, meter, true);
-            for (int i = 0; i < 1000; i++) assertTrue(r.heard(topics.rehearsalAsk(), Warmup.trigger(i)), "the rehearsal's topic is its own");
+            for (int i = 0; i < 1000; i++) assertTrue(r.heard(topics.rehearsalAsk(), Warmup.trigger(i), net.zbin.io.mqtt.Ack.NONE), "the rehearsal's topic is its own");
             drained(dispatch);
             assertEquals(0, meter.readings.get(), "no round under way: nothing measured");
             byte[] ask = Warmup.trigger(7);
             r.awaiting(ask);
-            for (int i = 0; i < 1000; i++) r.heard(topics.rehearsalAsk(), Warmup.trigger(i == 7 ? 8 : i)); // everything but the ask
-            r.heard(topics.rehearsalAsk(), ask.clone());
-            r.heard(topics.rehearsalAsk(), ask.clone()); // a copy of it
+            for (int i = 0; i < 1000; i++) r.heard(topics.rehearsalAsk(), Warmup.trigger(i == 7 ? 8 : i), net.zbin.io.mqtt.Ack.NONE); // everything but the ask
+            r.heard(topics.rehearsalAsk(), ask.clone(), net.zbin.io.mqtt.Ack.NONE);
+            r.heard(topics.rehearsalAsk(), ask.clone(), net.zbin.io.mqtt.Ack.NONE); // a copy of it
             drained(dispatch);
             assertEquals(1, meter.readings.get(), "the round's own ask, once");
             assertEquals(1, r.readings());
-            assertTrue(!r.heard(topics.trigger(), ask), "a trigger is not the rehearsal's");
+            assertTrue(!r.heard(topics.trigger(), ask, net.zbin.io.mqtt.Ack.NONE), "a trigger is not the rehearsal's");
         } finally {
             dispatch.close();
         }

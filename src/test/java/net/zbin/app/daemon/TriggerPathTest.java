@@ -209,6 +209,23 @@ class TriggerPathTest {
     }
 
     @Test
+    void aHeldAck_goesRightAfterTheAnswersPublish_forAMeasuredPartAndARepeat() throws Exception {
+        meter.reading(0.5);
+        List<String> order = new java.util.ArrayList<>();
+        path.onLotEnd(e -> order.add("lot-end"));
+        byte[] t = "{\"seq\": 1, \"part\": \"A1\", \"lot\": \"L-1\"}".getBytes(StandardCharsets.UTF_8);
+        for (int round = 0; round < 2; round++) { // measured, then answered from the book
+            int before = out.sent.size();
+            net.zbin.io.mqtt.Ack ack = net.zbin.io.mqtt.Ack.of(() -> order.add("ack after " + (out.sent.size() - before) + " publish"));
+            path.onTrigger(t, System.nanoTime(), ack);
+            assertTrue(ack.sent(), "round " + round + ": the held acknowledgement was sent");
+        }
+        assertEquals(List.of("ack after 1 publish", "ack after 1 publish"), order, "each right after its answer, once");
+        assertEquals(2, decisions().size());
+        assertTrue(decisions().get(1).path("repeat").asBoolean());
+    }
+
+    @Test
     void aRepeatedTrigger_isAnsweredFromTheBook_withoutMeasuring() throws Exception {
         meter.reading(1.0);
         trigger("{\"seq\": 4, \"part\": \"P4\", \"lot\": \"L1\"}");
