@@ -1,8 +1,6 @@
 package net.zbin.io.mqtt;
 
-import java.io.BufferedInputStream;
 import java.io.IOException;
-import java.io.InputStream;
 import java.net.InetAddress;
 import java.net.InetSocketAddress;
 import java.net.Socket;
@@ -23,11 +21,12 @@ public final class NoDelaySockets {
 
     /**
      * Plain TCP, read through a buffer: Paho reads a packet's fixed header a byte at a time from the socket's own
-     * stream (one system call per byte), so a buffer takes each packet — often several — in one read.
+     * stream (one system call per byte), so a buffer takes each packet — often several — in one read; and without a
+     * read timeout, one system call per wait for the next message ({@link ChannelSocket}).
      */
     public static SocketFactory plain() {
         return new SocketFactory() {
-            @Override public Socket createSocket() throws IOException { return nodelay(new ReadBuffered()); }
+            @Override public Socket createSocket() throws IOException { return nodelay(new ChannelSocket()); }
             @Override public Socket createSocket(String h, int p) throws IOException { return connected(new InetSocketAddress(h, p), null); }
             @Override public Socket createSocket(String h, int p, InetAddress la, int lp) throws IOException {
                 return connected(new InetSocketAddress(h, p), new InetSocketAddress(la, lp));
@@ -40,7 +39,7 @@ public final class NoDelaySockets {
     }
 
     private static Socket connected(InetSocketAddress to, InetSocketAddress from) throws IOException {
-        Socket s = nodelay(new ReadBuffered());
+        Socket s = nodelay(new ChannelSocket());
         try {
             if (from != null) s.bind(from);
             s.connect(to);
@@ -48,17 +47,6 @@ public final class NoDelaySockets {
         } catch (IOException e) {
             s.close();
             throw e;
-        }
-    }
-
-    /** A socket whose input stream is buffered (a read timeout leaves the buffer as it was: nothing is lost). */
-    static final class ReadBuffered extends Socket {
-        private InputStream in;
-
-        @Override
-        public synchronized InputStream getInputStream() throws IOException {
-            if (in == null) in = new BufferedInputStream(super.getInputStream(), 16 * 1024);
-            return in;
         }
     }
 

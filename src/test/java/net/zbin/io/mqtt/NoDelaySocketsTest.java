@@ -1,8 +1,8 @@
 package net.zbin.io.mqtt;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertSame;
-import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.io.DataInputStream;
@@ -11,36 +11,103 @@ import java.net.InetAddress;
 import java.net.InetSocketAddress;
 import java.net.ServerSocket;
 import java.net.Socket;
-import java.net.SocketTimeoutException;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.Test;
 
-/** The MQTT sockets: no Nagle delay, and a buffered read that loses nothing when a read times out. */
+/** The MQTT sockets: no Nagle delay, a buffered read that keeps a packet cut short, no read timeout, and a read an interrupt ends. */
 class NoDelaySocketsTest {
     @Test
-    void plainSocket_readsThroughOneBuffer_andKeepsBytesAcrossAReadTimeout() throws Exception {
+    void plainSocket_readsThroughOneBuffer_keepsAPacketCutShort_andIgnoresPahosReadTimeout() throws Exception {
         try (ServerSocket server = new ServerSocket(0, 1, InetAddress.getLoopbackAddress());
              Socket s = NoDelaySockets.plain().createSocket()) {
-            s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000);
-            s.setSoTimeout(50); // as Paho sets it: its reader loops over timeouts
+            s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000); // as Paho connects
+            s.setSoTimeout(1000); // as Paho sets it: kept, not applied
             try (Socket peer = server.accept()) {
                 assertTrue(s.getTcpNoDelay());
+                assertEquals(1000, s.getSoTimeout());
+                assertTrue(s.getChannel().isBlocking(), "a connect with a timeout left the connection blocking");
                 assertSame(s.getInputStream(), s.getInputStream(), "one buffered stream per socket");
+                assertEquals(0, s.getInputStream().available(), "nothing buffered yet (no system call asked)");
                 DataInputStream in = new DataInputStream(s.getInputStream()); // read as Paho reads: a byte, then the rest
-                assertThrows(SocketTimeoutException.class, in::readByte);
                 OutputStream out = peer.getOutputStream();
                 out.write(new byte[] {0x30, 3, 'a'}); // a packet cut short: its last bytes come later
                 out.flush();
                 assertTrue(in.readByte() == 0x30 && in.readByte() == 3);
                 byte[] body = new byte[3];
                 body[0] = in.readByte();
-                assertThrows(SocketTimeoutException.class, in::readByte);
+                CompletableFuture<byte[]> rest = CompletableFuture.supplyAsync(() -> {
+                    try {
+                        in.readFully(body, 1, 2);
+                        byte[] ack = new byte[4];
+                        in.readFully(ack);
+                        return ack;
+                    } catch (java.io.IOException e) {
+                        throw new java.io.UncheckedIOException(e);
+                    }
+                });
                 out.write(new byte[] {'b', 'c', 0x40, 2, 0, 7});
                 out.flush();
-                in.readFully(body, 1, 2);
+                assertArrayEquals(new byte[] {0x40, 2, 0, 7}, rest.get(30, TimeUnit.SECONDS));
                 assertArrayEquals(new byte[] {'a', 'b', 'c'}, body);
-                byte[] ack = new byte[4];
-                in.readFully(ack);
-                assertArrayEquals(new byte[] {0x40, 2, 0, 7}, ack);
+            }
+        }
+    }
+
+    /**
+     * Without a read timeout, a read waiting on a broker gone silent ends only by what Paho does when its keep-alive gives
+     * up: it closes the socket (below), and before that interrupts the receiver's thread (the next test).
+     */
+    @Test
+    void aReadWaitingOnASilentPeer_endsWhenTheSocketIsClosedFromAnotherThread() throws Exception {
+        try (ServerSocket server = new ServerSocket(0, 1, InetAddress.getLoopbackAddress());
+             Socket s = NoDelaySockets.plain().createSocket()) {
+            s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000);
+            try (Socket peer = server.accept()) {
+                CompletableFuture<Throwable> ended = new CompletableFuture<>();
+                CountDownLatch reading = new CountDownLatch(1);
+                Thread reader = new Thread(() -> {
+                    try {
+                        reading.countDown();
+                        int b = s.getInputStream().read();
+                        ended.complete(new AssertionError("read returned " + b));
+                    } catch (Throwable t) {
+                        ended.complete(t);
+                    }
+                }, "silent-reader");
+                reader.start();
+                assertTrue(reading.await(30, TimeUnit.SECONDS));
+                s.close(); // at the read, or just before it: either way the read ends
+                Throwable t = ended.get(30, TimeUnit.SECONDS);
+                assertTrue(t instanceof java.io.IOException, t.toString());
+            }
+        }
+    }
+
+    @Test
+    void aReadWaitingOnASilentPeer_endsWhenItsThreadIsInterrupted_andClosesTheSocket() throws Exception {
+        try (ServerSocket server = new ServerSocket(0, 1, InetAddress.getLoopbackAddress());
+             Socket s = NoDelaySockets.plain().createSocket()) {
+            s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000);
+            try (Socket peer = server.accept()) {
+                CompletableFuture<Throwable> ended = new CompletableFuture<>();
+                CountDownLatch reading = new CountDownLatch(1);
+                Thread reader = new Thread(() -> {
+                    try {
+                        reading.countDown();
+                        int b = s.getInputStream().read();
+                        ended.complete(new AssertionError("read returned " + b));
+                    } catch (Throwable t) {
+                        ended.complete(t);
+                    }
+                }, "silent-reader");
+                reader.start();
+                assertTrue(reading.await(30, TimeUnit.SECONDS));
+                reader.interrupt(); // at the read, or just before it: either way the read ends
+                Throwable t = ended.get(30, TimeUnit.SECONDS);
+                assertTrue(t instanceof java.nio.channels.ClosedByInterruptException || t instanceof java.net.SocketException, t.toString());
+                assertTrue(s.isClosed(), "the interrupt closed the socket");
             }
         }
     }
