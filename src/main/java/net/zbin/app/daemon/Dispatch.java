@@ -45,8 +45,9 @@ final class Dispatch {
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
                 r -> Daemon.named(r, "line-" + line), (r, ex) -> {
-                    if (r instanceof Job j) j.ack.send();
-                    if (!ex.isShutdown() && r instanceof Job j) overflow.execute(j.handler.overflow(j.payload, j.arrived));
+                    if (!(r instanceof Job j)) return;
+                    j.ack.send(); // not held (the queue was full), unless stopping: the broker hears of it either way
+                    if (!ex.isShutdown()) overflow.execute(j.handler.overflow(j.payload, j.arrived));
                 });
     }
 
