@@ -57,36 +57,29 @@ class NoDelaySocketsTest {
 
     /**
      * Without a read timeout, a read waiting on a broker gone silent ends only by what Paho does when its keep-alive gives
-     * up: it closes the socket (below), and before that interrupts the receiver's thread (the next test).
+     * up: it closes the socket, and before that interrupts the receiver's thread.
      */
     @Test
     void aReadWaitingOnASilentPeer_endsWhenTheSocketIsClosedFromAnotherThread() throws Exception {
-        try (ServerSocket server = new ServerSocket(0, 1, InetAddress.getLoopbackAddress());
-             Socket s = NoDelaySockets.plain().createSocket()) {
-            s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000);
-            try (Socket peer = server.accept()) {
-                CompletableFuture<Throwable> ended = new CompletableFuture<>();
-                CountDownLatch reading = new CountDownLatch(1);
-                Thread reader = new Thread(() -> {
-                    try {
-                        reading.countDown();
-                        int b = s.getInputStream().read();
-                        ended.complete(new AssertionError("read returned " + b));
-                    } catch (Throwable t) {
-                        ended.complete(t);
-                    }
-                }, "silent-reader");
-                reader.start();
-                assertTrue(reading.await(30, TimeUnit.SECONDS));
-                s.close(); // at the read, or just before it: either way the read ends
-                Throwable t = ended.get(30, TimeUnit.SECONDS);
-                assertTrue(t instanceof java.io.IOException, t.toString());
-            }
-        }
+        Throwable t = readOnSilentPeerEndedBy((s, reader) -> s.close());
+        assertTrue(t instanceof java.io.IOException, t.toString());
     }
 
     @Test
     void aReadWaitingOnASilentPeer_endsWhenItsThreadIsInterrupted_andClosesTheSocket() throws Exception {
+        Socket[] socket = new Socket[1];
+        Throwable t = readOnSilentPeerEndedBy((s, reader) -> {
+            socket[0] = s;
+            reader.interrupt();
+        });
+        assertTrue(t instanceof java.nio.channels.ClosedByInterruptException || t instanceof java.net.SocketException, t.toString());
+        assertTrue(socket[0].isClosed(), "the interrupt closed the socket");
+    }
+
+    interface Ending { void end(Socket s, Thread reader) throws Exception; }
+
+    /** Starts a read on a connected peer that never sends, ends it with {@code ending} (at the read or just before it), returns what the read threw. */
+    static Throwable readOnSilentPeerEndedBy(Ending ending) throws Exception {
         try (ServerSocket server = new ServerSocket(0, 1, InetAddress.getLoopbackAddress());
              Socket s = NoDelaySockets.plain().createSocket()) {
             s.connect(new InetSocketAddress(InetAddress.getLoopbackAddress(), server.getLocalPort()), 5000);
@@ -98,16 +91,14 @@ class NoDelaySocketsTest {
                         reading.countDown();
                         int b = s.getInputStream().read();
                         ended.complete(new AssertionError("read returned " + b));
-                    } catch (Throwable t) {
-                        ended.complete(t);
+                    } catch (Throwable e) {
+                        ended.complete(e);
                     }
                 }, "silent-reader");
                 reader.start();
                 assertTrue(reading.await(30, TimeUnit.SECONDS));
-                reader.interrupt(); // at the read, or just before it: either way the read ends
-                Throwable t = ended.get(30, TimeUnit.SECONDS);
-                assertTrue(t instanceof java.nio.channels.ClosedByInterruptException || t instanceof java.net.SocketException, t.toString());
-                assertTrue(s.isClosed(), "the interrupt closed the socket");
+                ending.end(s, reader);
+                return ended.get(30, TimeUnit.SECONDS);
             }
         }
     }
