@@ -61,7 +61,7 @@ public final class Daemon implements AutoCloseable {
     private final java.util.concurrent.atomic.AtomicLong dashboards = new java.util.concurrent.atomic.AtomicLong();
     static final long LOT_END_DASHBOARD_DELAY_MS = 200;
     /**
-     * The warm-up's time bound. The read-back of the record log, the broker connect and the meter probe run beside it,
+     * The warm-up's least time bound ({@link #warmUpMs} gives a start with time to spare more). The read-back of the record log, the broker connect and the meter probe run beside it,
      * and the rehearsal beside its last {@link #REHEARSAL_MS}: the rehearsal waits on the broker and the meter most of
      * its time, the warm-up keeps the cores busy meanwhile. Against a 300 ms warm-up followed by the rehearsal (the
      * same time to ready), FreshStartBench counted 783 and 755 of the first 800 decisions within the floor's p99, against

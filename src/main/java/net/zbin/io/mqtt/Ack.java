@@ -35,7 +35,9 @@ public final class Ack {
     }
 
     /** The handler keeps the acknowledgement, to send later; call only on the thread the handler runs on, before it returns. */
-    public void hold() { held = true; }
+    public void hold() {
+        if (this != NONE) held = true; // the shared no-op stays as it is
+    }
 
     /** Whether the handler held it. */
     public boolean held() { return held; }

@@ -26,7 +26,8 @@ import org.slf4j.LoggerFactory;
  * The daemon's MQTT connection (Paho mqttv3 async). Pitfalls handled: memory persistence (no files
  * in the working folder), in-flight window well above the default 10, resubscribe on every connect
  * without blocking the callback thread, a retained Will, TCP_NODELAY sockets. {@code messageArrived}
- * only hands the message on.
+ * only hands the message on, and acknowledges it to the broker when the handler returns unless the handler held the
+ * acknowledgement ({@link Ack}: the daemon holds a trigger's until its decision is out).
  *
  * <p>Session policy: a clean session under a client id that is stable per line. Nothing is queued for
  * zbin at the broker while it is away, so no trigger sent before a reconnect is delivered afterwards,

@@ -102,9 +102,7 @@ class MqttLinkAckIT {
                 assertTrue(old != null, "heard on the first connection");
                 broker.kill();
                 broker.start();
-                long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
-                while (subscribedOn.get() < 2 && System.nanoTime() < end) TimeUnit.MILLISECONDS.sleep(20);
-                assertTrue(subscribedOn.get() >= 2, "subscribed again after the broker came back");
+                MqttLinkOutboxIT.waitUntil(() -> subscribedOn.get() >= 2, 60_000, () -> "subscribed again after the broker came back");
                 MqttAsyncClient pub2 = publisher(broker);
                 pub2.publish("line/trigger", "new".getBytes(StandardCharsets.UTF_8), 1, false).waitForCompletion(10_000);
                 Ack fresh = held.poll(30, TimeUnit.SECONDS);

@@ -134,7 +134,8 @@ class MqttLinkOutboxIT {
         }
     }
 
-    private static void waitUntil(java.util.function.BooleanSupplier ok, long timeoutMs, java.util.function.Supplier<String> what)
+    /** Polls {@code ok} until it holds, failing with {@code what} after {@code timeoutMs} (the package's MQTT tests share it). */
+    static void waitUntil(java.util.function.BooleanSupplier ok, long timeoutMs, java.util.function.Supplier<String> what)
             throws InterruptedException {
         long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
         while (!ok.getAsBoolean()) {
