@@ -26,32 +26,48 @@ import org.junit.jupiter.api.io.TempDir;
 /**
  * The real {@code zbin run} started as its own process, {@value #STARTS} times: from the process's start to its first
  * {@code ready}, then its first 100 decisions at a handler's pace against the floor ({@link BenchFloor}) measured in a
- * block after each start. A JVM that already ran the daemon's code (as the other benches' does) would hide a cold path;
- * a fresh process cannot. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows}
- * (30 000) parts, and three starts are timed to ready with those rows in today's record log (the start reads them back).
- * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false};
- * results in {@code target/bench/fresh-start.json}.
+ * block after each start, and, as the reference a warm line sets on the same machine, {@value #WARM} more decisions after
+ * {@link #SETTLE} (400) unmeasured ones. A JVM that already ran the daemon's code (as the other benches' does) would hide a
+ * cold path; a fresh process cannot. The daemon starts as the systemd unit starts it: {@code java -jar} with a class-data
+ * archive that the first start after an update writes when it stops (here: one unmeasured start that decides 100 parts).
+ * {@code -Dzbin.bench.daemon.start=jar} starts it from the jar without an archive, {@code =classes} from the build's class
+ * folders and jars. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows} (30 000)
+ * parts, and three starts are timed to ready with those rows in today's record log (the start reads them back).
+ * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false} (the bench profile
+ * builds the jar before the benches); results in {@code target/bench/fresh-start.json}.
  */
 class FreshStartBench {
-    static final int STARTS = 8, FIRST = 100;
+    static final int STARTS = 8, FIRST = 100, WARM = 100;
+    /** Unmeasured decisions between the first 100 and the warm reference ({@code zbin.bench.fresh.settle}). */
+    static final int SETTLE = Integer.getInteger("zbin.bench.fresh.settle", 400);
+
+    /** How the daemon's process starts: {@code unit} (the default), {@code jar} or {@code classes}; see the class comment. */
+    static final String HOW = System.getProperty("zbin.bench.daemon.start", "unit");
 
     @TempDir
     Path dir;
 
     /**
-     * The daemon's process, on this JVM's own class path (no packaged jar needed: the bench runs at the test phase), or
-     * from the jar named by {@code zbin.bench.daemon.jar} (as the systemd unit starts it; with
-     * {@code -Dzbin.bench.daemon.jvm=-XX:SharedArchiveFile=…} and its class-data archive, too). A jar is the caller's to
-     * have built from the same sources.
+     * The daemon's process as {@link #HOW} says: from the jar ({@code zbin.bench.daemon.jar}, else the build's
+     * {@code target/zbin.jar}) with the class-data {@code archive} ({@code -XX:ArchiveClassesAtExit} when it does not exist
+     * yet: the process writes it when it stops), from the jar alone, or on this JVM's own class path. Options in
+     * {@code zbin.bench.daemon.jvm} go before the others (e.g. {@code -Xlog:class+load} to see what the first parts still
+     * load).
      */
-    Process start(Path cfg, int i) throws Exception {
+    Process start(Path cfg, String name, Path archive) throws Exception {
         java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString()));
-        String extra = System.getProperty("zbin.bench.daemon.jvm", ""); // e.g. -Xlog:class+load to see what the first parts still load
+        String extra = System.getProperty("zbin.bench.daemon.jvm", "");
         if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
         String jar = System.getProperty("zbin.bench.daemon.jar", "");
-        cmd.addAll(jar.isBlank() ? java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main") : java.util.List.of("-jar", jar));
+        switch (HOW) {
+            case "unit" -> cmd.addAll(java.util.List.of((Files.exists(archive) ? "-XX:SharedArchiveFile=" : "-XX:ArchiveClassesAtExit=") + archive,
+                    "-jar", jar.isBlank() ? Jar.path() : jar));
+            case "jar" -> cmd.addAll(java.util.List.of("-jar", jar.isBlank() ? Jar.path() : jar));
+            case "classes" -> cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main"));
+            default -> throw new IllegalArgumentException("zbin.bench.daemon.start: '" + HOW + "' is not one of unit, jar, classes");
+        }
         cmd.addAll(java.util.List.of("run", "--config", cfg.toString()));
-        return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + i + ".log").toFile()).start();
+        return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + name + ".log").toFile()).start();
     }
 
     /** Waits for the line's {@code ready} state among what the tap heard after its first {@code mark} messages. */
@@ -88,6 +104,9 @@ class FreshStartBench {
         Histogram inside = new Histogram(60_000_000_000L, 3);
         // where in the first 100 the slow ones are: warm-up shows in the first ten, the machine's noise everywhere
         Histogram second10 = new Histogram(60_000_000_000L, 3), rest = new Histogram(60_000_000_000L, 3);
+        // the reference: the same processes a little later, warm (after SETTLE more decisions), against the same floor
+        Histogram warm = new Histogram(60_000_000_000L, 3), insideWarm = new Histogram(60_000_000_000L, 3);
+        Path archive = dir.resolve("zbin-fresh.jsa");
         long[] readyMs = new long[STARTS];
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
              SimTcpServer sim = new SimTcpServer(meter, 0);
@@ -98,6 +117,7 @@ class FreshStartBench {
             Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
             java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
             MqttAsyncClient handler = LineBench.client(broker.url(), waiting, p -> {
+                if (p.contains("\"part\":\"W")) return insideWarm;
                 if (!p.contains("\"part\":\"S")) return null;
                 int l = p.indexOf("\"latency_ms\":"), q = p.indexOf("\"seq\":");
                 if (l >= 0 && q >= 0) {
@@ -106,24 +126,41 @@ class FreshStartBench {
                 }
                 return inside;
             }, "zbin/fresh/decision");
+            java.util.List<String> logs = new java.util.ArrayList<>();
+            if (HOW.equals("unit")) {
+                // the first start after an update: it has no archive yet and writes one when it stops
+                int mark = tap.msgs.size();
+                Process writer = start(cfg, "archive", archive);
+                logs.add("archive");
+                try {
+                    awaitReady(tap, mark);
+                    LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"A\"", FIRST, LineBench.PACE, 9_000_000L);
+                } finally {
+                    stop(writer);
+                }
+                if (!Files.exists(archive)) throw new AssertionError("the first start wrote no class-data archive " + archive + " when it stopped");
+            }
             for (int i = 0; i < STARTS; i++) {
                 floor.block(FIRST);
                 int mark = tap.msgs.size();
                 long t0 = System.nanoTime();
-                Process daemon = start(cfg, i);
+                Process daemon = start(cfg, Integer.toString(i), archive);
+                logs.add(Integer.toString(i));
                 try {
                     awaitReady(tap, mark);
                     readyMs[i] = (System.nanoTime() - t0) / 1_000_000;
                     String part = ", \"part\": \"S" + i + "\"";
-                    Histogram one = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 1, LineBench.PACE, i * 1_000L);
+                    Histogram one = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 1, LineBench.PACE, i * 100_000L);
                     first.add(one);
                     veryFirst.add(one);
-                    Histogram early = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 9, LineBench.PACE, i * 1_000L + 1);
-                    Histogram late = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 10, LineBench.PACE, i * 1_000L + 10);
+                    Histogram early = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 9, LineBench.PACE, i * 100_000L + 1);
+                    Histogram late = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 10, LineBench.PACE, i * 100_000L + 10);
                     first.add(early);
                     first.add(late);
                     second10.add(early);
                     rest.add(late);
+                    LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"U" + i + "\"", SETTLE, LineBench.PACE, i * 100_000L + FIRST);
+                    warm.add(LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"W" + i + "\"", WARM, LineBench.PACE, i * 100_000L + FIRST + SETTLE));
                 } finally {
                     stop(daemon);
                 }
@@ -133,7 +170,8 @@ class FreshStartBench {
             // are timed to ready with them in the log.
             int busyRows = Integer.getInteger("zbin.bench.readback.rows", 30_000);
             long rowsBefore = recordLines(dir);
-            Process filler = start(cfg, STARTS);
+            Process filler = start(cfg, "busy", archive);
+            logs.add("busy");
             try {
                 int mark = tap.msgs.size();
                 awaitReady(tap, mark);
@@ -154,7 +192,8 @@ class FreshStartBench {
             for (int i = 0; i < readyWithRows.length; i++) {
                 int mark = tap.msgs.size();
                 long t0 = System.nanoTime();
-                Process daemon = start(cfg, STARTS + 1 + i);
+                Process daemon = start(cfg, "rows-" + i, archive);
+                logs.add("rows-" + i);
                 try {
                     awaitReady(tap, mark);
                     readyWithRows[i] = (System.nanoTime() - t0) / 1_000_000;
@@ -197,24 +236,33 @@ class FreshStartBench {
             ObjectNode v3 = LineBench.json(rest);
             v3.put("within_floor_p99", LineBench.count(rest, floorP99));
             out.set("decisions_11_to_100_after_each_start", v3);
+            ObjectNode w = LineBench.json(warm);
+            w.put("decisions", warm.getTotalCount());
+            w.put("within_floor_p99", LineBench.count(warm, floorP99));
+            out.set("reference_warm_" + WARM + "_after_" + SETTLE + "_more_each_start", w);
+            out.set("reference_warm_inside_zbin_arrival_to_decided", LineBench.json(insideWarm));
+            out.put("started_as", HOW);
             System.out.printf(Locale.ROOT, "%n  ready after process start, ms: %s (median %d, max %d)%n", Arrays.toString(readyMs), sorted[STARTS / 2], sorted[STARTS - 1]);
             System.out.printf(Locale.ROOT, "  ready after process start with %d rows of today in the record log, ms: %s%n", readBackRows,
                     Arrays.toString(readyWithRows));
             System.out.printf(Locale.ROOT, "  %-52s %9s %9s %9s %9s%n", "latency at " + LineBench.PACE + "/s, ms", "p50", "p99", "p99.9", "max");
             for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
                     {"first " + FIRST + " decisions after each of " + STARTS + " starts", first}, {"  of it inside zbin: arrival -> decided", inside},
-                    {"  the very first decision after each start", veryFirst}, {"  decisions 2 to 10", second10}, {"  decisions 11 to 100", rest}}) {
+                    {"  the very first decision after each start", veryFirst}, {"  decisions 2 to 10", second10}, {"  decisions 11 to 100", rest},
+                    {"reference: " + WARM + " warm ones after " + SETTLE + " more, each start", warm}, {"  of it inside zbin", insideWarm}}) {
                 Histogram h = (Histogram) e[1];
                 System.out.printf(Locale.ROOT, "  %-52s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
                         h.getValueAtPercentile(99) / 1e6, h.getValueAtPercentile(99.9) / 1e6, h.getMaxValue() / 1e6);
             }
             System.out.printf(Locale.ROOT, "  floor (echo + meter): p50 %.3f ms, p99 %.3f ms; within the floor's p99: %d of the %d first 100s' decisions,"
-                    + " %d of the %d very first, %d of %d second to tenth, %d of %d eleventh to hundredth%n", floorP50, floorP99,
+                    + " %d of the %d very first, %d of %d second to tenth, %d of %d eleventh to hundredth; the warm reference %d of %d (started as: %s)%n", floorP50, floorP99,
                     LineBench.count(first, floorP99), first.getTotalCount(), LineBench.count(veryFirst, floorP99), veryFirst.getTotalCount(),
-                    LineBench.count(second10, floorP99), second10.getTotalCount(), LineBench.count(rest, floorP99), rest.getTotalCount());
+                    LineBench.count(second10, floorP99), second10.getTotalCount(), LineBench.count(rest, floorP99), rest.getTotalCount(),
+                    LineBench.count(warm, floorP99), warm.getTotalCount(), HOW);
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
+            assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
             Files.createDirectories(Path.of("target/bench/fresh-start-logs"));
-            for (int i = 0; i < STARTS + 1 + readyWithRows.length; i++) Files.copy(dir.resolve("daemon-" + i + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + i + ".log"),
+            for (String name : logs) Files.copy(dir.resolve("daemon-" + name + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + name + ".log"),
                     java.nio.file.StandardCopyOption.REPLACE_EXISTING);
             Files.writeString(Path.of("target/bench/fresh-start.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
         }
