@@ -261,8 +261,14 @@ class FreshStartBench {
                     LineBench.count(warm, floorP99), warm.getTotalCount(), HOW);
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
-            Files.createDirectories(Path.of("target/bench/fresh-start-logs"));
-            for (String name : logs) Files.copy(dir.resolve("daemon-" + name + ".log"), Path.of("target/bench/fresh-start-logs/daemon-" + name + ".log"),
+            Path logDir = Path.of("target/bench/fresh-start-logs");
+            if (Files.isDirectory(logDir)) { // this run's logs only
+                try (var old = Files.list(logDir)) {
+                    for (Path stale : old.toList()) Files.delete(stale);
+                }
+            }
+            Files.createDirectories(logDir);
+            for (String name : logs) Files.copy(dir.resolve("daemon-" + name + ".log"), logDir.resolve("daemon-" + name + ".log"),
                     java.nio.file.StandardCopyOption.REPLACE_EXISTING);
             Files.writeString(Path.of("target/bench/fresh-start.json"), Json.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(out));
         }
