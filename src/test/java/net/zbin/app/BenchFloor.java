@@ -55,6 +55,13 @@ final class BenchFloor implements AutoCloseable {
         LineBench.meterExchanges(meterOut, meterIn, 500, 0, null);
     }
 
+    /** {@code n} echoes and {@code n} meter exchanges as fast as they are answered, not recorded: the floor's code compiled as a warm line's is. */
+    void warm(int n) throws Exception {
+        LineBench.paced(requester, waiting, "bench/req", "", n, Integer.MAX_VALUE, seq);
+        seq += n;
+        LineBench.meterExchanges(meterOut, meterIn, n, 0, null);
+    }
+
     /** One block: {@code n} echoes then {@code n} meter exchanges at the line's pace, recorded here. */
     void block(int n) throws Exception { block(n, null, null); }
 

@@ -41,6 +41,8 @@ import org.junit.jupiter.api.io.TempDir;
  */
 class LineBench {
     static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6, SHORT_LOTS = 40, SHORT_LOT = 100, LONG_RATE = 3000;
+    /** Decisions (and floor exchanges) before the first measured block: the compiler's top tier takes a method after thousands of calls. */
+    static final int WARM_PARTS = 15_000;
 
     @TempDir
     Path dir;
@@ -248,11 +250,15 @@ class LineBench {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
                 floor.meterAt(rig.meterServer.port());
                 Histogram meterTight = floor.meterBackToBack(SAMPLES);
-                // Warm parts first: the first decisions after a start are FreshStartBench's, in a process of their own
-                // (this JVM may have run the daemon's code already, in the benches before this one).
+                // Warm parts first, as fast as they are answered, until the compiler's top tier has the path: a line in its
+                // shift (the first decisions after a start are FreshStartBench's, in a process of their own). With 600 at
+                // the pace, a run of this bench alone met code still ramping up in its first blocks (p50 1.49 ms there
+                // against 1.02 in the lot-change blocks after them) and its figures depended on which benches this JVM ran
+                // before it. The floor's code gets as many.
                 Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
                 MqttAsyncClient handler = client(broker.url(), waiting, "zbin/bench/decision");
-                paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 600, PACE, 10_000);
+                paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", WARM_PARTS, Integer.MAX_VALUE, 10_000);
+                floor.warm(WARM_PARTS);
                 // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
                 // seconds, so each figure and its floor are taken over the same stretch of time.
                 Histogram line = new Histogram(60_000_000_000L, 3);
