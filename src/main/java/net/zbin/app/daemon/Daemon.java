@@ -37,6 +37,13 @@ public final class Daemon implements AutoCloseable {
     private final RecordLog records;
     private final DecisionBook book;
     private final Dispatch dispatch;
+    /**
+     * Whether a trigger that finds the line idle is measured on the MQTT client's thread (one thread wake-up less per
+     * part): only when the longest a part can take on a meter that stops answering (the handler's deadline for its
+     * readings, then one reading's timeouts) is within half the broker keep-alive, since that thread also reads the broker's
+     * answers to its pings; and only while the meter link is up and took its setup.
+     */
+    private final boolean triggersInPlace;
     private final ScheduledExecutorService ticker = Executors.newSingleThreadScheduledExecutor(r -> named(r, "ticker"));
     private final MeterWatch watch;
     private final MonitorListener monitor;
@@ -105,6 +112,11 @@ public final class Daemon implements AutoCloseable {
             public void recovered() { mode.setLogFailing(false, null); }
         });
         this.dispatch = new Dispatch(cfg.line());
+        long reading = meter.longestReadingMs(), budget = cfg.mqtt().keepAliveS() * 500L - cfg.deadlineMs();
+        this.triggersInPlace = reading <= budget;
+        if (!triggersInPlace && reading != Long.MAX_VALUE)
+            LOG.info("line {}: triggers go to the measuring thread: the handler's deadline of {} ms and a reading's timeouts of {} ms"
+                    + " exceed half the MQTT keep-alive of {} s", cfg.line(), cfg.deadlineMs(), reading, cfg.mqtt().keepAliveS());
         this.watch = new MeterWatch(meter, mode, setup::recipe);
         this.boards = cfg.status() == null ? null : net.zbin.app.status.Boards.of(cfg.line(), clock);
         if (boards != null)
@@ -125,6 +137,7 @@ public final class Daemon implements AutoCloseable {
         lock();
         monitor.keepLimits(setup.recipe());
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
+        dispatch.runIdleMessagesInPlace(mqtt::hasRoom);
         // Connected now, subscribed only when the line can take triggers: a Paho connect waits ~0.3 s on its own threads
         // starting, which passes under reading the record log back and the rest of the start.
         mqtt.holdSubscriptions();
@@ -195,7 +208,7 @@ public final class Daemon implements AutoCloseable {
         int rounds = 0;
         long readings = 0;
         if (heard) { // the real I/O of a part's way (broker both ways, hand-over, a meter reading)
-            var r = new Rehearsal(topics, mqtt, dispatch, meter, !mode.linkDown() && !mode.setupRefused());
+            var r = new Rehearsal(topics, mqtt, dispatch, meter, !mode.linkDown() && !mode.setupRefused(), triggers::inPlace);
             rehearsal = r;
             rounds = r.run(rehearseMs);
             rehearsal = null;
@@ -393,6 +406,8 @@ public final class Daemon implements AutoCloseable {
         public void handle(byte[] p, long at, net.zbin.io.mqtt.Ack ack) { path.onTrigger(p, at, ack); }
 
         public Runnable overflow(byte[] p, long at) { return path.busy(p, at); }
+
+        public boolean inPlace() { return triggersInPlace && !mode.linkDown() && !mode.setupRefused(); }
     };
 
     private final Dispatch.Handler commandsIn = new Dispatch.Handler() {

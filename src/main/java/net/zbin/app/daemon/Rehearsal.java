@@ -34,6 +34,7 @@ final class Rehearsal {
     private final MqttLink mqtt;
     private final Dispatch dispatch;
     private final MeterSession meter;
+    private final java.util.function.BooleanSupplier asTriggers;
     private volatile CompletableFuture<Void> answered;
     /**
      * The ask of the round under way, handed to the measuring thread once; null between hand-over and the next round and
@@ -46,8 +47,12 @@ final class Rehearsal {
     /** Readings taken (written by the measuring thread, read after the rounds). */
     private final java.util.concurrent.atomic.AtomicLong readings = new java.util.concurrent.atomic.AtomicLong();
 
-    /** @param measure whether the meter takes readings (false when the probe found the link down or the setup refused) */
-    Rehearsal(Topics topics, MqttLink mqtt, Dispatch dispatch, MeterSession meter, boolean measure) {
+    /**
+     * @param measure whether the meter takes readings (false when the probe found the link down or the setup refused)
+     * @param asTriggers whether a trigger would now run on Paho's thread: the rounds go the way a part goes
+     */
+    Rehearsal(Topics topics, MqttLink mqtt, Dispatch dispatch, MeterSession meter, boolean measure, java.util.function.BooleanSupplier asTriggers) {
+        this.asTriggers = asTriggers;
         this.topics = topics;
         this.mqtt = mqtt;
         this.dispatch = dispatch;
@@ -85,6 +90,8 @@ final class Rehearsal {
         }
 
         public Runnable overflow(byte[] payload, long arrivedNanos) { return () -> { }; }
+
+        public boolean inPlace() { return asTriggers.getAsBoolean(); }
     };
 
     /** Runs rounds, one at a time, for up to {@code maxMs}; returns the rounds answered. */

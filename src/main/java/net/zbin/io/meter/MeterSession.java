@@ -13,6 +13,13 @@ public interface MeterSession extends AutoCloseable {
     /** One reading at the conditions last applied. */
     MeterReading measure() throws MeterException;
 
+    /**
+     * The longest one {@link #measure()} can block on a meter that was answering before and then stops, ms: it fails
+     * with a timeout by then. {@link Long#MAX_VALUE} when not known. The daemon runs a part on its MQTT client's thread
+     * only when this is well inside the broker's keep-alive.
+     */
+    default long longestReadingMs() { return Long.MAX_VALUE; }
+
     /** Reconnects performed so far (for monitoring and tests). */
     long reconnects();
 

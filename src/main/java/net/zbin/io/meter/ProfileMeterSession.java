@@ -238,6 +238,12 @@ public final class ProfileMeterSession implements MeterSession {
         }
     }
 
+    /** The bringing back in step (one command timeout), the reading's timeout, and its confirmation's where readings are confirmed. */
+    @Override
+    public long longestReadingMs() {
+        return profile.commandTimeoutMs() + (long) profile.measureTimeoutMs() + (profile.confirmReadings() ? profile.commandTimeoutMs() : 0);
+    }
+
     @Override
     public long reconnects() { return reconnects; }
 

@@ -442,6 +442,17 @@ public final class MqttLink implements Publisher, AutoCloseable {
     }
 
     /** Messages held for the broker's return. */
+    /**
+     * Whether a publish now goes straight to the client without waiting: connected, nothing held back in the outbox,
+     * the in-flight window at most half full. Cheap: asked before each message that may run on Paho's own thread.
+     */
+    public boolean hasRoom() {
+        synchronized (window) {
+            if (!outbox.isEmpty()) return false;
+        }
+        return client.isConnected() && client.getInFlightMessageCount() < MAX_INFLIGHT / 2;
+    }
+
     public int buffered() {
         synchronized (window) {
             return outbox.size();

@@ -52,7 +52,7 @@ class RehearsalTest {
         // never connected: the answer waits in the link's outbox, which is all this test needs of it
         var s = new LineConfig.MqttSettings("tcp://127.0.0.1:1", "zbin", "reh-" + System.nanoTime(), null, null, null, null, null, 5);
         try (MqttLink link = new MqttLink(s, null, null, List.of(), (t, p) -> { })) {
-            Rehearsal r = new Rehearsal(topics, link, dispatch, meter, true);
+            Rehearsal r = new Rehearsal(topics, link, dispatch, meter, true, () -> true);
             for (int i = 0; i < 1000; i++) assertTrue(r.heard(topics.rehearsalAsk(), Warmup.trigger(i), net.zbin.io.mqtt.Ack.NONE), "the rehearsal's topic is its own");
             drained(dispatch);
             assertEquals(0, meter.readings.get(), "no round under way: nothing measured");
