@@ -83,8 +83,8 @@ final class Dispatch {
     private volatile long idleSince;
     /** How long the last message took to handle, in place or on the measuring thread. */
     private volatile long lastMessageNanos;
-    /** The last run in place, start and end (Paho's thread only: written and read in {@link #submit}). */
-    private long inPlaceStart, inPlaceEnd;
+    /** The last run in place, start and end (written and read on Paho's callback thread, which a reconnect may replace). */
+    private volatile long inPlaceStart, inPlaceEnd;
     private volatile boolean closing;
     /** Whether the MQTT link can take an answer without waiting (its window has room): never wait on Paho's thread. */
     private volatile BooleanSupplier linkHasRoom = () -> false;
