@@ -86,7 +86,7 @@ class DispatchTest {
         AtomicIntegerArray sends = new AtomicIntegerArray(1);
         Ack a = Ack.of(() -> sends.incrementAndGet(0));
         try {
-            d.submit(recording(ran, null), new byte[0], a);
+            d.submit(recording(ran, null, true), new byte[0], a);
             assertEquals(List.of(caller), ran, "run in place, before submit returned");
             assertTrue(a.held() && a.sent(), "held for the answer, then sent by the hand-over itself");
             assertEquals(1, sends.get(0));
@@ -168,37 +168,24 @@ class DispatchTest {
 
     @Test
     void aCommand_neverRunsOnTheCallersThread_evenOnAnIdleLine() throws Exception {
-        Dispatch d = new Dispatch("command", 0, System::nanoTime);
-        d.runIdleMessagesInPlace(() -> true);
-        List<Thread> ran = new java.util.concurrent.CopyOnWriteArrayList<>();
-        CountDownLatch done = new CountDownLatch(1);
-        Dispatch.Handler command = new Dispatch.Handler() { // inPlace() as a command's: false
-            public void handle(byte[] p, long at, Ack ack) {
-                ran.add(Thread.currentThread());
-                done.countDown();
-            }
-
-            public Runnable overflow(byte[] p, long at) { return () -> { }; }
-        };
-        try {
-            d.submit(command, new byte[0], Ack.NONE);
-            assertTrue(done.await(60, TimeUnit.SECONDS));
-            assertTrue(ran.get(0) != Thread.currentThread(), "a command may hold the line for seconds: never on Paho's thread");
-        } finally {
-            d.close();
-        }
+        assertTrue(threadThatRan(true, false) != Thread.currentThread(), "a command may hold the line for seconds: never on Paho's thread");
     }
 
     @Test
     void aLinkWithoutRoom_sendsTheMessageToTheMeasuringThread() throws Exception {
-        Dispatch d = new Dispatch("no-room", 0, System::nanoTime);
-        d.runIdleMessagesInPlace(() -> false);
+        assertTrue(threadThatRan(false, true) != Thread.currentThread(), "a publish that may wait must not wait on Paho's thread");
+    }
+
+    /** The thread one message ran on, on an idle line (quiet time 0) whose link has {@code room}. */
+    private static Thread threadThatRan(boolean room, boolean inPlace) throws Exception {
+        Dispatch d = new Dispatch("one-message", 0, System::nanoTime);
+        d.runIdleMessagesInPlace(() -> room);
         List<Thread> ran = new java.util.concurrent.CopyOnWriteArrayList<>();
         CountDownLatch done = new CountDownLatch(1);
         try {
-            d.submit(recording(ran, done), new byte[0], Ack.NONE);
+            d.submit(recording(ran, done, inPlace), new byte[0], Ack.NONE);
             assertTrue(done.await(60, TimeUnit.SECONDS));
-            assertTrue(ran.get(0) != Thread.currentThread(), "a publish that may wait must not wait on Paho's thread");
+            return ran.get(0);
         } finally {
             d.close();
         }
@@ -273,7 +260,7 @@ class DispatchTest {
         }
     }
 
-    private static Dispatch.Handler recording(List<Thread> ran, CountDownLatch done) {
+    private static Dispatch.Handler recording(List<Thread> ran, CountDownLatch done, boolean inPlace) {
         return new Dispatch.Handler() {
             public void handle(byte[] p, long at, Ack ack) {
                 ran.add(Thread.currentThread());
@@ -282,7 +269,7 @@ class DispatchTest {
 
             public Runnable overflow(byte[] p, long at) { return () -> { }; }
 
-            public boolean inPlace() { return true; }
+            public boolean inPlace() { return inPlace; }
         };
     }
 }
