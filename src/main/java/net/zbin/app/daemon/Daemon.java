@@ -381,7 +381,7 @@ public final class Daemon implements AutoCloseable {
     }
 
     /**
-     * Paho's thread: only hand the message over. A payload beyond the size any trigger or command may have is
+     * Paho's thread: a trigger on an idle line is measured here, anything else handed over ({@link Dispatch}). A payload beyond the size any trigger or command may have is
      * refused in its turn without being kept, so a waiting queue never holds more than that size per message.
      */
     private void route(String topic, byte[] payload, net.zbin.io.mqtt.Ack ack) {

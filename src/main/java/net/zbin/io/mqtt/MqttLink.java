@@ -26,7 +26,7 @@ import org.slf4j.LoggerFactory;
  * The daemon's MQTT connection (Paho mqttv3 async). Pitfalls handled: memory persistence (no files
  * in the working folder), in-flight window well above the default 10, resubscribe on every connect
  * without blocking the callback thread, a retained Will, TCP_NODELAY sockets. {@code messageArrived}
- * only hands the message on, and acknowledges it to the broker when the handler returns unless the handler held the
+ * passes the message to the handler, and acknowledges it to the broker when the handler returns unless the handler held the
  * acknowledgement ({@link Ack}: the daemon holds a trigger's until its decision is out).
  *
  * <p>Session policy: a clean session under a client id that is stable per line. Nothing is queued for
@@ -80,7 +80,11 @@ public final class MqttLink implements Publisher, AutoCloseable {
     /** Paho's threads, started without its 100 ms sleeps (see {@link PromptStarts}). */
     final PromptStarts threads;
 
-    /** Receives a message on Paho's callback thread (must not block); may {@link Ack#hold hold} its acknowledgement. */
+    /**
+     * Receives a message on Paho's callback thread; may {@link Ack#hold hold} its acknowledgement. It may do a bounded piece
+     * of work there (the daemon measures a part on an idle line), but never wait on this link: while it runs, the
+     * acknowledgements that free the window are read only until ten messages wait behind it ({@link #hasRoom} first).
+     */
     @FunctionalInterface
     public interface Inbound {
         void arrived(String topic, byte[] payload, Ack ack);
