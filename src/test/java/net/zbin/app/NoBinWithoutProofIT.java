@@ -114,6 +114,34 @@ class NoBinWithoutProofIT {
     }
 
     @Test
+    void aTriggerThatWaitedBehindAStalledReading_isAnsweredStale_thoughThatReadingRanOnTheMqttThread() throws Exception {
+        // An idle line measures a part on the MQTT client's callback thread; a trigger that comes meanwhile waits there,
+        // unseen. When that reading stalls (the meter answers only after the profile's 1.5 s timeout), the trigger behind
+        // it has waited past the 150 ms deadline and must not be measured: another part may be on the contacts by now.
+        // (Where the machine is too slow for a part within 1 ms, parts go through the queue, stamped at once: the same
+        // answer is due. With the backdated stamp taken out of Dispatch.arrival, this fails on a warm line.)
+        try (LineRig rig = new LineRig(dir, "stall", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "");
+             Tap tap = new Tap(broker.url(), "zbin/stall/decision", "zbin/stall/state")) {
+            awaitReady(tap);
+            rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+            for (long seq = 1; seq <= 500; seq++) { // one answer before the next, the line idle between: warm, parts go on the MQTT thread
+                long s = seq;
+                tap.publish("zbin/stall/trigger", "{\"seq\":" + s + "}");
+                tap.await(m -> decision(m, s), 1, 10_000);
+            }
+            rig.meter.inject(SimFault.SLOW, 1);
+            tap.publish("zbin/stall/trigger", "{\"seq\":10000}");
+            tap.publish("zbin/stall/trigger", "{\"seq\":10001}");
+            JsonNode stalled = tap.await(m -> decision(m, 10_000), 1, 30_000).get(0).json();
+            JsonNode behind = tap.await(m -> decision(m, 10_001), 1, 30_000).get(0).json();
+            assertEquals("retest", stalled.path("verdict").asText(), "the stalled reading gives no bin: " + stalled);
+            assertEquals("stale-trigger", behind.path("reason").asText(), "the trigger behind it waited past the deadline: " + behind);
+            assertTrue(behind.path("value").isNull(), "not measured: " + behind);
+            assertTrue(behind.path("latency_ms").asDouble() > rig.cfg.deadlineMs(), "its wait counts the stall: " + behind);
+        }
+    }
+
+    @Test
     void aBurstOfTwentyThousandTriggers_noneMeasuredAfterTheDeadline_theOldOnesAnsweredStale() throws Exception {
         // 20 000 triggers at once: seconds of work, far more than a 50 ms deadline can hold. Through Mosquitto (the
         // embedded broker drops QoS 1 messages in a flood this size).
