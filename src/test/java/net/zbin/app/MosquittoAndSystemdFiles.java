@@ -34,6 +34,9 @@ final class MosquittoAndSystemdFiles {
                 assertTrue(lines.contains("KillSignal=SIGTERM"), name + " stops with SIGTERM (clean offline)");
                 assertTrue(lines.stream().anyMatch(l -> l.startsWith("ExecStart=") && l.contains("-XX:+ExitOnOutOfMemoryError")),
                         name + " ends the process on out of memory");
+                List<String> jvm = unitJvmOptions(p);
+                assertTrue(jvm.contains("-XX:ThreadPriorityPolicy=1") && jvm.contains("-XX:CompilerThreadPriority=19"),
+                        name + " runs the JIT compiler's threads at nice 19 (the priority needs the policy): " + jvm);
                 for (String l : lines) {
                     if (!l.startsWith("ExecStart") || !l.contains("/bin/sh -c")) continue;
                     assertTrue(l.startsWith("ExecStartPre=") || l.contains("exec /usr/bin/java"), name + ": the shell hands over to the JVM, so SIGTERM reaches zbin: " + l);
@@ -42,5 +45,19 @@ final class MosquittoAndSystemdFiles {
             }
             default -> throw new AssertionError("no check for " + p);
         }
+    }
+
+    private static final java.util.regex.Pattern JAVA_OPTIONS = java.util.regex.Pattern.compile("exec /usr/bin/java (.*?) \"\\$\\$cds\"");
+
+    /**
+     * The options the unit's {@code ExecStart} gives {@code java} before its class-data option and the jar (e.g.
+     * {@code -Xmx256m}): what a process started "the unit's way" ({@link FreshStartBench}) runs with.
+     */
+    static List<String> unitJvmOptions(Path unit) throws java.io.IOException {
+        for (String l : Files.readAllLines(unit)) {
+            var m = JAVA_OPTIONS.matcher(l);
+            if (l.startsWith("ExecStart=") && m.find()) return List.of(m.group(1).trim().split("\\s+"));
+        }
+        throw new AssertionError(unit + ": no ExecStart= line with 'exec /usr/bin/java <options> \"$$cds\"'");
     }
 }
