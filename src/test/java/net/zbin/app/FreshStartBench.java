@@ -28,8 +28,9 @@ import org.junit.jupiter.api.io.TempDir;
  * {@code ready}, then its first 100 decisions at a handler's pace against the floor ({@link BenchFloor}) measured in a
  * block after each start, and, as the reference a warm line sets on the same machine, {@value #WARM} more decisions after
  * {@link #SETTLE} (400) unmeasured ones. A JVM that already ran the daemon's code (as the other benches' does) would hide a
- * cold path; a fresh process cannot. The daemon starts as the systemd unit starts it: {@code java -jar} with a class-data
- * archive that the first start after an update writes when it stops (here: one unmeasured start that decides 100 parts).
+ * cold path; a fresh process cannot. The daemon starts as the systemd unit starts it: with the unit's {@code java} options (its heap
+ * bound, the compiler threads at nice 19), {@code -jar} and a class-data archive that the first start after an update
+ * writes when it stops (here: one unmeasured start that decides 100 parts).
  * {@code -Dzbin.bench.daemon.start=jar} starts it from the jar without an archive, {@code =classes} from the build's class
  * folders and jars. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows} (30 000)
  * parts, and three starts are timed to ready with those rows in today's record log (the start reads them back).
@@ -50,7 +51,7 @@ class FreshStartBench {
     /**
      * The daemon's process as {@link #HOW} says: from the jar ({@code zbin.bench.daemon.jar}, else the build's
      * {@code target/zbin.jar}) with the class-data {@code archive} ({@code -XX:ArchiveClassesAtExit} when it does not exist
-     * yet: the process writes it when it stops), from the jar alone, or on this JVM's own class path. Options in
+     * yet: the process writes it when it stops) and the unit's {@code java} options, from the jar alone, or on this JVM's own class path. Options in
      * {@code zbin.bench.daemon.jvm} go before the others (e.g. {@code -Xlog:class+load} to see what the first parts still
      * load).
      */
@@ -60,8 +61,11 @@ class FreshStartBench {
         if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
         String jar = System.getProperty("zbin.bench.daemon.jar", "");
         switch (HOW) {
-            case "unit" -> cmd.addAll(java.util.List.of((Files.exists(archive) ? "-XX:SharedArchiveFile=" : "-XX:ArchiveClassesAtExit=") + archive,
-                    "-jar", jar.isBlank() ? Jar.path() : jar));
+            case "unit" -> {
+                cmd.addAll(MosquittoAndSystemdFiles.unitJvmOptions(Path.of("config/systemd/zbin@.service")));
+                cmd.addAll(java.util.List.of((Files.exists(archive) ? "-XX:SharedArchiveFile=" : "-XX:ArchiveClassesAtExit=") + archive,
+                        "-jar", jar.isBlank() ? Jar.path() : jar));
+            }
             case "jar" -> cmd.addAll(java.util.List.of("-jar", jar.isBlank() ? Jar.path() : jar));
             case "classes" -> cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main"));
             default -> throw new IllegalArgumentException("zbin.bench.daemon.start: '" + HOW + "' is not one of unit, jar, classes");
@@ -116,13 +120,17 @@ class FreshStartBench {
             Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n");
             Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
             java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
+            // which of the first 100 took zbin itself over 1 ms (seq: ms; seq = start * 100 000 + position)
+            java.util.List<String> slowInside = new java.util.concurrent.CopyOnWriteArrayList<>();
             MqttAsyncClient handler = LineBench.client(broker.url(), waiting, p -> {
                 if (p.contains("\"part\":\"W")) return insideWarm;
                 if (!p.contains("\"part\":\"S")) return null;
                 int l = p.indexOf("\"latency_ms\":"), q = p.indexOf("\"seq\":");
                 if (l >= 0 && q >= 0) {
                     long seq = Long.parseLong(p.substring(q + 6, p.indexOf(',', q)).trim());
-                    if (seq % 1000 < 5) firstFive.add(seq + ": " + p.substring(l + 13, p.indexOf(',', l)));
+                    String ms = p.substring(l + 13, p.indexOf(',', l)).trim();
+                    if (seq % 1000 < 5) firstFive.add(seq + ": " + ms);
+                    if (Double.parseDouble(ms) > 1.0) slowInside.add(seq + ": " + ms);
                 }
                 return inside;
             }, "zbin/fresh/decision");
@@ -227,6 +235,8 @@ class FreshStartBench {
             out.set("first_100_inside_zbin_arrival_to_decided", LineBench.json(inside));
             ArrayNode ff = out.putArray("inside_zbin_first_five_after_each_start_seq_ms");
             firstFive.forEach(ff::add);
+            ArrayNode si = out.putArray("inside_zbin_first_100_over_1ms_seq_ms");
+            slowInside.forEach(si::add);
             ObjectNode v = LineBench.json(veryFirst);
             v.put("within_floor_p99", LineBench.count(veryFirst, floorP99));
             out.set("first_decision_after_each_start", v);
