@@ -64,7 +64,7 @@ public final class RunCommand implements Callable<Integer> {
     public Integer call() throws Exception {
         haltOnFatalErrors();
         LineConfig cfg = LineConfigLoader.load(config);
-        Daemon d = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
+        Daemon d = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC()).compilerYieldsAtReady();
         CountDownLatch stopped = new CountDownLatch(1);
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             d.close();

@@ -92,6 +92,8 @@ public final class Daemon implements AutoCloseable {
     static long warmUpMs(long uptimeMs) { return Math.max(WARM_UP_MS, Math.min(WARM_UP_MAX_MS, READY_AIM_MS - uptimeMs)); }
     /** The rehearsal's least time bound: it runs from the broker's acknowledgement of the subscriptions to the warm-up's end, this long at least. */
     static final long REHEARSAL_MS = 200;
+    /** Whether {@link #start} lowers the JIT compiler threads' priority once the line is warm ({@link #compilerYieldsAtReady()}). */
+    private volatile boolean compilerYieldsAtReady;
     /** The start's rehearsal while it runs (Paho's thread hands it its messages), null after. */
     private volatile Rehearsal rehearsal;
 
@@ -131,6 +133,15 @@ public final class Daemon implements AutoCloseable {
     }
 
     public Topics topics() { return topics; }
+
+    /**
+     * Asks {@link #start} to set this JVM's compiler threads to nice 19 just before the line says ready (see
+     * {@link CompilerThreads}): for a process that is the line's own ({@code zbin run}), not a JVM that hosts other work.
+     */
+    public Daemon compilerYieldsAtReady() {
+        compilerYieldsAtReady = true;
+        return this;
+    }
 
     /** Recovers from the record log, warms up, connects and serves; waits up to {@code connectTimeoutMs} for the broker. */
     public void start(long connectTimeoutMs) throws Exception {
@@ -215,6 +226,7 @@ public final class Daemon implements AutoCloseable {
             readings = r.readings();
         }
         warming.join();
+        if (compilerYieldsAtReady) CompilerThreads.lower(19);
         synchronized (startLock) {
             warm = true;
             if (subscribed) mode.announce();

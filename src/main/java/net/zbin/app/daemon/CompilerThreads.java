@@ -1,0 +1,82 @@
+package net.zbin.app.daemon;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * Lowers the priority of this JVM's JIT compiler threads (Linux: their nice value), once the line is warm.
+ *
+ * <p>For seconds after a start the compiler is still busy. At the normal priority a compile held a core for 2–4 ms while
+ * a part's threads (zbin's MQTT threads, the broker's, the handler's) waited behind it in that core's run queue, the other
+ * core idle. At nice 19 a woken thread takes the core at once and the compiler works in the gaps between parts. Before
+ * ready the compiler keeps the normal priority: the start's warm-up and read-back of the record log need its work at
+ * once. Raising a thread's own nice value needs no privilege; {@code renice} (util-linux) does it, since Java cannot.
+ */
+final class CompilerThreads {
+    private static final Logger LOG = LoggerFactory.getLogger(CompilerThreads.class);
+    private static final Path TASKS = Path.of("/proc/self/task");
+
+    private CompilerThreads() {}
+
+    /**
+     * Sets the compiler threads of this process to {@code nice} (0..19) and returns how many now run at it or lower
+     * (0 where there is no {@code /proc} or no {@code renice}: the line runs all the same, and the log says so).
+     */
+    static int lower(int nice) {
+        if (nice < 0 || nice > 19) throw new IllegalArgumentException("nice: " + nice + " is not within 0..19 (raising a priority needs privilege)");
+        List<String> tids = compilerTids();
+        if (tids.isEmpty()) {
+            LOG.info("compiler threads keep their priority: none found in {}", TASKS);
+            return 0;
+        }
+        List<String> cmd = new ArrayList<>(List.of("renice", "-n", Integer.toString(nice), "-p"));
+        cmd.addAll(tids);
+        try {
+            Process p = new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(ProcessBuilder.Redirect.DISCARD).start();
+            if (!p.waitFor(5, TimeUnit.SECONDS)) p.destroyForcibly();
+        } catch (IOException e) {
+            LOG.info("compiler threads keep their priority: {}", e.getMessage());
+            return 0;
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            return 0;
+        }
+        int lowered = 0;
+        for (String tid : tids) if (niceOf(tid) >= nice) lowered++;
+        LOG.info("{} of {} compiler threads at nice {} from now on", lowered, tids.size(), nice);
+        return lowered;
+    }
+
+    /** The thread ids of HotSpot's compiler threads ({@code C1 CompilerThread0}, … as the kernel shortens their names). */
+    static List<String> compilerTids() {
+        List<String> out = new ArrayList<>();
+        if (!Files.isDirectory(TASKS)) return out;
+        try (var tasks = Files.list(TASKS)) {
+            for (Path t : tasks.toList()) {
+                try {
+                    if (Files.readString(t.resolve("comm")).contains("CompilerThre")) out.add(t.getFileName().toString());
+                } catch (IOException gone) { // the thread ended meanwhile
+                }
+            }
+        } catch (IOException e) {
+            LOG.debug("{} not listed: {}", TASKS, e.toString());
+        }
+        return out;
+    }
+
+    /** The nice value of this process's thread {@code tid} (field 19 of its {@code stat}); Integer.MIN_VALUE when unknown. */
+    static int niceOf(String tid) {
+        try {
+            String stat = Files.readString(TASKS.resolve(tid).resolve("stat"));
+            return Integer.parseInt(stat.substring(stat.lastIndexOf(')') + 2).split(" ")[16]);
+        } catch (IOException | RuntimeException e) {
+            return Integer.MIN_VALUE;
+        }
+    }
+}
