@@ -17,6 +17,8 @@ import org.slf4j.LoggerFactory;
  * core idle. At nice 19 a woken thread takes the core at once and the compiler works in the gaps between parts. Before
  * ready the compiler keeps the normal priority: the start's warm-up and read-back of the record log need its work at
  * once. Raising a thread's own nice value needs no privilege; {@code renice} (util-linux) does it, since Java cannot.
+ * Compiler threads the JVM adds later (it may on a machine with more cores, when its queue grows) keep the normal
+ * priority.
  */
 final class CompilerThreads {
     private static final Logger LOG = LoggerFactory.getLogger(CompilerThreads.class);
