@@ -164,7 +164,9 @@ public final class Daemon implements AutoCloseable {
         Thread warming = named(() -> {
             long w0 = System.nanoTime();
             try {
-                warmed[0] = Warmup.run(cfg, setup, (int) (40 * warmUpMs), warmUpMs); // 20 000 in the least time, as many per ms in more
+                // at most 40 per ms, a cap only a warm JVM reaches (a daemon started in the tests' JVM); a fresh process runs
+                // 400-2 000 in its time, cold code beside the read-back
+                warmed[0] = Warmup.run(cfg, setup, (int) (40 * warmUpMs), warmUpMs);
             } catch (RuntimeException e) { // e.g. a command changed the compensation store under it: the line starts all the same
                 LOG.warn("warm-up stopped early: {}", e.toString());
             }
