@@ -171,7 +171,8 @@ class StatusPageIT {
                     new Waiter(browser, 5_000).until(b -> b.findElement(li).getText().contains("acknowledged by demo-operator")
                             && b.findElement(li).getText().contains("fixture cleaned, checking"));
                     acking = c;
-                } catch (AssertionError | org.openqa.selenium.StaleElementReferenceException | org.openqa.selenium.NoSuchElementException e) {
+                } catch (AssertionError | org.openqa.selenium.StaleElementReferenceException | org.openqa.selenium.NoSuchElementException
+                         | org.openqa.selenium.InvalidElementStateException e) { // the last: not interactable, e.g. its item redrawn under the keys
                     System.out.println("acknowledge attempt " + (attempt + 1) + " overtaken by the alarm list: " + e.getMessage());
                 }
             }
