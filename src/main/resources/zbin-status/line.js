@@ -54,12 +54,20 @@
   }
 
   let shownAlarms = null;
-  /* Rebuilt only when an alarm, an acknowledgement or the sign-in changed, so a note being typed is kept. */
+  /*
+   * Rebuilt only when an alarm, an acknowledgement or the sign-in changed. A rebuild keeps what the operator was doing
+   * in the items that stay: each open alarm's typed note, and the focus (with the caret) in a note or on its button.
+   */
   function renderAlarms(list) {
     const signature = JSON.stringify([list, !!(view && view.actions), who]);
     if (signature === shownAlarms) return;
     shownAlarms = signature;
     const ul = $('alarms');
+    const typed = {};
+    ul.querySelectorAll('li').forEach(li => { const n = li.querySelector('input'); if (n && n.value) typed[li.dataset.code] = n.value; });
+    const active = document.activeElement, focusLi = active && ul.contains(active) ? active.closest('li') : null;
+    const focus = focusLi ? { code: focusLi.dataset.code, tag: active.tagName,
+      start: active.tagName === 'INPUT' ? active.selectionStart : null, end: active.tagName === 'INPUT' ? active.selectionEnd : null } : null;
     while (ul.firstChild) ul.removeChild(ul.firstChild);
     $('no-alarms').hidden = list.length > 0;
     list.forEach(a => {
@@ -82,6 +90,7 @@
         const f = document.createElement('form'); f.className = 'ack-form';
         const note = document.createElement('input'); note.type = 'text'; note.maxLength = 120; note.placeholder = 'note (optional)';
         note.setAttribute('aria-label', 'note for ' + a.code);
+        if (typed[a.code]) note.value = typed[a.code];
         const b = document.createElement('button'); b.type = 'submit'; b.textContent = 'Acknowledge ' + a.code; b.className = 'ack';
         f.append(note, b);
         f.addEventListener('submit', e => { e.preventDefault(); act({ action: 'acknowledge', alarm: a.code, note: note.value }); });
@@ -89,6 +98,14 @@
       }
       ul.append(li);
     });
+    if (focus) {
+      const li = [...ul.children].find(x => x.dataset.code === focus.code);
+      const el = li && li.querySelector(focus.tag === 'INPUT' ? 'input' : 'button');
+      if (el) {
+        el.focus();
+        if (focus.start !== null) el.setSelectionRange(focus.start, focus.end);
+      }
+    }
   }
 
   function renderBins(bins) {
