@@ -53,18 +53,21 @@
     $('readonly').hidden = !!v.actions;
   }
 
-  let shownAlarms = null;
+  let shownAlarms = null, shownFor = null;
   /*
    * Rebuilt only when an alarm, an acknowledgement or the sign-in changed. A rebuild keeps what the operator was doing
-   * in the items that stay: each open alarm's typed note, and the focus (with the caret) in a note or on its button.
+   * in the items that stay: each open alarm's typed note (while the same operator is signed in), and the focus (with
+   * the caret) in a note or on its button.
    */
   function renderAlarms(list) {
     const signature = JSON.stringify([list, !!(view && view.actions), who]);
     if (signature === shownAlarms) return;
     shownAlarms = signature;
     const ul = $('alarms');
-    const typed = {};
-    ul.querySelectorAll('li').forEach(li => { const n = li.querySelector('input'); if (n && n.value) typed[li.dataset.code] = n.value; });
+    // a note is the signed-in operator's own: one signed in after another does not inherit it
+    const typed = {}, sameOperator = shownFor === who;
+    shownFor = who;
+    if (sameOperator) ul.querySelectorAll('li').forEach(li => { const n = li.querySelector('input'); if (n && n.value) typed[li.dataset.code] = n.value; });
     const active = document.activeElement, focusLi = active && ul.contains(active) ? active.closest('li') : null;
     const focus = focusLi ? { code: focusLi.dataset.code, tag: active.tagName,
       start: active.tagName === 'INPUT' ? active.selectionStart : null, end: active.tagName === 'INPUT' ? active.selectionEnd : null } : null;
