@@ -11,6 +11,7 @@ import java.util.Locale;
 import java.util.concurrent.Callable;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import net.zbin.app.daemon.Daemon;
+import net.zbin.app.report.Shown;
 import net.zbin.core.PartType;
 import net.zbin.core.Recipe;
 import net.zbin.io.LineConfig;
@@ -120,8 +121,8 @@ public final class DemoCommand implements Callable<Integer> {
             Progress.end(o);
             Summaries.print(o, s);
             var lotFigures = daemon.lotFigures();
-            o.printf(Locale.ROOT, "  the line's own figures for lot %s: %d parts finished, %d passed, yield %.2f %%, %d retests, %d fixture checks%n",
-                    sc.lot().id(), lotFigures.parts(), lotFigures.passed(), lotFigures.yieldPct(), lotFigures.retests(), lotFigures.checks());
+            o.printf(Locale.ROOT, "  the line's own figures for lot %s: %d parts finished, %d passed, yield %s, %d retests, %d fixture checks%n",
+                    sc.lot().id(), lotFigures.parts(), lotFigures.passed(), Shown.of("%.2f %%", lotFigures.yieldPct()), lotFigures.retests(), lotFigures.checks());
             MonitorText.figures(o, daemon.monitorFigures());
             Path history = dir.resolve("state").resolve("alarms-demo.jsonl");
             if (Files.exists(history)) {

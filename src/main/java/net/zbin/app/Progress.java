@@ -3,6 +3,7 @@ package net.zbin.app;
 import java.io.PrintWriter;
 import java.util.Locale;
 import java.util.function.Consumer;
+import net.zbin.app.report.Shown;
 import net.zbin.sim.HandlerSim;
 
 /**
@@ -20,8 +21,8 @@ final class Progress {
             long now = System.nanoTime();
             if (now - last[0] < every) return;
             last[0] = now;
-            String text = String.format(Locale.ROOT, "  parts %6d   UPH %8.0f   yield %6.2f %%   last bin %3d (%s)", p.parts(), p.uph(),
-                    p.yieldPct(), p.lastBin(), p.lastGrade());
+            String text = String.format(Locale.ROOT, "  parts %6d   UPH %8.0f   yield %8s   last bin %3d (%s)", p.parts(), p.uph(),
+                    Shown.of("%.2f %%", p.yieldPct()), p.lastBin(), p.lastGrade());
             if (terminal) out.print("\r" + text + "      ");
             else out.println(text);
             out.flush();

@@ -8,6 +8,7 @@ import java.util.Locale;
 import java.util.concurrent.Callable;
 import java.util.ArrayList;
 import java.util.List;
+import net.zbin.app.report.Shown;
 import net.zbin.core.AlarmCode;
 import net.zbin.core.BinTally;
 import net.zbin.core.Decision;
@@ -134,8 +135,8 @@ public final class ReplayCommand implements Callable<Integer> {
     }
 
     static void printTable(PrintWriter out, BinTally.Snapshot s, Recipe recipe, long skipped) {
-        out.printf(Locale.ROOT, "recipe %s: %d parts finished, yield %.2f %% (%d presentations: %d parts + %d retests)%s%s%n",
-                recipe.name(), s.parts(), s.parts() == 0 ? 0.0 : s.yieldPct(), s.presentations(), s.parts(), s.retests(),
+        out.printf(Locale.ROOT, "recipe %s: %d parts finished, yield %s (%d presentations: %d parts + %d retests)%s%s%n",
+                recipe.name(), s.parts(), Shown.of("%.2f %%", s.yieldPct()), s.presentations(), s.parts(), s.retests(),
                 skipped > 0 ? ", " + skipped + " rows skipped" : "",
                 s.checks() > 0 ? ", " + s.checks() + " fixture-check rows not graded" : "");
         out.printf(Locale.ROOT, "  %4s  %-10s %-7s %10s %8s%n", "bin", "grade", "verdict", "parts", "share");

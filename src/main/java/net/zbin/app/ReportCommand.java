@@ -8,6 +8,7 @@ import java.util.Locale;
 import java.util.concurrent.Callable;
 import net.zbin.app.report.HtmlReport;
 import net.zbin.app.report.LotPlots;
+import net.zbin.app.report.Shown;
 import net.zbin.core.Grade;
 import net.zbin.core.GradingMode;
 import net.zbin.core.LineEngine;
@@ -89,10 +90,10 @@ public final class ReportCommand implements Callable<Integer> {
         double lsl = widest != null ? widest.lowPct() : recipe.grades().get(0).lowPct();
         double usl = widest != null ? widest.highPct() : recipe.grades().get(recipe.grades().size() - 1).highPct();
         h.table(List.of("graded parts", "deviation mean", "σ", "limits", "Cp", "Cpk"),
-                List.of(List.of(Long.toString(rec.graded()), String.format(Locale.ROOT, "%+.4f %%", rec.devMeanPct()),
-                        String.format(Locale.ROOT, "%.4f %%", rec.devSigmaPct()), String.format(Locale.ROOT, "%+.3g … %+.3g %%", lsl, usl),
-                        String.format(Locale.ROOT, "%.3g", net.zbin.core.Capability.cp(lsl, usl, rec.devSigmaPct())),
-                        String.format(Locale.ROOT, "%.3g", net.zbin.core.Capability.cpk(lsl, usl, rec.devMeanPct(), rec.devSigmaPct())))), 0);
+                List.of(List.of(Long.toString(rec.graded()), Shown.of("%+.4f %%", rec.devMeanPct()),
+                        Shown.of("%.4f %%", rec.devSigmaPct()), String.format(Locale.ROOT, "%+.3g … %+.3g %%", lsl, usl),
+                        Shown.of("%.3g", net.zbin.core.Capability.cp(lsl, usl, rec.devSigmaPct())),
+                        Shown.of("%.3g", net.zbin.core.Capability.cpk(lsl, usl, rec.devMeanPct(), rec.devSigmaPct())))), 0);
 
         h.heading("Alarms and acknowledgements");
         List<List<String>> al = new ArrayList<>();

@@ -2,6 +2,7 @@ package net.zbin.app;
 
 import java.io.PrintWriter;
 import java.util.Locale;
+import net.zbin.app.report.Shown;
 import net.zbin.sim.HandlerSim;
 
 /** The handler's end-of-lot table: bins with their grades, reasons, timing and answer quality, every count explained. */
@@ -9,8 +10,8 @@ final class Summaries {
     private Summaries() {}
 
     static void print(PrintWriter out, HandlerSim.Summary s) {
-        out.printf(Locale.ROOT, "%d parts finished of %d presented; yield %.2f %% (parts passed / parts finished)%n",
-                s.finished(), s.parts(), s.yieldPct());
+        out.printf(Locale.ROOT, "%d parts finished of %d presented; yield %s (parts passed / parts finished)%n",
+                s.finished(), s.parts(), Shown.of("%.2f %%", s.yieldPct()));
         out.printf(Locale.ROOT, "  %d triggers in all: %d part presentations (%d retests among them), %d fixture checks, %d deliberate "
                         + "repeats; %d triggers sent again for want of an answer%n",
                 s.triggers(), s.triggers() - (s.checksPassed() + s.checksFailed()) - s.deliberateRepeats(), s.retests(),

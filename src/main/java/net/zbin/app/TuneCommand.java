@@ -13,6 +13,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Optional;
 import java.util.concurrent.Callable;
+import net.zbin.app.report.Shown;
 import net.zbin.app.report.Worth;
 import net.zbin.core.BinTally;
 import net.zbin.core.Grade;
@@ -200,8 +201,8 @@ public final class TuneCommand implements Callable<Integer> {
     static String why(List<Tuner.Result> results, Optional<Tuner.Result> pick, double target, Worth worth) {
         if (pick.isEmpty()) return String.format(Locale.ROOT, "no setting keeps the false-accept risk at or below %.4g %%; widen the guard band or tighten the limits", target);
         Tuner.Result p = pick.get();
-        String s = String.format(Locale.ROOT, "recommended: %s — yield %.2f %%%s with %.4f %% false-accept risk (target ≤ %.4g %%) and %.4f %% false-reject risk",
-                p.label(), p.tally().yieldPct(), worth.weighted() ? String.format(Locale.ROOT, ", %s %.2f", worth.describe(), worth.of(p)) : "",
+        String s = String.format(Locale.ROOT, "recommended: %s — yield %s%s with %.4f %% false-accept risk (target ≤ %.4g %%) and %.4f %% false-reject risk",
+                p.label(), Shown.of("%.2f %%", p.tally().yieldPct()), worth.weighted() ? String.format(Locale.ROOT, ", %s %.2f", worth.describe(), worth.of(p)) : "",
                 p.falseAcceptPct(), target, p.falseRejectPct());
         Optional<Tuner.Result> better = results.stream().filter(Tuner.Result::valid).filter(x -> worth.of(x) > worth.of(p))
                 .min(Comparator.comparingDouble(Tuner.Result::falseAcceptPct));

@@ -45,8 +45,8 @@ public final class HtmlReport {
     /** The bins and reasons of a tally. */
     public HtmlReport summary(Recipe r, BinTally.Snapshot s) {
         b.append(String.format(Locale.ROOT, "<table><tr><th class=\"l\">recipe</th><td class=\"l\">%s</td></tr><tr><th class=\"l\">parts finished</th><td>%d</td></tr>"
-                        + "<tr><th class=\"l\">yield</th><td>%.2f %%</td></tr><tr><th class=\"l\">retests</th><td>%d</td></tr><tr><th class=\"l\">fixture checks</th><td>%d</td></tr></table>",
-                Svg.esc(r.name()), s.parts(), s.yieldPct(), s.retests(), s.checks()));
+                        + "<tr><th class=\"l\">yield</th><td>%s</td></tr><tr><th class=\"l\">retests</th><td>%d</td></tr><tr><th class=\"l\">fixture checks</th><td>%d</td></tr></table>",
+                Svg.esc(r.name()), s.parts(), Shown.of("%.2f %%", s.yieldPct()), s.retests(), s.checks()));
         b.append("<table><tr><th>bin</th><th class=\"l\">grade</th><th class=\"l\">verdict</th><th>parts</th><th>share</th></tr>");
         for (BinTally.BinCount c : s.bins())
             b.append(String.format(Locale.ROOT, "<tr><td>%d</td><td class=\"l\">%s</td><td class=\"l\">%s</td><td>%d</td><td>%.2f %%</td></tr>",
@@ -58,10 +58,10 @@ public final class HtmlReport {
     }
 
     public HtmlReport monitor(LineMonitor.Snapshot m) {
-        b.append(String.format(Locale.ROOT, "<table><tr><th class=\"l\">deviation mean</th><td>%+.4f %%</td></tr><tr><th class=\"l\">σ</th><td>%.4f %%</td></tr>"
-                        + "<tr><th class=\"l\">Cp / Cpk</th><td>%.3g / %.3g</td></tr><tr><th class=\"l\">value drift</th><td class=\"l\">%s</td></tr>"
+        b.append(String.format(Locale.ROOT, "<table><tr><th class=\"l\">deviation mean</th><td>%s</td></tr><tr><th class=\"l\">σ</th><td>%s</td></tr>"
+                        + "<tr><th class=\"l\">Cp / Cpk</th><td>%s / %s</td></tr><tr><th class=\"l\">value drift</th><td class=\"l\">%s</td></tr>"
                         + "<tr><th class=\"l\">%s drift</th><td class=\"l\">%s</td></tr></table>",
-                m.devMeanPct(), m.devSigmaPct(), m.cp(), m.cpk(), m.value().learning() ? "learning" : m.value().alarm() ? "ALARM" : "in control",
+                Shown.of("%+.4f %%", m.devMeanPct()), Shown.of("%.4f %%", m.devSigmaPct()), Shown.of("%.3g", m.cp()), Shown.of("%.3g", m.cpk()), m.value().learning() ? "learning" : m.value().alarm() ? "ALARM" : "in control",
                 Svg.esc(m.lossName()), m.loss().learning() ? "learning" : m.loss().alarm() ? "ALARM" : "in control"));
         if (!m.causeText().isEmpty()) para("Population check: " + m.causeText());
         return this;
