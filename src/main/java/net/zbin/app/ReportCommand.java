@@ -141,5 +141,5 @@ public final class ReportCommand implements Callable<Integer> {
         return Main.EXIT_OK;
     }
 
-    private static String pct(double v) { return Double.isFinite(v) ? String.format(Locale.ROOT, "%.2f %%", v) : "–"; }
+    private static String pct(double v) { return Shown.of("%.2f %%", v); }
 }

@@ -141,14 +141,14 @@ class ReplayCommandTest {
         Path html = dir.resolve("one.html");
         Cli c = Cli.run("replay", "--recipe", RECIPE, "--in", one.toString(), "--report", html.toString());
         assertEquals(0, c.exit(), c.err());
-        assertTrue(c.out().contains("σ —, Cp —, Cpk — over 1 graded parts"), c.out());
+        assertTrue(c.out().contains("σ –, Cp –, Cpk – over 1 graded parts"), c.out());
         assertTrue(!c.out().contains("NaN") && !Files.readString(html).contains("NaN"), c.out());
         // nothing finished at all: no yield either, in the summary line, the window's figures and the report
         Path none = dir.resolve("none.csv");
         Files.writeString(none, "freq_hz,r_ohm,x_ohm\n1000,NaN,-1591.5\n");
         Cli n = Cli.run("replay", "--recipe", RECIPE, "--in", none.toString(), "--report", html.toString());
         assertEquals(0, n.exit(), n.err());
-        assertTrue(n.out().contains("0 parts finished, yield — (1 presentations") && n.out().contains("presentations: yield —, retests 100.00 %"), n.out());
+        assertTrue(n.out().contains("0 parts finished, yield – (1 presentations") && n.out().contains("presentations: yield –, retests 100.00 %"), n.out());
         assertTrue(!n.out().contains("NaN") && !Files.readString(html).contains("NaN"), n.out());
     }
 }
