@@ -262,16 +262,19 @@ class LineBench {
                 // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
                 // seconds, so each figure and its floor are taken over the same stretch of time.
                 Histogram line = new Histogram(60_000_000_000L, 3);
+                // each phase's own floor blocks too, so a phase slower than another can be told from a machine slower then
+                Histogram[] lineFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
+                Histogram[] lotsFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
                 int block = SAMPLES / ROUNDS;
                 for (int r = 0; r < ROUNDS; r++) {
-                    floor.block(block);
+                    floor.block(block, lineFloor[0], lineFloor[1]);
                     line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block, PACE, 100_000 + r * block));
                 }
                 // A lot change every 1 000 parts at the handler's pace (a floor block between lots): every decision, and
                 // the first of each new lot.
                 Histogram lots = new Histogram(60_000_000_000L, 3), firstOfLot = new Histogram(60_000_000_000L, 3);
                 for (int k = 0; k < LOTS; k++) {
-                    floor.block(block);
+                    floor.block(block, lotsFloor[0], lotsFloor[1]);
                     String lotPart = ", \"part\": \"L" + k + "\", \"lot\": \"BENCH-LOT-" + k + "\"";
                     Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 300_000 + k * 10_000L);
                     firstOfLot.add(first1);
@@ -295,6 +298,8 @@ class LineBench {
                 out.put("floor_p99_ms", floorP99);
                 out.set("line_at_" + PACE + "_per_s", json(line));
                 out.set("lot_change_every_1000_at_" + PACE + "_per_s", json(lots));
+                out.put("floor_p50_ms_of_the_line_blocks", BenchFloor.ms(lineFloor[0], lineFloor[1], 50));
+                out.put("floor_p50_ms_of_the_lot_change_blocks", BenchFloor.ms(lotsFloor[0], lotsFloor[1], 50));
                 ObjectNode fl = json(firstOfLot);
                 fl.put("lots", firstOfLot.getTotalCount());
                 fl.put("within_floor_p99", count(firstOfLot, floorP99));
@@ -314,6 +319,8 @@ class LineBench {
                 }
                 System.out.printf(Locale.ROOT, "  floor (echo + meter): p50 %.3f ms, p99 %.3f ms; targets p50 <= %.3f, p99 <= %.3f%n", floorP50, floorP99,
                         floorP50 + 0.2, 1.5 * floorP99);
+                System.out.printf(Locale.ROOT, "  the floor's p50 in the line's phase %.3f ms, in the lot changes' %.3f ms (the targets use the whole run's)%n",
+                        BenchFloor.ms(lineFloor[0], lineFloor[1], 50), BenchFloor.ms(lotsFloor[0], lotsFloor[1], 50));
                 System.out.printf(Locale.ROOT, "  within the floor's p99: %d of %d lots' first decisions, %d of %d of the rest of the short lots%n",
                         count(firstOfLot, floorP99), firstOfLot.getTotalCount(), count(shortRest, floorP99), shortRest.getTotalCount());
 
