@@ -29,7 +29,7 @@ import org.junit.jupiter.api.io.TempDir;
  * block after each start, and, as the reference a warm line sets on the same machine, {@value #WARM} more decisions after
  * {@link #SETTLE} (400) unmeasured ones. A JVM that already ran the daemon's code (as the other benches' does) would hide a
  * cold path; a fresh process cannot. The daemon starts as the systemd unit starts it: with the unit's {@code java} options (its heap
- * bound; {@code zbin run} itself puts the compiler threads under {@code SCHED_IDLE} at ready), {@code -jar} and a class-data archive that the first start after an update
+ * bound; {@code zbin run} itself sets its compiler threads to nice 19 at ready), {@code -jar} and a class-data archive that the first start after an update
  * writes when it stops (here: one unmeasured start that decides 100 parts).
  * {@code -Dzbin.bench.daemon.start=jar} starts it from the jar without an archive, {@code =classes} from the build's class
  * folders and jars. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows} (30 000)

@@ -135,7 +135,7 @@ public final class Daemon implements AutoCloseable {
     public Topics topics() { return topics; }
 
     /**
-     * Asks {@link #start} to put this JVM's compiler threads under {@code SCHED_IDLE} just before the line says ready (see
+     * Asks {@link #start} to set this JVM's compiler threads to nice 19 just before the line says ready (see
      * {@link CompilerThreads}): for a process that is the line's own ({@code zbin run}), not a JVM that hosts other work.
      */
     public Daemon compilerYieldsAtReady() {
@@ -228,7 +228,7 @@ public final class Daemon implements AutoCloseable {
             readings = r.readings();
         }
         warming.join();
-        if (compilerYieldsAtReady) CompilerThreads.yieldToParts();
+        if (compilerYieldsAtReady) CompilerThreads.lower(19);
         synchronized (startLock) {
             warm = true;
             if (subscribed) mode.announce();
