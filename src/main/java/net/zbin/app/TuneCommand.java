@@ -225,7 +225,7 @@ public final class TuneCommand implements Callable<Integer> {
             }
             StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "  %-30s", x.label()));
             for (Object v : worth.cells(x))
-                line.append(v instanceof Double d ? String.format(Locale.ROOT, " %9.4f", d) : String.format(Locale.ROOT, " %9s", v));
+                line.append(String.format(Locale.ROOT, " %9s", v instanceof Double d ? Shown.of("%.4f", d) : v));
             out.println(line);
         }
     }

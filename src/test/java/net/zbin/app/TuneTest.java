@@ -221,4 +221,16 @@ class TuneTest {
             assertEquals(fr[0], fr[i], 0.01 * fr[0] + 1e-9, "false reject, " + specs[i] + " vs " + specs[0]);
         }
     }
+
+    @Test
+    void aLotWithNoFinishedPart_showsDashesInTheTable_neverNaN() throws Exception {
+        // one non-finite reading: a retest, no part finished, so no yield and no risk for any setting
+        Path none = dir.resolve("none.csv"), html = dir.resolve("none.html");
+        java.nio.file.Files.writeString(none, "freq_hz,r_ohm,x_ohm\n1000,NaN,-1591.5\n");
+        Cli c = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", none.toString(), "--vary", "guard=0,0.5",
+                "--report", html.toString());
+        assertEquals(0, c.exit(), c.err());
+        assertTrue(c.out().lines().anyMatch(l -> l.trim().startsWith("guard=0.5") && l.contains(" – ")), c.out());
+        assertTrue(!c.out().contains("NaN") && !java.nio.file.Files.readString(html).contains("NaN"), c.out());
+    }
 }

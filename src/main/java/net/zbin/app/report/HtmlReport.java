@@ -194,7 +194,7 @@ public final class HtmlReport {
                 continue;
             }
             for (Object v : worth.cells(r))
-                b.append("<td>").append(v instanceof Double d ? String.format(Locale.ROOT, "%.4f", d) : Svg.esc(String.valueOf(v))).append("</td>");
+                b.append("<td>").append(v instanceof Double d ? Shown.of("%.4f", d) : Svg.esc(String.valueOf(v))).append("</td>");
             b.append("</tr>");
         }
         b.append("</table>");
