@@ -143,7 +143,7 @@ public final class TuneCommand implements Callable<Integer> {
                         .thenComparingDouble(x -> -x.falseRejectPct()));
         PrintWriter out = spec.commandLine().getOut();
         // What re-measuring near a limit gains on this lot, when the recipe splits U into its repeatability part
-        List<net.zbin.core.RemeasureGain> gains = model != null && recipe.guard().repeatabilityPct() > 0
+        List<net.zbin.core.RemeasureGain> gains = model != null && model.estimated() && recipe.guard().repeatabilityPct() > 0
                 ? net.zbin.core.RemeasureGain.estimate(recipe, model, u, Math.max(3, recipe.remeasure().maxReadings()), 1) : List.of();
         if (json) {
             ObjectNode n = toJson(recipe, results, pick, u, model, worth);
@@ -176,11 +176,11 @@ public final class TuneCommand implements Callable<Integer> {
         if (csv != null) try (Writer w = Files.newBufferedWriter(csv)) {
             writeCsv(w, recipe, results, worth);
         }
-        if (targetFalseAccept != null && !json) out.println(why(results, pick, targetFalseAccept, worth));
+        if (targetFalseAccept != null && !json) out.println(why(results, pick, targetFalseAccept, worth, model));
         if (reading.report != null) {
             var h = new net.zbin.app.report.HtmlReport("zbin tune: " + recipe.name() + " on " + (in != null ? in.getFileName().toString() : reading.inputName(in)))
                     .para("Sweeps: " + String.join(" and ", vary) + ". " + riskText(u, model));
-            if (targetFalseAccept != null) h.para(why(results, pick, targetFalseAccept, worth));
+            if (targetFalseAccept != null) h.para(why(results, pick, targetFalseAccept, worth, model));
             h.heading("Yield and risk against the setting").tuneCurves(results, sweeps, pick.orElse(null), targetFalseAccept, recipe.partType().unit())
                     .heading("Every setting").tuneTable(worth, results)
                     .heading("The lot under the recipe as it stands").summary(recipe, baseTally.snapshot())
@@ -193,12 +193,14 @@ public final class TuneCommand implements Callable<Integer> {
     /** What the risk figures are, for the table's head and the report. */
     static String riskText(double u, net.zbin.core.RiskModel model) {
         if (model == null) return "No risk figures: no uncertainty given.";
+        if (!model.estimated()) return "No risk figures: " + model.describe() + ".";
         return String.format(Locale.ROOT, "Risk: the lot's global consumer's (false accept) and producer's (false reject) risk of JCGM 106:2012 §9.5,"
                 + " in %% of the parts finished, with U = %.4g %% of reading (k = 2) and the %s; the value's uncertainty only"
                 + " (D, Q and ESR are taken as read).", u, model.describe());
     }
 
-    static String why(List<Tuner.Result> results, Optional<Tuner.Result> pick, double target, Worth worth) {
+    static String why(List<Tuner.Result> results, Optional<Tuner.Result> pick, double target, Worth worth, net.zbin.core.RiskModel model) {
+        if (model != null && !model.estimated()) return "no recommendation: no risk figures (" + model.describe() + ")";
         if (pick.isEmpty()) return String.format(Locale.ROOT, "no setting keeps the false-accept risk at or below %.4g %%; widen the guard band or tighten the limits", target);
         Tuner.Result p = pick.get();
         String s = String.format(Locale.ROOT, "recommended: %s — yield %s%s with %.4f %% false-accept risk (target ≤ %.4g %%) and %.4f %% false-reject risk",
@@ -241,6 +243,8 @@ public final class TuneCommand implements Callable<Integer> {
             Json.num(m, "process_sigma_pct", model.processSigmaPct());
             Json.num(m, "u_pct", model.uPct());
             m.put("process_resolved", model.resolved());
+            m.put("graded_parts", model.parts());
+            m.put("process_estimated", model.estimated());
         }
         ArrayNode arr = n.putArray("settings");
         for (Tuner.Result x : results) {

@@ -34,6 +34,7 @@ public record RemeasureGain(int maxReadings, double falseRejectPct, double false
      */
     public static List<RemeasureGain> estimate(Recipe r, RiskModel process, double uncertaintyPct, int upTo, long seed) {
         if (upTo < 1 || upTo > 16) throw new IllegalArgumentException("readings must be 1..16 (was " + upTo + ")");
+        if (!process.estimated()) throw new IllegalArgumentException("process: " + process.describe());
         double ur = Math.min(uncertaintyPct, r.guard().repeatabilityPct());
         double sigmaR = ur / 2, sigmaS = Math.sqrt(Math.max(0, uncertaintyPct * uncertaintyPct - ur * ur)) / 2;
         double near = r.remeasure().on() ? r.remeasure().nearPct() : uncertaintyPct;

@@ -21,9 +21,24 @@ package net.zbin.core;
  * @param processMeanPct  μp, % of nominal
  * @param processSigmaPct σp, % of nominal
  * @param uPct            the standard uncertainty u = U/2, % of nominal
+ * <p>A lot with fewer than {@link #LEAST_PARTS} parts graded by value has no spread to estimate: its model is not
+ * {@link #estimated()}, μp and σp are NaN, and every risk figure under it has no value (rather than one computed from
+ * an invented process).
+ *
  * @param resolved        false when the lot's spread is no wider than the measurement's (σp floored)
+ * @param parts           the lot's parts graded by value the process was estimated from
  */
-public record RiskModel(double processMeanPct, double processSigmaPct, double uPct, boolean resolved) {
+public record RiskModel(double processMeanPct, double processSigmaPct, double uPct, boolean resolved, int parts) {
+    /** Fewest parts graded by value that give a process estimate: a mean and a spread. */
+    public static final int LEAST_PARTS = 2;
+
+    public RiskModel {
+        if (parts < 0) throw new IllegalArgumentException("parts: " + parts + " is below 0");
+    }
+
+    /** Whether the lot had parts enough for a process estimate; without one, no risk figure has a value. */
+    public boolean estimated() { return parts >= LEAST_PARTS; }
+
     /** The posterior's weight on the reading, ρ = σp²/(σp² + u²). */
     public double rho() { return processSigmaPct * processSigmaPct / (processSigmaPct * processSigmaPct + uPct * uPct); }
 
@@ -54,16 +69,19 @@ public record RiskModel(double processMeanPct, double processSigmaPct, double uP
         RunningStats st = new RunningStats();
         for (int i = 0; i < n; i++) st.add(devs[i]);
         double u = uncertaintyPct / 2;
-        if (st.count() < 2) return new RiskModel(st.count() == 1 ? st.mean() : 0, u, u, false);
+        int parts = (int) st.count();
+        if (parts < LEAST_PARTS) return new RiskModel(Double.NaN, Double.NaN, u, false, parts);
         double s2 = st.variance(), p2 = s2 - u * u;
         boolean resolved = p2 > 1e-6 * s2;
-        return new RiskModel(st.mean(), Math.sqrt(resolved ? p2 : 1e-6 * s2 + 1e-300), u, resolved);
+        return new RiskModel(st.mean(), Math.sqrt(resolved ? p2 : 1e-6 * s2 + 1e-300), u, resolved, parts);
     }
 
     /** One line for people. */
     public String describe() {
-        return String.format(java.util.Locale.ROOT, "process N(%+.4g %%, σ %.4g %%) from the lot (σ of the readings minus u = %.4g %%)%s",
-                processMeanPct, processSigmaPct, uPct, resolved ? "" : "; the lot's spread is no wider than the measurement's: risks are"
-                        + " those of a process at its mean");
+        if (!estimated()) return String.format(java.util.Locale.ROOT, "no process estimate: the lot has %d part%s graded by value, and a mean"
+                + " and a spread need %d at least", parts, parts == 1 ? "" : "s", LEAST_PARTS);
+        return String.format(java.util.Locale.ROOT, "process N(%+.4g %%, σ %.4g %%) from the lot's %d parts graded by value (σ of the readings"
+                + " minus u = %.4g %%)%s", processMeanPct, processSigmaPct, parts, uPct, resolved ? ""
+                : "; the lot's spread is no wider than the measurement's: risks are those of a process at its mean");
     }
 }

@@ -246,7 +246,7 @@ public final class Tuner {
         }
 
         double[] risk(Recipe r, double u) {
-            if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+            if (!(u > 0) || !model(u).estimated()) return new double[] {Double.NaN, Double.NaN};
             if (bins == null) bins = bin(devs, width(model(u)));
             double[] out = Tuner.risk(r, devs, bins, model(u));
             for (RecordedReading m : means) { // a mean's risk under the uncertainty of a mean of its readings
@@ -350,10 +350,10 @@ public final class Tuner {
             faPrefix = new double[n + 1];
             frPrefix = new double[n + 1];
             double[] fa = new double[n], fr = new double[n];
-            if (u > 0) {
+            if (u > 0) model = RiskModel.fromLot(process.a, process.n, u);
+            if (u > 0 && model.estimated()) {
                 // The process is the lot's as the recipe without the swept gate grades it; each row's risk is that of
                 // its own reading under that prior.
-                model = RiskModel.fromLot(process.a, process.n, u);
                 double[][] one = new double[2][1];
                 for (int i = 0; i < n; i++) {
                     if (Double.isNaN(devCol.a[i])) continue;
@@ -405,7 +405,7 @@ public final class Tuner {
         }
 
         double[] risk(double v) {
-            if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+            if (!(u > 0) || !model.estimated()) return new double[] {Double.NaN, Double.NaN};
             int p = passing(v);
             return new double[] {faPrefix[p], frPrefix[p]};
         }
@@ -416,6 +416,7 @@ public final class Tuner {
         if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
         double[] devs = devsAndProcess[0], process = devsAndProcess[1];
         RiskModel m = RiskModel.fromLot(process, process.length, u);
+        if (!m.estimated()) return new double[] {Double.NaN, Double.NaN};
         return risk(r, devs, bin(devs, width(m)), m);
     }
 
@@ -425,6 +426,7 @@ public final class Tuner {
      * the figure is the row-by-row sum up to the posterior's curvature within a bin, on every path alike.
      */
     static double[] risk(Recipe r, double[] devs, double[][] bins, RiskModel m) {
+        if (!m.estimated()) return new double[] {Double.NaN, Double.NaN};
         if (bins[0].length == 0) return new double[] {0, 0};
         double[] out = new double[2];
         for (int b = 0; b < bins[0].length; b++) {

@@ -233,4 +233,42 @@ class TuneTest {
         assertTrue(c.out().lines().anyMatch(l -> l.trim().startsWith("guard=0.5") && l.contains(" – ")), c.out());
         assertTrue(!c.out().contains("NaN") && !java.nio.file.Files.readString(html).contains("NaN"), c.out());
     }
+
+    @Test
+    void aLotOfOneGradedPart_hasNoRiskFigures_onEveryPath_andNoRecommendation() throws Exception {
+        // one part has no spread: a risk computed for it would come from a process the lot never showed
+        Recipe mlcc = RecipeLoader.load(Path.of("config/recipes/mlcc-x7r-100n.yaml"));
+        Path one = dir.resolve("one.csv");
+        java.nio.file.Files.writeString(one, "freq_hz,r_ohm,x_ohm\n1000,15.9,-1591.5\n");
+        List<RecordedReading> rows = rows(one);
+        // the three ways tune counts a setting: by value bands (guard), along a gate (d_max), by replaying it (nominal)
+        for (String sweep : List.of("guard=0,0.5", "d_max=0.02,0.05", "nominal=99n,100n")) {
+            Tuner tuner = new Tuner(mlcc, List.of(Sweep.parse(sweep, mlcc.partType())), 0.5);
+            rows.forEach(tuner::add);
+            for (Tuner.Result r : tuner.results()) {
+                assertEquals(1, r.tally().parts(), sweep);
+                assertTrue(Double.isNaN(r.falseAcceptPct()) && Double.isNaN(r.falseRejectPct()), sweep + ": " + r);
+            }
+            assertTrue(!tuner.model().estimated() && tuner.model().parts() == 1, sweep + ": " + tuner.model());
+        }
+        Cli c = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", one.toString(), "--vary", "guard=0,0.5",
+                "--uncertainty-pct", "0.5", "--target-false-accept", "0.01");
+        assertEquals(0, c.exit(), c.err());
+        assertTrue(c.out().contains("No risk figures: no process estimate: the lot has 1 part graded by value"), c.out());
+        assertTrue(c.out().contains("no recommendation: no risk figures"), c.out());
+        assertTrue(!c.out().contains("N(") && !c.out().contains("NaN"), c.out());
+        Cli j = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n.yaml", "--in", one.toString(), "--vary", "guard=0,0.5",
+                "--uncertainty-pct", "0.5", "--json");
+        assertEquals(0, j.exit(), j.err());
+        var n = net.zbin.io.Json.mapper().readTree(j.out());
+        assertEquals(false, n.path("risk_model").path("process_estimated").asBoolean(true), j.out());
+        assertEquals(1, n.path("risk_model").path("graded_parts").asInt(), j.out());
+        assertTrue(n.path("settings").get(0).path("false_accept_pct").isNull(), j.out());
+        // two parts are a lot with a spread: figures again
+        java.nio.file.Files.writeString(one, "freq_hz,r_ohm,x_ohm\n1000,15.9,-1591.5\n1000,15.9,-1560.0\n");
+        Tuner two = new Tuner(mlcc, List.of(Sweep.parse("guard=0,0.5", mlcc.partType())), 0.5);
+        rows(one).forEach(two::add);
+        assertTrue(two.model().estimated() && two.model().parts() == 2, two.model().toString());
+        assertTrue(Double.isFinite(two.results().get(0).falseAcceptPct()), two.results().toString());
+    }
 }

@@ -38,7 +38,7 @@ class RemeasureGainTest {
 
     @Test
     void reReadingNearALimit_keepsGoodPartsInTheirGrade_andAcceptsNoMoreWrongly() {
-        RiskModel process = new RiskModel(1, 4.5, 0.15, true);
+        RiskModel process = new RiskModel(1, 4.5, 0.15, true, 10_000);
         List<RemeasureGain> g = RemeasureGain.estimate(recipe(0.25), process, 0.3, 3, 11);
         System.out.println(g);
         assertTrue(g.get(2).downgradedPct() < g.get(0).downgradedPct() * 0.85, "fewer parts below the grade they earn: " + g);
@@ -49,7 +49,7 @@ class RemeasureGainTest {
     @Test
     void withoutARepeatabilityPart_moreReadingsChangeNothing() {
         // the same systematic error in every reading: their mean is the first reading, and U of the mean is U
-        RiskModel process = new RiskModel(1, 4.5, 0.15, true);
+        RiskModel process = new RiskModel(1, 4.5, 0.15, true, 10_000);
         List<RemeasureGain> g = RemeasureGain.estimate(recipe(0), process, 0.3, 3, 11);
         assertEquals(g.get(0).falseAcceptPct(), g.get(2).falseAcceptPct(), 0);
         assertEquals(g.get(0).downgradedPct(), g.get(2).downgradedPct(), 0);
