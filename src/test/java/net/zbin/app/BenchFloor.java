@@ -22,6 +22,12 @@ import org.eclipse.paho.client.mqttv3.MqttMessage;
  */
 final class BenchFloor implements AutoCloseable {
     final Histogram echo = new Histogram(60_000_000_000L, 3), meter = new Histogram(60_000_000_000L, 3);
+    /**
+     * The first echo and the first meter exchange of each block, also in {@link #echo} and {@link #meter}: each comes
+     * after seconds in which that client sent nothing (the line's block, or the other half of the floor's), as the
+     * line's first decision after a pause does.
+     */
+    final Histogram firstEcho = new Histogram(60_000_000_000L, 3), firstMeter = new Histogram(60_000_000_000L, 3);
     private final MqttAsyncClient responder, requester;
     private final Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
     private Socket meterSocket;
@@ -67,10 +73,14 @@ final class BenchFloor implements AutoCloseable {
 
     /** One block recorded here and also in {@code echoToo} and {@code meterToo} (when not null). */
     void block(int n, Histogram echoToo, Histogram meterToo) throws Exception {
-        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", n, LineBench.PACE, seq);
+        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", 1, LineBench.PACE, seq);
+        firstEcho.add(e);
+        e.add(LineBench.paced(requester, waiting, "bench/req", "", n - 1, LineBench.PACE, seq + 1));
         seq += n;
         Histogram m = new Histogram(60_000_000_000L, 3);
-        LineBench.meterExchanges(meterOut, meterIn, n, LineBench.PACE, m);
+        LineBench.meterExchanges(meterOut, meterIn, 1, LineBench.PACE, m);
+        firstMeter.add(m);
+        LineBench.meterExchanges(meterOut, meterIn, n - 1, LineBench.PACE, m);
         echo.add(e);
         meter.add(m);
         if (echoToo != null) echoToo.add(e);

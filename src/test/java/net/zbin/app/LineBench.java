@@ -33,7 +33,9 @@ import org.junit.jupiter.api.io.TempDir;
  * The line end to end through a Mosquitto it starts itself, side by side with its floor in the same run:
  * trigger → decision latency at a handler's pace against a bare MQTT echo through the same broker plus
  * one request/response with the meter simulator at zero measurement time; the first decision of each of 45 lots
- * (5 of 1 000 parts, 40 of 100) against the floor's p99 (the first decisions after a start: {@link FreshStartBench});
+ * (5 of 1 000 parts, 40 of 100) against the floor's p99, also apart: those that come after a pause (a floor block) and
+ * those in a running line, beside the first decision after a pause in the same lot (the first decisions after a start:
+ * {@link FreshStartBench});
  * and open-loop rates (3 000/s for 60 s, the others for 10 s: {@code -Dzbin.bench.long.seconds}, {@code -Dzbin.bench.seconds}) with
  * lost and duplicated decisions counted and the cores each part of the rig used. The line and its floor
  * ({@link BenchFloor}) are measured in alternating blocks of the same run, so a shared machine's changing load weighs
@@ -262,13 +264,22 @@ class LineBench {
                 // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
                 // seconds, so each figure and its floor are taken over the same stretch of time.
                 Histogram line = new Histogram(60_000_000_000L, 3);
+                // The first decision after a floor block (seconds without a part), apart from the rest: the line's blocks
+                // start so (same lot), and so do the long lots and every tenth short lot (a new lot). A lot change after a
+                // pause is the common case on a line (a reel change), but so is the cost of a pause alone; told apart, the
+                // first decision of a lot in a running line is the lot change's own.
+                Histogram afterPause = new Histogram(60_000_000_000L, 3), lotAfterPause = new Histogram(60_000_000_000L, 3),
+                        lotRunning = new Histogram(60_000_000_000L, 3);
                 // each phase's own floor blocks too, so a phase slower than another can be told from a machine slower then
                 Histogram[] lineFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
                 Histogram[] lotsFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
                 int block = SAMPLES / ROUNDS;
                 for (int r = 0; r < ROUNDS; r++) {
                     floor.block(block, lineFloor[0], lineFloor[1]);
-                    line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block, PACE, 100_000 + r * block));
+                    Histogram firstOfBlock = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", 1, PACE, 100_000 + r * block);
+                    afterPause.add(firstOfBlock);
+                    line.add(firstOfBlock);
+                    line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block - 1, PACE, 100_000 + r * block + 1));
                 }
                 // A lot change every 1 000 parts at the handler's pace (a floor block between lots): every decision, and
                 // the first of each new lot.
@@ -278,6 +289,7 @@ class LineBench {
                     String lotPart = ", \"part\": \"L" + k + "\", \"lot\": \"BENCH-LOT-" + k + "\"";
                     Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 300_000 + k * 10_000L);
                     firstOfLot.add(first1);
+                    lotAfterPause.add(first1);
                     lots.add(first1);
                     lots.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, 999, PACE, 300_001 + k * 10_000L));
                 }
@@ -287,7 +299,9 @@ class LineBench {
                 for (int k = 0; k < SHORT_LOTS; k++) {
                     if (k % 10 == 0) floor.block(block / 2);
                     String lotPart = ", \"part\": \"L" + (LOTS + k) + "\", \"lot\": \"BENCH-SHORT-" + k + "\"";
-                    firstOfLot.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 500_000 + k * 10_000L));
+                    Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 500_000 + k * 10_000L);
+                    firstOfLot.add(first1);
+                    (k % 10 == 0 ? lotAfterPause : lotRunning).add(first1);
                     shortRest.add(paced(handler, waiting, "zbin/bench/trigger", lotPart, SHORT_LOT - 1, PACE, 500_001 + k * 10_000L));
                 }
                 double floorP50 = floor.ms(50), floorP99 = floor.ms(99);
@@ -304,6 +318,16 @@ class LineBench {
                 fl.put("lots", firstOfLot.getTotalCount());
                 fl.put("within_floor_p99", count(firstOfLot, floorP99));
                 out.set("first_decision_of_a_lot", fl);
+                out.set("floor_first_echo_after_a_pause", json(floor.firstEcho));
+                out.set("floor_first_meter_exchange_after_a_pause", json(floor.firstMeter));
+                for (var e : new Object[][] {{"first_decision_of_a_lot_after_a_pause", lotAfterPause}, {"first_decision_of_a_lot_in_a_running_line", lotRunning},
+                        {"first_decision_after_a_pause_same_lot", afterPause}}) {
+                    Histogram h = (Histogram) e[1];
+                    ObjectNode o = json(h);
+                    o.put("decisions", h.getTotalCount());
+                    o.put("within_floor_p99", count(h, floorP99));
+                    out.set((String) e[0], o);
+                }
                 out.set("rest_of_the_short_lots", json(shortRest));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
@@ -323,6 +347,13 @@ class LineBench {
                         BenchFloor.ms(lineFloor[0], lineFloor[1], 50), BenchFloor.ms(lotsFloor[0], lotsFloor[1], 50));
                 System.out.printf(Locale.ROOT, "  within the floor's p99: %d of %d lots' first decisions, %d of %d of the rest of the short lots%n",
                         count(firstOfLot, floorP99), firstOfLot.getTotalCount(), count(shortRest, floorP99), shortRest.getTotalCount());
+                System.out.printf(Locale.ROOT, "    of the lots' first decisions: after a pause (a floor block) %d of %d, in a running line %d of %d;"
+                        + " the first after a pause in the same lot (the line's blocks) %d of %d (p50 %.3f ms, max %.3f)%n",
+                        count(lotAfterPause, floorP99), lotAfterPause.getTotalCount(), count(lotRunning, floorP99), lotRunning.getTotalCount(),
+                        count(afterPause, floorP99), afterPause.getTotalCount(), afterPause.getValueAtPercentile(50) / 1e6, afterPause.getMaxValue() / 1e6);
+                System.out.printf(Locale.ROOT, "    the floor's own first exchange after a pause (echo + meter, %d blocks): p50 %.3f ms, max %.3f ms%n",
+                        floor.firstEcho.getTotalCount(), BenchFloor.ms(floor.firstEcho, floor.firstMeter, 50),
+                        (floor.firstEcho.getMaxValue() + floor.firstMeter.getMaxValue()) / 1e6);
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
