@@ -264,11 +264,18 @@ class TuneTest {
         assertEquals(false, n.path("risk_model").path("process_estimated").asBoolean(true), j.out());
         assertEquals(1, n.path("risk_model").path("graded_parts").asInt(), j.out());
         assertTrue(n.path("settings").get(0).path("false_accept_pct").isNull(), j.out());
+        // a recipe that splits U: no re-measuring estimate either (it would simulate the process the lot does not have)
+        Cli g = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n-remeasure.yaml", "--in", one.toString(), "--vary", "guard=0,0.5", "--json");
+        assertEquals(0, g.exit(), g.err());
+        assertTrue(net.zbin.io.Json.mapper().readTree(g.out()).path("remeasure_gain").isMissingNode(), g.out());
         // two parts are a lot with a spread: figures again
         java.nio.file.Files.writeString(one, "freq_hz,r_ohm,x_ohm\n1000,15.9,-1591.5\n1000,15.9,-1560.0\n");
         Tuner two = new Tuner(mlcc, List.of(Sweep.parse("guard=0,0.5", mlcc.partType())), 0.5);
         rows(one).forEach(two::add);
         assertTrue(two.model().estimated() && two.model().parts() == 2, two.model().toString());
         assertTrue(Double.isFinite(two.results().get(0).falseAcceptPct()), two.results().toString());
+        Cli g2 = Cli.run("tune", "--recipe", "config/recipes/mlcc-x7r-100n-remeasure.yaml", "--in", one.toString(), "--vary", "guard=0,0.5", "--json");
+        assertEquals(0, g2.exit(), g2.err());
+        assertTrue(net.zbin.io.Json.mapper().readTree(g2.out()).path("remeasure_gain").isArray(), g2.out());
     }
 }
