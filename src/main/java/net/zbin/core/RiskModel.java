@@ -18,13 +18,13 @@ package net.zbin.core;
  * not), u is the same for every part (U in % of the nominal), readings are unbiased, and only the value is
  * uncertain (D, Q, ESR are taken as read).
  *
- * @param processMeanPct  μp, % of nominal
- * @param processSigmaPct σp, % of nominal
- * @param uPct            the standard uncertainty u = U/2, % of nominal
  * <p>A lot with fewer than {@link #LEAST_PARTS} parts graded by value has no spread to estimate: its model is not
  * {@link #estimated()}, μp and σp are NaN, and every risk figure under it has no value (rather than one computed from
  * an invented process).
  *
+ * @param processMeanPct  μp, % of nominal
+ * @param processSigmaPct σp, % of nominal
+ * @param uPct            the standard uncertainty u = U/2, % of nominal
  * @param resolved        false when the lot's spread is no wider than the measurement's (σp floored)
  * @param parts           the lot's parts graded by value the process was estimated from
  */

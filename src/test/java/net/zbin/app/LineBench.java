@@ -265,9 +265,9 @@ class LineBench {
                 // seconds, so each figure and its floor are taken over the same stretch of time.
                 Histogram line = new Histogram(60_000_000_000L, 3);
                 // The first decision after a floor block (seconds without a part), apart from the rest: the line's blocks
-                // start so (same lot), and so do the long lots and every tenth short lot (a new lot). A lot change after a
-                // pause is the common case on a line (a reel change), but so is the cost of a pause alone; told apart, the
-                // first decision of a lot in a running line is the lot change's own.
+                // start so (same lot), and so do the long lots and every tenth short lot (a new lot). On a line a lot change
+                // often follows a stop (a reel change); told apart, what a lot change costs in a running line shows beside
+                // what a pause costs.
                 Histogram afterPause = new Histogram(60_000_000_000L, 3), lotAfterPause = new Histogram(60_000_000_000L, 3),
                         lotRunning = new Histogram(60_000_000_000L, 3);
                 // each phase's own floor blocks too, so a phase slower than another can be told from a machine slower then
