@@ -22,7 +22,11 @@ final class DecisionBook {
     /** A presentation to measure; {@code reusedSeq} when its seq was decided before for another presentation. */
     record Fresh(boolean reusedSeq) implements Lookup {}
 
-    private record Entry(Decision decision, long atMs) {}
+    /**
+     * @param answeredNanos when its answer went out (System.nanoTime), meaningful only when {@code answerTimed}: a
+     *                      decision read back from the record log was answered by an earlier process
+     */
+    private record Entry(Decision decision, long atMs, long answeredNanos, boolean answerTimed) {}
 
     private final long windowMs;
     private final Map<Long, Entry> bySeq;
@@ -52,13 +56,23 @@ final class DecisionBook {
         return true;
     }
 
-    Lookup find(Trigger t, String lotId, long nowMs) {
+    /** {@link #find(Trigger, String, long, long)} for a trigger that came after every answer in the book. */
+    Lookup find(Trigger t, String lotId, long nowMs) { return find(t, lotId, nowMs, 0, false); }
+
+    /** @param arrivedNanos when the trigger came (System.nanoTime, as the line stamps it) */
+    Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) { return find(t, lotId, nowMs, arrivedNanos, true); }
+
+    private Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos, boolean arrivalTimed) {
         Entry e = bySeq.get(t.seq());
         if (e == null) return new Fresh(false);
         Decision d = e.decision();
         boolean same = d.part().equals(t.part()) && d.lot().equals(lotId) && d.kind() == t.kind() && nowMs - e.atMs() <= windowMs;
-        // A part that was not measured (line paused, faulted, busy) is measured when its trigger comes again.
-        if (same && d.grading().reason().kind() == net.zbin.core.Reason.Kind.NOT_MEASURED) return new Fresh(false);
+        // A part that was not measured (line paused, faulted, busy, a stale trigger) is measured when its trigger comes
+        // again — unless this trigger came before that answer went out: the handler sent it again without having heard
+        // the answer (its patience ran out while the line was late), acts on that answer, and gets it again. Measured, it
+        // would give the presentation a second, contradicting answer and a graded row the handler never acted on.
+        if (same && d.grading().reason().kind() == net.zbin.core.Reason.Kind.NOT_MEASURED)
+            return arrivalTimed && e.answerTimed() && arrivedNanos - e.answeredNanos() < 0 ? new Repeat(d) : new Fresh(false);
         if (same) return new Repeat(d);
         reused++;
         return new Fresh(true);
@@ -73,9 +87,15 @@ final class DecisionBook {
         return e.decision().attempt() + (measured ? 1 : 0); // a presentation not measured does not count against the limit
     }
 
-    void put(Decision d, long atMs) {
+    /** A decision whose answer went out at an unknown time (read back from the record log). */
+    void put(Decision d, long atMs) { put(d, atMs, 0, false); }
+
+    /** @param answeredNanos when its answer went out (System.nanoTime) */
+    void put(Decision d, long atMs, long answeredNanos) { put(d, atMs, answeredNanos, true); }
+
+    private void put(Decision d, long atMs, long answeredNanos, boolean answerTimed) {
         bySeq.remove(d.seq());
-        bySeq.put(d.seq(), new Entry(d, atMs));
+        bySeq.put(d.seq(), new Entry(d, atMs, answeredNanos, answerTimed));
         // Presentations older than the repeat window and a minute for retests are of no further use: memory stays flat.
         var it = bySeq.values().iterator();
         while (it.hasNext()) {

@@ -81,7 +81,7 @@ final class TriggerPath {
         if (t == null) return;
         String lotId = lotOf(t);
         long now = monoMs.getAsLong();
-        DecisionBook.Lookup found = book.find(t, lotId, now);
+        DecisionBook.Lookup found = book.find(t, lotId, now, arrivedNanos);
         if (found instanceof DecisionBook.Repeat r) {
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
             ack.send();
@@ -94,7 +94,8 @@ final class TriggerPath {
         Recipe r = setup.recipe();
         Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        book.put(deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot), now);
+        Decision answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot);
+        book.put(answered, now, System.nanoTime());
     }
 
     /**

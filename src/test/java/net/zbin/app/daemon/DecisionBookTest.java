@@ -89,6 +89,29 @@ class DecisionBookTest {
     }
 
     @Test
+    void aTriggerSentAgainBeforeItsNotMeasuredAnswerWentOut_getsThatAnswerAgain_oneSentAfterIsMeasured() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        Decision stale = new Decision(2, "P2", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.STALE_TRIGGER), 700, false, 0);
+        b.put(stale, 1000, 5_000_000L); // its answer went out at 5 ms (nanoTime)
+        // the handler's patience ran out while the line was late: its copy came at 4.9 ms, before the answer went out
+        var again = assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, 4_900_000L));
+        assertEquals(Reason.STALE_TRIGGER, again.decision().grading().reason());
+        // sent after the answer went out: presented again, measured
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, 5_100_000L));
+        // nanoTime may be negative: the order is by difference, not by sign
+        b.put(stale, 1000, -5_000_000L);
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, -5_100_000L));
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, -4_900_000L));
+        // a measured decision is a repeat whenever its copy came
+        b.put(decided(3, "P3", "L1", 0), 1000, 5_000_000L);
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(3, "P3"), "L1", 1001, 5_100_000L));
+        // read back from the record log (answered by an earlier process): a trigger now came after it
+        b.put(stale, 1000);
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, Long.MIN_VALUE));
+    }
+
+    @Test
     void theBook_isBoundedByCount() {
         DecisionBook b = new DecisionBook(5000, 10);
         b.enterLot("L1");

@@ -170,6 +170,30 @@ class TriggerPathTest {
     }
 
     @Test
+    void aStaleTrigger_itsCopySentBeforeTheAnswer_getsTheSameAnswer_notAReading_oneSentAfterIsMeasured() throws Exception {
+        String t = "{\"seq\": 7, \"part\": \"P7\", \"lot\": \"L1\"}";
+        byte[] p = t.getBytes(StandardCharsets.UTF_8);
+        long arrived = System.nanoTime() - (cfg.deadlineMs() + 100) * 1_000_000L; // waited past the handler's deadline
+        long copyArrived = arrived + cfg.deadlineMs() * 1_000_000L; // the handler's patience ran out: its copy came before the answer
+        path.onTrigger(p, arrived);
+        path.onTrigger(p, copyArrived);
+        List<JsonNode> d = decisions();
+        assertEquals(2, d.size());
+        assertEquals("stale-trigger", d.get(0).path("reason").asText());
+        assertEquals("stale-trigger", d.get(1).path("reason").asText(), "the copy gets the answer the handler acts on: " + d.get(1));
+        assertTrue(d.get(1).path("repeat").asBoolean(), d.get(1).toString());
+        assertEquals(0, meter.measured, "nothing read for a part that may have moved");
+        // presented again after the answer went out: measured
+        meter.reading(1.0);
+        trigger(t);
+        assertEquals(1, meter.measured);
+        assertEquals("J", decisions().get(2).path("grade").asText());
+        records.close();
+        List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
+        assertEquals(3, rows.size(), "a header, the stale answer's row and the measured one's (a repeat has none): " + rows);
+    }
+
+    @Test
     void aPartFarFromTheLimits_isReadOnce_gradedAndRecorded() throws Exception {
         meter.reading(1.0);
         trigger("{\"seq\": 1, \"part\": \"P1\", \"lot\": \"L1\"}");
