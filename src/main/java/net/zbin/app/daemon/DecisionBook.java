@@ -56,13 +56,8 @@ final class DecisionBook {
         return true;
     }
 
-    /** {@link #find(Trigger, String, long, long)} for a trigger that came after every answer in the book. */
-    Lookup find(Trigger t, String lotId, long nowMs) { return find(t, lotId, nowMs, 0, false); }
-
     /** @param arrivedNanos when the trigger came (System.nanoTime, as the line stamps it) */
-    Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) { return find(t, lotId, nowMs, arrivedNanos, true); }
-
-    private Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos, boolean arrivalTimed) {
+    Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) {
         Entry e = bySeq.get(t.seq());
         if (e == null) return new Fresh(false);
         Decision d = e.decision();
@@ -72,7 +67,7 @@ final class DecisionBook {
         // the answer (its patience ran out while the line was late), acts on that answer, and gets it again. Measured, it
         // would give the presentation a second, contradicting answer and a graded row the handler never acted on.
         if (same && d.grading().reason().kind() == net.zbin.core.Reason.Kind.NOT_MEASURED)
-            return arrivalTimed && e.answerTimed() && arrivedNanos - e.answeredNanos() < 0 ? new Repeat(d) : new Fresh(false);
+            return e.answerTimed() && arrivedNanos - e.answeredNanos() < 0 ? new Repeat(d) : new Fresh(false);
         if (same) return new Repeat(d);
         reused++;
         return new Fresh(true);

@@ -41,7 +41,7 @@ class DecisionBookTest {
         DecisionBook b = new DecisionBook(5000, 100);
         b.enterLot("L1");
         b.put(decided(3, "P3", "L1", 0), 1000);
-        var found = b.find(trigger(3, "P3"), "L1", 5000);
+        var found = b.find(trigger(3, "P3"), "L1", 5000, 0);
         assertEquals(3, assertInstanceOf(DecisionBook.Repeat.class, found).decision().seq());
     }
 
@@ -50,11 +50,11 @@ class DecisionBookTest {
         DecisionBook b = new DecisionBook(5000, 100);
         b.enterLot("L1");
         b.put(decided(0, "P0", "L1", 0), 1000);
-        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P9"), "L1", 1001)).reusedSeq(), "handler restarted its counter");
-        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L1", 6001)).reusedSeq(), "after the window");
-        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L2", 1001)).reusedSeq(), "another lot");
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P9"), "L1", 1001, 0)).reusedSeq(), "handler restarted its counter");
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L1", 6001, 0)).reusedSeq(), "after the window");
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(0, "P0"), "L2", 1001, 0)).reusedSeq(), "another lot");
         assertEquals(3, b.reusedSeqs());
-        assertEquals(false, assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(1, "P1"), "L1", 1001)).reusedSeq());
+        assertEquals(false, assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(1, "P1"), "L1", 1001, 0)).reusedSeq());
     }
 
     @Test
@@ -84,7 +84,7 @@ class DecisionBookTest {
         b.enterLot("L1");
         Decision paused = new Decision(2, "P2", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.LINE_PAUSED), 1, false, 0);
         b.put(paused, 1000);
-        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001));
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, 0));
         assertEquals(0, b.attemptFor(new Trigger(3, "P2", "", Trigger.Kind.PART, 2), "L1"));
     }
 
