@@ -132,8 +132,24 @@ class NoBinWithoutProofIT {
             rig.meter.inject(SimFault.SLOW, 1);
             tap.publish("zbin/stall/trigger", "{\"seq\":10000}");
             tap.publish("zbin/stall/trigger", "{\"seq\":10001}");
+            // a handler that misbehaves a little: it sends 10001 again at once, long before the line can answer it
+            tap.publish("zbin/stall/trigger", "{\"seq\":10001}");
             JsonNode stalled = tap.await(m -> decision(m, 10_000), 1, 30_000).get(0).json();
-            JsonNode behind = tap.await(m -> decision(m, 10_001), 1, 30_000).get(0).json();
+            List<Tap.Msg> both = tap.await(m -> decision(m, 10_001), 2, 30_000);
+            JsonNode behind = both.get(0).json(), copy = both.get(1).json();
+            // the copy came before the stale answer went out: it gets that answer again, never a reading of whatever is
+            // on the contacts by then (measured, it would be a second, contradicting answer and a row the handler ignores)
+            assertEquals("stale-trigger", copy.path("reason").asText(), "the copy gets the answer the handler acts on: " + copy);
+            assertTrue(copy.path("repeat").asBoolean(), "answered from the book: " + copy);
+            long rows;
+            try (var files = Files.list(rig.cfg.records().dir())) {
+                rows = 0;
+                for (Path f : files.filter(f -> f.toString().endsWith(".csv")).toList())
+                    try (var lines = Files.lines(f)) {
+                        rows += lines.filter(l -> l.contains(",10001,")).count();
+                    }
+            }
+            assertEquals(1, rows, "one row for the presentation: the stale answer's");
             assertEquals("retest", stalled.path("verdict").asText(), "the stalled reading gives no bin: " + stalled);
             assertEquals("stale-trigger", behind.path("reason").asText(), "the trigger behind it waited past the deadline: " + behind);
             assertTrue(behind.path("value").isNull(), "not measured: " + behind);
