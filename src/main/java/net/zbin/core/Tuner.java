@@ -246,7 +246,7 @@ public final class Tuner {
         }
 
         double[] risk(Recipe r, double u) {
-            if (!(u > 0) || !model(u).estimated()) return new double[] {Double.NaN, Double.NaN};
+            if (!(u > 0) || !model(u).estimated()) return noRisk();
             if (bins == null) bins = bin(devs, width(model(u)));
             double[] out = Tuner.risk(r, devs, bins, model(u));
             for (RecordedReading m : means) { // a mean's risk under the uncertainty of a mean of its readings
@@ -264,6 +264,9 @@ public final class Tuner {
             return byN.computeIfAbsent(n, k -> RiskModel.fromLot(process.a, process.n, uncertaintyOfMean(base, u, k)));
         }
     }
+
+    /** [false accepts, false rejects] with no value: no uncertainty given, or no process estimate from the lot. */
+    private static double[] noRisk() { return new double[] {Double.NaN, Double.NaN}; }
 
     /** Bin width for the risk sums: a tenth of the posterior σ, and no more than 0.01 %. */
     static double width(RiskModel m) { return Math.min(0.01, m.posteriorSigmaPct() / 10); }
@@ -405,7 +408,7 @@ public final class Tuner {
         }
 
         double[] risk(double v) {
-            if (!(u > 0) || !model.estimated()) return new double[] {Double.NaN, Double.NaN};
+            if (!(u > 0) || !model.estimated()) return noRisk();
             int p = passing(v);
             return new double[] {faPrefix[p], frPrefix[p]};
         }
@@ -413,10 +416,10 @@ public final class Tuner {
 
     /** [expected false accepts, expected false rejects] over sorted deviations, under the process of the lot's sample. */
     static double[] risk(Recipe r, double[][] devsAndProcess, double u) {
-        if (!(u > 0)) return new double[] {Double.NaN, Double.NaN};
+        if (!(u > 0)) return noRisk();
         double[] devs = devsAndProcess[0], process = devsAndProcess[1];
         RiskModel m = RiskModel.fromLot(process, process.length, u);
-        if (!m.estimated()) return new double[] {Double.NaN, Double.NaN};
+        if (!m.estimated()) return noRisk();
         return risk(r, devs, bin(devs, width(m)), m);
     }
 
@@ -426,7 +429,7 @@ public final class Tuner {
      * the figure is the row-by-row sum up to the posterior's curvature within a bin, on every path alike.
      */
     static double[] risk(Recipe r, double[] devs, double[][] bins, RiskModel m) {
-        if (!m.estimated()) return new double[] {Double.NaN, Double.NaN};
+        if (!m.estimated()) return noRisk();
         if (bins[0].length == 0) return new double[] {0, 0};
         double[] out = new double[2];
         for (int b = 0; b < bins[0].length; b++) {
