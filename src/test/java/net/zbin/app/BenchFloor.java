@@ -28,6 +28,11 @@ final class BenchFloor implements AutoCloseable {
      * line's first decision after a pause does.
      */
     final Histogram firstEcho = new Histogram(60_000_000_000L, 3), firstMeter = new Histogram(60_000_000_000L, 3);
+    /**
+     * Each block's first echo plus its first meter exchange: the floor's own "first exchange after a pause", to set
+     * beside the line's first decision after one against the same p99.
+     */
+    final Histogram firstExchange = new Histogram(60_000_000_000L, 3);
     private final MqttAsyncClient responder, requester;
     private final Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
     private Socket meterSocket;
@@ -75,11 +80,13 @@ final class BenchFloor implements AutoCloseable {
     void block(int n, Histogram echoToo, Histogram meterToo) throws Exception {
         Histogram e = LineBench.paced(requester, waiting, "bench/req", "", 1, LineBench.PACE, seq);
         firstEcho.add(e);
+        long firstEchoNanos = e.getMaxValue();
         e.add(LineBench.paced(requester, waiting, "bench/req", "", n - 1, LineBench.PACE, seq + 1));
         seq += n;
         Histogram m = new Histogram(60_000_000_000L, 3);
         LineBench.meterExchanges(meterOut, meterIn, 1, LineBench.PACE, m);
         firstMeter.add(m);
+        firstExchange.recordValue(firstEchoNanos + m.getMaxValue()); // m holds this block's first exchange only, so far
         LineBench.meterExchanges(meterOut, meterIn, n - 1, LineBench.PACE, m);
         echo.add(e);
         meter.add(m);

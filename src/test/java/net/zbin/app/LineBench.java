@@ -45,6 +45,8 @@ class LineBench {
     static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6, SHORT_LOTS = 40, SHORT_LOT = 100, LONG_RATE = 3000;
     /** Decisions (and floor exchanges) before the first measured block: the compiler's top tier takes a method after thousands of calls. */
     static final int WARM_PARTS = 15_000;
+    /** Parts per lot while warming ({@code zbin.bench.line.warm.lot}; 15 000 warms in one lot, for an A/B). */
+    static final int WARM_LOT = Integer.getInteger("zbin.bench.line.warm.lot", 1_000);
 
     @TempDir
     Path dir;
@@ -259,7 +261,16 @@ class LineBench {
                 // before it. The floor's code gets as many.
                 Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
                 MqttAsyncClient handler = client(broker.url(), waiting, "zbin/bench/decision");
-                paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", WARM_PARTS, Integer.MAX_VALUE, 10_000);
+                // In lots, as a line in its shift has seen lot changes before. The daemon here shares the bench's JVM, whose
+                // compiler is busy when its warm-up runs: that warm-up's lot changes ran before the code kept a profile, and
+                // 15 000 parts of one lot let the compiler drop the lot-change branches; the first long lot then threw the
+                // compiled trigger path away (five unstable_if traps on the measuring thread in the JIT's log), which a
+                // `zbin run` process, whose warm-up is profiled, does not (see README).
+                for (int w = 0; w < WARM_PARTS / WARM_LOT; w++)
+                    paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\", \"lot\": \"BENCH-WARM-" + w + "\"", WARM_LOT,
+                            Integer.MAX_VALUE, 10_000 + w * (long) WARM_LOT);
+                // and a part without a lot, as the line's blocks send them: the warm lot goes on
+                paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\"", 1, Integer.MAX_VALUE, 10_000 + WARM_PARTS);
                 floor.warm(WARM_PARTS);
                 // The line at a handler's pace and its floor, in alternating blocks: a shared machine's mood changes within
                 // seconds, so each figure and its floor are taken over the same stretch of time.
@@ -320,6 +331,10 @@ class LineBench {
                 out.set("first_decision_of_a_lot", fl);
                 out.set("floor_first_echo_after_a_pause", json(floor.firstEcho));
                 out.set("floor_first_meter_exchange_after_a_pause", json(floor.firstMeter));
+                ObjectNode ff = json(floor.firstExchange);
+                ff.put("blocks", floor.firstExchange.getTotalCount());
+                ff.put("within_floor_p99", count(floor.firstExchange, floorP99));
+                out.set("floor_first_exchange_after_a_pause_echo_plus_meter", ff);
                 for (var e : new Object[][] {{"first_decision_of_a_lot_after_a_pause", lotAfterPause}, {"first_decision_of_a_lot_in_a_running_line", lotRunning},
                         {"first_decision_after_a_pause_same_lot", afterPause}}) {
                     Histogram h = (Histogram) e[1];
@@ -351,9 +366,11 @@ class LineBench {
                         + " the first after a pause in the same lot (the line's blocks) %d of %d (p50 %.3f ms, max %.3f)%n",
                         count(lotAfterPause, floorP99), lotAfterPause.getTotalCount(), count(lotRunning, floorP99), lotRunning.getTotalCount(),
                         count(afterPause, floorP99), afterPause.getTotalCount(), afterPause.getValueAtPercentile(50) / 1e6, afterPause.getMaxValue() / 1e6);
-                System.out.printf(Locale.ROOT, "    the floor's own first exchange after a pause (echo + meter, %d blocks): p50 %.3f ms, max %.3f ms%n",
+                System.out.printf(Locale.ROOT, "    the floor's own first exchange after a pause (echo + meter, %d blocks): p50 %.3f ms, max %.3f ms;"
+                        + " within the floor's p99 %d of %d%n",
                         floor.firstEcho.getTotalCount(), BenchFloor.ms(floor.firstEcho, floor.firstMeter, 50),
-                        (floor.firstEcho.getMaxValue() + floor.firstMeter.getMaxValue()) / 1e6);
+                        (floor.firstEcho.getMaxValue() + floor.firstMeter.getMaxValue()) / 1e6,
+                        count(floor.firstExchange, floorP99), floor.firstExchange.getTotalCount());
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
