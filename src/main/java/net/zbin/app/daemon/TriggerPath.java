@@ -55,6 +55,11 @@ final class TriggerPath {
      * trigger nor keeps every decision "inside the window".
      */
     private final java.util.function.LongSupplier monoMs = () -> System.nanoTime() / 1_000_000L;
+    /**
+     * Triggers answered {@code line-busy} from the overflow thread: a copy that came before that answer went out is not
+     * measured (see {@link BusyClaims}). Twice the overflow queue, so a claim still waiting for its answer is never dropped.
+     */
+    private final BusyClaims busyClaims;
     /** Decisions read back at start that may still be repeated; put into the book when the read-back ends. */
     private final java.util.ArrayDeque<net.zbin.core.DecisionEvent> readBack = new java.util.ArrayDeque<>();
 
@@ -71,6 +76,7 @@ final class TriggerPath {
         this.book = book;
         this.listeners = List.copyOf(listeners);
         this.clock = clock;
+        this.busyClaims = new BusyClaims(cfg.repeatWindowMs(), 2 * Dispatch.OVERFLOW);
     }
 
     void onTrigger(byte[] payload, long arrivedNanos) { onTrigger(payload, arrivedNanos, Ack.NONE); }
@@ -84,6 +90,16 @@ final class TriggerPath {
         DecisionBook.Lookup found = book.find(t, lotId, now, arrivedNanos);
         if (found instanceof DecisionBook.Repeat r) {
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
+            ack.send();
+            startPendingLot();
+            stats.repeated();
+            return;
+        }
+        BusyClaims.Claim busy = busyClaims.copyOf(t, lotId, arrivedNanos);
+        if (busy != null) { // the handler sent it again before it heard line-busy, which it then acts on: line-busy again
+            Decision b = busy.answer();
+            if (b == null) b = busyDecision(busy.trigger, busy.lot, arrivedNanos); // that answer is still on its way out
+            out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(b.asRepeat())), 1, false);
             ack.send();
             startPendingLot();
             stats.repeated();
@@ -111,15 +127,22 @@ final class TriggerPath {
             String why = e.getMessage();
             return () -> reject(topics.trigger(), why);
         }
-        return () -> answerBusy(t, arrivedNanos);
+        // claimed here, on Paho's thread, before it hands on the next message: a copy of this trigger finds the claim
+        BusyClaims.Claim c = busyClaims.claim(t, t.lot().isEmpty() ? book.lot() : t.lot(), monoMs.getAsLong());
+        return () -> answerBusy(c, arrivedNanos);
     }
 
-    private void answerBusy(Trigger t, long arrivedNanos) {
-        Recipe r = setup.recipe();
-        Decision d = new Decision(t.seq(), t.part(), t.lot().isEmpty() ? book.lot() : t.lot(), t.kind(), r.name(),
-                Grader.notMeasured(r, Reason.LINE_BUSY), (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
+    private void answerBusy(BusyClaims.Claim c, long arrivedNanos) {
         stats.busy();
-        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), Ack.NONE, null);
+        Decision answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), busyDecision(c.trigger, c.lot, arrivedNanos)),
+                Ack.NONE, null);
+        busyClaims.answered(c, answered, System.nanoTime(), monoMs.getAsLong());
+    }
+
+    private Decision busyDecision(Trigger t, String lot, long arrivedNanos) {
+        Recipe r = setup.recipe();
+        return new Decision(t.seq(), t.part(), lot, t.kind(), r.name(), Grader.notMeasured(r, Reason.LINE_BUSY),
+                (System.nanoTime() - arrivedNanos) / 1e6, false, 0);
     }
 
     /**

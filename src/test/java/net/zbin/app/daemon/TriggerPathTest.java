@@ -194,6 +194,41 @@ class TriggerPathTest {
     }
 
     @Test
+    void aLineBusyTrigger_itsCopySentBeforeTheBusyAnswerWentOut_getsLineBusyAgain_notAReading_oneSentAfterIsMeasured() throws Exception {
+        String t = "{\"seq\": 9, \"part\": \"P9\", \"lot\": \"L1\"}";
+        byte[] p = t.getBytes(StandardCharsets.UTF_8);
+        long arrived = System.nanoTime();
+        Runnable busyAnswer = path.busy(p, arrived); // the queue was full: Paho's thread reduces it to its line-busy answer
+        // the handler's patience ran out: its copy reached the measuring thread before the overflow thread answered
+        path.onTrigger(p, arrived + 1_000);
+        busyAnswer.run();
+        // another copy that came before that answer went out, taken from the queue after it
+        path.onTrigger(p, arrived + 2_000);
+        List<JsonNode> d = decisions();
+        assertEquals(3, d.size(), d.toString());
+        for (JsonNode x : d) assertEquals("line-busy", x.path("reason").asText(), "every answer to the presentation says line-busy: " + d);
+        assertTrue(d.get(0).path("repeat").asBoolean(), d.toString());
+        assertTrue(!d.get(1).path("repeat").asBoolean(), "the overflow thread's own answer: " + d);
+        assertTrue(d.get(2).path("repeat").asBoolean(), d.toString());
+        assertEquals(0, meter.measured, "nothing read for a presentation the handler was told is not measured");
+        // the same seq with another part is another presentation, measured
+        meter.reading(1.0);
+        path.onTrigger("{\"seq\": 9, \"part\": \"P9b\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), arrived + 3_000);
+        assertEquals(1, meter.measured);
+        // presented again after the line-busy answer went out: measured
+        meter.reading(1.0);
+        trigger("{\"seq\": 10, \"part\": \"P10\", \"lot\": \"L1\"}");
+        path.busy("{\"seq\": 11, \"part\": \"P11\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), System.nanoTime()).run();
+        meter.reading(1.0);
+        trigger("{\"seq\": 11, \"part\": \"P11\", \"lot\": \"L1\"}");
+        assertEquals(3, meter.measured);
+        assertEquals("J", decisions().get(decisions().size() - 1).path("grade").asText());
+        records.close();
+        List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
+        assertEquals(6, rows.size(), "a header, two line-busy rows and three measured ones (a repeat has none): " + rows);
+    }
+
+    @Test
     void aPartFarFromTheLimits_isReadOnce_gradedAndRecorded() throws Exception {
         meter.reading(1.0);
         trigger("{\"seq\": 1, \"part\": \"P1\", \"lot\": \"L1\"}");
