@@ -2,7 +2,6 @@ package net.zbin.app.daemon;
 
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.ConcurrentLinkedQueue;
-import net.zbin.core.Decision;
 import net.zbin.core.Trigger;
 
 /**
@@ -11,24 +10,23 @@ import net.zbin.core.Trigger;
  * hands on the next message, so its copy always finds the claim; the overflow thread stamps when the answer went out.
  * A copy that reached the line before then (the handler had not heard the answer it then acts on) gets
  * {@code line-busy} again, not a reading; one sent after it is a deliberate new presentation and is measured.
- * Kept for the repeat window after the answer (a copy may wait that long in the queue), bounded by count.
+ * Kept for the repeat window after the answer (a copy may wait in the queue), bounded by count: each holds the decoded
+ * trigger (its part and lot at most 128 characters each) and two stamps, not the answer, which is built again.
  */
 final class BusyClaims {
     /** One presentation answered, or about to be answered, {@code line-busy}. */
     static final class Claim {
         final Trigger trigger;
         final String lot;
-        /** The answer as published, and when it went out (System.nanoTime, ms): set together by the overflow thread. */
-        private volatile Decision answer;
+        /** When the answer went out (System.nanoTime, and ms of the repeat window's clock); {@link #answered} is set last. */
         private volatile long answeredNanos, answeredMs;
+        private volatile boolean answered;
 
         Claim(Trigger trigger, String lot) {
             this.trigger = trigger;
             this.lot = lot;
         }
 
-        /** The answer the overflow thread published, null while it has not gone out yet. */
-        Decision answer() { return answer; }
     }
 
     private final long windowMs;
@@ -55,7 +53,7 @@ final class BusyClaims {
         order.add(c);
         kept++;
         for (Claim head; (head = order.peek()) != null; ) {
-            boolean aged = head.answer != null && nowMs - head.answeredMs > windowMs;
+            boolean aged = head.answered && nowMs - head.answeredMs > windowMs;
             if (!aged && kept <= capacity) break;
             order.poll();
             kept--;
@@ -65,10 +63,10 @@ final class BusyClaims {
     }
 
     /** The overflow thread, right after the publish: {@code c}'s answer went out. */
-    void answered(Claim c, Decision d, long nanos, long ms) {
+    void answered(Claim c, long nanos, long ms) {
         c.answeredNanos = nanos;
         c.answeredMs = ms;
-        c.answer = d;
+        c.answered = true;
     }
 
     /**
@@ -80,7 +78,7 @@ final class BusyClaims {
         if (c == null) return null;
         Trigger o = c.trigger;
         if (!o.part().equals(t.part()) || !c.lot.equals(lot) || o.kind() != t.kind()) return null;
-        return c.answer == null || arrivedNanos - c.answeredNanos < 0 ? c : null;
+        return !c.answered || arrivedNanos - c.answeredNanos < 0 ? c : null;
     }
 
     /** Claims kept (for tests). */

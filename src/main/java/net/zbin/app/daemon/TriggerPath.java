@@ -57,7 +57,8 @@ final class TriggerPath {
     private final java.util.function.LongSupplier monoMs = () -> System.nanoTime() / 1_000_000L;
     /**
      * Triggers answered {@code line-busy} from the overflow thread: a copy that came before that answer went out is not
-     * measured (see {@link BusyClaims}). Twice the overflow queue, so a claim still waiting for its answer is never dropped.
+     * measured (see {@link BusyClaims}). As many as both queues hold: the overflow queue's claims still waiting for their
+     * answer, and as many answered ones as the work queue can hold copies of.
      */
     private final BusyClaims busyClaims;
     /** Decisions read back at start that may still be repeated; put into the book when the read-back ends. */
@@ -76,7 +77,7 @@ final class TriggerPath {
         this.book = book;
         this.listeners = List.copyOf(listeners);
         this.clock = clock;
-        this.busyClaims = new BusyClaims(cfg.repeatWindowMs(), 2 * Dispatch.OVERFLOW);
+        this.busyClaims = new BusyClaims(cfg.repeatWindowMs(), Dispatch.OVERFLOW + Dispatch.QUEUE);
     }
 
     void onTrigger(byte[] payload, long arrivedNanos) { onTrigger(payload, arrivedNanos, Ack.NONE); }
@@ -97,8 +98,7 @@ final class TriggerPath {
         }
         BusyClaims.Claim busy = busyClaims.copyOf(t, lotId, arrivedNanos);
         if (busy != null) { // the handler sent it again before it heard line-busy, which it then acts on: line-busy again
-            Decision b = busy.answer();
-            if (b == null) b = busyDecision(busy.trigger, busy.lot, arrivedNanos); // that answer is still on its way out
+            Decision b = busyDecision(busy.trigger, busy.lot, arrivedNanos); // the same answer, with this copy's wait
             out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(b.asRepeat())), 1, false);
             ack.send();
             startPendingLot();
@@ -134,9 +134,8 @@ final class TriggerPath {
 
     private void answerBusy(BusyClaims.Claim c, long arrivedNanos) {
         stats.busy();
-        Decision answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), busyDecision(c.trigger, c.lot, arrivedNanos)),
-                Ack.NONE, null);
-        busyClaims.answered(c, answered, System.nanoTime(), monoMs.getAsLong());
+        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), busyDecision(c.trigger, c.lot, arrivedNanos)), Ack.NONE, null);
+        busyClaims.answered(c, System.nanoTime(), monoMs.getAsLong());
     }
 
     private Decision busyDecision(Trigger t, String lot, long arrivedNanos) {

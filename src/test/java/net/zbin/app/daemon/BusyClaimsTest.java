@@ -5,23 +5,11 @@ import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertSame;
 
-import net.zbin.core.Decision;
-import net.zbin.core.Grader;
-import net.zbin.core.Reason;
 import net.zbin.core.Trigger;
 import org.junit.jupiter.api.Test;
 
 class BusyClaimsTest {
     static Trigger t(long seq, String part) { return new Trigger(seq, part, "L1", Trigger.Kind.PART, -1); }
-
-    static Decision busy(Trigger t) {
-        try {
-            var r = net.zbin.io.RecipeLoader.load(java.nio.file.Path.of("config/recipes/mlcc-x7r-100n.yaml"));
-            return new Decision(t.seq(), t.part(), "L1", t.kind(), r.name(), Grader.notMeasured(r, Reason.LINE_BUSY), 0.1, false, 0);
-        } catch (net.zbin.io.ConfigException e) {
-            throw new IllegalStateException(e);
-        }
-    }
 
     @Test
     void aCopyBeforeTheAnswerWentOut_isCovered_oneAfter_orOfAnotherPresentation_isNot() {
@@ -29,7 +17,7 @@ class BusyClaimsTest {
         Trigger t = t(4, "P4");
         BusyClaims.Claim c = b.claim(t, "L1", 0);
         assertSame(c, b.copyOf(t, "L1", 10), "the answer has not gone out yet");
-        b.answered(c, busy(t), 1_000, 1);
+        b.answered(c, 1_000, 1);
         assertSame(c, b.copyOf(t, "L1", 999), "came before the answer went out");
         assertNull(b.copyOf(t, "L1", 1_001), "sent after the answer: a deliberate new presentation");
         assertNull(b.copyOf(t(4, "other"), "L1", 10), "another part under the same seq");
@@ -41,7 +29,7 @@ class BusyClaimsTest {
     void claims_areKeptForTheWindowAfterTheirAnswer_thenDropped_andBoundedByCount() {
         BusyClaims b = new BusyClaims(5_000, 3);
         BusyClaims.Claim first = b.claim(t(1, "P1"), "L1", 0);
-        b.answered(first, busy(t(1, "P1")), 100, 0);
+        b.answered(first, 100, 0);
         b.claim(t(2, "P2"), "L1", 4_000);
         assertNotNull(b.copyOf(t(1, "P1"), "L1", 50), "within the window after its answer");
         b.claim(t(3, "P3"), "L1", 5_001); // the first's answer is older than the window now
@@ -55,7 +43,7 @@ class BusyClaimsTest {
     void aLaterClaimOfTheSameSeq_survivesTheEarliersDrop() {
         BusyClaims b = new BusyClaims(5_000, 100);
         BusyClaims.Claim old = b.claim(t(7, "P7"), "L1", 0);
-        b.answered(old, busy(t(7, "P7")), 100, 0);
+        b.answered(old, 100, 0);
         BusyClaims.Claim again = b.claim(t(7, "P7b"), "L1", 1_000);
         b.claim(t(8, "P8"), "L1", 6_000); // drops the first claim of seq 7
         assertSame(again, b.copyOf(t(7, "P7b"), "L1", 10));
