@@ -69,13 +69,6 @@ public final class DecisionFields {
             new Field("z_ohm", Use.PAYLOAD, e -> g(e).zOhm()),
             new Field("repeat", Use.PAYLOAD, e -> e.decision().repeat()));
 
-    /** The record-log columns, in order. */
-    public static final List<String> COLUMNS = ALL.stream().filter(f -> f.use() != Use.PAYLOAD).map(Field::name).toList();
-
-    /** The record-log columns that hold free text, written through {@link SpreadsheetSafe}. */
-    public static final java.util.Set<String> TEXT_COLUMNS = ALL.stream().filter(f -> f.text() && f.use() != Use.PAYLOAD)
-            .map(Field::name).collect(java.util.stream.Collectors.toUnmodifiableSet());
-
     /**
      * The payload's fields and the row's, each in order, as arrays walked by index: a loop over {@link #ALL} that skips
      * the other use's fields let the compiler hoist a check on the row's index out of the loop on the strength of its
@@ -85,6 +78,13 @@ public final class DecisionFields {
      */
     private static final Field[] PAYLOAD_FIELDS = ALL.stream().filter(f -> f.use() != Use.RECORD).toArray(Field[]::new),
             ROW_FIELDS = ALL.stream().filter(f -> f.use() != Use.PAYLOAD).toArray(Field[]::new);
+
+    /** The record-log columns, in order. */
+    public static final List<String> COLUMNS = java.util.Arrays.stream(ROW_FIELDS).map(Field::name).toList();
+
+    /** The record-log columns that hold free text, written through {@link SpreadsheetSafe}. */
+    public static final java.util.Set<String> TEXT_COLUMNS = java.util.Arrays.stream(ROW_FIELDS).filter(Field::text)
+            .map(Field::name).collect(java.util.stream.Collectors.toUnmodifiableSet());
 
     /** The decision payload. */
     public static ObjectNode json(Decision d) {
