@@ -74,6 +74,7 @@ final class BusyClaims {
      * ({@code arrivedNanos}) before that claim's answer went out — or null.
      */
     Claim copyOf(Trigger t, String lot, long arrivedNanos) {
+        if (bySeq.isEmpty()) return null; // the usual case: no seq boxed on the trigger path
         Claim c = bySeq.get(t.seq());
         if (c == null) return null;
         Trigger o = c.trigger;

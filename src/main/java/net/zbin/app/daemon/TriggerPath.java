@@ -90,19 +90,12 @@ final class TriggerPath {
         long now = monoMs.getAsLong();
         DecisionBook.Lookup found = book.find(t, lotId, now, arrivedNanos);
         if (found instanceof DecisionBook.Repeat r) {
-            out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(r.decision().asRepeat())), 1, false);
-            ack.send();
-            startPendingLot();
-            stats.repeated();
+            answerAgain(r.decision(), ack);
             return;
         }
         BusyClaims.Claim busy = busyClaims.copyOf(t, lotId, arrivedNanos);
         if (busy != null) { // the handler sent it again before it heard line-busy, which it then acts on: line-busy again
-            Decision b = busyDecision(busy.trigger, busy.lot, arrivedNanos); // the same answer, with this copy's wait
-            out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(b.asRepeat())), 1, false);
-            ack.send();
-            startPendingLot();
-            stats.repeated();
+            answerAgain(busyDecision(busy.trigger, busy.lot, arrivedNanos), ack); // the same answer, with this copy's wait
             return;
         }
         if (((DecisionBook.Fresh) found).reusedSeq()) seqReused(t, lotId);
@@ -112,6 +105,14 @@ final class TriggerPath {
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
         Decision answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot);
         book.put(answered, now, System.nanoTime());
+    }
+
+    /** A presentation's answer sent again ({@code repeat: true}): no reading, no row. */
+    private void answerAgain(Decision d, Ack ack) {
+        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(d.asRepeat())), 1, false);
+        ack.send();
+        startPendingLot();
+        stats.repeated();
     }
 
     /**
