@@ -35,10 +35,14 @@ class ReadBackCheckpointIT {
                 .redirectErrorStream(true).redirectOutput(dir.resolve(log).toFile()).start();
     }
 
+    /** One part, as a handler presents it: again while it is answered {@code stale-trigger} (a loaded machine). */
     static JsonNode present(Tap tap, long seq) throws Exception {
-        int mark = tap.msgs.size();
-        tap.publish("zbin/" + LINE + "/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
-        return tap.awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 10_000).json();
+        for (int attempt = 1; ; attempt++) {
+            int mark = tap.msgs.size();
+            tap.publish("zbin/" + LINE + "/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
+            JsonNode a = tap.awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 10_000).json();
+            if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
+        }
     }
 
     void command(Tap tap, String json, String id) throws Exception {
