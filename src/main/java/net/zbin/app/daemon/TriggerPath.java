@@ -103,8 +103,8 @@ final class TriggerPath {
         Recipe r = setup.recipe();
         Grading g = decide(t, r, attempt, arrivedNanos);
         Decision d = new Decision(t.seq(), t.part(), lotId, t.kind(), r.name(), g, (System.nanoTime() - arrivedNanos) / 1e6, false, attempt);
-        Decision answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot);
-        book.put(answered, now, System.nanoTime());
+        Delivered answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), d), ack, startPendingLot);
+        book.put(answered.decision(), now, answered.publishedNanos());
     }
 
     /** A presentation's answer sent again ({@code repeat: true}): no reading, no row. */
@@ -135,8 +135,9 @@ final class TriggerPath {
 
     private void answerBusy(BusyClaims.Claim c, long arrivedNanos) {
         stats.busy();
-        deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), busyDecision(c.trigger, c.lot, arrivedNanos)), Ack.NONE, null);
-        busyClaims.answered(c, System.nanoTime(), monoMs.getAsLong());
+        Delivered answered = deliver(new net.zbin.core.DecisionEvent(clock.instant(), cfg.line(), busyDecision(c.trigger, c.lot, arrivedNanos)),
+                Ack.NONE, null);
+        busyClaims.answered(c, answered.publishedNanos(), monoMs.getAsLong());
     }
 
     private Decision busyDecision(Trigger t, String lot, long arrivedNanos) {
@@ -153,7 +154,15 @@ final class TriggerPath {
      * right after the publish (the two leave on one turn of the MQTT client's sender); {@code afterPublish} (or null)
      * runs between the publish and the listeners.
      */
-    private synchronized Decision deliver(net.zbin.core.DecisionEvent e, Ack ack, Runnable afterPublish) {
+    /**
+     * The decision the handler got, and when it was handed to the MQTT client to go out (System.nanoTime, taken just
+     * before the publish): a trigger that arrived before then was sent without the handler having heard this answer; one
+     * after it may be the handler's reaction to it (taken after the publish, behind the listeners, a loaded machine let a
+     * handler's deliberate new presentation arrive "before" it and be answered as a copy).
+     */
+    record Delivered(Decision decision, long publishedNanos) {}
+
+    private synchronized Delivered deliver(net.zbin.core.DecisionEvent e, Ack ack, Runnable afterPublish) {
         if (!records.write(e)) {
             Decision d = e.decision();
             if (cfg.records().pauseOnFailure() && d.grading().reason().kind() != Reason.Kind.NOT_MEASURED) {
@@ -163,7 +172,9 @@ final class TriggerPath {
             }
             records.keep(e);
         }
-        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(e.decision())), 1, false);
+        byte[] payload = Payloads.bytes(DecisionFields.json(e.decision()));
+        long publishedNanos = System.nanoTime();
+        out.publish(topics.decision(), payload, 1, false);
         ack.send();
         if (afterPublish != null) afterPublish.run();
         for (DecisionListener l : listeners) {
@@ -173,7 +184,7 @@ final class TriggerPath {
                 LOG.error("decision listener failed", ex);
             }
         }
-        return e.decision();
+        return new Delivered(e.decision(), publishedNanos);
     }
 
     private Trigger decode(byte[] payload) {
