@@ -32,8 +32,11 @@ import org.junit.jupiter.api.io.TempDir;
  * bound; {@code zbin run} itself sets its compiler threads to nice 19 at ready), {@code -jar} and a class-data archive that the first start after an update
  * writes when it stops (here: one unmeasured start that decides 100 parts).
  * {@code -Dzbin.bench.daemon.start=jar} starts it from the jar without an archive, {@code =classes} from the build's class
- * folders and jars. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows} (30 000)
- * parts, and three starts are timed to ready with those rows in today's record log (the start reads them back).
+ * folders and jars. Then a restart late in a busy shift: one more daemon decides {@code zbin.bench.readback.rows} (90 000)
+ * parts (2 000/s, then 1 000/s until its compiler threads have used no CPU in a second), and three starts are timed to
+ * ready with those rows in today's record log (the start reads them back). That daemon's last {@value #CPU_PARTS}
+ * decisions, at 1 000/s and warm, give its process's CPU time per decision (every thread's: the compiler's and the
+ * collector's too, as the unit runs it) beside Mosquitto's, and split by thread name.
  * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false} (the bench profile
  * builds the jar before the benches); results in {@code target/bench/fresh-start.json}.
  */
@@ -72,6 +75,32 @@ class FreshStartBench {
         }
         cmd.addAll(java.util.List.of("run", "--config", cfg.toString()));
         return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + name + ".log").toFile()).start();
+    }
+
+    /** Decisions at 1 000/s whose process CPU time is counted, after the busy daemon's warm ones. */
+    static final int CPU_PARTS = 10_000;
+
+    /** {@code n} triggers of the busy daemon from {@code from} on, at {@code rate} per second (QoS 1, not waiting for answers). */
+    static void sendAtRate(Tap tap, int from, int n, int rate) throws Exception {
+        long period = 1_000_000_000L / rate, next = System.nanoTime();
+        for (int i = from; i < from + n; i++) {
+            tap.publishWaiting("zbin/fresh/trigger", "{\"seq\": " + (5_000_000L + i) + ", \"part\": \"B" + i + "\"}");
+            next += period;
+            long wait = next - System.nanoTime();
+            if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+        }
+    }
+
+    /** CPU time of the JIT compiler threads of process {@code pid}, ns. */
+    static long compilerCpuNs(long pid) throws java.io.IOException {
+        return LineBench.threadCpuNsByName(pid).entrySet().stream().filter(e -> e.getKey().contains("CompilerThre")).mapToLong(Map.Entry::getValue).sum();
+    }
+
+    /** Waits (120 s at most) until the line's record files hold {@code rows} rows: the parts sent are decided and logged. */
+    static void awaitRows(Path dir, long rows) throws Exception {
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
+        while (recordLines(dir) < rows && System.nanoTime() < end) Thread.sleep(100);
+        if (recordLines(dir) < rows) throw new AssertionError("the busy daemon logged " + recordLines(dir) + " rows of " + rows + " within 120 s");
     }
 
     /** Waits for the line's {@code ready} state among what the tap heard after its first {@code mark} messages. */
@@ -176,22 +205,47 @@ class FreshStartBench {
             // A restart late in a busy shift: the start reads the day's record log back. The starts above found at most 800
             // rows; a line running for hours has tens of thousands. One more daemon decides that many, then three starts
             // are timed to ready with them in the log.
-            int busyRows = Integer.getInteger("zbin.bench.readback.rows", 30_000);
+            int busyRows = Integer.getInteger("zbin.bench.readback.rows", 90_000);
+            double cpuZbinUs, cpuBrokerUs, cpuSeconds;
+            int quietAfterS;
+            Map<String, Double> cpuByThread = new java.util.TreeMap<>();
             long rowsBefore = recordLines(dir);
             Process filler = start(cfg, "busy", archive);
             logs.add("busy");
             try {
                 int mark = tap.msgs.size();
                 awaitReady(tap, mark);
-                long period = 1_000_000_000L / 2000, next = System.nanoTime();
-                for (int i = 0; i < busyRows; i++) {
-                    tap.publishWaiting("zbin/fresh/trigger", "{\"seq\": " + (5_000_000L + i) + ", \"part\": \"B" + i + "\"}");
-                    next += period;
-                    long wait = next - System.nanoTime();
-                    if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
+                // Most of them at 2 000/s; the last CPU_PARTS at 1 000/s, warm, counted: the process's CPU time (all its
+                // threads, the compiler's and the collector's too) and Mosquitto's over them, per decision, as the unit runs it.
+                // Warm takes long: after 20 000 parts the compiler still took 26-51 us a decision of the counted ones (its
+                // threads run at nice 19 from ready), after 80 000 none.
+                int warmRows = busyRows - CPU_PARTS;
+                if (warmRows < CPU_PARTS) throw new IllegalArgumentException("zbin.bench.readback.rows: " + busyRows + " is under " + 2 * CPU_PARTS);
+                sendAtRate(tap, 0, warmRows, 2000);
+                awaitRows(dir, rowsBefore + warmRows);
+                // Warm means the compiler has done its work: at the counted pace, a second at a time, until the process's
+                // compiler threads used no CPU tick (10 ms) in a second (30 s at most); those parts are logged too.
+                int quietFrom = warmRows;
+                for (int s = 0; s < 30; s++) {
+                    long jit0 = compilerCpuNs(filler.pid());
+                    sendAtRate(tap, quietFrom, 1000, 1000);
+                    quietFrom += 1000;
+                    if (compilerCpuNs(filler.pid()) == jit0) break;
                 }
-                long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
-                while (recordLines(dir) < rowsBefore + busyRows && System.nanoTime() < end) Thread.sleep(100);
+                quietAfterS = (quietFrom - warmRows) / 1000;
+                warmRows = quietFrom;
+                awaitRows(dir, rowsBefore + warmRows);
+                Map<String, Long> byName0 = LineBench.threadCpuNsByName(filler.pid());
+                long zbin0 = LineBench.processCpuNs(filler.pid()), broker0 = LineBench.processCpuNs(broker.pid()), t0 = System.nanoTime();
+                sendAtRate(tap, warmRows, CPU_PARTS, 1000);
+                awaitRows(dir, rowsBefore + warmRows + CPU_PARTS);
+                cpuZbinUs = (LineBench.processCpuNs(filler.pid()) - zbin0) / 1e3 / CPU_PARTS;
+                cpuBrokerUs = (LineBench.processCpuNs(broker.pid()) - broker0) / 1e3 / CPU_PARTS;
+                cpuSeconds = (System.nanoTime() - t0) / 1e9;
+                LineBench.threadCpuNsByName(filler.pid()).forEach((k, v) -> {
+                    double us = (v - byName0.getOrDefault(k, 0L)) / 1e3 / CPU_PARTS;
+                    if (us >= 1) cpuByThread.put(k, us);
+                });
             } finally {
                 stop(filler);
             }
@@ -252,6 +306,19 @@ class FreshStartBench {
             out.set("reference_warm_" + WARM + "_after_" + SETTLE + "_more_each_start", w);
             out.set("reference_warm_inside_zbin_arrival_to_decided", LineBench.json(insideWarm));
             out.put("started_as", HOW);
+            ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
+            cpu.put("decisions", CPU_PARTS);
+            cpu.put("decisions_before", busyRows - CPU_PARTS + 1000 * quietAfterS);
+            cpu.put("seconds_at_1000_per_s_before_a_second_without_compiling", quietAfterS);
+            cpu.put("seconds", cpuSeconds);
+            cpu.put("zbin_us", cpuZbinUs);
+            cpu.put("broker_us", cpuBrokerUs);
+            cpu.put("zbin_over_broker", cpuZbinUs / cpuBrokerUs);
+            ObjectNode byThread = cpu.putObject("zbin_us_by_thread_name");
+            cpuByThread.forEach(byThread::put);
+            System.out.printf(Locale.ROOT, "  process CPU per decision at 1000/s, warm, %d decisions in %.1f s (the daemon's whole process, the unit's options): zbin %.0f us, Mosquitto %.0f us (%.2f x)%n",
+                    CPU_PARTS, cpuSeconds, cpuZbinUs, cpuBrokerUs, cpuZbinUs / cpuBrokerUs);
+            System.out.printf(Locale.ROOT, "    of it by thread (us per decision, 1 us or more): %s%n", cpuByThread);
             System.out.printf(Locale.ROOT, "%n  ready after process start, ms: %s (median %d, max %d)%n", Arrays.toString(readyMs), sorted[STARTS / 2], sorted[STARTS - 1]);
             System.out.printf(Locale.ROOT, "  ready after process start with %d rows of today in the record log, ms: %s%n", readBackRows,
                     Arrays.toString(readyWithRows));

@@ -218,6 +218,27 @@ class LineBench {
         return sum;
     }
 
+    /**
+     * User + system CPU time of each thread of process {@code pid}, ns, summed by the thread's name with its digits taken
+     * out ("GC Thread#0" and "GC Thread#1" are one group), from /proc/PID/task/TID/stat (a thread that ended is not counted).
+     */
+    static Map<String, Long> threadCpuNsByName(long pid) throws java.io.IOException {
+        Map<String, Long> out = new java.util.TreeMap<>();
+        try (var tasks = Files.list(Path.of("/proc", Long.toString(pid), "task"))) {
+            for (Path t : tasks.toList()) {
+                try {
+                    String stat = Files.readString(t.resolve("stat"));
+                    String name = stat.substring(stat.indexOf('(') + 1, stat.lastIndexOf(')')).replaceAll("[0-9]", "");
+                    String[] f = stat.substring(stat.lastIndexOf(')') + 2).split(" ");
+                    out.merge(name, (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L, Long::sum);
+                } catch (java.io.IOException | RuntimeException gone) {
+                    // the thread ended in between
+                }
+            }
+        }
+        return out;
+    }
+
     /** User + system CPU time of a process from /proc/PID/stat, ns (clock ticks of 10 ms, Linux's USER_HZ). */
     static long processCpuNs(long pid) throws java.io.IOException {
         String stat = java.nio.file.Files.readString(java.nio.file.Path.of("/proc", Long.toString(pid), "stat"));
