@@ -147,14 +147,6 @@ final class TriggerPath {
     }
 
     /**
-     * Records, publishes and tells the listeners; returns the decision the handler got. A measured decision whose
-     * row did not reach the operating system is not published as it is (unless the line is set to sort on without
-     * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
-     * handler acted on, and that answer's row is kept for when the log is writable again. The trigger's {@code ack} goes
-     * right after the publish (the two leave on one turn of the MQTT client's sender); {@code afterPublish} (or null)
-     * runs between the publish and the listeners.
-     */
-    /**
      * The decision the handler got, and when it was handed to the MQTT client to go out (System.nanoTime, taken just
      * before the publish): a trigger that arrived before then was sent without the handler having heard this answer; one
      * after it may be the handler's reaction to it (taken after the publish, behind the listeners, a loaded machine let a
@@ -162,6 +154,14 @@ final class TriggerPath {
      */
     record Delivered(Decision decision, long publishedNanos) {}
 
+    /**
+     * Records, publishes and tells the listeners; returns the decision the handler got and when it went out. A measured decision whose
+     * row did not reach the operating system is not published as it is (unless the line is set to sort on without
+     * a record): the handler gets {@code retest} / {@code record-failed} instead, so the log holds every bin the
+     * handler acted on, and that answer's row is kept for when the log is writable again. The trigger's {@code ack} goes
+     * right after the publish (the two leave on one turn of the MQTT client's sender); {@code afterPublish} (or null)
+     * runs between the publish and the listeners.
+     */
     private synchronized Delivered deliver(net.zbin.core.DecisionEvent e, Ack ack, Runnable afterPublish) {
         if (!records.write(e)) {
             Decision d = e.decision();
