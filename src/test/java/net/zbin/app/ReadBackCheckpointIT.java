@@ -35,16 +35,6 @@ class ReadBackCheckpointIT {
                 .redirectErrorStream(true).redirectOutput(dir.resolve(log).toFile()).start();
     }
 
-    /** One part, as a handler presents it: again while it is answered {@code stale-trigger} (a loaded machine). */
-    static JsonNode present(Tap tap, long seq) throws Exception {
-        for (int attempt = 1; ; attempt++) {
-            int mark = tap.msgs.size();
-            tap.publish("zbin/" + LINE + "/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
-            JsonNode a = tap.awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 10_000).json();
-            if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
-        }
-    }
-
     void command(Tap tap, String json, String id) throws Exception {
         tap.publish("zbin/" + LINE + "/command", json);
         tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals(id), 1, 10_000);
@@ -91,14 +81,14 @@ class ReadBackCheckpointIT {
              Tap tap = new Tap(broker.url(), "zbin/" + LINE + "/#")) {
             Path cfg = TestLine.write(dir, LINE, broker.url(), sim.port(), "dashboard: {interval_s: 0.3}\n"); // repeat window: default 5 s
             restart(tap, cfg, "d0.log", daemon);
-            for (long s = 1; s <= 100; s++) present(tap, s);
+            for (long s = 1; s <= 100; s++) tap.present(LINE, s);
             JsonNode early = checkpointOfEveryRow();
             Files.copy(ck, dir.resolve("early.json"));
             command(tap, "{\"cmd\":\"lot\",\"lot\":\"LOT-A\",\"id\":\"a\"}", "a");
-            for (long s = 101; s <= 200; s++) present(tap, s);
+            for (long s = 101; s <= 200; s++) tap.present(LINE, s);
             command(tap, "{\"cmd\":\"reset-counters\",\"id\":\"z\"}", "z");
             java.util.Map<Long, JsonNode> told = new java.util.HashMap<>();
-            for (long s = 201; s <= 230; s++) told.put(s, present(tap, s));
+            for (long s = 201; s <= 230; s++) told.put(s, tap.present(LINE, s));
             JsonNode last = checkpointOfEveryRow();
             assertTrue(last.path("offset").asLong() > early.path("offset").asLong() || !last.path("file").equals(early.path("file")));
             Files.copy(ck, dir.resolve("last.json"));
@@ -108,20 +98,20 @@ class ReadBackCheckpointIT {
             ObjectNode fromEarly = restart(tap, cfg, "d1.log", daemon);
             assertTrue(log(dir.resolve("d1.log")).contains("(the checkpoint as of"),
                     "the early checkpoint was used: " + log(dir.resolve("d1.log")));
-            assertTrue(present(tap, 230).path("repeat").asBoolean(), "the last part is a repeat after a restart from the early checkpoint");
+            assertTrue(tap.present(LINE, 230).path("repeat").asBoolean(), "the last part is a repeat after a restart from the early checkpoint");
             daemon[0].destroyForcibly().waitFor(10, TimeUnit.SECONDS);
 
             Files.delete(ck);
             ObjectNode full = restart(tap, cfg, "d2.log", daemon);
             assertTrue(log(dir.resolve("d2.log")).contains("(the whole log"), "read back in full: " + log(dir.resolve("d2.log")));
-            assertTrue(present(tap, 230).path("repeat").asBoolean(), "the last part is a repeat after a full read-back");
+            assertTrue(tap.present(LINE, 230).path("repeat").asBoolean(), "the last part is a repeat after a full read-back");
             daemon[0].destroyForcibly().waitFor(10, TimeUnit.SECONDS);
 
             Files.copy(dir.resolve("last.json"), ck, StandardCopyOption.REPLACE_EXISTING);
             ObjectNode fromLast = restart(tap, cfg, "d3.log", daemon);
             assertTrue(log(dir.resolve("d3.log")).contains("(the checkpoint as of"), "the last checkpoint was used: " + log(dir.resolve("d3.log")));
             for (long s = 221; s <= 230; s++) {
-                JsonNode again = present(tap, s);
+                JsonNode again = tap.present(LINE, s);
                 assertTrue(again.path("repeat").asBoolean(), "seq " + s + " answered from the book after a restart from the last checkpoint: " + again);
                 assertEquals(told.get(s).path("bin").asInt(), again.path("bin").asInt());
             }

@@ -29,21 +29,6 @@ class RestartContinuityIT {
                 .redirectErrorStream(true).redirectOutput(dir.resolve(log).toFile()).start();
     }
 
-    /**
-     * Presents one part as a handler does: the trigger, then its answer before the next part; a part answered
-     * {@code stale-trigger} (not measured: on a loaded machine a decision can take longer than the deadline) is presented
-     * again, as a handler does, so the counts below do not depend on the machine's speed.
-     */
-    static JsonNode present(Tap tap, long seq) throws Exception {
-        for (int attempt = 1; ; attempt++) {
-            int mark = tap.msgs.size();
-            tap.publish("zbin/cont/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
-            JsonNode a = tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 10_000)
-                    .get(0).json();
-            if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
-        }
-    }
-
     static JsonNode lastDashboard(Tap tap, java.util.function.Predicate<JsonNode> when) throws InterruptedException {
         return tap.await(m -> m.topic().endsWith("/dashboard") && when.test(m.json()), 1, 20_000).get(0).json();
     }
@@ -69,16 +54,16 @@ class RestartContinuityIT {
              Tap tap = new Tap(broker.url(), "zbin/cont/#")) {
             Path cfg = TestLine.write(dir, "cont", broker.url(), sim.port(), "dashboard: {interval_s: 0.5}\n"); // repeat window: default 5 s
             startAndAwaitReady(tap, cfg, "d0.log", daemon);
-            for (long s = 1; s <= 100; s++) present(tap, s);
+            for (long s = 1; s <= 100; s++) tap.present("cont", s);
             tap.publish("zbin/cont/command", "{\"cmd\":\"lot\",\"lot\":\"LOT-A\",\"id\":\"a\"}");
             tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("a"), 1, 10_000);
-            for (long s = 101; s <= 200; s++) present(tap, s);
-            for (long s = 196; s <= 200; s++) assertTrue(present(tap, s).path("repeat").asBoolean(), "a deliberate repeat"); // 5 repeats
+            for (long s = 101; s <= 200; s++) tap.present("cont", s);
+            for (long s = 196; s <= 200; s++) assertTrue(tap.present("cont", s).path("repeat").asBoolean(), "a deliberate repeat"); // 5 repeats
             for (int i = 0; i < 5; i++) tap.publish("zbin/cont/trigger", "{\"seq\": \"bad\"}");
             tap.publish("zbin/cont/command", "{\"cmd\":\"reset-counters\",\"id\":\"z\"}");
             tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("z"), 1, 10_000);
             java.util.Map<Long, JsonNode> told = new java.util.HashMap<>();
-            for (long s = 201; s <= 230; s++) told.put(s, present(tap, s));
+            for (long s = 201; s <= 230; s++) told.put(s, tap.present("cont", s));
             lastDashboard(tap, j -> j.path("parts").asLong() == 30 && j.path("repeats").asLong() == 5 && j.path("messages_rejected").asLong() == 5);
 
             daemon[0].destroyForcibly().waitFor(10, TimeUnit.SECONDS); // kill -9
@@ -86,7 +71,7 @@ class RestartContinuityIT {
             startAndAwaitReady(tap, cfg, "d1.log", daemon);
             int mark = tap.msgs.size();
             for (long s = 221; s <= 230; s++) { // the handler redelivers what it sent last
-                JsonNode again = present(tap, s);
+                JsonNode again = tap.present("cont", s);
                 assertTrue(again.path("repeat").asBoolean(), "answered from the book, not measured again: " + again);
                 assertEquals(told.get(s).path("bin").asInt(), again.path("bin").asInt());
             }

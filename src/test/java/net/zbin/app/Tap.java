@@ -102,6 +102,21 @@ public final class Tap implements AutoCloseable {
     }
 
     /** The first message at index {@code from} or later that matches; polls every millisecond, scanning only what is new. */
+    /**
+     * Presents one part on {@code line} as a handler does: the trigger ({@code seq}, part "P" + seq), then its answer
+     * before the next part. A part answered {@code stale-trigger} (not measured: on a loaded machine a decision can take
+     * longer than the deadline) is presented again, as a handler does, 20 times at most, so what a test counts does not
+     * depend on the machine's speed. The tap must hear the line's decisions; returns the last answer.
+     */
+    public JsonNode present(String line, long seq) throws Exception {
+        for (int attempt = 1; ; attempt++) {
+            int mark = msgs.size();
+            publish("zbin/" + line + "/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
+            JsonNode a = awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json() != null && m.json().path("seq").asLong() == seq, 30_000).json();
+            if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
+        }
+    }
+
     public Msg awaitAfter(int from, Predicate<Msg> p, long timeoutMs) throws InterruptedException {
         long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
         int i = from;
