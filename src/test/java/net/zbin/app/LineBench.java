@@ -228,9 +228,7 @@ class LineBench {
             for (Path t : tasks.toList()) {
                 try {
                     String stat = Files.readString(t.resolve("stat"));
-                    String name = stat.substring(stat.indexOf('(') + 1, stat.lastIndexOf(')')).replaceAll("[0-9]", "");
-                    String[] f = stat.substring(stat.lastIndexOf(')') + 2).split(" ");
-                    out.merge(name, (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L, Long::sum);
+                    out.merge(stat.substring(stat.indexOf('(') + 1, stat.lastIndexOf(')')).replaceAll("[0-9]", ""), statCpuNs(stat), Long::sum);
                 } catch (java.io.IOException | RuntimeException gone) {
                     // the thread ended in between
                 }
@@ -241,9 +239,13 @@ class LineBench {
 
     /** User + system CPU time of a process from /proc/PID/stat, ns (clock ticks of 10 ms, Linux's USER_HZ). */
     static long processCpuNs(long pid) throws java.io.IOException {
-        String stat = java.nio.file.Files.readString(java.nio.file.Path.of("/proc", Long.toString(pid), "stat"));
+        return statCpuNs(Files.readString(Path.of("/proc", Long.toString(pid), "stat")));
+    }
+
+    /** utime + stime of a process's or thread's /proc stat line, ns: fields 14 and 15, in ticks of 10 ms (USER_HZ). */
+    private static long statCpuNs(String stat) {
         String[] f = stat.substring(stat.lastIndexOf(')') + 2).split(" ");
-        return (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L; // fields 14 and 15 of stat (utime, stime)
+        return (Long.parseLong(f[11]) + Long.parseLong(f[12])) * 10_000_000L;
     }
 
     /** How many of {@code h}'s values are at most {@code ms}. */
