@@ -69,6 +69,39 @@ public final class SimMeter {
 
     public synchronized void inject(SimFault f, int count) { for (int i = 0; i < count; i++) faults.add(f); }
 
+    /** Guards {@link #held}; apart from this object's own lock, which a held reading must not keep. */
+    private final Object holdLock = new Object();
+    private boolean held;
+
+    /**
+     * Holds every reading from now on until {@link #releaseReadings}: a query waits before it is answered, as on a meter
+     * whose measurement takes as long as the test needs (commands other than readings are answered as usual).
+     */
+    public void holdReadings() {
+        synchronized (holdLock) { held = true; }
+    }
+
+    /** Lets held readings and later ones go. */
+    public void releaseReadings() {
+        synchronized (holdLock) {
+            held = false;
+            holdLock.notifyAll();
+        }
+    }
+
+    private void awaitRelease() {
+        synchronized (holdLock) {
+            while (held) {
+                try {
+                    holdLock.wait();
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                    return;
+                }
+            }
+        }
+    }
+
     public synchronized long measurements() { return measurements; }
 
     public synchronized double freqHz() { return freqHz; }
@@ -215,6 +248,7 @@ public final class SimMeter {
             for (int i = 0; i < g.length; i++) if (g[i] == '\n' || g[i] == '\r') g[i] = '#';
             return new Reply.Garbage(g);
         }
+        awaitRelease();
         pause(fault == SimFault.SLOW ? SLOW_MS : ms * timeScale);
         String status = "GOOD";
         if (fault == SimFault.OVERLOAD || z.abs() > RANGE_MAX_OHM) status = "OVER";

@@ -128,9 +128,22 @@ final class TriggerPath {
             String why = e.getMessage();
             return () -> reject(topics.trigger(), why);
         }
+        String lot = t.lot().isEmpty() ? book.lot() : t.lot();
+        // a copy of a trigger claimed before, itself beyond the full queue: that answer again, no second claim or row
+        BusyClaims.Claim earlier = busyClaims.copyOf(t, lot, arrivedNanos);
+        if (earlier != null) return () -> answerBusyAgain(earlier, arrivedNanos);
         // claimed here, on Paho's thread, before it hands on the next message: a copy of this trigger finds the claim
-        BusyClaims.Claim c = busyClaims.claim(t, t.lot().isEmpty() ? book.lot() : t.lot(), monoMs.getAsLong());
+        BusyClaims.Claim c = busyClaims.claim(t, lot, monoMs.getAsLong());
         return () -> answerBusy(c, arrivedNanos);
+    }
+
+    /**
+     * The overflow thread: {@code line-busy} again ({@code repeat: true}) for a copy of a claimed trigger; it follows that
+     * trigger's own answer out of the overflow queue. No row, and nothing of the measuring thread's (the lot) is touched.
+     */
+    private void answerBusyAgain(BusyClaims.Claim c, long arrivedNanos) {
+        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(busyDecision(c.trigger, c.lot, arrivedNanos).asRepeat())), 1, false);
+        stats.repeated();
     }
 
     private void answerBusy(BusyClaims.Claim c, long arrivedNanos) {

@@ -229,6 +229,28 @@ class TriggerPathTest {
     }
 
     @Test
+    void aCopyItselfBeyondTheFullQueue_getsItsOriginalsLineBusyAsARepeat_noSecondRow_oneSentAfterTheAnswerIsNew() throws Exception {
+        byte[] p = "{\"seq\": 21, \"part\": \"P21\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8);
+        long arrived = System.nanoTime();
+        Runnable original = path.busy(p, arrived);
+        Runnable copy = path.busy(p, arrived + 1_000); // the queue still full when the handler's copy came
+        original.run(); // the overflow thread answers in the order they came
+        copy.run();
+        List<JsonNode> d = decisions();
+        assertEquals(2, d.size(), d.toString());
+        for (JsonNode x : d) assertEquals("line-busy", x.path("reason").asText(), d.toString());
+        assertTrue(!d.get(0).path("repeat").asBoolean(), "the original's own answer: " + d);
+        assertTrue(d.get(1).path("repeat").asBoolean(), "the copy's is that answer again: " + d);
+        // after that answer went out, the same trigger beyond the full queue is a new presentation: line-busy, a row of its own
+        path.busy(p, System.nanoTime()).run();
+        assertTrue(!decisions().get(2).path("repeat").asBoolean(), decisions().toString());
+        assertEquals(0, meter.measured);
+        records.close();
+        List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
+        assertEquals(3, rows.size(), "a header and a row for each presentation, none for the copy: " + rows);
+    }
+
+    @Test
     void aPartFarFromTheLimits_isReadOnce_gradedAndRecorded() throws Exception {
         meter.reading(1.0);
         trigger("{\"seq\": 1, \"part\": \"P1\", \"lot\": \"L1\"}");

@@ -1,0 +1,200 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.List;
+import java.util.Map;
+import java.util.TreeMap;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.concurrent.CopyOnWriteArrayList;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicLong;
+import java.util.function.BooleanSupplier;
+import net.zbin.app.daemon.Daemon;
+import net.zbin.io.LineConfig;
+import net.zbin.io.LineConfigLoader;
+import net.zbin.io.meter.ProfileMeterSession;
+import net.zbin.io.mqtt.NoDelaySockets;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import net.zbin.sim.SimMeter;
+import net.zbin.sim.SimTcpServer;
+import org.apache.commons.csv.CSVFormat;
+import org.apache.commons.csv.CSVRecord;
+import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
+import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
+import org.eclipse.paho.client.mqttv3.MqttCallback;
+import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
+import org.eclipse.paho.client.mqttv3.MqttException;
+import org.eclipse.paho.client.mqttv3.MqttMessage;
+import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * A handler that sends every trigger twice, back to back, into a line whose queue is full: through a real Mosquitto, the
+ * copy of a trigger beyond the queue finds its original's {@code line-busy} claim, and the copy of a queued one finds its
+ * original's answer, so each presentation gets one answer twice, never a reading and never a second row.
+ */
+class BusyCopiesIT {
+    private static final ObjectMapper M = new ObjectMapper();
+    /** Presentations in the flood, each sent twice: twice as many messages as the line's queue (10 000) holds and more. */
+    private static final int PARTS = 6_000;
+
+    @TempDir
+    Path dir;
+
+    @Test
+    void everyTriggerSentTwiceIntoAFullQueue_getsOneAnswerTwice_neverAReadingOrASecondRow() throws Exception {
+        Scenario sc = LineRig.quietMeter(Scenario.builtIn());
+        Contacts contacts = new Contacts();
+        contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "max_inflight_messages 0\nmax_queued_messages 200000\n");
+             SimTcpServer server = new SimTcpServer(meter, 0)) {
+            Path cfgFile = TestLine.write(dir, "flood", broker.url(), server.port(), "");
+            // the first part's reading is held while the flood arrives: the profile's reading timeout must outlast it
+            Path profile = dir.resolve("meters/zbin-sim.yaml");
+            String text = Files.readString(profile);
+            assertTrue(text.contains("timeout_ms: 1500"), "the shipped simulator profile's reading timeout, to be raised here");
+            Files.writeString(profile, text.replace("timeout_ms: 1500", "timeout_ms: 600000"));
+            LineConfig cfg = LineConfigLoader.load(cfgFile);
+            Daemon daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
+            daemon.start(30_000);
+            Map<Long, List<JsonNode>> answers = new ConcurrentHashMap<>();
+            AtomicLong busy = new AtomicLong(), all = new AtomicLong();
+            MqttAsyncClient c = new MqttAsyncClient(broker.url(), "twice-" + System.nanoTime(), new MemoryPersistence());
+            try {
+                c.setCallback(new MqttCallback() {
+                    public void connectionLost(Throwable t) { }
+
+                    public void messageArrived(String topic, MqttMessage m) throws Exception {
+                        JsonNode j = M.readTree(m.getPayload());
+                        answers.computeIfAbsent(j.path("seq").asLong(), k -> new CopyOnWriteArrayList<>()).add(j);
+                        if (j.path("reason").asText().equals("line-busy")) busy.incrementAndGet();
+                        all.incrementAndGet();
+                    }
+
+                    public void deliveryComplete(IMqttDeliveryToken t) { }
+                });
+                MqttConnectOptions o = new MqttConnectOptions();
+                o.setMaxInflight(1000);
+                o.setCleanSession(true);
+                o.setSocketFactory(NoDelaySockets.plain());
+                net.zbin.sim.BrokerDial.connectAndSubscribe(c, o, new String[] {"zbin/flood/decision"}, new int[] {1}, 10_000);
+
+                meter.holdReadings();
+                long readings = meter.measurements();
+                send(c, 0);
+                await(() -> meter.measurements() > readings, "the first part's reading to start");
+                for (int i = 1; i <= PARTS; i++) {
+                    send(c, i);
+                    send(c, i); // the handler's copy, right behind it
+                }
+                // The queue holds 10 000 messages at most while the first reading is held: at least the rest are
+                // answered line-busy before anything is measured.
+                long beyond = 2L * PARTS - 10_000;
+                await(() -> busy.get() >= beyond, beyond + " line-busy answers (heard " + busy.get() + ")");
+                meter.releaseReadings();
+                await(() -> all.get() >= 2L * PARTS + 1, (2 * PARTS + 1) + " answers (heard " + all.get() + ")");
+            } finally {
+                meter.releaseReadings();
+                daemon.close();
+                c.disconnect().waitForCompletion(5_000);
+                c.close();
+            }
+
+            List<JsonNode> first = answers.get(0L);
+            assertEquals(1, first.size(), "the held part: one answer");
+            assertFalse(first.get(0).path("repeat").asBoolean(), "the held part: measured, not a repeat");
+            assertTrue(first.get(0).path("value").isNumber(), "the held part: graded from its reading once released: " + first.get(0));
+            // Each presentation's two messages get one answer twice, or — a copy that came after its original's line-busy
+            // answer went out is a new presentation, as a handler's deliberate one would be — line-busy twice, neither a
+            // repeat. A copy of a queued trigger always came before its answer (stale-trigger: the queue waited on the meter).
+            Map<String, Integer> byReason = new TreeMap<>();
+            Map<Long, Long> fresh = new TreeMap<>();
+            int busyCopiesRepeated = 0;
+            List<String> wrong = new java.util.ArrayList<>();
+            for (long seq = 1; seq <= PARTS; seq++) {
+                List<JsonNode> a = answers.get(seq);
+                if (a == null || a.size() != 2) {
+                    wrong.add("seq " + seq + ": " + (a == null ? 0 : a.size()) + " answers for its two messages: " + a);
+                    continue;
+                }
+                String reason = a.get(0).path("reason").asText();
+                byReason.merge(reason, 1, Integer::sum);
+                long repeats = a.stream().filter(j -> j.path("repeat").asBoolean()).count();
+                fresh.put(seq, 2 - repeats);
+                if (!reason.equals("line-busy") && !reason.equals("stale-trigger"))
+                    wrong.add("seq " + seq + ": measured while the line was held: " + a.get(0));
+                else if (!reason.equals(a.get(1).path("reason").asText()) || a.get(0).path("bin").asInt() != a.get(1).path("bin").asInt())
+                    wrong.add("seq " + seq + ": the copy did not get its original's answer: " + a);
+                else if (repeats > 1 || (reason.equals("stale-trigger") && repeats != 1))
+                    wrong.add("seq " + seq + ": " + repeats + " answers marked a repeat: " + a);
+                if (reason.equals("line-busy") && repeats == 1) busyCopiesRepeated++;
+            }
+            assertTrue(wrong.isEmpty(), wrong.size() + " of " + PARTS + " presentations answered wrongly (" + byReason + "), the first: "
+                    + wrong.subList(0, Math.min(3, wrong.size())));
+            System.out.println("presentations answered, by reason: " + byReason + "; line-busy ones whose copy was answered as a repeat: "
+                    + busyCopiesRepeated);
+            assertTrue(byReason.getOrDefault("line-busy", 0) >= (PARTS - 5_000), "presentations beyond the queue: " + byReason);
+            assertTrue(byReason.getOrDefault("stale-trigger", 0) > 0, "presentations that waited in the queue: " + byReason);
+            // The copy follows its original through Paho's thread microseconds later; the overflow thread has to wake, log
+            // and publish before the copy counts as new. A copy beyond the full queue finds its original's claim and is
+            // answered a repeat, in turn, not claimed again (which gave every such copy a row of its own).
+            assertTrue(busyCopiesRepeated > 0, "no copy beyond the full queue was answered as a repeat of its original's line-busy");
+
+            // the record log: one row per presentation, with its answer's reason; none for a copy
+            Map<Long, List<String>> rows = new TreeMap<>();
+            try (var files = Files.list(cfg.records().dir())) {
+                for (Path f : files.sorted().toList()) {
+                    try (var p = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get()
+                            .parse(Files.newBufferedReader(f, StandardCharsets.UTF_8))) {
+                        for (CSVRecord r : p) {
+                            if (!r.get("lot").equals("TWICE")) continue;
+                            rows.computeIfAbsent(Long.parseLong(r.get("seq")), k -> new java.util.ArrayList<>()).add(r.get("reason"));
+                        }
+                    }
+                }
+            }
+            assertEquals(PARTS + 1, rows.size(), "a row for every presentation");
+            for (long seq = 1; seq <= PARTS; seq++) {
+                String reason = answers.get(seq).get(0).path("reason").asText();
+                assertEquals(java.util.Collections.nCopies(fresh.get(seq).intValue(), reason), rows.get(seq),
+                        "seq " + seq + ": a row for each answer not marked a repeat, none for a repeat: " + answers.get(seq));
+            }
+        }
+    }
+
+    private static void send(MqttAsyncClient c, int seq) throws Exception {
+        byte[] p = ("{\"seq\": " + seq + ", \"part\": \"T" + seq + "\", \"lot\": \"TWICE\"}").getBytes(StandardCharsets.UTF_8);
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
+        while (true) {
+            try {
+                c.publish("zbin/flood/trigger", p, 1, false);
+                return;
+            } catch (MqttException e) {
+                if (e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT || System.nanoTime() > end) throw e;
+                Thread.sleep(1);
+            }
+        }
+    }
+
+    /** Waits (bounded: 3 minutes, polling every 10 ms) until {@code done} holds; the message says for what. */
+    private static void await(BooleanSupplier done, String what) throws InterruptedException {
+        long end = System.nanoTime() + TimeUnit.MINUTES.toNanos(3);
+        while (!done.getAsBoolean()) {
+            if (System.nanoTime() > end) throw new AssertionError("waited 3 minutes for " + what);
+            Thread.sleep(10);
+        }
+    }
+}
