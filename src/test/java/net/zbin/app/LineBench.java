@@ -288,7 +288,7 @@ class LineBench {
                 // compiler is busy when its warm-up runs: that warm-up's lot changes ran before the code kept a profile, and
                 // 15 000 parts of one lot let the compiler drop the lot-change branches; the first long lot then threw the
                 // compiled trigger path away (five unstable_if traps on the measuring thread in the JIT's log), which a
-                // `zbin run` process, whose warm-up is profiled, does not (see README).
+                // `zbin run` process, whose warm-up is profiled, does not (see docs/performance-log.md).
                 for (int w = 0; w < WARM_PARTS / WARM_LOT; w++)
                     paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"W\", \"lot\": \"BENCH-WARM-" + w + "\"", WARM_LOT,
                             Integer.MAX_VALUE, 10_000 + w * (long) WARM_LOT);
