@@ -43,7 +43,7 @@ import org.junit.jupiter.api.io.TempDir;
 /**
  * A handler that sends every trigger twice, back to back, into a line whose queue is full: through a real Mosquitto, the
  * copy of a trigger beyond the queue finds its original's {@code line-busy} claim, and the copy of a queued one finds its
- * original's answer, so each presentation gets one answer twice, never a reading and never a second row.
+ * original's answer, so the two messages of a presentation are answered alike, the copy as a repeat without a row.
  */
 class BusyCopiesIT {
     private static final ObjectMapper M = new ObjectMapper();
@@ -54,7 +54,7 @@ class BusyCopiesIT {
     Path dir;
 
     @Test
-    void everyTriggerSentTwiceIntoAFullQueue_getsOneAnswerTwice_neverAReadingOrASecondRow() throws Exception {
+    void everyTriggerSentTwiceIntoAFullQueue_bothAnsweredAlike_theCopyARepeatWithoutARow() throws Exception {
         Scenario sc = LineRig.quietMeter(Scenario.builtIn());
         Contacts contacts = new Contacts();
         contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
@@ -117,9 +117,10 @@ class BusyCopiesIT {
             assertEquals(1, first.size(), "the held part: one answer");
             assertFalse(first.get(0).path("repeat").asBoolean(), "the held part: measured, not a repeat");
             assertTrue(first.get(0).path("value").isNumber(), "the held part: graded from its reading once released: " + first.get(0));
-            // Each presentation's two messages get one answer twice, or — a copy that came after its original's line-busy
-            // answer went out is a new presentation, as a handler's deliberate one would be — line-busy twice, neither a
-            // repeat. A copy of a queued trigger always came before its answer (stale-trigger: the queue waited on the meter).
+            // Each presentation's two messages get one answer twice, the copy's a repeat; or — a copy that came after its
+            // original's line-busy answer went out is a new presentation, as a handler's deliberate one would be —
+            // line-busy twice, neither a repeat. A copy of a queued trigger always came before its original's answer
+            // (stale-trigger, the queue having waited on the meter; or a reading, on a machine that drained it in time).
             Map<String, Integer> byReason = new TreeMap<>();
             Map<Long, Long> fresh = new TreeMap<>();
             int busyCopiesRepeated = 0;
@@ -134,11 +135,9 @@ class BusyCopiesIT {
                 byReason.merge(reason, 1, Integer::sum);
                 long repeats = a.stream().filter(j -> j.path("repeat").asBoolean()).count();
                 fresh.put(seq, 2 - repeats);
-                if (!reason.equals("line-busy") && !reason.equals("stale-trigger"))
-                    wrong.add("seq " + seq + ": measured while the line was held: " + a.get(0));
-                else if (!reason.equals(a.get(1).path("reason").asText()) || a.get(0).path("bin").asInt() != a.get(1).path("bin").asInt())
+                if (!reason.equals(a.get(1).path("reason").asText()) || a.get(0).path("bin").asInt() != a.get(1).path("bin").asInt())
                     wrong.add("seq " + seq + ": the copy did not get its original's answer: " + a);
-                else if (repeats > 1 || (reason.equals("stale-trigger") && repeats != 1))
+                else if (repeats > 1 || (!reason.equals("line-busy") && repeats != 1))
                     wrong.add("seq " + seq + ": " + repeats + " answers marked a repeat: " + a);
                 if (reason.equals("line-busy") && repeats == 1) busyCopiesRepeated++;
             }
@@ -147,7 +146,7 @@ class BusyCopiesIT {
             System.out.println("presentations answered, by reason: " + byReason + "; line-busy ones whose copy was answered as a repeat: "
                     + busyCopiesRepeated);
             assertTrue(byReason.getOrDefault("line-busy", 0) >= (PARTS - 5_000), "presentations beyond the queue: " + byReason);
-            assertTrue(byReason.getOrDefault("stale-trigger", 0) > 0, "presentations that waited in the queue: " + byReason);
+            assertTrue(byReason.getOrDefault("line-busy", 0) < PARTS, "presentations that waited in the queue: " + byReason);
             // The copy follows its original through Paho's thread microseconds later; the overflow thread has to wake, log
             // and publish before the copy counts as new. A copy beyond the full queue finds its original's claim and is
             // answered a repeat, in turn, not claimed again (which gave every such copy a row of its own).

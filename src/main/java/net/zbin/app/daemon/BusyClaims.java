@@ -70,8 +70,8 @@ final class BusyClaims {
     }
 
     /**
-     * The measuring thread, or Paho's for a copy that is itself beyond the full queue: the claim {@code t} is a copy of — the same seq, part, lot and kind, arrived
-     * ({@code arrivedNanos}) before that claim's answer went out — or null.
+     * The measuring thread, or Paho's for a copy that is itself beyond the full queue: the claim {@code t} is a copy of
+     * — the same seq, part, lot and kind, arrived ({@code arrivedNanos}) before that claim's answer went out — or null.
      */
     Claim copyOf(Trigger t, String lot, long arrivedNanos) {
         if (bySeq.isEmpty()) return null; // the usual case: no seq boxed on the trigger path
