@@ -42,13 +42,16 @@ import org.junit.jupiter.api.io.TempDir;
 
 /**
  * A handler that sends every trigger twice, back to back, into a line whose queue is full: through a real Mosquitto, the
- * copy of a trigger beyond the queue finds its original's {@code line-busy} claim, and the copy of a queued one finds its
- * original's answer, so the two messages of a presentation are answered alike, the copy as a repeat without a row.
+ * copy of a trigger beyond the queue finds its original's {@code line-busy} claim, the copy of a queued one its original's
+ * answer, and a copy beyond the queue of a presentation answered before finds that answer in the decision book: the two
+ * messages of a presentation are answered alike, the copy as a repeat without a row.
  */
 class BusyCopiesIT {
     private static final ObjectMapper M = new ObjectMapper();
     /** Presentations in the flood, each sent twice: twice as many messages as the line's queue (10 000) holds and more. */
     private static final int PARTS = 6_000;
+    /** A presentation measured before the line is held, whose copy comes while the queue is full. */
+    private static final int ANSWERED = 100_000;
 
     @TempDir
     Path dir;
@@ -61,7 +64,8 @@ class BusyCopiesIT {
         SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_inflight_messages 0\nmax_queued_messages 200000\n");
              SimTcpServer server = new SimTcpServer(meter, 0)) {
-            Path cfgFile = TestLine.write(dir, "flood", broker.url(), server.port(), "");
+            // a repeat window longer than the test, however slow the machine: a copy is a copy, not a new presentation
+            Path cfgFile = TestLine.write(dir, "flood", broker.url(), server.port(), "handler: {repeat_window_ms: 600000}\n");
             // the first part's reading is held while the flood arrives: the profile's reading timeout must outlast it
             Path profile = dir.resolve("meters/zbin-sim.yaml");
             String text = Files.readString(profile);
@@ -92,6 +96,8 @@ class BusyCopiesIT {
                 o.setSocketFactory(NoDelaySockets.plain());
                 net.zbin.sim.BrokerDial.connectAndSubscribe(c, o, new String[] {"zbin/flood/decision"}, new int[] {1}, 10_000);
 
+                send(c, ANSWERED); // measured and answered before the line is held
+                await(() -> answers.containsKey((long) ANSWERED), "the answer to seq " + ANSWERED);
                 meter.holdReadings();
                 long readings = meter.measurements();
                 send(c, 0);
@@ -104,8 +110,11 @@ class BusyCopiesIT {
                 // answered line-busy before anything is measured.
                 long beyond = 2L * PARTS - 10_000;
                 await(() -> busy.get() >= beyond, beyond + " line-busy answers (heard " + busy.get() + ")");
+                // the queue is full and stays so while the reading is held: a copy of the presentation answered before it
+                send(c, ANSWERED);
+                await(() -> answers.get((long) ANSWERED).size() == 2, "an answer to the copy of seq " + ANSWERED);
                 meter.releaseReadings();
-                await(() -> all.get() >= 2L * PARTS + 1, (2 * PARTS + 1) + " answers (heard " + all.get() + ")");
+                await(() -> all.get() >= 2L * PARTS + 3, (2 * PARTS + 3) + " answers (heard " + all.get() + ")");
             } finally {
                 meter.releaseReadings();
                 daemon.close();
@@ -113,6 +122,12 @@ class BusyCopiesIT {
                 c.close();
             }
 
+            List<JsonNode> early = answers.get((long) ANSWERED);
+            assertFalse(early.get(0).path("repeat").asBoolean(), "measured before the line was held: " + early);
+            assertTrue(early.get(0).path("value").isNumber(), "measured before the line was held: " + early);
+            assertTrue(early.get(1).path("repeat").asBoolean(), "its copy, beyond the full queue, gets its answer again: " + early);
+            for (String f : List.of("reason", "bin", "value", "grade"))
+                assertEquals(early.get(0).path(f), early.get(1).path(f), "the copy's answer is the presentation's, " + f + ": " + early);
             List<JsonNode> first = answers.get(0L);
             assertEquals(1, first.size(), "the held part: one answer");
             assertFalse(first.get(0).path("repeat").asBoolean(), "the held part: measured, not a repeat");
@@ -165,7 +180,8 @@ class BusyCopiesIT {
                     }
                 }
             }
-            assertEquals(PARTS + 1, rows.size(), "a row for every presentation");
+            assertEquals(PARTS + 2, rows.size(), "a row for every presentation");
+            assertEquals(1, rows.get((long) ANSWERED).size(), "one row for the presentation answered before the line was held, none for its copy");
             for (long seq = 1; seq <= PARTS; seq++) {
                 String reason = answers.get(seq).get(0).path("reason").asText();
                 assertEquals(java.util.Collections.nCopies(fresh.get(seq).intValue(), reason), rows.get(seq),

@@ -10,7 +10,9 @@ import net.zbin.core.Trigger;
  * presentation — same seq, part and lot, within the repeat window — gets the same answer again and is
  * never measured twice, and a retest finds its attempt count. A seq that comes back with another part
  * or lot, or after the window, is a new presentation (handlers restart their counters): it is measured
- * and counted as a reused seq. A new lot starts a fresh book. Bounded by count. Measuring thread only.
+ * and counted as a reused seq. A new lot starts a fresh book. Bounded by count. Written by the measuring thread only;
+ * read by Paho's thread too, for a copy that arrives while the queue is full ({@link #repeatOf}), so access is locked
+ * (uncontended on the trigger path: a lock costs nanoseconds against a decision's tens of microseconds).
  */
 final class DecisionBook {
     /** What the book says about a trigger. */
@@ -49,7 +51,7 @@ final class DecisionBook {
     String lot() { return lot; }
 
     /** Starts a fresh book when the lot changes; true when it did. */
-    boolean enterLot(String l) {
+    synchronized boolean enterLot(String l) {
         if (l.equals(lot)) return false;
         lot = l;
         bySeq.clear();
@@ -57,24 +59,43 @@ final class DecisionBook {
     }
 
     /** @param arrivedNanos when the trigger came (System.nanoTime, as the line stamps it) */
-    Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) {
+    synchronized Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) {
         Entry e = bySeq.get(t.seq());
         if (e == null) return new Fresh(false);
         Decision d = e.decision();
-        boolean same = d.part().equals(t.part()) && d.lot().equals(lotId) && d.kind() == t.kind() && nowMs - e.atMs() <= windowMs;
-        // A part that was not measured (line paused, faulted, busy, a stale trigger) is measured when its trigger comes
-        // again — unless this trigger came before that answer went out: the handler sent it again without having heard
-        // the answer (its patience ran out while the line was late), acts on that answer, and gets it again. Measured, it
-        // would give the presentation a second, contradicting answer and a graded row the handler never acted on.
-        if (same && d.grading().reason().kind() == net.zbin.core.Reason.Kind.NOT_MEASURED)
-            return e.answerTimed() && arrivedNanos - e.answeredNanos() < 0 ? new Repeat(d) : new Fresh(false);
-        if (same) return new Repeat(d);
+        if (same(e, t, lotId, nowMs)) return repeats(e, arrivedNanos) ? new Repeat(d) : new Fresh(false);
         reused++;
         return new Fresh(true);
     }
 
+    /**
+     * Any thread: the answer to give again if {@code t} is a copy of a presentation in the book, or null (a new
+     * presentation, or one to measure again). Counts nothing.
+     */
+    synchronized Repeat repeatOf(Trigger t, String lotId, long nowMs, long arrivedNanos) {
+        Entry e = bySeq.get(t.seq());
+        return e != null && same(e, t, lotId, nowMs) && repeats(e, arrivedNanos) ? new Repeat(e.decision()) : null;
+    }
+
+    private boolean same(Entry e, Trigger t, String lotId, long nowMs) {
+        Decision d = e.decision();
+        return d.part().equals(t.part()) && d.lot().equals(lotId) && d.kind() == t.kind() && nowMs - e.atMs() <= windowMs;
+    }
+
+    /**
+     * Whether the same presentation gets its answer again. A part that was not measured (line paused, faulted, busy, a
+     * stale trigger) is measured when its trigger comes again — unless this trigger came before that answer went out:
+     * the handler sent it again without having heard the answer (its patience ran out while the line was late), acts on
+     * that answer, and gets it again. Measured, it would give the presentation a second, contradicting answer and a
+     * graded row the handler never acted on.
+     */
+    private static boolean repeats(Entry e, long arrivedNanos) {
+        if (e.decision().grading().reason().kind() != net.zbin.core.Reason.Kind.NOT_MEASURED) return true;
+        return e.answerTimed() && arrivedNanos - e.answeredNanos() < 0;
+    }
+
     /** The attempt of a presentation that retests {@code retestOf}: one more than that one's, if it is the same part. */
-    int attemptFor(Trigger t, String lotId) {
+    synchronized int attemptFor(Trigger t, String lotId) {
         if (t.retestOf() < 0) return 0;
         Entry e = bySeq.get(t.retestOf());
         if (e == null || !e.decision().part().equals(t.part()) || !e.decision().lot().equals(lotId)) return 1;
@@ -88,7 +109,7 @@ final class DecisionBook {
     /** @param answeredNanos when its answer went out (System.nanoTime) */
     void put(Decision d, long atMs, long answeredNanos) { put(d, atMs, answeredNanos, true); }
 
-    private void put(Decision d, long atMs, long answeredNanos, boolean answerTimed) {
+    private synchronized void put(Decision d, long atMs, long answeredNanos, boolean answerTimed) {
         bySeq.remove(d.seq());
         bySeq.put(d.seq(), new Entry(d, atMs, answeredNanos, answerTimed));
         // Presentations older than the repeat window and a minute for retests are of no further use: memory stays flat.
@@ -101,7 +122,7 @@ final class DecisionBook {
     }
 
     /** Seqs that came back as another presentation, since start. */
-    long reusedSeqs() { return reused; }
+    synchronized long reusedSeqs() { return reused; }
 
-    int size() { return bySeq.size(); }
+    synchronized int size() { return bySeq.size(); }
 }

@@ -109,9 +109,14 @@ final class TriggerPath {
 
     /** A presentation's answer sent again ({@code repeat: true}): no reading, no row. */
     private void answerAgain(Decision d, Ack ack) {
-        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(d.asRepeat())), 1, false);
+        publishRepeat(d);
         ack.send();
         startPendingLot();
+    }
+
+    /** {@code d} sent again ({@code repeat: true}), no row; any thread (the overflow thread's repeats touch nothing else). */
+    private void publishRepeat(Decision d) {
+        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(d.asRepeat())), 1, false);
         stats.repeated();
     }
 
@@ -129,21 +134,15 @@ final class TriggerPath {
             return () -> reject(topics.trigger(), why);
         }
         String lot = t.lot().isEmpty() ? book.lot() : t.lot();
-        // a copy of a trigger claimed before, itself beyond the full queue: that answer again, no second claim or row
+        // a copy of a presentation answered already, or claimed for line-busy before, that is itself beyond the full
+        // queue: that answer again, after the answers waiting before it, with no claim or row of its own
+        DecisionBook.Repeat answered = book.repeatOf(t, lot, monoMs.getAsLong(), arrivedNanos);
+        if (answered != null) return () -> publishRepeat(answered.decision());
         BusyClaims.Claim earlier = busyClaims.copyOf(t, lot, arrivedNanos);
-        if (earlier != null) return () -> answerBusyAgain(earlier, arrivedNanos);
+        if (earlier != null) return () -> publishRepeat(busyDecision(earlier.trigger, earlier.lot, arrivedNanos));
         // claimed here, on Paho's thread, before it hands on the next message: a copy of this trigger finds the claim
         BusyClaims.Claim c = busyClaims.claim(t, lot, monoMs.getAsLong());
         return () -> answerBusy(c, arrivedNanos);
-    }
-
-    /**
-     * The overflow thread: {@code line-busy} again ({@code repeat: true}) for a copy of a claimed trigger; it follows that
-     * trigger's own answer out of the overflow queue. No row, and nothing of the measuring thread's (the lot) is touched.
-     */
-    private void answerBusyAgain(BusyClaims.Claim c, long arrivedNanos) {
-        out.publish(topics.decision(), Payloads.bytes(DecisionFields.json(busyDecision(c.trigger, c.lot, arrivedNanos).asRepeat())), 1, false);
-        stats.repeated();
     }
 
     private void answerBusy(BusyClaims.Claim c, long arrivedNanos) {

@@ -229,6 +229,25 @@ class TriggerPathTest {
     }
 
     @Test
+    void aCopyBeyondTheFullQueueOfAPresentationAnsweredBefore_getsThatAnswerAgain_notLineBusy_noRow() throws Exception {
+        meter.reading(1.0);
+        trigger("{\"seq\": 31, \"part\": \"P31\", \"lot\": \"L1\"}");
+        path.busy("{\"seq\": 31, \"part\": \"P31\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), System.nanoTime()).run();
+        List<JsonNode> d = decisions();
+        assertEquals(2, d.size(), d.toString());
+        assertEquals("J", d.get(1).path("grade").asText(), "the measured answer again: " + d);
+        assertTrue(d.get(1).path("repeat").asBoolean(), d.toString());
+        assertEquals(1, meter.measured);
+        // another part under the same seq is another presentation: beyond the full queue, line-busy
+        path.busy("{\"seq\": 31, \"part\": \"P31b\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), System.nanoTime()).run();
+        assertEquals("line-busy", decisions().get(2).path("reason").asText());
+        assertTrue(!decisions().get(2).path("repeat").asBoolean(), decisions().toString());
+        records.close();
+        List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
+        assertEquals(3, rows.size(), "a header, the measured row and the other part's line-busy row: " + rows);
+    }
+
+    @Test
     void aCopyItselfBeyondTheFullQueue_getsItsOriginalsLineBusyAsARepeat_noSecondRow_oneSentAfterTheAnswerIsNew() throws Exception {
         byte[] p = "{\"seq\": 21, \"part\": \"P21\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8);
         long arrived = System.nanoTime();
