@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import com.fasterxml.jackson.databind.JsonNode;
-import com.fasterxml.jackson.databind.ObjectMapper;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -13,16 +12,11 @@ import java.time.Clock;
 import java.util.List;
 import java.util.Map;
 import java.util.TreeMap;
-import java.util.concurrent.ConcurrentHashMap;
-import java.util.concurrent.CopyOnWriteArrayList;
 import java.util.concurrent.TimeUnit;
-import java.util.concurrent.atomic.AtomicLong;
-import java.util.function.BooleanSupplier;
 import net.zbin.app.daemon.Daemon;
 import net.zbin.io.LineConfig;
 import net.zbin.io.LineConfigLoader;
 import net.zbin.io.meter.ProfileMeterSession;
-import net.zbin.io.mqtt.NoDelaySockets;
 import net.zbin.sim.Contacts;
 import net.zbin.sim.PartModel;
 import net.zbin.sim.Scenario;
@@ -30,13 +24,6 @@ import net.zbin.sim.SimMeter;
 import net.zbin.sim.SimTcpServer;
 import org.apache.commons.csv.CSVFormat;
 import org.apache.commons.csv.CSVRecord;
-import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
-import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
-import org.eclipse.paho.client.mqttv3.MqttCallback;
-import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
-import org.eclipse.paho.client.mqttv3.MqttException;
-import org.eclipse.paho.client.mqttv3.MqttMessage;
-import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
@@ -47,7 +34,6 @@ import org.junit.jupiter.api.io.TempDir;
  * messages of a presentation are answered alike, the copy as a repeat without a row.
  */
 class BusyCopiesIT {
-    private static final ObjectMapper M = new ObjectMapper();
     /** Presentations in the flood, each sent twice: twice as many messages as the line's queue (10 000) holds and more. */
     private static final int PARTS = 6_000;
     /** A presentation measured before the line is held, whose copy comes while the queue is full. */
@@ -73,53 +59,35 @@ class BusyCopiesIT {
             Files.writeString(profile, text.replace("timeout_ms: 1500", "timeout_ms: 600000"));
             LineConfig cfg = LineConfigLoader.load(cfgFile);
             Daemon daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
-            daemon.start(30_000);
-            Map<Long, List<JsonNode>> answers = new ConcurrentHashMap<>();
-            AtomicLong busy = new AtomicLong(), all = new AtomicLong();
-            MqttAsyncClient c = new MqttAsyncClient(broker.url(), "twice-" + System.nanoTime(), new MemoryPersistence());
-            try {
-                c.setCallback(new MqttCallback() {
-                    public void connectionLost(Throwable t) { }
-
-                    public void messageArrived(String topic, MqttMessage m) throws Exception {
-                        JsonNode j = M.readTree(m.getPayload());
-                        answers.computeIfAbsent(j.path("seq").asLong(), k -> new CopyOnWriteArrayList<>()).add(j);
-                        if (j.path("reason").asText().equals("line-busy")) busy.incrementAndGet();
-                        all.incrementAndGet();
-                    }
-
-                    public void deliveryComplete(IMqttDeliveryToken t) { }
-                });
-                MqttConnectOptions o = new MqttConnectOptions();
-                o.setMaxInflight(1000);
-                o.setCleanSession(true);
-                o.setSocketFactory(NoDelaySockets.plain());
-                net.zbin.sim.BrokerDial.connectAndSubscribe(c, o, new String[] {"zbin/flood/decision"}, new int[] {1}, 10_000);
-
-                send(c, ANSWERED); // measured and answered before the line is held
-                await(() -> answers.containsKey((long) ANSWERED), "the answer to seq " + ANSWERED);
+            Map<Long, List<JsonNode>> answers = new TreeMap<>();
+            try (Tap tap = new Tap(broker.url(), "zbin/flood/decision")) {
+                daemon.start(30_000);
+                send(tap, ANSWERED); // measured and answered before the line is held
+                tap.await(m -> seqOf(m) == ANSWERED, 1, 180_000);
                 meter.holdReadings();
                 long readings = meter.measurements();
-                send(c, 0);
-                await(() -> meter.measurements() > readings, "the first part's reading to start");
+                send(tap, 0);
+                long end = System.nanoTime() + TimeUnit.MINUTES.toNanos(3);
+                while (meter.measurements() == readings) {
+                    if (System.nanoTime() > end) throw new AssertionError("the first part's reading did not start within 3 minutes");
+                    Thread.sleep(10);
+                }
                 for (int i = 1; i <= PARTS; i++) {
-                    send(c, i);
-                    send(c, i); // the handler's copy, right behind it
+                    send(tap, i);
+                    send(tap, i); // the handler's copy, right behind it
                 }
                 // The queue holds 10 000 messages at most while the first reading is held: at least the rest are
                 // answered line-busy before anything is measured.
-                long beyond = 2L * PARTS - 10_000;
-                await(() -> busy.get() >= beyond, beyond + " line-busy answers (heard " + busy.get() + ")");
+                tap.await(m -> m.json().path("reason").asText().equals("line-busy"), 2 * PARTS - 10_000, 180_000);
                 // the queue is full and stays so while the reading is held: a copy of the presentation answered before it
-                send(c, ANSWERED);
-                await(() -> answers.get((long) ANSWERED).size() == 2, "an answer to the copy of seq " + ANSWERED);
+                send(tap, ANSWERED);
+                tap.await(m -> seqOf(m) == ANSWERED, 2, 180_000);
                 meter.releaseReadings();
-                await(() -> all.get() >= 2L * PARTS + 3, (2 * PARTS + 3) + " answers (heard " + all.get() + ")");
+                tap.await(m -> true, 2 * PARTS + 3, 180_000);
+                for (Tap.Msg m : tap.msgs) answers.computeIfAbsent(seqOf(m), k -> new java.util.ArrayList<>()).add(m.json());
             } finally {
                 meter.releaseReadings();
                 daemon.close();
-                c.disconnect().waitForCompletion(5_000);
-                c.close();
             }
 
             List<JsonNode> early = answers.get((long) ANSWERED);
@@ -190,26 +158,9 @@ class BusyCopiesIT {
         }
     }
 
-    private static void send(MqttAsyncClient c, int seq) throws Exception {
-        byte[] p = ("{\"seq\": " + seq + ", \"part\": \"T" + seq + "\", \"lot\": \"TWICE\"}").getBytes(StandardCharsets.UTF_8);
-        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
-        while (true) {
-            try {
-                c.publish("zbin/flood/trigger", p, 1, false);
-                return;
-            } catch (MqttException e) {
-                if (e.getReasonCode() != MqttException.REASON_CODE_MAX_INFLIGHT || System.nanoTime() > end) throw e;
-                Thread.sleep(1);
-            }
-        }
+    private static void send(Tap tap, int seq) throws Exception {
+        tap.publishWaiting("zbin/flood/trigger", "{\"seq\": " + seq + ", \"part\": \"T" + seq + "\", \"lot\": \"TWICE\"}");
     }
 
-    /** Waits (bounded: 3 minutes, polling every 10 ms) until {@code done} holds; the message says for what. */
-    private static void await(BooleanSupplier done, String what) throws InterruptedException {
-        long end = System.nanoTime() + TimeUnit.MINUTES.toNanos(3);
-        while (!done.getAsBoolean()) {
-            if (System.nanoTime() > end) throw new AssertionError("waited 3 minutes for " + what);
-            Thread.sleep(10);
-        }
-    }
+    private static long seqOf(Tap.Msg m) { return m.json().path("seq").asLong(); }
 }
