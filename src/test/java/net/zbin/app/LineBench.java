@@ -55,6 +55,13 @@ class LineBench {
     static final Histogram INSIDE = new Histogram(60_000_000_000L, 3);
     /** The same figure for the first decision of each new lot. */
     static final Histogram INSIDE_LOT = new Histogram(60_000_000_000L, 3);
+    /**
+     * The same figure for the first decision after a pause (seconds without a part: a floor block), whatever its lot: the
+     * seqs sent so are put in {@link #AFTER_PAUSE_SEQS} before they go out. It tells a pause's cost inside zbin's code
+     * (cold caches on its own path) from the cost outside it (the MQTT hops and the meter's, which the floor pays too).
+     */
+    static final Histogram INSIDE_AFTER_PAUSE = new Histogram(60_000_000_000L, 3);
+    static final java.util.Set<String> AFTER_PAUSE_SEQS = ConcurrentHashMap.newKeySet();
 
     /** Which of this bench's histograms a decision's own latency_ms goes to, by its part name (null: none). */
     static Histogram insideOf(String payload) {
@@ -88,9 +95,11 @@ class LineBench {
                 if (l >= 0 && inside != null) { // the line's own figure: from the trigger's arrival to the decision made
                     int ls = l + 13, le = ls;
                     while (le < p.length() && "0123456789.eE-".indexOf(p.charAt(le)) >= 0) le++;
+                    long ns = Math.max(1, Math.round(Double.parseDouble(p.substring(ls, le)) * 1e6));
                     synchronized (inside) {
-                        inside.recordValue(Math.max(1, Math.round(Double.parseDouble(p.substring(ls, le)) * 1e6)));
+                        inside.recordValue(ns);
                     }
+                    if (AFTER_PAUSE_SEQS.remove(p.substring(s, e).trim())) synchronized (INSIDE_AFTER_PAUSE) { INSIDE_AFTER_PAUSE.recordValue(ns); }
                 }
             }
 
@@ -310,6 +319,7 @@ class LineBench {
                 int block = SAMPLES / ROUNDS;
                 for (int r = 0; r < ROUNDS; r++) {
                     floor.block(block, lineFloor[0], lineFloor[1]);
+                    AFTER_PAUSE_SEQS.add(Long.toString(100_000 + r * block));
                     Histogram firstOfBlock = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", 1, PACE, 100_000 + r * block);
                     afterPause.add(firstOfBlock);
                     line.add(firstOfBlock);
@@ -321,6 +331,7 @@ class LineBench {
                 for (int k = 0; k < LOTS; k++) {
                     floor.block(block, lotsFloor[0], lotsFloor[1]);
                     String lotPart = ", \"part\": \"L" + k + "\", \"lot\": \"BENCH-LOT-" + k + "\"";
+                    AFTER_PAUSE_SEQS.add(Long.toString(300_000 + k * 10_000L));
                     Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 300_000 + k * 10_000L);
                     firstOfLot.add(first1);
                     lotAfterPause.add(first1);
@@ -331,7 +342,10 @@ class LineBench {
                 // every SHORT_LOT parts, each lot's first decision beside the rest of that stretch.
                 Histogram shortRest = new Histogram(60_000_000_000L, 3);
                 for (int k = 0; k < SHORT_LOTS; k++) {
-                    if (k % 10 == 0) floor.block(block / 2);
+                    if (k % 10 == 0) {
+                        floor.block(block / 2);
+                        AFTER_PAUSE_SEQS.add(Long.toString(500_000 + k * 10_000L));
+                    }
                     String lotPart = ", \"part\": \"L" + (LOTS + k) + "\", \"lot\": \"BENCH-SHORT-" + k + "\"";
                     Histogram first1 = paced(handler, waiting, "zbin/bench/trigger", lotPart, 1, PACE, 500_000 + k * 10_000L);
                     firstOfLot.add(first1);
@@ -369,11 +383,13 @@ class LineBench {
                 out.set("rest_of_the_short_lots", json(shortRest));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
+                out.set("first_decision_after_a_pause_inside_zbin_arrival_to_decided", json(INSIDE_AFTER_PAUSE));
                 System.out.printf(Locale.ROOT, "%n  %-52s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
                         {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line}, {"  of it inside zbin: arrival -> decided", INSIDE},
                         {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
                         {"the first decision of a lot (" + firstOfLot.getTotalCount() + " lots)", firstOfLot}, {"  of it inside zbin: arrival -> decided", INSIDE_LOT},
+                        {"the first decision after a pause, inside zbin (" + INSIDE_AFTER_PAUSE.getTotalCount() + ")", INSIDE_AFTER_PAUSE},
                         {"  the rest of the " + SHORT_LOTS + " short lots (" + SHORT_LOT + " parts)", shortRest}}) {
                     Histogram h = (Histogram) e[1];
                     System.out.printf(Locale.ROOT, "  %-52s %9.3f %9.3f %9.3f %9.3f%n", e[0], h.getValueAtPercentile(50) / 1e6,
