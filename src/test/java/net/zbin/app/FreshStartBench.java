@@ -146,7 +146,7 @@ class FreshStartBench {
              BenchFloor floor = new BenchFloor(broker.url());
              Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
             floor.meterAt(sim.port());
-            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n");
+            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n", LineBench.flushMs());
             Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
             java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
             // which of the first 100 took zbin itself over 1 ms (seq: ms; seq = start * 100 000 + position)

@@ -16,6 +16,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 import net.zbin.io.Json;
 import net.zbin.io.mqtt.NoDelaySockets;
+import net.zbin.sim.Contacts;
 import net.zbin.sim.PartModel;
 import net.zbin.sim.Scenario;
 import org.HdrHistogram.Histogram;
@@ -50,6 +51,12 @@ class LineBench {
 
     @TempDir
     Path dir;
+
+    /**
+     * The record log's {@code flush_ms} for the benches' lines: the shipped default (null: the key left out), as a line
+     * runs; {@code -Dzbin.bench.flush_ms=50} forces the file as often as the tests' lines do, for an A/B.
+     */
+    static Integer flushMs() { return Integer.getInteger("zbin.bench.flush_ms"); }
 
     /** Inside zbin, per decision of the paced run: its own latency_ms, from the trigger's arrival to the decision made (ns). */
     static final Histogram INSIDE = new Histogram(60_000_000_000L, 3);
@@ -282,7 +289,7 @@ class LineBench {
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
              BenchFloor floor = new BenchFloor(broker.url())) {
             try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
-                    "handler: {deadline_ms: 150}\n")) {
+                    "handler: {deadline_ms: 150}\n", null, new Contacts(), flushMs())) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
                 floor.meterAt(rig.meterServer.port());
                 Histogram meterTight = floor.meterBackToBack(SAMPLES);

@@ -41,13 +41,19 @@ public class LineRig implements AutoCloseable {
     /** @param contacts the meter's contacts, shared with a handler simulator made before the rig */
     public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail, Contacts contacts)
             throws Exception {
+        this(dir, line, broker, sc, recipe, extra, mqttTail, contacts, 50);
+    }
+
+    /** @param flushMs the record log's {@code flush_ms}, null for the shipped default ({@link TestLine#write}) */
+    public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail, Contacts contacts,
+                   Integer flushMs) throws Exception {
         this.contacts = contacts;
         this.line = line;
         this.scenario = sc;
         this.dir = dir;
         meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, sc.meterFaults().toRandomFaults());
         meterServer = new SimTcpServer(meter, 0);
-        Path cfgFile = TestLine.write(dir, line, broker, meterServer.port(), extra);
+        Path cfgFile = TestLine.write(dir, line, broker, meterServer.port(), extra, flushMs);
         String text = Files.readString(cfgFile).replace("active: mlcc-x7r-100n", "active: " + recipe);
         if (mqttTail != null) text = text.replace("topic_root: zbin}", mqttTail);
         Files.writeString(cfgFile, text);

@@ -19,6 +19,7 @@ import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.concurrent.atomic.AtomicLong;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import net.zbin.io.Json;
+import net.zbin.sim.Contacts;
 import net.zbin.sim.PartModel;
 import net.zbin.sim.Scenario;
 import org.HdrHistogram.Histogram;
@@ -54,7 +55,8 @@ class StatusBench {
                 boolean page = round % 2 == 1;
                 String line = "sb" + round;
                 try (LineRig rig = new LineRig(dir, line, broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
-                        "handler: {deadline_ms: 150}\ndashboard: {interval_s: 1}\n" + (page ? "status: {listen: '127.0.0.1:0'}\n" : ""))) {
+                        "handler: {deadline_ms: 150}\ndashboard: {interval_s: 1}\n" + (page ? "status: {listen: '127.0.0.1:0'}\n" : ""), null,
+                        new Contacts(), LineBench.flushMs())) {
                     rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
                     floor.meterAt(rig.meterServer.port());
                     Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();

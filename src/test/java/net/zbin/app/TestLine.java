@@ -10,6 +10,15 @@ public final class TestLine {
     private TestLine() {}
 
     public static Path write(Path dir, String line, String broker, int meterPort, String extra) throws IOException {
+        return write(dir, line, broker, meterPort, extra, 50);
+    }
+
+    /**
+     * @param flushMs the record log's {@code flush_ms}; null leaves the key out (the shipped default, what the benches
+     *                measure). The tests' 50 ms has the rows on disk soon after a part; it also forces the file four
+     *                times as often as a line does by default.
+     */
+    public static Path write(Path dir, String line, String broker, int meterPort, String extra, Integer flushMs) throws IOException {
         Path recipes = dir.resolve("recipes"), meters = dir.resolve("meters");
         Files.createDirectories(recipes);
         Files.createDirectories(meters);
@@ -23,7 +32,7 @@ public final class TestLine {
                 + "meter:\n  profile: meters/zbin-sim.yaml\n  transport: {tcp: {host: 127.0.0.1, port: " + meterPort + "}}\n"
                 + "recipes: {dir: recipes, active: mlcc-x7r-100n}\n"
                 + "state_dir: state-" + line + "\n"
-                + "records: {dir: records-" + line + ", flush_ms: 50}\n"
+                + "records: {dir: records-" + line + (flushMs == null ? "" : ", flush_ms: " + flushMs) + "}\n"
                 + extra);
         return cfg;
     }
