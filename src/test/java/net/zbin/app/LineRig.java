@@ -41,7 +41,7 @@ public class LineRig implements AutoCloseable {
     /** @param contacts the meter's contacts, shared with a handler simulator made before the rig */
     public LineRig(Path dir, String line, String broker, Scenario sc, String recipe, String extra, String mqttTail, Contacts contacts)
             throws Exception {
-        this(dir, line, broker, sc, recipe, extra, mqttTail, contacts, 50);
+        this(dir, line, broker, sc, recipe, extra, mqttTail, contacts, TestLine.FLUSH_MS);
     }
 
     /** @param flushMs the record log's {@code flush_ms}, null for the shipped default ({@link TestLine#write}) */

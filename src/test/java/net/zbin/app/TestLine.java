@@ -9,14 +9,17 @@ import java.util.stream.Stream;
 public final class TestLine {
     private TestLine() {}
 
+    /** The tests' record-log {@code flush_ms}: rows on disk soon after a part. */
+    public static final int FLUSH_MS = 50;
+
     public static Path write(Path dir, String line, String broker, int meterPort, String extra) throws IOException {
-        return write(dir, line, broker, meterPort, extra, 50);
+        return write(dir, line, broker, meterPort, extra, FLUSH_MS);
     }
 
     /**
      * @param flushMs the record log's {@code flush_ms}; null leaves the key out (the shipped default, what the benches
-     *                measure). The tests' 50 ms has the rows on disk soon after a part; it also forces the file four
-     *                times as often as a line does by default.
+     *                measure). The tests' {@link #FLUSH_MS} forces the file four times as often as a line does by
+     *                default.
      */
     public static Path write(Path dir, String line, String broker, int meterPort, String extra, Integer flushMs) throws IOException {
         Path recipes = dir.resolve("recipes"), meters = dir.resolve("meters");
