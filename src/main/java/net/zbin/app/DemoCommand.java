@@ -51,6 +51,9 @@ public final class DemoCommand implements Callable<Integer> {
     String statusListen;
     @Option(names = "--stay", description = "after the lot, keep the line and its status page up until Ctrl-C")
     boolean stay;
+    @Option(names = "--time-scale", defaultValue = "0.3", paramLabel = "X",
+            description = "multiply the simulated meter's stated measurement time actually waited (0: answer at once; default ${DEFAULT-VALUE})")
+    double timeScale;
 
     @picocli.CommandLine.Spec
     picocli.CommandLine.Model.CommandSpec spec;
@@ -58,6 +61,7 @@ public final class DemoCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         Scenario sc = lot.scenario();
+        if (!(timeScale >= 0) || timeScale > 1000) throw new UsageException("--time-scale must be 0..1000 (was " + timeScale + ")");
         double rate = pace.perSecond();
         long parts = lot.parts;
         Path dir = out != null ? Files.createDirectories(out) : Files.createTempDirectory("zbin-demo-");
@@ -65,7 +69,7 @@ public final class DemoCommand implements Callable<Integer> {
         String recipe = recipeName == null ? recipeFor(sc, dir.resolve("recipes")) : fitting(sc, dir.resolve("recipes"), recipeName);
         PrintWriter o = spec.commandLine().getOut();
         Contacts contacts = new Contacts();
-        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0.3,
+        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), timeScale,
                 sc.meterFaults().toRandomFaults());
         meter.noiseFactor(sc.meterFaults().noise());
         try (EmbeddedBroker broker = new EmbeddedBroker(Files.createDirectories(dir.resolve("broker")));

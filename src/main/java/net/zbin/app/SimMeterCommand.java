@@ -41,7 +41,7 @@ public final class SimMeterCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         Scenario sc = Scenarios.load(scenarioFile);
-        if (timeScale < 0) throw new UsageException("--time-scale must be >= 0 (was " + timeScale + ")");
+        if (!(timeScale >= 0) || timeScale > 1000) throw new UsageException("--time-scale must be 0..1000 (was " + timeScale + ")");
         if (link.tcp != null && (link.tcp < 0 || link.tcp > 65535))
             throw new UsageException("--tcp must be a port 0..65535 (was " + link.tcp + ")");
         if (link.serial != null && !java.nio.file.Files.exists(link.serial))

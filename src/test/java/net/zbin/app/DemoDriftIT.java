@@ -22,8 +22,9 @@ class DemoDriftIT {
 
     @Test
     void driftingStray_raisesTheCompensationAlarmDuringTheRun_andReplayFindsTheSameAlarmPoints() throws Exception {
-        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", "simulators/scenarios/harrowgate-c0g-100p-stray-drift.yaml",
-                "--parts", "12000", "--rate", "250", "--out", dir.toString()).redirectErrorStream(true).start();
+        Path scenario = FastDriftScenario.write(Files.createDirectories(dir.resolve("scenario")));
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", scenario.toString(), "--time-scale", "0",
+                "--parts", "12000", "--rate", "500", "--out", dir.resolve("demo").toString()).redirectErrorStream(true).start();
         String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
         assertTrue(p.waitFor(5, TimeUnit.MINUTES));
         assertEquals(0, p.exitValue(), out);
@@ -34,14 +35,14 @@ class DemoDriftIT {
                 "reference-off", "negative-r-rate");
         ObjectMapper m = new ObjectMapper();
         List<String> live = new ArrayList<>();
-        for (String line : Files.readAllLines(dir.resolve("state/alarms-demo.jsonl"))) {
+        for (String line : Files.readAllLines(dir.resolve("demo/state/alarms-demo.jsonl"))) {
             JsonNode a = m.readTree(line);
             if (monitorCodes.contains(a.path("code").asText())) live.add(a.path("code").asText() + (a.path("active").asBoolean() ? "+" : "-"));
         }
         // … and as a replay of the record log finds them.
-        java.io.File[] logs = dir.resolve("records").toFile().listFiles();
+        java.io.File[] logs = dir.resolve("demo/records").toFile().listFiles();
         if (logs.length != 1) return; // the run crossed midnight UTC: the lot is split over two files
-        Cli replay = Cli.run("replay", "--recipe", dir.resolve("recipes/mlcc-c0g-100p.yaml").toString(), "--in", logs[0].toString(), "--json");
+        Cli replay = Cli.run("replay", "--recipe", dir.resolve("demo/recipes/mlcc-c0g-100p.yaml").toString(), "--in", logs[0].toString(), "--json");
         assertEquals(0, replay.exit(), replay.err());
         List<String> replayed = new ArrayList<>();
         for (JsonNode a : m.readTree(replay.out()).path("alarm_points"))

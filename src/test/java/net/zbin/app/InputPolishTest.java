@@ -77,6 +77,18 @@ class InputPolishTest {
     }
 
     @Test
+    void aMeterTimeScaleThatIsNotANumberOfTimes_exits2NamingTheOption_inTheDemoAndTheMeterSimulator() {
+        for (String bad : new String[] {"-0.5", "NaN", "1e9"}) {
+            Cli demo = Cli.run("demo", "--time-scale", bad, "--parts", "10", "--status", "off");
+            assertEquals(2, demo.exit(), bad);
+            assertTrue(demo.err().contains("--time-scale must be 0..1000 (was "), demo.err());
+            Cli sim = Cli.run("sim", "meter", "--tcp", "0", "--time-scale", bad);
+            assertEquals(2, sim.exit(), bad);
+            assertTrue(sim.err().contains("--time-scale must be 0..1000 (was "), sim.err());
+        }
+    }
+
+    @Test
     void anOutputFolderThatDoesNotExist_exits2() {
         Cli c = Cli.run("sim", "lot", "--out", dir.resolve("no/such/folder/lot.csv").toString(), "--parts", "5");
         assertEquals(2, c.exit());

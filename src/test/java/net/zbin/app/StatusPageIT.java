@@ -117,7 +117,8 @@ class StatusPageIT {
 
     @Test
     void driftingLine_pageFollowsTheDashboard_alarmAppearsWithin2s_operatorAcknowledgesByKeyboard_metricsEqualTheDashboard() throws Exception {
-        demo = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", "simulators/scenarios/harrowgate-c0g-100p-stray-drift.yaml",
+        Path scenario = FastDriftScenario.write(Files.createDirectories(dir.resolve("scenario")));
+        demo = new ProcessBuilder("java", "-jar", Jar.path(), "demo", "--scenario", scenario.toString(), "--time-scale", "0",
                 "--parts", "12000", "--rate", "500", "--status", "127.0.0.1:0", "--stay", "--out", dir.resolve("demo").toString())
                 .redirectErrorStream(true).start();
         List<String> out = follow(demo);
