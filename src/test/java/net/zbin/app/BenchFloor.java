@@ -33,6 +33,11 @@ final class BenchFloor implements AutoCloseable {
      * beside the line's first decision after one against the same p99.
      */
     final Histogram firstExchange = new Histogram(60_000_000_000L, 3);
+    /**
+     * Each block's exchanges, the i-th echo plus the i-th meter exchange, one histogram per block: the floor's own part
+     * by part, to ask of it what a target asks of a line's first decisions (every one of a block within the floor's p99).
+     */
+    final java.util.List<Histogram> blockExchanges = new java.util.ArrayList<>();
     private final MqttAsyncClient responder, requester;
     private final Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
     private Socket meterSocket;
@@ -78,16 +83,23 @@ final class BenchFloor implements AutoCloseable {
 
     /** One block recorded here and also in {@code echoToo} and {@code meterToo} (when not null). */
     void block(int n, Histogram echoToo, Histogram meterToo) throws Exception {
-        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", 1, LineBench.PACE, seq);
+        long[] echoEach = new long[n], meterEach = new long[n];
+        long[] one = new long[1];
+        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", 1, LineBench.PACE, seq, one);
         firstEcho.add(e);
-        long firstEchoNanos = e.getMaxValue();
-        e.add(LineBench.paced(requester, waiting, "bench/req", "", n - 1, LineBench.PACE, seq + 1));
+        echoEach[0] = one[0];
+        long[] rest = new long[n - 1];
+        e.add(LineBench.paced(requester, waiting, "bench/req", "", n - 1, LineBench.PACE, seq + 1, rest));
+        System.arraycopy(rest, 0, echoEach, 1, n - 1);
         seq += n;
         Histogram m = new Histogram(60_000_000_000L, 3);
-        LineBench.meterExchanges(meterOut, meterIn, 1, LineBench.PACE, m);
+        LineBench.meterExchanges(meterOut, meterIn, 1, LineBench.PACE, m, meterEach, 0);
         firstMeter.add(m);
-        firstExchange.recordValue(firstEchoNanos + m.getMaxValue()); // m holds this block's first exchange only, so far
-        LineBench.meterExchanges(meterOut, meterIn, n - 1, LineBench.PACE, m);
+        firstExchange.recordValue(echoEach[0] + meterEach[0]);
+        LineBench.meterExchanges(meterOut, meterIn, n - 1, LineBench.PACE, m, meterEach, 1);
+        Histogram pairs = new Histogram(60_000_000_000L, 3);
+        for (int i = 0; i < n; i++) pairs.recordValue(echoEach[i] + meterEach[i]);
+        blockExchanges.add(pairs);
         echo.add(e);
         meter.add(m);
         if (echoToo != null) echoToo.add(e);

@@ -45,6 +45,13 @@ class FreshStartBench {
     /** Unmeasured decisions between the first 100 and the warm reference ({@code zbin.bench.fresh.settle}). */
     static final int SETTLE = Integer.getInteger("zbin.bench.fresh.settle", 400);
 
+    /** How many of {@code blocks} have every value within {@code ms}. */
+    static int whollyWithin(java.util.List<Histogram> blocks, double ms) {
+        int n = 0;
+        for (Histogram b : blocks) if (LineBench.count(b, ms) == b.getTotalCount()) n++;
+        return n;
+    }
+
     /** How the daemon's process starts: {@code unit} (the default), {@code jar} or {@code classes}; see the class comment. */
     static final String HOW = System.getProperty("zbin.bench.daemon.start", "unit");
 
@@ -139,6 +146,8 @@ class FreshStartBench {
         Histogram second10 = new Histogram(60_000_000_000L, 3), rest = new Histogram(60_000_000_000L, 3);
         // the reference: the same processes a little later, warm (after SETTLE more decisions), against the same floor
         Histogram warm = new Histogram(60_000_000_000L, 3), insideWarm = new Histogram(60_000_000_000L, 3);
+        // the same, start by start: a target asks that every one of a start's first 100 be within the floor's p99
+        java.util.List<Histogram> firstOfEachStart = new java.util.ArrayList<>(), warmOfEachStart = new java.util.ArrayList<>();
         Path archive = dir.resolve("zbin-fresh.jsa");
         long[] readyMs = new long[STARTS];
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
@@ -194,10 +203,18 @@ class FreshStartBench {
                     Histogram late = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 10, LineBench.PACE, i * 100_000L + 10);
                     first.add(early);
                     first.add(late);
+                    Histogram thisStart = new Histogram(60_000_000_000L, 3);
+                    thisStart.add(one);
+                    thisStart.add(early);
+                    thisStart.add(late);
+                    firstOfEachStart.add(thisStart);
                     second10.add(early);
                     rest.add(late);
                     LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"U" + i + "\"", SETTLE, LineBench.PACE, i * 100_000L + FIRST);
-                    warm.add(LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"W" + i + "\"", WARM, LineBench.PACE, i * 100_000L + FIRST + SETTLE));
+                    Histogram warmOfThisStart = LineBench.paced(handler, waiting, "zbin/fresh/trigger", ", \"part\": \"W" + i + "\"", WARM, LineBench.PACE,
+                            i * 100_000L + FIRST + SETTLE);
+                    warm.add(warmOfThisStart);
+                    warmOfEachStart.add(warmOfThisStart);
                 } finally {
                     stop(daemon);
                 }
@@ -305,6 +322,24 @@ class FreshStartBench {
             w.put("within_floor_p99", LineBench.count(warm, floorP99));
             out.set("reference_warm_" + WARM + "_after_" + SETTLE + "_more_each_start", w);
             out.set("reference_warm_inside_zbin_arrival_to_decided", LineBench.json(insideWarm));
+            // every one of 100 within the floor's p99, asked of each start's first 100, of each start's warm reference and of
+            // the floor's own blocks of 100 (the i-th echo plus the i-th meter exchange): how often the floor itself passes
+            int startsAll = whollyWithin(firstOfEachStart, floorP99), warmAll = whollyWithin(warmOfEachStart, floorP99),
+                    floorAll = whollyWithin(floor.blockExchanges, floorP99);
+            long floorWithin = 0, floorExchanges = 0;
+            for (Histogram b : floor.blockExchanges) {
+                floorWithin += LineBench.count(b, floorP99);
+                floorExchanges += b.getTotalCount();
+            }
+            ObjectNode all = out.putObject("every_one_of_100_within_floor_p99");
+            all.put("starts_first_100", startsAll);
+            all.put("starts", firstOfEachStart.size());
+            all.put("warm_reference_blocks", warmAll);
+            all.put("warm_reference_of", warmOfEachStart.size());
+            all.put("floor_own_blocks", floorAll);
+            all.put("floor_own_blocks_of", floor.blockExchanges.size());
+            all.put("floor_own_exchanges_within", floorWithin);
+            all.put("floor_own_exchanges", floorExchanges);
             out.put("started_as", HOW);
             ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
             cpu.put("decisions", CPU_PARTS);
@@ -336,6 +371,9 @@ class FreshStartBench {
                     LineBench.count(first, floorP99), first.getTotalCount(), LineBench.count(veryFirst, floorP99), veryFirst.getTotalCount(),
                     LineBench.count(second10, floorP99), second10.getTotalCount(), LineBench.count(rest, floorP99), rest.getTotalCount(),
                     LineBench.count(warm, floorP99), warm.getTotalCount(), HOW);
+            System.out.printf(Locale.ROOT, "  every one of 100 within the floor's p99: the first 100 of %d of the %d starts; the warm reference of %d of %d;"
+                    + " the floor's own blocks of 100 (the i-th echo plus the i-th meter exchange) %d of %d, %d of their %d exchanges within%n",
+                    startsAll, firstOfEachStart.size(), warmAll, warmOfEachStart.size(), floorAll, floor.blockExchanges.size(), floorWithin, floorExchanges);
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
             Path logDir = Path.of("target/bench/fresh-start-logs");

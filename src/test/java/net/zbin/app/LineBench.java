@@ -124,6 +124,12 @@ class LineBench {
     /** Request/response at a handler's pace: one message, wait for its answer, next slot. */
     static Histogram paced(MqttAsyncClient c, Map<String, CompletableFuture<Long>> waiting, String topic, String prefix, int n, int rate, long seq0)
             throws Exception {
+        return paced(c, waiting, topic, prefix, n, rate, seq0, null);
+    }
+
+    /** As {@link #paced(MqttAsyncClient, Map, String, String, int, int, long)}, each latency also in {@code each} (ns, in order; when not null). */
+    static Histogram paced(MqttAsyncClient c, Map<String, CompletableFuture<Long>> waiting, String topic, String prefix, int n, int rate, long seq0,
+                           long[] each) throws Exception {
         Histogram h = new Histogram(60_000_000_000L, 3);
         long period = 1_000_000_000L / rate, next = System.nanoTime();
         for (int i = 0; i < n; i++) {
@@ -135,6 +141,7 @@ class LineBench {
             long t1 = f.get(10, TimeUnit.SECONDS);
             waiting.remove(seq);
             h.recordValue(Math.max(1, t1 - t0));
+            if (each != null) each[i] = Math.max(1, t1 - t0);
             next += period;
             long wait = next - System.nanoTime();
             if (wait > 0) TimeUnit.NANOSECONDS.sleep(wait);
@@ -145,13 +152,20 @@ class LineBench {
 
     /** {@code n} request/response exchanges with the meter simulator, at {@code rate} per second (0: back to back), recorded in {@code h} (or not). */
     static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h) throws Exception {
+        meterExchanges(o, in, n, rate, h, null, 0);
+    }
+
+    /** As {@link #meterExchanges(OutputStream, BufferedReader, int, int, Histogram)}, each latency also in {@code each} from {@code at} on (ns; when not null). */
+    static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h, long[] each, int at) throws Exception {
         long period = rate == 0 ? 0 : 1_000_000_000L / rate, next = System.nanoTime();
         for (int i = 0; i < n; i++) {
             long t0 = System.nanoTime();
             o.write("TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII));
             o.flush();
             in.readLine();
-            if (h != null) h.recordValue(Math.max(1, System.nanoTime() - t0));
+            long took = Math.max(1, System.nanoTime() - t0);
+            if (h != null) h.recordValue(took);
+            if (each != null) each[at + i] = took;
             if (rate == 0) continue;
             next += period;
             long wait = next - System.nanoTime();
