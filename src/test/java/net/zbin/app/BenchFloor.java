@@ -84,19 +84,13 @@ final class BenchFloor implements AutoCloseable {
     /** One block recorded here and also in {@code echoToo} and {@code meterToo} (when not null). */
     void block(int n, Histogram echoToo, Histogram meterToo) throws Exception {
         long[] echoEach = new long[n], meterEach = new long[n];
-        long[] one = new long[1];
-        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", 1, LineBench.PACE, seq, one);
-        firstEcho.add(e);
-        echoEach[0] = one[0];
-        long[] rest = new long[n - 1];
-        e.add(LineBench.paced(requester, waiting, "bench/req", "", n - 1, LineBench.PACE, seq + 1, rest));
-        System.arraycopy(rest, 0, echoEach, 1, n - 1);
+        Histogram e = LineBench.paced(requester, waiting, "bench/req", "", n, LineBench.PACE, seq, echoEach);
         seq += n;
         Histogram m = new Histogram(60_000_000_000L, 3);
-        LineBench.meterExchanges(meterOut, meterIn, 1, LineBench.PACE, m, meterEach, 0);
-        firstMeter.add(m);
+        LineBench.meterExchanges(meterOut, meterIn, n, LineBench.PACE, m, meterEach);
+        firstEcho.recordValue(echoEach[0]);
+        firstMeter.recordValue(meterEach[0]);
         firstExchange.recordValue(echoEach[0] + meterEach[0]);
-        LineBench.meterExchanges(meterOut, meterIn, n - 1, LineBench.PACE, m, meterEach, 1);
         Histogram pairs = new Histogram(60_000_000_000L, 3);
         for (int i = 0; i < n; i++) pairs.recordValue(echoEach[i] + meterEach[i]);
         blockExchanges.add(pairs);

@@ -152,11 +152,11 @@ class LineBench {
 
     /** {@code n} request/response exchanges with the meter simulator, at {@code rate} per second (0: back to back), recorded in {@code h} (or not). */
     static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h) throws Exception {
-        meterExchanges(o, in, n, rate, h, null, 0);
+        meterExchanges(o, in, n, rate, h, null);
     }
 
-    /** As {@link #meterExchanges(OutputStream, BufferedReader, int, int, Histogram)}, each latency also in {@code each} from {@code at} on (ns; when not null). */
-    static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h, long[] each, int at) throws Exception {
+    /** As {@link #meterExchanges(OutputStream, BufferedReader, int, int, Histogram)}, each latency also in {@code each} (ns, in order; when not null). */
+    static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h, long[] each) throws Exception {
         long period = rate == 0 ? 0 : 1_000_000_000L / rate, next = System.nanoTime();
         for (int i = 0; i < n; i++) {
             long t0 = System.nanoTime();
@@ -165,7 +165,7 @@ class LineBench {
             in.readLine();
             long took = Math.max(1, System.nanoTime() - t0);
             if (h != null) h.recordValue(took);
-            if (each != null) each[at + i] = took;
+            if (each != null) each[i] = took;
             if (rate == 0) continue;
             next += period;
             long wait = next - System.nanoTime();
