@@ -197,16 +197,14 @@ class FreshStartBench {
                     readyMs[i] = (System.nanoTime() - t0) / 1_000_000;
                     String part = ", \"part\": \"S" + i + "\"";
                     Histogram one = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 1, LineBench.PACE, i * 100_000L);
-                    first.add(one);
                     veryFirst.add(one);
                     Histogram early = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, 9, LineBench.PACE, i * 100_000L + 1);
                     Histogram late = LineBench.paced(handler, waiting, "zbin/fresh/trigger", part, FIRST - 10, LineBench.PACE, i * 100_000L + 10);
-                    first.add(early);
-                    first.add(late);
                     Histogram thisStart = new Histogram(60_000_000_000L, 3);
                     thisStart.add(one);
                     thisStart.add(early);
                     thisStart.add(late);
+                    first.add(thisStart);
                     firstOfEachStart.add(thisStart);
                     second10.add(early);
                     rest.add(late);
