@@ -19,6 +19,12 @@ import org.eclipse.paho.client.mqttv3.MqttMessage;
  * A benchmark's floor: what any controller on this rig pays per part whatever it does — a bare MQTT echo through the
  * same broker plus one request/response with the meter simulator at zero measurement time, both at the line's pace.
  * Measured in blocks alternating with the line's, so a shared machine's changing load weighs on both.
+ *
+ * <p>Beside it, the relayed floor: the same echo whose responder makes the meter exchange before it answers, as a
+ * controller must. The two halves of the summed floor are each measured alone, with nothing else moving on the machine;
+ * a controller's meter exchange runs while the handler's client, the broker and their acknowledgements of the trigger are
+ * still at work on the same cores. The relayed floor pays that overlap, and so tells the rig's share of a part's tail from
+ * the controller's.
  */
 final class BenchFloor implements AutoCloseable {
     final Histogram echo = new Histogram(60_000_000_000L, 3), meter = new Histogram(60_000_000_000L, 3);
@@ -38,30 +44,62 @@ final class BenchFloor implements AutoCloseable {
      * by part, to ask of it what a target asks of a line's first decisions (every one of a block within the floor's p99).
      */
     final java.util.List<Histogram> blockExchanges = new java.util.ArrayList<>();
+    /** The relayed floor (see the class comment): each relayed echo, and each block's own. */
+    final Histogram relayed = new Histogram(60_000_000_000L, 3);
+    final java.util.List<Histogram> relayedBlocks = new java.util.ArrayList<>();
+    /**
+     * The same relayed echo with its responder in a process of its own ({@link BenchRelay}, started as zbin's daemon is
+     * with the systemd unit's JVM options), for a line whose daemon runs as its own process; empty unless asked for.
+     */
+    final Histogram relayedProcess = new Histogram(60_000_000_000L, 3);
+    final java.util.List<Histogram> relayedProcessBlocks = new java.util.ArrayList<>();
+    private final boolean processRelay;
+    private Process relayProcess;
     private final MqttAsyncClient responder, requester;
+    /** The responder's own link to the meter simulator, used on its MQTT callback thread (set by {@link #meterAt}). */
+    private volatile Socket relaySocket;
+    private volatile OutputStream relayOut;
+    private volatile BufferedReader relayIn;
     private final Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
     private Socket meterSocket;
     private OutputStream meterOut;
     private BufferedReader meterIn;
     private long seq = 1_000_000;
+    private final String brokerUrl;
+    private static final byte[] QUERY = "TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII);
 
     /** Connects the echo's two clients and warms them with 500 echoes not recorded. */
-    BenchFloor(String brokerUrl) throws Exception {
+    BenchFloor(String brokerUrl) throws Exception { this(brokerUrl, false); }
+
+    /** As {@link #BenchFloor(String)}; with {@code processRelay} the relayed echo is measured from a process of its own too. */
+    BenchFloor(String brokerUrl, boolean processRelay) throws Exception {
+        this.processRelay = processRelay;
+        this.brokerUrl = brokerUrl;
         responder = LineBench.client(brokerUrl, new ConcurrentHashMap<>());
         responder.setCallback(new MqttCallback() {
             public void connectionLost(Throwable t) { }
 
-            public void messageArrived(String topic, MqttMessage m) throws MqttException { responder.publish("bench/resp", m.getPayload(), 1, false); }
+            public void messageArrived(String topic, MqttMessage m) throws Exception {
+                if (topic.equals("bench/relay")) { // one meter exchange before the answer, as a controller makes it
+                    relayOut.write(QUERY);
+                    relayOut.flush();
+                    relayIn.readLine();
+                }
+                responder.publish("bench/resp", m.getPayload(), 1, false);
+            }
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });
-        responder.subscribe("bench/req", 1).waitForCompletion(10_000);
+        responder.subscribe(new String[] {"bench/req", "bench/relay"}, new int[] {1, 1}).waitForCompletion(10_000);
         requester = LineBench.client(brokerUrl, waiting, "bench/resp");
         LineBench.paced(requester, waiting, "bench/req", "", 500, LineBench.PACE, seq);
         seq += 500;
     }
 
-    /** Points the meter half at a meter simulator's TCP port (each rig has its own); 500 exchanges back to back warm it. */
+    /**
+     * Points the meter half and the relay at a meter simulator's TCP port (each rig has its own); 500 exchanges back to
+     * back warm the one, 500 relayed echoes the other.
+     */
     void meterAt(int port) throws Exception {
         closeMeter();
         meterSocket = new Socket("127.0.0.1", port);
@@ -69,16 +107,36 @@ final class BenchFloor implements AutoCloseable {
         meterOut = meterSocket.getOutputStream();
         meterIn = new BufferedReader(new InputStreamReader(meterSocket.getInputStream(), StandardCharsets.US_ASCII));
         LineBench.meterExchanges(meterOut, meterIn, 500, 0, null);
+        Socket r = new Socket("127.0.0.1", port);
+        r.setTcpNoDelay(true);
+        relayOut = r.getOutputStream();
+        relayIn = new BufferedReader(new InputStreamReader(r.getInputStream(), StandardCharsets.US_ASCII));
+        relaySocket = r;
+        LineBench.paced(requester, waiting, "bench/relay", "", 500, Integer.MAX_VALUE, seq);
+        seq += 500;
+        if (processRelay) {
+            java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(java.nio.file.Path.of(System.getProperty("java.home"), "bin", "java").toString()));
+            cmd.addAll(MosquittoAndSystemdFiles.unitJvmOptions(java.nio.file.Path.of("config/systemd/zbin@.service")));
+            cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), BenchRelay.class.getName(), brokerUrl, Integer.toString(port),
+                    "bench/relayp", "bench/resp"));
+            relayProcess = new ProcessBuilder(cmd).redirectError(ProcessBuilder.Redirect.INHERIT).start();
+            String line = new BufferedReader(new InputStreamReader(relayProcess.getInputStream(), StandardCharsets.UTF_8)).readLine();
+            if (!"ready".equals(line)) throw new IllegalStateException("the relay process did not start: " + line);
+            LineBench.paced(requester, waiting, "bench/relayp", "", 5000, Integer.MAX_VALUE, seq); // its compiler's share, as zbin's warm-up
+            seq += 5000;
+        }
     }
 
-    /** {@code n} echoes and {@code n} meter exchanges as fast as they are answered, not recorded: the floor's code compiled as a warm line's is. */
+    /** {@code n} echoes, meter exchanges and relayed echoes as fast as they are answered, not recorded: the floor's code compiled as a warm line's is. */
     void warm(int n) throws Exception {
         LineBench.paced(requester, waiting, "bench/req", "", n, Integer.MAX_VALUE, seq);
         seq += n;
         LineBench.meterExchanges(meterOut, meterIn, n, 0, null);
+        LineBench.paced(requester, waiting, "bench/relay", "", n, Integer.MAX_VALUE, seq);
+        seq += n;
     }
 
-    /** One block: {@code n} echoes then {@code n} meter exchanges at the line's pace, recorded here. */
+    /** One block at the line's pace, recorded here: {@code n} echoes, {@code n} relayed echoes (from each relay), {@code n} meter exchanges. */
     void block(int n) throws Exception { block(n, null, null); }
 
     /** One block recorded here and also in {@code echoToo} and {@code meterToo} (when not null). */
@@ -86,6 +144,18 @@ final class BenchFloor implements AutoCloseable {
         long[] echoEach = new long[n], meterEach = new long[n];
         Histogram e = LineBench.paced(requester, waiting, "bench/req", "", n, LineBench.PACE, seq, echoEach);
         seq += n;
+        // the relayed echoes between the two halves: the echo's first still follows the line's block, and the line's next
+        // block still follows the meter half, as before the relayed floor was measured
+        Histogram rl = LineBench.paced(requester, waiting, "bench/relay", "", n, LineBench.PACE, seq);
+        seq += n;
+        relayed.add(rl);
+        relayedBlocks.add(rl);
+        if (relayProcess != null) {
+            Histogram rp = LineBench.paced(requester, waiting, "bench/relayp", "", n, LineBench.PACE, seq);
+            seq += n;
+            relayedProcess.add(rp);
+            relayedProcessBlocks.add(rp);
+        }
         Histogram m = new Histogram(60_000_000_000L, 3);
         LineBench.meterExchanges(meterOut, meterIn, n, LineBench.PACE, m, meterEach);
         firstEcho.recordValue(echoEach[0]);
@@ -103,6 +173,9 @@ final class BenchFloor implements AutoCloseable {
     /** The floor's p50 or p99, ms: the echo's plus the meter's at that percentile. */
     double ms(double percentile) { return (echo.getValueAtPercentile(percentile) + meter.getValueAtPercentile(percentile)) / 1e6; }
 
+    /** The relayed floor's p50 or p99, ms. */
+    double relayedMs(double percentile) { return relayed.getValueAtPercentile(percentile) / 1e6; }
+
     static double ms(Histogram echo, Histogram meter, double percentile) {
         return (echo.getValueAtPercentile(percentile) + meter.getValueAtPercentile(percentile)) / 1e6;
     }
@@ -117,6 +190,13 @@ final class BenchFloor implements AutoCloseable {
     private void closeMeter() throws Exception {
         if (meterSocket != null) meterSocket.close();
         meterSocket = null;
+        if (relaySocket != null) relaySocket.close();
+        relaySocket = null;
+        if (relayProcess != null) {
+            relayProcess.getOutputStream().close();
+            if (!relayProcess.waitFor(10, java.util.concurrent.TimeUnit.SECONDS)) relayProcess.destroyForcibly();
+        }
+        relayProcess = null;
     }
 
     @Override

@@ -152,7 +152,7 @@ class FreshStartBench {
         long[] readyMs = new long[STARTS];
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
              SimTcpServer sim = new SimTcpServer(meter, 0);
-             BenchFloor floor = new BenchFloor(broker.url());
+             BenchFloor floor = new BenchFloor(broker.url(), true);
              Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
             floor.meterAt(sim.port());
             Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n", LineBench.flushMs());
@@ -338,6 +338,29 @@ class FreshStartBench {
             all.put("floor_own_blocks_of", floor.blockExchanges.size());
             all.put("floor_own_exchanges_within", floorWithin);
             all.put("floor_own_exchanges", floorExchanges);
+            // the same questions against the relayed floor: an echo whose responder makes the meter exchange before it answers
+            double relayedP50 = floor.relayedMs(50), relayedP99 = floor.relayedMs(99);
+            ObjectNode rf = out.putObject("relayed_floor");
+            rf.set("latency", LineBench.json(floor.relayed));
+            rf.put("first_100_within_its_p99", LineBench.count(first, relayedP99));
+            rf.put("warm_reference_within_its_p99", LineBench.count(warm, relayedP99));
+            rf.put("starts_first_100_wholly_within", whollyWithin(firstOfEachStart, relayedP99));
+            rf.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, relayedP99));
+            rf.put("own_blocks_wholly_within", whollyWithin(floor.relayedBlocks, relayedP99));
+            rf.put("own_blocks_of", floor.relayedBlocks.size());
+            rf.put("own_within_its_p99", LineBench.count(floor.relayed, relayedP99));
+            rf.put("own", floor.relayed.getTotalCount());
+            double relayedProcP50 = floor.relayedProcess.getValueAtPercentile(50) / 1e6, relayedProcP99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
+            ObjectNode rpf = out.putObject("relayed_floor_own_process");
+            rpf.set("latency", LineBench.json(floor.relayedProcess));
+            rpf.put("first_100_within_its_p99", LineBench.count(first, relayedProcP99));
+            rpf.put("warm_reference_within_its_p99", LineBench.count(warm, relayedProcP99));
+            rpf.put("starts_first_100_wholly_within", whollyWithin(firstOfEachStart, relayedProcP99));
+            rpf.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, relayedProcP99));
+            rpf.put("own_blocks_wholly_within", whollyWithin(floor.relayedProcessBlocks, relayedProcP99));
+            rpf.put("own_blocks_of", floor.relayedProcessBlocks.size());
+            rpf.put("own_within_its_p99", LineBench.count(floor.relayedProcess, relayedProcP99));
+            rpf.put("own", floor.relayedProcess.getTotalCount());
             out.put("started_as", HOW);
             ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
             cpu.put("decisions", CPU_PARTS);
@@ -357,6 +380,8 @@ class FreshStartBench {
                     Arrays.toString(readyWithRows));
             System.out.printf(Locale.ROOT, "  %-52s %9s %9s %9s %9s%n", "latency at " + LineBench.PACE + "/s, ms", "p50", "p99", "p99.9", "max");
             for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
+                    {"relayed floor: echo with the meter exchange in it", floor.relayed},
+                    {"  the same, its responder a process of its own", floor.relayedProcess},
                     {"first " + FIRST + " decisions after each of " + STARTS + " starts", first}, {"  of it inside zbin: arrival -> decided", inside},
                     {"  the very first decision after each start", veryFirst}, {"  decisions 2 to 10", second10}, {"  decisions 11 to 100", rest},
                     {"reference: " + WARM + " warm ones after " + SETTLE + " more, each start", warm}, {"  of it inside zbin", insideWarm}}) {
@@ -372,6 +397,17 @@ class FreshStartBench {
             System.out.printf(Locale.ROOT, "  every one of 100 within the floor's p99: the first 100 of %d of the %d starts; the warm reference of %d of %d;"
                     + " the floor's own blocks of 100 (the i-th echo plus the i-th meter exchange) %d of %d, %d of their %d exchanges within%n",
                     startsAll, firstOfEachStart.size(), warmAll, warmOfEachStart.size(), floorAll, floor.blockExchanges.size(), floorWithin, floorExchanges);
+            System.out.printf(Locale.ROOT, "  against the relayed floor's p99 (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d, the warm reference %d of %d;"
+                    + " every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, the relayed floor's own blocks %d of %d (%d of its %d within)%n",
+                    relayedP99, relayedP50, LineBench.count(first, relayedP99), first.getTotalCount(), LineBench.count(warm, relayedP99), warm.getTotalCount(),
+                    whollyWithin(firstOfEachStart, relayedP99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, relayedP99), warmOfEachStart.size(),
+                    whollyWithin(floor.relayedBlocks, relayedP99), floor.relayedBlocks.size(), LineBench.count(floor.relayed, relayedP99), floor.relayed.getTotalCount());
+            System.out.printf(Locale.ROOT, "  against the relayed floor's p99 with its responder a process of its own (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d,"
+                    + " the warm reference %d of %d; every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, that floor's own blocks %d of %d (%d of its %d within)%n",
+                    relayedProcP99, relayedProcP50, LineBench.count(first, relayedProcP99), first.getTotalCount(), LineBench.count(warm, relayedProcP99), warm.getTotalCount(),
+                    whollyWithin(firstOfEachStart, relayedProcP99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, relayedProcP99), warmOfEachStart.size(),
+                    whollyWithin(floor.relayedProcessBlocks, relayedProcP99), floor.relayedProcessBlocks.size(), LineBench.count(floor.relayedProcess, relayedProcP99),
+                    floor.relayedProcess.getTotalCount());
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
             Path logDir = Path.of("target/bench/fresh-start-logs");

@@ -402,12 +402,26 @@ class LineBench {
                     out.set((String) e[0], o);
                 }
                 out.set("rest_of_the_short_lots", json(shortRest));
+                // the relayed floor (an echo whose responder makes the meter exchange before it answers, see BenchFloor)
+                // beside the summed one: what of the line's figures the rig's overlap explains
+                double relayedP50 = floor.relayedMs(50), relayedP99 = floor.relayedMs(99);
+                ObjectNode rf = out.putObject("relayed_floor");
+                rf.set("latency", json(floor.relayed));
+                rf.put("line_p50_over_it_ms", line.getValueAtPercentile(50) / 1e6 - relayedP50);
+                rf.put("line_p99_over_its_p99", line.getValueAtPercentile(99) / 1e6 / relayedP99);
+                rf.put("line_within_its_p99", count(line, relayedP99));
+                rf.put("line", line.getTotalCount());
+                rf.put("own_within_its_p99", count(floor.relayed, relayedP99));
+                rf.put("own", floor.relayed.getTotalCount());
+                rf.put("first_decisions_of_a_lot_after_a_pause_within_its_p99", count(lotAfterPause, relayedP99));
+                rf.put("first_decisions_after_a_pause_same_lot_within_its_p99", count(afterPause, relayedP99));
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
                 out.set("first_decision_after_a_pause_inside_zbin_arrival_to_decided", json(INSIDE_AFTER_PAUSE));
                 System.out.printf(Locale.ROOT, "%n  %-52s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
-                        {"  (meter back to back, not the floor)", meterTight}, {"trigger -> decision", line}, {"  of it inside zbin: arrival -> decided", INSIDE},
+                        {"  (meter back to back, not the floor)", meterTight},
+                        {"relayed floor: echo with the meter exchange in it", floor.relayed}, {"trigger -> decision", line}, {"  of it inside zbin: arrival -> decided", INSIDE},
                         {"a lot change every 1 000 parts (" + LOTS + " lots)", lots},
                         {"the first decision of a lot (" + firstOfLot.getTotalCount() + " lots)", firstOfLot}, {"  of it inside zbin: arrival -> decided", INSIDE_LOT},
                         {"the first decision after a pause, inside zbin (" + INSIDE_AFTER_PAUSE.getTotalCount() + ")", INSIDE_AFTER_PAUSE},
@@ -431,6 +445,11 @@ class LineBench {
                         floor.firstEcho.getTotalCount(), BenchFloor.ms(floor.firstEcho, floor.firstMeter, 50),
                         (floor.firstEcho.getMaxValue() + floor.firstMeter.getMaxValue()) / 1e6,
                         count(floor.firstExchange, floorP99), floor.firstExchange.getTotalCount());
+                System.out.printf(Locale.ROOT, "  against the relayed floor (p50 %.3f, p99 %.3f ms): the line's p50 %+.3f ms over it, its p99 %.2f x it;"
+                        + " within its p99: the line %d of %d, the relayed floor's own %d of %d, the lots' first after a pause %d of %d, the first after a pause in the same lot %d of %d%n",
+                        relayedP50, relayedP99, line.getValueAtPercentile(50) / 1e6 - relayedP50, line.getValueAtPercentile(99) / 1e6 / relayedP99,
+                        count(line, relayedP99), line.getTotalCount(), count(floor.relayed, relayedP99), floor.relayed.getTotalCount(),
+                        count(lotAfterPause, relayedP99), lotAfterPause.getTotalCount(), count(afterPause, relayedP99), afterPause.getTotalCount());
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
