@@ -5,11 +5,9 @@ import java.io.InputStreamReader;
 import java.io.OutputStream;
 import java.net.Socket;
 import java.nio.charset.StandardCharsets;
-import net.zbin.io.mqtt.NoDelaySockets;
 import org.eclipse.paho.client.mqttv3.IMqttDeliveryToken;
 import org.eclipse.paho.client.mqttv3.MqttAsyncClient;
 import org.eclipse.paho.client.mqttv3.MqttCallback;
-import org.eclipse.paho.client.mqttv3.MqttConnectOptions;
 import org.eclipse.paho.client.mqttv3.MqttMessage;
 import org.eclipse.paho.client.mqttv3.persist.MemoryPersistence;
 
@@ -44,11 +42,7 @@ public final class BenchRelay {
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });
-        MqttConnectOptions o = new MqttConnectOptions();
-        o.setCleanSession(true);
-        o.setMaxInflight(5000);
-        o.setSocketFactory(NoDelaySockets.plain());
-        c.connect(o).waitForCompletion(10_000);
+        c.connect(LineBench.options()).waitForCompletion(10_000);
         c.subscribe(args[2], 1).waitForCompletion(10_000);
         System.out.println("ready");
         System.out.flush();

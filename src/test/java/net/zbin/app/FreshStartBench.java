@@ -52,6 +52,31 @@ class FreshStartBench {
         return n;
     }
 
+    /**
+     * A start's questions asked of a relayed floor ({@code own}, and {@code ownBlocks} block by block): how many of the first
+     * 100s' decisions and of the warm reference lie within its p99, how many starts' blocks wholly, and how often its own
+     * blocks do. Written under {@code key}; returns the line to print.
+     */
+    static String againstRelayed(ObjectNode out, String key, String name, Histogram own, java.util.List<Histogram> ownBlocks, Histogram first,
+                                 Histogram warm, java.util.List<Histogram> firstOfEachStart, java.util.List<Histogram> warmOfEachStart) {
+        double p50 = own.getValueAtPercentile(50) / 1e6, p99 = own.getValueAtPercentile(99) / 1e6;
+        ObjectNode o = out.putObject(key);
+        o.set("latency", LineBench.json(own));
+        o.put("first_100_within_its_p99", LineBench.count(first, p99));
+        o.put("warm_reference_within_its_p99", LineBench.count(warm, p99));
+        o.put("starts_first_100_wholly_within", whollyWithin(firstOfEachStart, p99));
+        o.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, p99));
+        o.put("own_blocks_wholly_within", whollyWithin(ownBlocks, p99));
+        o.put("own_blocks_of", ownBlocks.size());
+        o.put("own_within_its_p99", LineBench.count(own, p99));
+        o.put("own", own.getTotalCount());
+        return String.format(Locale.ROOT, "  against %s (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d, the warm reference %d of %d;"
+                + " every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, that floor's own blocks %d of %d (%d of its %d within)",
+                name, p99, p50, LineBench.count(first, p99), first.getTotalCount(), LineBench.count(warm, p99), warm.getTotalCount(),
+                whollyWithin(firstOfEachStart, p99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, p99), warmOfEachStart.size(),
+                whollyWithin(ownBlocks, p99), ownBlocks.size(), LineBench.count(own, p99), own.getTotalCount());
+    }
+
     /** How the daemon's process starts: {@code unit} (the default), {@code jar} or {@code classes}; see the class comment. */
     static final String HOW = System.getProperty("zbin.bench.daemon.start", "unit");
 
@@ -338,29 +363,11 @@ class FreshStartBench {
             all.put("floor_own_blocks_of", floor.blockExchanges.size());
             all.put("floor_own_exchanges_within", floorWithin);
             all.put("floor_own_exchanges", floorExchanges);
-            // the same questions against the relayed floor: an echo whose responder makes the meter exchange before it answers
-            double relayedP50 = floor.relayedMs(50), relayedP99 = floor.relayedMs(99);
-            ObjectNode rf = out.putObject("relayed_floor");
-            rf.set("latency", LineBench.json(floor.relayed));
-            rf.put("first_100_within_its_p99", LineBench.count(first, relayedP99));
-            rf.put("warm_reference_within_its_p99", LineBench.count(warm, relayedP99));
-            rf.put("starts_first_100_wholly_within", whollyWithin(firstOfEachStart, relayedP99));
-            rf.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, relayedP99));
-            rf.put("own_blocks_wholly_within", whollyWithin(floor.relayedBlocks, relayedP99));
-            rf.put("own_blocks_of", floor.relayedBlocks.size());
-            rf.put("own_within_its_p99", LineBench.count(floor.relayed, relayedP99));
-            rf.put("own", floor.relayed.getTotalCount());
-            double relayedProcP50 = floor.relayedProcess.getValueAtPercentile(50) / 1e6, relayedProcP99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
-            ObjectNode rpf = out.putObject("relayed_floor_own_process");
-            rpf.set("latency", LineBench.json(floor.relayedProcess));
-            rpf.put("first_100_within_its_p99", LineBench.count(first, relayedProcP99));
-            rpf.put("warm_reference_within_its_p99", LineBench.count(warm, relayedProcP99));
-            rpf.put("starts_first_100_wholly_within", whollyWithin(firstOfEachStart, relayedProcP99));
-            rpf.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, relayedProcP99));
-            rpf.put("own_blocks_wholly_within", whollyWithin(floor.relayedProcessBlocks, relayedProcP99));
-            rpf.put("own_blocks_of", floor.relayedProcessBlocks.size());
-            rpf.put("own_within_its_p99", LineBench.count(floor.relayedProcess, relayedProcP99));
-            rpf.put("own", floor.relayedProcess.getTotalCount());
+            // the same questions against the relayed floors: an echo whose responder makes the meter exchange before it answers
+            String relayedLine = againstRelayed(out, "relayed_floor", "the relayed floor's p99", floor.relayed, floor.relayedBlocks, first, warm,
+                    firstOfEachStart, warmOfEachStart);
+            String relayedProcessLine = againstRelayed(out, "relayed_floor_own_process", "the relayed floor's p99 with its responder a process of its own",
+                    floor.relayedProcess, floor.relayedProcessBlocks, first, warm, firstOfEachStart, warmOfEachStart);
             out.put("started_as", HOW);
             ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
             cpu.put("decisions", CPU_PARTS);
@@ -397,17 +404,8 @@ class FreshStartBench {
             System.out.printf(Locale.ROOT, "  every one of 100 within the floor's p99: the first 100 of %d of the %d starts; the warm reference of %d of %d;"
                     + " the floor's own blocks of 100 (the i-th echo plus the i-th meter exchange) %d of %d, %d of their %d exchanges within%n",
                     startsAll, firstOfEachStart.size(), warmAll, warmOfEachStart.size(), floorAll, floor.blockExchanges.size(), floorWithin, floorExchanges);
-            System.out.printf(Locale.ROOT, "  against the relayed floor's p99 (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d, the warm reference %d of %d;"
-                    + " every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, the relayed floor's own blocks %d of %d (%d of its %d within)%n",
-                    relayedP99, relayedP50, LineBench.count(first, relayedP99), first.getTotalCount(), LineBench.count(warm, relayedP99), warm.getTotalCount(),
-                    whollyWithin(firstOfEachStart, relayedP99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, relayedP99), warmOfEachStart.size(),
-                    whollyWithin(floor.relayedBlocks, relayedP99), floor.relayedBlocks.size(), LineBench.count(floor.relayed, relayedP99), floor.relayed.getTotalCount());
-            System.out.printf(Locale.ROOT, "  against the relayed floor's p99 with its responder a process of its own (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d,"
-                    + " the warm reference %d of %d; every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, that floor's own blocks %d of %d (%d of its %d within)%n",
-                    relayedProcP99, relayedProcP50, LineBench.count(first, relayedProcP99), first.getTotalCount(), LineBench.count(warm, relayedProcP99), warm.getTotalCount(),
-                    whollyWithin(firstOfEachStart, relayedProcP99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, relayedProcP99), warmOfEachStart.size(),
-                    whollyWithin(floor.relayedProcessBlocks, relayedProcP99), floor.relayedProcessBlocks.size(), LineBench.count(floor.relayedProcess, relayedProcP99),
-                    floor.relayedProcess.getTotalCount());
+            System.out.println(relayedLine);
+            System.out.println(relayedProcessLine);
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
             Path logDir = Path.of("target/bench/fresh-start-logs");

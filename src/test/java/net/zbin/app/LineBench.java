@@ -112,13 +112,18 @@ class LineBench {
 
             public void deliveryComplete(IMqttDeliveryToken t) { }
         });
+        c.connect(options()).waitForCompletion(10_000);
+        if (subs.length > 0) c.subscribe(subs, new int[subs.length]).waitForCompletion(10_000);
+        return c;
+    }
+
+    /** The benches' MQTT clients' options: a clean session, a window above any burst they send, TCP_NODELAY as zbin's own. */
+    static MqttConnectOptions options() {
         MqttConnectOptions o = new MqttConnectOptions();
         o.setCleanSession(true);
         o.setMaxInflight(5000);
         o.setSocketFactory(NoDelaySockets.plain());
-        c.connect(o).waitForCompletion(10_000);
-        if (subs.length > 0) c.subscribe(subs, new int[subs.length]).waitForCompletion(10_000);
-        return c;
+        return o;
     }
 
     /** Request/response at a handler's pace: one message, wait for its answer, next slot. */
