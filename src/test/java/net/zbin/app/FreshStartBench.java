@@ -54,8 +54,8 @@ class FreshStartBench {
 
     /**
      * A start's questions asked of a relayed floor ({@code own}, and {@code ownBlocks} block by block): how many of the first
-     * 100s' decisions and of the warm reference lie within its p99, how many starts' blocks wholly, and how often its own
-     * blocks do. Written under {@code key}; returns the line to print.
+     * 100s' decisions and of the warm reference lie within its p99 (of its own exchanges 99 % do, by definition), how many
+     * starts' blocks wholly, and how often its own blocks do. Written under {@code key}; returns the line to print.
      */
     static String againstRelayed(ObjectNode out, String key, String name, Histogram own, java.util.List<Histogram> ownBlocks, Histogram first,
                                  Histogram warm, java.util.List<Histogram> firstOfEachStart, java.util.List<Histogram> warmOfEachStart) {
@@ -68,13 +68,12 @@ class FreshStartBench {
         o.put("warm_reference_blocks_wholly_within", whollyWithin(warmOfEachStart, p99));
         o.put("own_blocks_wholly_within", whollyWithin(ownBlocks, p99));
         o.put("own_blocks_of", ownBlocks.size());
-        o.put("own_within_its_p99", LineBench.count(own, p99));
-        o.put("own", own.getTotalCount());
+        o.put("own", own.getTotalCount()); // 99 % of them lie within its p99 by definition: a controller no slower than it scores that
         return String.format(Locale.ROOT, "  against %s (%.3f ms; p50 %.3f): the first 100s' decisions %d of %d, the warm reference %d of %d;"
-                + " every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, that floor's own blocks %d of %d (%d of its %d within)",
+                + " every one of 100: the first 100 of %d of %d starts, the warm reference of %d of %d, that floor's own blocks %d of %d",
                 name, p99, p50, LineBench.count(first, p99), first.getTotalCount(), LineBench.count(warm, p99), warm.getTotalCount(),
                 whollyWithin(firstOfEachStart, p99), firstOfEachStart.size(), whollyWithin(warmOfEachStart, p99), warmOfEachStart.size(),
-                whollyWithin(ownBlocks, p99), ownBlocks.size(), LineBench.count(own, p99), own.getTotalCount());
+                whollyWithin(ownBlocks, p99), ownBlocks.size());
     }
 
     /** How the daemon's process starts: {@code unit} (the default), {@code jar} or {@code classes}; see the class comment. */
