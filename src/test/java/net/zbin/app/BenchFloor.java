@@ -53,7 +53,10 @@ final class BenchFloor implements AutoCloseable {
      */
     final Histogram relayedProcess = new Histogram(60_000_000_000L, 3);
     final java.util.List<Histogram> relayedProcessBlocks = new java.util.ArrayList<>();
-    private final boolean processRelay;
+    /** Which relayed floors a bench measures: none (the floor alone), the relay in this JVM, or that and a relay process. */
+    enum Relays { NONE, IN_JVM, IN_JVM_AND_PROCESS }
+
+    private final Relays relays;
     private Process relayProcess;
     private final MqttAsyncClient responder, requester;
     /** The responder's own link to the meter simulator, used on its MQTT callback thread (set by {@link #meterAt}). */
@@ -68,12 +71,12 @@ final class BenchFloor implements AutoCloseable {
     private final String brokerUrl;
     private static final byte[] QUERY = "TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII);
 
-    /** Connects the echo's two clients and warms them with 500 echoes not recorded. */
-    BenchFloor(String brokerUrl) throws Exception { this(brokerUrl, false); }
+    /** Connects the echo's two clients and warms them with 500 echoes not recorded; measures no relayed floor. */
+    BenchFloor(String brokerUrl) throws Exception { this(brokerUrl, Relays.NONE); }
 
-    /** As {@link #BenchFloor(String)}; with {@code processRelay} the relayed echo is measured from a process of its own too. */
-    BenchFloor(String brokerUrl, boolean processRelay) throws Exception {
-        this.processRelay = processRelay;
+    /** As {@link #BenchFloor(String)}, measuring the relayed floors {@code relays} names in every block. */
+    BenchFloor(String brokerUrl, Relays relays) throws Exception {
+        this.relays = relays;
         this.brokerUrl = brokerUrl;
         responder = LineBench.client(brokerUrl, new ConcurrentHashMap<>());
         responder.setCallback(new MqttCallback() {
@@ -107,6 +110,7 @@ final class BenchFloor implements AutoCloseable {
         meterOut = meterSocket.getOutputStream();
         meterIn = new BufferedReader(new InputStreamReader(meterSocket.getInputStream(), StandardCharsets.US_ASCII));
         LineBench.meterExchanges(meterOut, meterIn, 500, 0, null);
+        if (relays == Relays.NONE) return;
         Socket r = new Socket("127.0.0.1", port);
         r.setTcpNoDelay(true);
         relayOut = r.getOutputStream();
@@ -114,7 +118,7 @@ final class BenchFloor implements AutoCloseable {
         relaySocket = r;
         LineBench.paced(requester, waiting, "bench/relay", "", 500, Integer.MAX_VALUE, seq);
         seq += 500;
-        if (processRelay) {
+        if (relays == Relays.IN_JVM_AND_PROCESS) {
             java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(java.nio.file.Path.of(System.getProperty("java.home"), "bin", "java").toString()));
             cmd.addAll(MosquittoAndSystemdFiles.unitJvmOptions(java.nio.file.Path.of("config/systemd/zbin@.service")));
             cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), BenchRelay.class.getName(), brokerUrl, Integer.toString(port),
@@ -132,11 +136,12 @@ final class BenchFloor implements AutoCloseable {
         LineBench.paced(requester, waiting, "bench/req", "", n, Integer.MAX_VALUE, seq);
         seq += n;
         LineBench.meterExchanges(meterOut, meterIn, n, 0, null);
+        if (relays == Relays.NONE) return;
         LineBench.paced(requester, waiting, "bench/relay", "", n, Integer.MAX_VALUE, seq);
         seq += n;
     }
 
-    /** One block at the line's pace, recorded here: {@code n} echoes, {@code n} relayed echoes (from each relay), {@code n} meter exchanges. */
+    /** One block at the line's pace, recorded here: {@code n} echoes, {@code n} relayed echoes (from each relay measured), {@code n} meter exchanges. */
     void block(int n) throws Exception { block(n, null, null); }
 
     /** One block recorded here and also in {@code echoToo} and {@code meterToo} (when not null). */
@@ -146,10 +151,12 @@ final class BenchFloor implements AutoCloseable {
         seq += n;
         // the relayed echoes between the two halves: the echo's first still follows the line's block, and the line's next
         // block still follows the meter half, as before the relayed floor was measured
-        Histogram rl = LineBench.paced(requester, waiting, "bench/relay", "", n, LineBench.PACE, seq);
-        seq += n;
-        relayed.add(rl);
-        relayedBlocks.add(rl);
+        if (relays != Relays.NONE) {
+            Histogram rl = LineBench.paced(requester, waiting, "bench/relay", "", n, LineBench.PACE, seq);
+            seq += n;
+            relayed.add(rl);
+            relayedBlocks.add(rl);
+        }
         if (relayProcess != null) {
             Histogram rp = LineBench.paced(requester, waiting, "bench/relayp", "", n, LineBench.PACE, seq);
             seq += n;

@@ -176,7 +176,7 @@ class FreshStartBench {
         long[] readyMs = new long[STARTS];
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
              SimTcpServer sim = new SimTcpServer(meter, 0);
-             BenchFloor floor = new BenchFloor(broker.url(), true);
+             BenchFloor floor = new BenchFloor(broker.url(), BenchFloor.Relays.IN_JVM_AND_PROCESS);
              Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
             floor.meterAt(sim.port());
             Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n", LineBench.flushMs());

@@ -306,7 +306,7 @@ class LineBench {
         ObjectNode out = Json.object();
         out.put("machine", Runtime.getRuntime().availableProcessors() + " cores, " + System.getProperty("java.vm.name") + " " + System.getProperty("java.version"));
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
-             BenchFloor floor = new BenchFloor(broker.url())) {
+             BenchFloor floor = new BenchFloor(broker.url(), BenchFloor.Relays.IN_JVM)) {
             try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
                     "handler: {deadline_ms: 150}\n", null, new Contacts(), flushMs())) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
