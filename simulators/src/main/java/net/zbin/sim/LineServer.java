@@ -21,6 +21,10 @@ final class LineServer {
         out.write((text + "\n").getBytes(StandardCharsets.ISO_8859_1));
     }
 
+    private synchronized void send(Sink out, byte[] bytes) throws java.io.IOException {
+        out.write(bytes);
+    }
+
     private void later(Sink out, Reply.Later l) {
         Thread t = new Thread(() -> {
             try {
@@ -34,8 +38,13 @@ final class LineServer {
         t.start();
     }
 
-    /** Feeds bytes; each complete line is handled and its reply written to the sink. */
+    /**
+     * Feeds bytes; each complete line is handled in turn. The replies to the lines of one feed go out in one write
+     * after the last of them, as an instrument sends its output queue for a program message of several queries
+     * (a measure query with {@code *OPC?} behind it comes back as one piece).
+     */
     void feed(byte[] buf, int n, Sink out) throws java.io.IOException {
+        ByteArrayOutputStream replies = new ByteArrayOutputStream();
         for (int i = 0; i < n; i++) {
             byte b = buf[i];
             if (b == '\n') {
@@ -43,19 +52,21 @@ final class LineServer {
                 line.reset();
                 if (cmd.endsWith("\r")) cmd = cmd.substring(0, cmd.length() - 1);
                 Reply r = meter.handle(cmd);
-                if (r instanceof Reply.Text t) send(out, t.line());
-                else if (r instanceof Reply.WithStray w) send(out, w.line() + "\n" + w.stray());
+                if (r instanceof Reply.Text t) replies.write((t.line() + "\n").getBytes(StandardCharsets.ISO_8859_1));
+                else if (r instanceof Reply.WithStray w)
+                    replies.write((w.line() + "\n" + w.stray() + "\n").getBytes(StandardCharsets.ISO_8859_1));
                 else if (r instanceof Reply.Later l) later(out, l);
                 else if (r instanceof Reply.Garbage g) {
-                    synchronized (this) {
-                        out.write(g.bytes());
-                        out.write(new byte[] {'\n'});
-                    }
+                    replies.write(g.bytes());
+                    replies.write('\n');
                 } else if (r instanceof Reply.Disconnect) {
+                    if (replies.size() > 0) send(out, replies.toByteArray());
+                    replies.reset();
                     out.disconnect();
                     return;
                 }
             } else if (line.size() < 8192) line.write(b);
         }
+        if (replies.size() > 0) send(out, replies.toByteArray());
     }
 }
