@@ -1,6 +1,7 @@
 package net.zbin.sim;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.charset.StandardCharsets;
 import java.time.Clock;
@@ -8,6 +9,7 @@ import java.util.ArrayList;
 import java.util.List;
 import org.junit.jupiter.api.Test;
 
+/** How the simulated meter's line server answers what arrives: in order, and the answers to one read in one write. */
 class LineServerTest {
     /** Every write the server makes, as text. */
     static final class Writes implements LineServer.Sink {
@@ -59,6 +61,6 @@ class LineServerTest {
         LineServer s = new LineServer(m);
         feed(s, "SIM:FAULT DISCONNECT\n*OPC?\nTRIG:RX?\n*OPC?\n", w);
         assertEquals(List.of("1\n"), w.writes);
-        assertEquals(true, w.disconnected);
+        assertTrue(w.disconnected);
     }
 }

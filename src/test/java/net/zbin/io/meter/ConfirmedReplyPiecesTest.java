@@ -15,6 +15,7 @@ import java.nio.file.Path;
 import java.time.Clock;
 import net.zbin.core.FaultKind;
 import net.zbin.core.TestConditions;
+import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.EnumSource;
@@ -48,35 +49,49 @@ class ConfirmedReplyPiecesTest {
         REPLY_CUT,
         /** The reply without its terminator, then the terminator and the sync answer 20 ms later. */
         TERMINATOR_LATE,
-        /** The reply, then a stray line and the sync answer in one write 20 ms later. */
+        /** Not a piecing: the reply, then a stray line and the sync answer in one write 20 ms later. */
         STRAY_BETWEEN
     }
 
     @ParameterizedTest
-    @EnumSource(Pieces.class)
+    @EnumSource(value = Pieces.class, names = "STRAY_BETWEEN", mode = EnumSource.Mode.EXCLUDE)
     void aConfirmedReading_isTheSameHoweverItsBytesArePieced(Pieces pieces) throws Exception {
-        String reply = "100.25,-1591.5,OK";
+        withMeter(pieces, s -> {
+            for (int i = 0; i < 3; i++) {
+                MeterReading r = s.measure();
+                assertEquals(100.25, r.reading().rOhm(), 0);
+                assertEquals(-1591.5, r.reading().xOhm(), 0);
+            }
+        });
+    }
+
+    @Test
+    void aStrayLineBetweenTheReplyAndTheSyncAnswer_isGarbled_andNoReading() throws Exception {
+        withMeter(Pieces.STRAY_BETWEEN, s -> {
+            MeterException e = assertThrows(MeterException.class, s::measure);
+            assertEquals(FaultKind.GARBLED, e.kind(), e.getMessage());
+        });
+    }
+
+    interface SessionUse {
+        void accept(ProfileMeterSession s) throws Exception;
+    }
+
+    private void withMeter(Pieces pieces, SessionUse use) throws Exception {
         try (ServerSocket ss = new ServerSocket(0, 1, InetAddress.getLoopbackAddress())) {
-            Thread t = new Thread(() -> serve(ss, pieces, reply));
+            Thread t = new Thread(() -> serve(ss, pieces, REPLY));
             t.setDaemon(true);
             t.start();
             Path p = dir.resolve("pieces.yaml");
             Files.writeString(p, String.format(java.util.Locale.ROOT, PROFILE, ss.getLocalPort()));
             try (ProfileMeterSession s = ProfileMeterSession.open(MeterProfileLoader.load(p), Clock.systemUTC())) {
                 s.apply(new TestConditions(1000, 1, "medium", 1));
-                if (pieces == Pieces.STRAY_BETWEEN) {
-                    MeterException e = assertThrows(MeterException.class, s::measure);
-                    assertEquals(FaultKind.GARBLED, e.kind(), e.getMessage());
-                    return;
-                }
-                for (int i = 0; i < 3; i++) {
-                    MeterReading r = s.measure();
-                    assertEquals(100.25, r.reading().rOhm(), 0);
-                    assertEquals(-1591.5, r.reading().xOhm(), 0);
-                }
+                use.accept(s);
             }
         }
     }
+
+    private static final String REPLY = "100.25,-1591.5,OK";
 
     private static void serve(ServerSocket ss, Pieces pieces, String reply) {
         try (Socket s = ss.accept(); BufferedReader in = new BufferedReader(new InputStreamReader(s.getInputStream(), StandardCharsets.US_ASCII));
