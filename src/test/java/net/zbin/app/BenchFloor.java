@@ -69,7 +69,6 @@ final class BenchFloor implements AutoCloseable {
     private BufferedReader meterIn;
     private long seq = 1_000_000;
     private final String brokerUrl;
-    private static final byte[] QUERY = "TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII);
 
     /** Connects the echo's two clients and warms them with 500 echoes not recorded; measures no relayed floor. */
     BenchFloor(String brokerUrl) throws Exception { this(brokerUrl, Relays.NONE); }
@@ -83,11 +82,8 @@ final class BenchFloor implements AutoCloseable {
             public void connectionLost(Throwable t) { }
 
             public void messageArrived(String topic, MqttMessage m) throws Exception {
-                if (topic.equals("bench/relay")) { // one meter exchange before the answer, as a controller makes it
-                    relayOut.write(QUERY);
-                    relayOut.flush();
-                    relayIn.readLine();
-                }
+                // one meter exchange before the answer, as a controller makes it
+                if (topic.equals("bench/relay")) LineBench.meterExchange(relayOut, relayIn);
                 responder.publish("bench/resp", m.getPayload(), 1, false);
             }
 

@@ -27,16 +27,13 @@ public final class BenchRelay {
         meter.setTcpNoDelay(true);
         OutputStream meterOut = meter.getOutputStream();
         BufferedReader meterIn = new BufferedReader(new InputStreamReader(meter.getInputStream(), StandardCharsets.US_ASCII));
-        byte[] query = "TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII);
         MqttAsyncClient c = new MqttAsyncClient(args[0], "bench-relay-" + ProcessHandle.current().pid(), new MemoryPersistence());
         String out = args[3];
         c.setCallback(new MqttCallback() {
             public void connectionLost(Throwable t) { }
 
             public void messageArrived(String topic, MqttMessage m) throws Exception {
-                meterOut.write(query);
-                meterOut.flush();
-                meterIn.readLine();
+                LineBench.meterExchange(meterOut, meterIn);
                 c.publish(out, m.getPayload(), 1, false);
             }
 

@@ -160,14 +160,21 @@ class LineBench {
         meterExchanges(o, in, n, rate, h, null);
     }
 
+    private static final byte[] METER_QUERY = "TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII);
+
+    /** One request/response with the meter simulator, as the floor and its relays make it: one reading asked, its line read. */
+    static void meterExchange(OutputStream o, BufferedReader in) throws java.io.IOException {
+        o.write(METER_QUERY);
+        o.flush();
+        in.readLine();
+    }
+
     /** As {@link #meterExchanges(OutputStream, BufferedReader, int, int, Histogram)}, each latency also in {@code each} (ns, in order; when not null). */
     static void meterExchanges(OutputStream o, BufferedReader in, int n, int rate, Histogram h, long[] each) throws Exception {
         long period = rate == 0 ? 0 : 1_000_000_000L / rate, next = System.nanoTime();
         for (int i = 0; i < n; i++) {
             long t0 = System.nanoTime();
-            o.write("TRIG:RX?\n".getBytes(StandardCharsets.US_ASCII));
-            o.flush();
-            in.readLine();
+            meterExchange(o, in);
             long took = Math.max(1, System.nanoTime() - t0);
             if (h != null) h.recordValue(took);
             if (each != null) each[i] = took;

@@ -16,11 +16,7 @@ final class LineServer {
         void disconnect() throws java.io.IOException;
     }
 
-    /** Writes one line; a late reply may write from another thread, so lines never interleave. */
-    private synchronized void send(Sink out, String text) throws java.io.IOException {
-        out.write((text + "\n").getBytes(StandardCharsets.ISO_8859_1));
-    }
-
+    /** Writes whole lines in one write; a late reply writes from another thread, so lines never interleave. */
     private synchronized void send(Sink out, byte[] bytes) throws java.io.IOException {
         out.write(bytes);
     }
@@ -29,7 +25,7 @@ final class LineServer {
         Thread t = new Thread(() -> {
             try {
                 Thread.sleep(l.delayMs());
-                send(out, l.line());
+                send(out, (l.line() + "\n").getBytes(StandardCharsets.ISO_8859_1));
             } catch (InterruptedException | java.io.IOException e) {
                 // the link is gone: the late line has nowhere to go
             }

@@ -16,6 +16,7 @@ import java.time.Clock;
 import net.zbin.core.FaultKind;
 import net.zbin.core.TestConditions;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.function.ThrowingConsumer;
 import org.junit.jupiter.api.io.TempDir;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.EnumSource;
@@ -55,7 +56,7 @@ class ConfirmedReplyPiecesTest {
 
     @ParameterizedTest
     @EnumSource(value = Pieces.class, names = "STRAY_BETWEEN", mode = EnumSource.Mode.EXCLUDE)
-    void aConfirmedReading_isTheSameHoweverItsBytesArePieced(Pieces pieces) throws Exception {
+    void aConfirmedReading_isTheSameHoweverItsBytesArePieced(Pieces pieces) throws Throwable {
         withMeter(pieces, s -> {
             for (int i = 0; i < 3; i++) {
                 MeterReading r = s.measure();
@@ -66,18 +67,14 @@ class ConfirmedReplyPiecesTest {
     }
 
     @Test
-    void aStrayLineBetweenTheReplyAndTheSyncAnswer_isGarbled_andNoReading() throws Exception {
+    void aStrayLineBetweenTheReplyAndTheSyncAnswer_isGarbled_andNoReading() throws Throwable {
         withMeter(Pieces.STRAY_BETWEEN, s -> {
             MeterException e = assertThrows(MeterException.class, s::measure);
             assertEquals(FaultKind.GARBLED, e.kind(), e.getMessage());
         });
     }
 
-    interface SessionUse {
-        void accept(ProfileMeterSession s) throws Exception;
-    }
-
-    private void withMeter(Pieces pieces, SessionUse use) throws Exception {
+    private void withMeter(Pieces pieces, ThrowingConsumer<ProfileMeterSession> use) throws Throwable {
         try (ServerSocket ss = new ServerSocket(0, 1, InetAddress.getLoopbackAddress())) {
             Thread t = new Thread(() -> serve(ss, pieces, REPLY));
             t.setDaemon(true);
