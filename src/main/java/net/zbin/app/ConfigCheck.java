@@ -63,6 +63,11 @@ final class ConfigCheck {
                 c.records().dir(), c.records().flushMs(), c.records().rotateBytes() / 1048576.0,
                 c.records().pauseOnFailure() ? "pause" : "continue");
         out.printf(Locale.ROOT, "  handler deadline %d ms, dashboard every %s%n", c.deadlineMs(), SiValue.format(c.dashboardMs() / 1000.0, "s"));
+        if (c.pinCpu() != null) {
+            String notHere = net.zbin.app.daemon.CpuPin.problem(c.pinCpu());
+            out.printf(Locale.ROOT, "  from ready on, the line's threads run on CPU %d only%n", c.pinCpu());
+            if (notHere != null) out.printf(Locale.ROOT, "  warning: pin_cpu: %s: `zbin run` refuses this config on this machine%n", notHere);
+        }
         if (c.meter().timing() == null)
             out.printf(Locale.ROOT, "  note: profile %s states no timing: the recipes' plans are not added up against the deadline%n", c.meter().name());
         if (!tooSlow.isEmpty()) throw new UsageException(file + ": " + String.join("; ", tooSlow)

@@ -64,7 +64,10 @@ public final class RunCommand implements Callable<Integer> {
     public Integer call() throws Exception {
         haltOnFatalErrors();
         LineConfig cfg = LineConfigLoader.load(config);
+        String notHere = cfg.pinCpu() == null ? null : net.zbin.app.daemon.CpuPin.problem(cfg.pinCpu());
+        if (notHere != null) throw new net.zbin.io.ConfigException(cfg.file(), "pin_cpu", notHere);
         Daemon d = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC()).compilerYieldsAtReady();
+        if (cfg.pinCpu() != null) d.pinnedAtReady(cfg.pinCpu());
         CountDownLatch stopped = new CountDownLatch(1);
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             d.close();

@@ -26,10 +26,14 @@ import net.zbin.io.meter.MeterProfile;
  * @param bounds          what the fixture itself reads, for telling an open or short from a part
  * @param monitor         the line's monitor settings: alarms that pause the line, compensation age limit
  * @param status          the line's status page and metrics, or null: none served
+ * @param pinCpu          the CPU every thread of {@code zbin run} keeps to from ready on, or null: every CPU
  */
 public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile meter, Path recipeDir, String activeRecipe,
                          Path stateDir, RecordSettings records, int deadlineMs, int repeatWindowMs, int dashboardMs, FixtureLimits fixture,
-                         FixtureCheck.Limits checks, FixtureBounds bounds, Monitor monitor, Status status) {
+                         FixtureCheck.Limits checks, FixtureBounds bounds, Monitor monitor, Status status, Integer pinCpu) {
+    /** Linux numbers CPUs from 0 up to its configured maximum (4096 in the common kernels). */
+    public static final int MAX_CPU = 4095;
+
     /**
      * Where the status page and {@code /metrics} are served.
      *
@@ -84,6 +88,8 @@ public record LineConfig(Path file, String line, MqttSettings mqtt, MeterProfile
 
     public LineConfig {
         if (monitor == null) monitor = Monitor.DEFAULT;
+        if (pinCpu != null && (pinCpu < 0 || pinCpu > MAX_CPU))
+            throw new net.zbin.core.SpecException("pin_cpu", "must be a CPU number 0.." + MAX_CPU + " (was " + pinCpu + ")");
         if (line == null || !line.matches("[A-Za-z0-9][A-Za-z0-9._-]{0,63}"))
             throw new net.zbin.core.SpecException("line", "must be 1..64 letters, digits, '.', '_' or '-' (was '" + line + "')");
         if (deadlineMs < 1) throw new net.zbin.core.SpecException("handler.deadline_ms", "must be >= 1 (was " + deadlineMs + ")");

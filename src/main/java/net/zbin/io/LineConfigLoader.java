@@ -91,6 +91,9 @@ public final class LineConfigLoader {
         r.finish();
 
         Path state = base.resolve(n.optText("state_dir", "state")).normalize();
+        Integer pinCpu = n.has("pin_cpu") ? n.integer("pin_cpu") : null;
+        if (pinCpu != null && (pinCpu < 0 || pinCpu > LineConfig.MAX_CPU))
+            throw n.error("pin_cpu", "must be a CPU number 0.." + LineConfig.MAX_CPU + " (was " + pinCpu + ")");
 
         SpecNode rec = n.child("records");
         Path recDir = base.resolve(rec.optText("dir", "records")).normalize();
@@ -137,7 +140,7 @@ public final class LineConfigLoader {
         boolean pause = onFail.equals("pause");
         return n.build(null, () -> new LineConfig(file, line, mqtt, meterProfile, recipeDir, active, state,
                 new LineConfig.RecordSettings(recDir, flush, (long) (rotateMb * 1024 * 1024), pause), deadline, repeatWindow,
-                (int) Math.round(interval * 1000), fl, checks, bounds, monitor, status));
+                (int) Math.round(interval * 1000), fl, checks, bounds, monitor, status, pinCpu));
     }
 
     /**

@@ -36,12 +36,23 @@ import org.junit.jupiter.api.io.TempDir;
  * parts (2 000/s, then 1 000/s until its compiler threads have used no CPU in a second), and three starts are timed to
  * ready with those rows in today's record log (the start reads them back). That daemon's last {@value #CPU_PARTS}
  * decisions, at 1 000/s and warm, give its process's CPU time per decision (every thread's: the compiler's and the
- * collector's too, as the unit runs it) beside Mosquitto's, and split by thread name.
+ * collector's too, as the unit runs it) beside Mosquitto's, and split by thread name. The line is configured as a line
+ * with a CPU of its own would be: {@code pin_cpu} the last CPU this machine offers ({@code -Dzbin.bench.pin_cpu=off}
+ * leaves the key out, {@code =N} names another).
  * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false} (the bench profile
  * builds the jar before the benches); results in {@code target/bench/fresh-start.json}.
  */
 class FreshStartBench {
     static final int STARTS = 8, FIRST = 100, WARM = 100;
+    /** The bench line's {@code pin_cpu} line ("" for none): {@code zbin.bench.pin_cpu}, default the last CPU offered here. */
+    static final String PIN = pinLine(System.getProperty("zbin.bench.pin_cpu", "last"));
+
+    static String pinLine(String how) {
+        if (how.equals("off")) return "";
+        if (!how.equals("last")) return "pin_cpu: " + Integer.parseInt(how) + "\n";
+        Integer last = TestLine.lastCpu();
+        return last == null ? "" : "pin_cpu: " + last + "\n";
+    }
     /** Unmeasured decisions between the first 100 and the warm reference ({@code zbin.bench.fresh.settle}). */
     static final int SETTLE = Integer.getInteger("zbin.bench.fresh.settle", 400);
 
@@ -179,7 +190,7 @@ class FreshStartBench {
              BenchFloor floor = new BenchFloor(broker.url(), BenchFloor.Relays.IN_JVM_AND_PROCESS);
              Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
             floor.meterAt(sim.port());
-            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n", LineBench.flushMs());
+            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n" + PIN, LineBench.flushMs());
             Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
             java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
             // which of the first 100 took zbin itself over 1 ms (seq: ms; seq = start * 100 000 + position)
@@ -368,6 +379,7 @@ class FreshStartBench {
             String relayedProcessLine = againstRelayed(out, "relayed_floor_own_process", "the relayed floor's p99 with its responder a process of its own",
                     floor.relayedProcess, floor.relayedProcessBlocks, first, warm, firstOfEachStart, warmOfEachStart);
             out.put("started_as", HOW);
+            out.put("pin_cpu", PIN.isEmpty() ? "none" : PIN.trim().substring("pin_cpu: ".length()));
             ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
             cpu.put("decisions", CPU_PARTS);
             cpu.put("decisions_before", busyRows - CPU_PARTS + 1000 * quietAfterS);

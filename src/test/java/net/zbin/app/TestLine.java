@@ -40,6 +40,14 @@ public final class TestLine {
         return cfg;
     }
 
+    /** The last CPU this process may run on (Linux: its {@code Cpus_allowed_list}); null where that is unknown. */
+    public static Integer lastCpu() {
+        String here = net.zbin.app.daemon.CpuPin.allowedHere();
+        if (here == null || here.isBlank()) return null;
+        String last = here.substring(here.lastIndexOf(',') + 1);
+        return Integer.parseInt(last.substring(last.lastIndexOf('-') + 1).trim());
+    }
+
     /** Adds keys to the config's {@code mqtt:} map (written by {@link #write}), e.g. {@code "keepalive_s: 2"}. */
     public static void mqttKeys(Path cfg, String keys) throws IOException {
         String text = Files.readString(cfg);

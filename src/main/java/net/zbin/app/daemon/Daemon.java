@@ -94,6 +94,8 @@ public final class Daemon implements AutoCloseable {
     static final long REHEARSAL_MS = 200;
     /** Whether {@link #start} lowers the JIT compiler threads' priority once the line is warm ({@link #compilerYieldsAtReady()}). */
     private volatile boolean compilerYieldsAtReady;
+    /** The CPU this process keeps to from ready on ({@link #pinnedAtReady}); -1: every CPU. */
+    private volatile int pinCpuAtReady = -1;
     /** The start's rehearsal while it runs (Paho's thread hands it its messages), null after. */
     private volatile Rehearsal rehearsal;
 
@@ -140,6 +142,16 @@ public final class Daemon implements AutoCloseable {
      */
     public Daemon compilerYieldsAtReady() {
         compilerYieldsAtReady = true;
+        return this;
+    }
+
+    /**
+     * Asks {@link #start} to keep every thread of this process on {@code cpu} from just before the line says ready (see
+     * {@link CpuPin}): for a process that is the line's own ({@code zbin run}).
+     */
+    public Daemon pinnedAtReady(int cpu) {
+        if (cpu < 0) throw new IllegalArgumentException("cpu: " + cpu + " is negative");
+        pinCpuAtReady = cpu;
         return this;
     }
 
@@ -228,6 +240,7 @@ public final class Daemon implements AutoCloseable {
             readings = r.readings();
         }
         warming.join();
+        if (pinCpuAtReady >= 0) CpuPin.pin(pinCpuAtReady);
         if (compilerYieldsAtReady) CompilerThreads.lower(19);
         synchronized (startLock) {
             warm = true;

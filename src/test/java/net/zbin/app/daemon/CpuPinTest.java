@@ -1,0 +1,66 @@
+package net.zbin.app.daemon;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import net.zbin.app.TestLine;
+import net.zbin.io.ConfigException;
+import net.zbin.io.LineConfigLoader;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** Reading the kernel's CPU lists, and the line config's {@code pin_cpu} (the pinning itself: {@code PinnedLineIT}). */
+class CpuPinTest {
+    @TempDir
+    Path dir;
+
+    @Test
+    void cpuList_rangesAndSingles_asTheKernelWritesThem() {
+        // the list format of /proc/<pid>/status Cpus_allowed_list (Linux proc(5), "Cpus_allowed_list")
+        assertTrue(CpuPin.allows("0-3,6", 0));
+        assertTrue(CpuPin.allows("0-3,6", 3));
+        assertFalse(CpuPin.allows("0-3,6", 4));
+        assertTrue(CpuPin.allows("0-3,6", 6));
+        assertFalse(CpuPin.allows("0-3,6", 7));
+        assertTrue(CpuPin.allows("1", 1));
+        assertFalse(CpuPin.allows("1", 0));
+        assertFalse(CpuPin.allows("", 0));
+        assertFalse(CpuPin.allows(null, 0));
+        assertThrows(IllegalArgumentException.class, () -> CpuPin.allows("0-1-2", 0));
+        assertThrows(IllegalArgumentException.class, () -> CpuPin.allows("x", 0));
+    }
+
+    @Test
+    void allowedList_readFromAStatusFile() throws Exception {
+        Path status = Files.writeString(dir.resolve("status"), "Name:\tjava\nCpus_allowed:\t5\nCpus_allowed_list:\t0,2\nMems_allowed:\t1\n");
+        assertEquals("0,2", CpuPin.allowedOf(status));
+        assertNull(CpuPin.allowedOf(Files.writeString(dir.resolve("other"), "Name:\tjava\n")));
+        assertNull(CpuPin.allowedOf(dir.resolve("missing")));
+    }
+
+    @Test
+    void problem_namesTheCpuAndWhatIsAllowed() {
+        String here = CpuPin.allowedHere();
+        if (here == null) return; // no /proc: nothing to object to, pin() logs and the line runs unpinned
+        int first = Integer.parseInt(here.split("[-,]")[0].trim());
+        assertNull(CpuPin.problem(first));
+        String p = CpuPin.problem(4095);
+        if (!CpuPin.allows(here, 4095)) assertEquals("CPU 4095 is not one this process may run on (allowed: " + here + ")", p);
+    }
+
+    @Test
+    void config_pinCpu_absentIsNone_aNumberIsKept_badValuesNameTheKey() throws Exception {
+        assertNull(LineConfigLoader.load(TestLine.write(dir, "a", "tcp://127.0.0.1:1", 1, "")).pinCpu());
+        assertEquals(1, LineConfigLoader.load(TestLine.write(dir, "b", "tcp://127.0.0.1:1", 1, "pin_cpu: 1\n")).pinCpu());
+        for (String bad : new String[] {"-1", "4096", "1.5", "two"}) {
+            ConfigException e = assertThrows(ConfigException.class,
+                    () -> LineConfigLoader.load(TestLine.write(dir, "c", "tcp://127.0.0.1:1", 1, "pin_cpu: " + bad + "\n")), bad);
+            assertTrue(e.getMessage().contains("pin_cpu") && e.getMessage().contains("c.yaml"), e.getMessage());
+        }
+    }
+}
