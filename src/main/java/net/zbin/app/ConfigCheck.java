@@ -67,6 +67,8 @@ final class ConfigCheck {
             String notHere = net.zbin.app.daemon.CpuPin.problem(c.pinCpu());
             out.printf(Locale.ROOT, "  from ready on, the line's threads run on CPU %d only%n", c.pinCpu());
             if (notHere != null) out.printf(Locale.ROOT, "  warning: pin_cpu: %s: `zbin run` refuses this config on this machine%n", notHere);
+            String irq = notHere == null ? net.zbin.app.daemon.CpuPin.interruptWarning(c.pinCpu()) : null;
+            if (irq != null) out.printf(Locale.ROOT, "  warning: pin_cpu: %s%n", irq);
         }
         if (c.meter().timing() == null)
             out.printf(Locale.ROOT, "  note: profile %s states no timing: the recipes' plans are not added up against the deadline%n", c.meter().name());

@@ -91,9 +91,7 @@ public final class LineConfigLoader {
         r.finish();
 
         Path state = base.resolve(n.optText("state_dir", "state")).normalize();
-        Integer pinCpu = n.has("pin_cpu") ? n.integer("pin_cpu") : null;
-        if (pinCpu != null && (pinCpu < 0 || pinCpu > LineConfig.MAX_CPU))
-            throw n.error("pin_cpu", "must be a CPU number 0.." + LineConfig.MAX_CPU + " (was " + pinCpu + ")");
+        Integer pinCpu = n.has("pin_cpu") ? n.integer("pin_cpu") : null; // its range: the record's
 
         SpecNode rec = n.child("records");
         Path recDir = base.resolve(rec.optText("dir", "records")).normalize();

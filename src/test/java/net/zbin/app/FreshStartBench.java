@@ -37,22 +37,23 @@ import org.junit.jupiter.api.io.TempDir;
  * ready with those rows in today's record log (the start reads them back). That daemon's last {@value #CPU_PARTS}
  * decisions, at 1 000/s and warm, give its process's CPU time per decision (every thread's: the compiler's and the
  * collector's too, as the unit runs it) beside Mosquitto's, and split by thread name. The line is configured as a line
- * with a CPU of its own would be: {@code pin_cpu} the last CPU this machine offers ({@code -Dzbin.bench.pin_cpu=off}
- * leaves the key out, {@code =N} names another).
+ * with a CPU of its own would be: {@code pin_cpu} the CPU serving the fewest devices' interrupts
+ * ({@link TestLine#quietCpu}; {@code -Dzbin.bench.pin_cpu=off} leaves the key out, {@code =N} names one).
  * Run with {@code mvn -B -Pbench test -Dtest=FreshStartBench -Dsurefire.failIfNoSpecifiedTests=false} (the bench profile
  * builds the jar before the benches); results in {@code target/bench/fresh-start.json}.
  */
 class FreshStartBench {
     static final int STARTS = 8, FIRST = 100, WARM = 100;
-    /** The bench line's {@code pin_cpu} line ("" for none): {@code zbin.bench.pin_cpu}, default the last CPU offered here. */
-    static final String PIN = pinLine(System.getProperty("zbin.bench.pin_cpu", "last"));
+    /** The bench line's {@code pin_cpu} line ("" for none): {@code zbin.bench.pin_cpu}, default the quietest CPU here. */
+    static final String PIN = pinLine(System.getProperty("zbin.bench.pin_cpu", "quiet"));
 
     static String pinLine(String how) {
         if (how.equals("off")) return "";
-        if (!how.equals("last")) return "pin_cpu: " + Integer.parseInt(how) + "\n";
-        Integer last = TestLine.lastCpu();
-        return last == null ? "" : "pin_cpu: " + last + "\n";
+        if (!how.equals("quiet")) return "pin_cpu: " + Integer.parseInt(how) + "\n";
+        Integer quiet = TestLine.quietCpu();
+        return quiet == null ? "" : "pin_cpu: " + quiet + "\n";
     }
+
     /** Unmeasured decisions between the first 100 and the warm reference ({@code zbin.bench.fresh.settle}). */
     static final int SETTLE = Integer.getInteger("zbin.bench.fresh.settle", 400);
 

@@ -40,7 +40,7 @@ class PinnedLineIT {
 
     @Test
     void pinnedLine_everyThreadOnItsCpuFromReady_andItStillDecides() throws Exception {
-        Integer cpu = TestLine.lastCpu(); // the daemon, a process of its own, is pinned to it
+        Integer cpu = TestLine.quietCpu(); // the daemon, a process of its own, is pinned to it (as a careful engineer picks it)
         assertTrue(cpu != null, "no Cpus_allowed_list in /proc/self/status");
         SimMeter meter = new SimMeter(new Contacts(), net.zbin.sim.Fixture.IDEAL, Clock.systemUTC(), 9, 0, SimMeter.RandomFaults.NONE);
         meter.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
@@ -65,6 +65,10 @@ class PinnedLineIT {
             assertTrue(threads.stream().anyMatch(t -> t.startsWith("MQTT Call")), "the MQTT client's threads are among them: " + threads);
             assertTrue(Files.readString(dir.resolve("daemon.log")).contains("threads of the line on CPU " + cpu + " from now on"),
                     "the log says so: " + Files.readString(dir.resolve("daemon.log")));
+            Cli check = Cli.run("check", "--config", cfg.toString());
+            assertEquals(0, check.exit(), check.out() + check.err());
+            assertTrue(check.out().contains("from ready on, the line's threads run on CPU " + cpu + " only") && !check.out().contains("warning: pin_cpu"),
+                    check.out());
         } finally {
             if (daemon != null) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
         }

@@ -40,12 +40,12 @@ public final class TestLine {
         return cfg;
     }
 
-    /** The last CPU this process may run on (Linux: its {@code Cpus_allowed_list}); null where that is unknown. */
-    public static Integer lastCpu() {
-        String here = net.zbin.app.daemon.CpuPin.allowedHere();
-        if (here == null || here.isBlank()) return null;
-        String last = here.substring(here.lastIndexOf(',') + 1);
-        return Integer.parseInt(last.substring(last.lastIndexOf('-') + 1).trim());
+    /**
+     * The CPU this process may run on that serves the fewest devices' interrupts (the last of equals); null where that is
+     * unknown: where a line with a CPU of its own belongs.
+     */
+    public static Integer quietCpu() {
+        return net.zbin.app.daemon.CpuPin.quietest(net.zbin.app.daemon.CpuPin.interruptTable(), net.zbin.app.daemon.CpuPin.allowedHere());
     }
 
     /** Adds keys to the config's {@code mqtt:} map (written by {@link #write}), e.g. {@code "keepalive_s: 2"}. */

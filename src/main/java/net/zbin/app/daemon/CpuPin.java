@@ -15,7 +15,7 @@ import org.slf4j.LoggerFactory;
  * <p>Why: a part crosses five of the daemon's threads (the MQTT client's receiver, callback and sender, the measuring
  * thread, the record log's), and each hand-over wakes a thread. A thread woken on another CPU costs both CPUs an
  * interrupt, and on a virtual machine an exit to the hypervisor; on one CPU it is a plain switch. On the 2-core machine
- * zbin is built on, a pinned line used a fifth less CPU per decision (README, "Reliability and performance"). Before
+ * zbin is built on, a pinned line used a fifth to a third less CPU per decision (README, "A CPU of its own"). Before
  * ready the process keeps every CPU: the start's compiling and reading the record log back run in parallel. Threads
  * started later (a reconnect's MQTT threads, the compiler's) inherit the CPU from the thread that starts them. Java
  * cannot set an affinity, {@code taskset} (util-linux) does, for the process's own threads without privilege.
@@ -61,11 +61,15 @@ public final class CpuPin {
 
     /**
      * Why this process cannot be pinned to {@code cpu} here, or null when it can: the CPU is not among those it may run
-     * on. Unknown (no {@code /proc}) is no objection: {@link #pin} then logs and the line runs unpinned.
+     * on. Unknown (no {@code /proc}, or a list this cannot read) is no objection: {@link #pin} then logs and the line runs unpinned.
      */
     public static String problem(int cpu) {
         String here = allowedHere();
-        if (here == null || allows(here, cpu)) return null;
+        try {
+            if (here == null || allows(here, cpu)) return null;
+        } catch (IllegalArgumentException unreadable) {
+            return null;
+        }
         return "CPU " + cpu + " is not one this process may run on (allowed: " + here + ")";
     }
 
@@ -87,10 +91,99 @@ public final class CpuPin {
             Thread.currentThread().interrupt();
             return 0;
         }
+        String irq = interruptWarning(cpu);
+        if (irq != null) LOG.warn("pin_cpu: {}", irq);
         int[] onIt = threadsOn(cpu);
         if (onIt[0] == onIt[1] && onIt[1] > 0) LOG.info("all {} threads of the line on CPU {} from now on", onIt[1], cpu);
         else LOG.warn("pin_cpu: {} of {} threads of the line on CPU {} only", onIt[0], onIt[1], cpu);
         return onIt[0];
+    }
+
+    /** The kernel's interrupt counts, {@code /proc/interrupts}; empty where there is none. */
+    public static List<String> interruptTable() {
+        try {
+            return Files.readAllLines(Path.of("/proc/interrupts"));
+        } catch (IOException | RuntimeException e) {
+            return List.of();
+        }
+    }
+
+    /**
+     * The devices whose interrupts {@code cpu} serves, from a {@code /proc/interrupts} table: each numbered line (a
+     * device's interrupt, not the CPUs' own timer and signalling rows) with at least {@code min} on {@code cpu} and at
+     * least half of that line's count there, as name (the line's last word) → count on {@code cpu}. A line pinned to such
+     * a CPU waits behind the device's completions: the disk's, when the record log is forced.
+     */
+    public static java.util.Map<String, Long> devicesServedBy(List<String> table, int cpu, long min) {
+        java.util.Map<String, Long> out = new java.util.TreeMap<>();
+        if (table.isEmpty()) return out;
+        List<String> cpus = List.of(table.get(0).trim().split("\\s+"));
+        int col = cpus.indexOf("CPU" + cpu);
+        if (col < 0) return out;
+        for (String l : table.subList(1, table.size())) {
+            int colon = l.indexOf(':');
+            if (colon < 0 || !l.substring(0, colon).trim().matches("\\d+")) continue;
+            String[] f = l.substring(colon + 1).trim().split("\\s+");
+            if (f.length <= cpus.size()) continue;
+            long total = 0, here;
+            try {
+                for (int i = 0; i < cpus.size(); i++) total += Long.parseLong(f[i]);
+                here = Long.parseLong(f[col]);
+            } catch (NumberFormatException notCounts) {
+                continue;
+            }
+            if (here >= min && 2 * here >= total) out.merge(f[f.length - 1], here, Long::sum);
+        }
+        return out;
+    }
+
+    /** The devices' interrupts {@code cpu} has served so far: the sum of {@link #devicesServedBy} with no minimum. */
+    static long servedCount(List<String> table, int cpu) {
+        return devicesServedBy(table, cpu, 0).values().stream().mapToLong(Long::longValue).sum();
+    }
+
+    /**
+     * Of the CPUs a {@code /proc/interrupts} table lists and {@code allowed} (a kernel CPU list) holds, the one that has
+     * served the fewest devices' interrupts (the last of equals); null when there is none.
+     */
+    public static Integer quietest(List<String> table, String allowed) {
+        if (table.isEmpty() || allowed == null) return null;
+        Integer best = null;
+        long fewest = Long.MAX_VALUE;
+        for (String col : table.get(0).trim().split("\\s+")) {
+            if (!col.matches("CPU\\d+")) continue;
+            int c = Integer.parseInt(col.substring(3));
+            long n;
+            try {
+                if (!allows(allowed, c)) continue;
+            } catch (IllegalArgumentException unreadable) {
+                return null;
+            }
+            n = servedCount(table, c);
+            if (n <= fewest) {
+                fewest = n;
+                best = c;
+            }
+        }
+        return best;
+    }
+
+    /**
+     * What to say of a line pinned to {@code cpu} when it serves more than twice the devices' interrupts (at least 1 000 so
+     * far) of the quietest CPU this process may use; null otherwise. Every CPU of a small machine serves some device;
+     * this names only a clearly worse choice.
+     */
+    public static String interruptWarning(int cpu) {
+        return interruptWarning(interruptTable(), allowedHere(), cpu);
+    }
+
+    static String interruptWarning(List<String> table, String allowed, int cpu) {
+        Integer quiet = quietest(table, allowed);
+        if (quiet == null || quiet == cpu) return null;
+        long mine = servedCount(table, cpu), theirs = servedCount(table, quiet);
+        if (mine < 1000 || mine <= 2 * theirs) return null;
+        return "CPU " + cpu + " has served " + mine + " interrupts of devices so far (most of them " + devicesServedBy(table, cpu, 1000).keySet()
+                + "), CPU " + quiet + " " + theirs + " (/proc/interrupts): a line pinned to CPU " + cpu + " waits behind them, on CPU " + quiet + " less";
     }
 
     /** {threads allowed on {@code cpu} alone, threads} of this process. */

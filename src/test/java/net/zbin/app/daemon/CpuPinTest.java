@@ -44,6 +44,37 @@ class CpuPinTest {
     }
 
     @Test
+    void devicesServedBy_numberedLinesWithMostOfTheirCountOnTheCpu() {
+        // the layout of Linux's /proc/interrupts (Documentation/filesystems/proc.rst, "/proc/interrupts"): a header of the
+        // online CPUs, then one line per interrupt with a count per CPU, its chip, and the device's name last
+        java.util.List<String> table = java.util.List.of(
+                "           CPU0       CPU1       ",
+                "  1:          9          0   IO-APIC   1-edge      i8042",
+                " 36:          0     252285 PCI-MSIX-0000:00:02.0   1-edge      virtio1-req.0",
+                " 37:       4000       5000 PCI-MSIX-0000:00:03.0   0-edge      virtio0-input.0",
+                "LOC:    2170348    1841657   Local timer interrupts",
+                "RES:    1487827    1904138   Rescheduling interrupts",
+                "ERR:          0");
+        assertEquals(java.util.Map.of("virtio1-req.0", 252285L, "virtio0-input.0", 5000L), CpuPin.devicesServedBy(table, 1, 1000));
+        assertEquals(java.util.Map.of(), CpuPin.devicesServedBy(table, 0, 1000), "4 000 of 9 000 is not most of them; the timer rows are the CPUs' own");
+        assertEquals(java.util.Map.of("i8042", 9L), CpuPin.devicesServedBy(table, 0, 0));
+        assertEquals(java.util.Map.of(), CpuPin.devicesServedBy(table, 2, 0), "a CPU the table does not list");
+        assertEquals(java.util.Map.of(), CpuPin.devicesServedBy(java.util.List.of(), 0, 0));
+
+        assertEquals(0, CpuPin.quietest(table, "0-1"));
+        assertEquals(1, CpuPin.quietest(table, "1"), "only CPU 1 allowed");
+        assertNull(CpuPin.quietest(table, "2-3"));
+        assertNull(CpuPin.interruptWarning(table, "0-1", 0), "the quiet one");
+        assertEquals("CPU 1 has served 257285 interrupts of devices so far (most of them [virtio0-input.0, virtio1-req.0]), CPU 0 9"
+                + " (/proc/interrupts): a line pinned to CPU 1 waits behind them, on CPU 0 less", CpuPin.interruptWarning(table, "0-1", 1));
+        assertNull(CpuPin.interruptWarning(table, "1", 1), "no other CPU to choose");
+        java.util.List<String> even = java.util.List.of("           CPU0       CPU1       ",
+                " 36:       3000          0 PCI-MSIX-0000:00:02.0   1-edge      virtio1-req.0",
+                " 37:          0       2000 PCI-MSIX-0000:00:03.0   0-edge      virtio0-input.0");
+        assertNull(CpuPin.interruptWarning(even, "0-1", 0), "3 000 against 2 000 is no clear choice");
+    }
+
+    @Test
     void problem_namesTheCpuAndWhatIsAllowed() {
         String here = CpuPin.allowedHere();
         if (here == null) return; // no /proc: nothing to object to, pin() logs and the line runs unpinned
