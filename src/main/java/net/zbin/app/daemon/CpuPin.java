@@ -153,13 +153,12 @@ public final class CpuPin {
         for (String col : table.get(0).trim().split("\\s+")) {
             if (!col.matches("CPU\\d+")) continue;
             int c = Integer.parseInt(col.substring(3));
-            long n;
             try {
                 if (!allows(allowed, c)) continue;
             } catch (IllegalArgumentException unreadable) {
                 return null;
             }
-            n = servedCount(table, c);
+            long n = servedCount(table, c);
             if (n <= fewest) {
                 fewest = n;
                 best = c;
