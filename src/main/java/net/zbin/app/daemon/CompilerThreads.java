@@ -5,7 +5,6 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.concurrent.TimeUnit;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -43,14 +42,9 @@ final class CompilerThreads {
         }
         List<String> cmd = new ArrayList<>(List.of("renice", "-n", Integer.toString(nice), "-p"));
         cmd.addAll(tids);
-        try {
-            Process p = new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(ProcessBuilder.Redirect.DISCARD).start();
-            if (!p.waitFor(5, TimeUnit.SECONDS)) p.destroyForcibly();
-        } catch (IOException e) {
-            LOG.info("compiler threads keep their priority: {}", e.getMessage());
-            return 0;
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
+        String notRun = OwnTool.run(cmd);
+        if (notRun != null) {
+            LOG.info("compiler threads keep their priority: {}", notRun);
             return 0;
         }
         int lowered = 0;

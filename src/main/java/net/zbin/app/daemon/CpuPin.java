@@ -4,7 +4,6 @@ import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
-import java.util.concurrent.TimeUnit;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -80,15 +79,9 @@ public final class CpuPin {
     static int pin(int cpu) {
         if (cpu < 0) throw new IllegalArgumentException("cpu: " + cpu + " is negative");
         String pid = Long.toString(ProcessHandle.current().pid());
-        try {
-            Process p = new ProcessBuilder(List.of("taskset", "--all-tasks", "--cpu-list", "--pid", Integer.toString(cpu), pid))
-                    .redirectErrorStream(true).redirectOutput(ProcessBuilder.Redirect.DISCARD).start();
-            if (!p.waitFor(5, TimeUnit.SECONDS)) p.destroyForcibly();
-        } catch (IOException e) {
-            LOG.warn("pin_cpu: the line runs on every CPU: {}", e.getMessage());
-            return 0;
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
+        String notRun = OwnTool.run(List.of("taskset", "--all-tasks", "--cpu-list", "--pid", Integer.toString(cpu), pid));
+        if (notRun != null) {
+            LOG.warn("pin_cpu: the line runs on every CPU: {}", notRun);
             return 0;
         }
         String irq = interruptWarning(cpu);
