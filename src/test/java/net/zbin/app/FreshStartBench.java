@@ -44,14 +44,15 @@ import org.junit.jupiter.api.io.TempDir;
  */
 class FreshStartBench {
     static final int STARTS = 8, FIRST = 100, WARM = 100;
-    /** The bench line's {@code pin_cpu} line ("" for none): {@code zbin.bench.pin_cpu}, default the quietest CPU here. */
-    static final String PIN = pinLine(System.getProperty("zbin.bench.pin_cpu", "quiet"));
+    /** The bench line's {@code pin_cpu}, null for none: {@code zbin.bench.pin_cpu} (off, quiet or a number), default the quietest CPU here. */
+    static final Integer PIN_CPU = pinCpu(System.getProperty("zbin.bench.pin_cpu", "quiet"));
 
-    static String pinLine(String how) {
-        if (how.equals("off")) return "";
-        if (!how.equals("quiet")) return "pin_cpu: " + Integer.parseInt(how) + "\n";
-        Integer quiet = TestLine.quietCpu();
-        return quiet == null ? "" : "pin_cpu: " + quiet + "\n";
+    static Integer pinCpu(String how) {
+        return switch (how) {
+            case "off" -> null;
+            case "quiet" -> TestLine.quietCpu();
+            default -> Integer.parseInt(how);
+        };
     }
 
     /** Unmeasured decisions between the first 100 and the warm reference ({@code zbin.bench.fresh.settle}). */
@@ -191,7 +192,8 @@ class FreshStartBench {
              BenchFloor floor = new BenchFloor(broker.url(), BenchFloor.Relays.IN_JVM_AND_PROCESS);
              Tap tap = new Tap(broker.url(), "zbin/fresh/state")) {
             floor.meterAt(sim.port());
-            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n" + PIN, LineBench.flushMs());
+            Path cfg = TestLine.write(dir, "fresh", broker.url(), sim.port(), "handler: {deadline_ms: 150}\n"
+                    + (PIN_CPU == null ? "" : "pin_cpu: " + PIN_CPU + "\n"), LineBench.flushMs());
             Map<String, CompletableFuture<Long>> waiting = new ConcurrentHashMap<>();
             java.util.List<String> firstFive = new java.util.concurrent.CopyOnWriteArrayList<>();
             // which of the first 100 took zbin itself over 1 ms (seq: ms; seq = start * 100 000 + position)
@@ -380,7 +382,7 @@ class FreshStartBench {
             String relayedProcessLine = againstRelayed(out, "relayed_floor_own_process", "the relayed floor's p99 with its responder a process of its own",
                     floor.relayedProcess, floor.relayedProcessBlocks, first, warm, firstOfEachStart, warmOfEachStart);
             out.put("started_as", HOW);
-            out.put("pin_cpu", PIN.isEmpty() ? "none" : PIN.trim().substring("pin_cpu: ".length()));
+            out.put("pin_cpu", PIN_CPU == null ? "none" : PIN_CPU.toString());
             ObjectNode cpu = out.putObject("process_cpu_per_decision_at_1000_per_s");
             cpu.put("decisions", CPU_PARTS);
             cpu.put("decisions_before", busyRows - CPU_PARTS + 1000 * quietAfterS);
