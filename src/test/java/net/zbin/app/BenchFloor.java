@@ -47,6 +47,8 @@ final class BenchFloor implements AutoCloseable {
     /** The relayed floor (see the class comment): each relayed echo, and each block's own. */
     final Histogram relayed = new Histogram(60_000_000_000L, 3);
     final java.util.List<Histogram> relayedBlocks = new java.util.ArrayList<>();
+    /** Each block's relayed echoes in the order sent (ns): where its slow ones fall, beside the line's. */
+    final java.util.List<long[]> relayedEach = new java.util.ArrayList<>();
     /**
      * The same relayed echo with its responder in a process of its own ({@link BenchRelay}, started as zbin's daemon is
      * with the systemd unit's JVM options), for a line whose daemon runs as its own process; empty unless asked for.
@@ -148,8 +150,10 @@ final class BenchFloor implements AutoCloseable {
         // the relayed echoes between the two halves: the echo's first still follows the line's block, and the line's next
         // block still follows the meter half, as before the relayed floor was measured
         if (relays != Relays.NONE) {
-            Histogram rl = LineBench.paced(requester, waiting, "bench/relay", "", n, LineBench.PACE, seq);
+            long[] each = new long[n];
+            Histogram rl = LineBench.paced(requester, waiting, "bench/relay", "", n, LineBench.PACE, seq, each);
             seq += n;
+            relayedEach.add(each);
             relayed.add(rl);
             relayedBlocks.add(rl);
         }

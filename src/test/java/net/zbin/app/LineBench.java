@@ -8,6 +8,7 @@ import java.io.OutputStream;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.Arrays;
 import java.util.Locale;
 import java.util.Map;
 import java.util.concurrent.CompletableFuture;
@@ -69,6 +70,65 @@ class LineBench {
      */
     static final Histogram INSIDE_AFTER_PAUSE = new Histogram(60_000_000_000L, 3);
     static final java.util.Set<String> AFTER_PAUSE_SEQS = ConcurrentHashMap.newKeySet();
+    /** The line's own latency_ms of each decision of the paced line blocks, by seq (ns). */
+    static final Map<Long, Long> INSIDE_BY_SEQ = new ConcurrentHashMap<>();
+    /** Parts within which two slow decisions count as one stretch: 10, 50 ms at the pace. */
+    static final int NEAR = 10;
+
+    /**
+     * The decisions of the paced line blocks slower than {@code floorP99}, told apart: how much of each was zbin's own
+     * time (its latency_ms: from the trigger's arrival to the decision made, the meter's exchange in it) and how much
+     * the rest (the MQTT hops, and waiting for a CPU on the way), and how many came within {@link #NEAR} parts of another
+     * slow one (a stretch in which the machine was slow, rather than parts slow on their own).
+     *
+     * @param each   the blocks' latencies, trigger → decision at the handler's client (ns), block by block in send order
+     * @param seq0   the seq of the first block's first part; a block's are consecutive, {@code each[r].length} apart
+     */
+    static ObjectNode beyondFloor(long[][] each, long seq0, double floorP99) {
+        long bound = Math.round(floorP99 * 1e6);
+        Histogram own = new Histogram(60_000_000_000L, 3), rest = new Histogram(60_000_000_000L, 3);
+        long slow = 0, ownBeyond = 0, unknown = 0;
+        for (int r = 0; r < each.length; r++) {
+            for (int i = 0; i < each[r].length; i++) {
+                if (each[r][i] <= bound) continue;
+                slow++;
+                Long in = INSIDE_BY_SEQ.get(seq0 + (long) r * each[r].length + i);
+                if (in == null) {
+                    unknown++;
+                    continue;
+                }
+                own.recordValue(in);
+                if (in > bound) ownBeyond++;
+                rest.recordValue(Math.max(1, each[r][i] - in));
+            }
+        }
+        ObjectNode o = Json.object();
+        o.put("decisions", slow);
+        o.put("of", Arrays.stream(each).mapToLong(b -> b.length).sum());
+        o.set("zbin_own_arrival_to_decided", json(own));
+        o.put("zbin_own_alone_beyond_the_floor_p99", ownBeyond);
+        o.set("the_rest_mqtt_hops_and_waiting_for_a_cpu", json(rest));
+        o.put("within_" + NEAR + "_parts_of_another", slowNearAnother(each, bound));
+        o.put("own_time_not_heard", unknown);
+        return o;
+    }
+
+    /** How many of the values above {@code bound} (ns) have another above it within {@link #NEAR} places of the same block. */
+    static long slowNearAnother(long[][] each, long bound) {
+        long near = 0;
+        for (long[] b : each) {
+            for (int i = 0; i < b.length; i++) {
+                if (b[i] <= bound) continue;
+                for (int j = Math.max(0, i - NEAR); j <= Math.min(b.length - 1, i + NEAR); j++) {
+                    if (j != i && b[j] > bound) {
+                        near++;
+                        break;
+                    }
+                }
+            }
+        }
+        return near;
+    }
 
     /** Which of this bench's histograms a decision's own latency_ms goes to, by its part name (null: none). */
     static Histogram insideOf(String payload) {
@@ -107,6 +167,7 @@ class LineBench {
                         inside.recordValue(ns);
                     }
                     if (AFTER_PAUSE_SEQS.remove(p.substring(s, e).trim())) synchronized (INSIDE_AFTER_PAUSE) { INSIDE_AFTER_PAUSE.recordValue(ns); }
+                    if (inside == INSIDE) INSIDE_BY_SEQ.put(Long.parseLong(p.substring(s, e).trim()), ns);
                 }
             }
 
@@ -350,13 +411,17 @@ class LineBench {
                 Histogram[] lineFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
                 Histogram[] lotsFloor = {new Histogram(60_000_000_000L, 3), new Histogram(60_000_000_000L, 3)};
                 int block = SAMPLES / ROUNDS;
+                long[][] lineEach = new long[ROUNDS][block];
                 for (int r = 0; r < ROUNDS; r++) {
                     floor.block(block, lineFloor[0], lineFloor[1]);
                     AFTER_PAUSE_SEQS.add(Long.toString(100_000 + r * block));
-                    Histogram firstOfBlock = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", 1, PACE, 100_000 + r * block);
+                    long[] first = new long[1], rest = new long[block - 1];
+                    Histogram firstOfBlock = paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", 1, PACE, 100_000 + r * block, first);
                     afterPause.add(firstOfBlock);
                     line.add(firstOfBlock);
-                    line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block - 1, PACE, 100_000 + r * block + 1));
+                    line.add(paced(handler, waiting, "zbin/bench/trigger", ", \"part\": \"P\"", block - 1, PACE, 100_000 + r * block + 1, rest));
+                    lineEach[r][0] = first[0];
+                    System.arraycopy(rest, 0, lineEach[r], 1, rest.length);
                 }
                 // A lot change every 1 000 parts at the handler's pace (a floor block between lots): every decision, and
                 // the first of each new lot.
@@ -429,6 +494,18 @@ class LineBench {
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
                 out.set("first_decision_after_a_pause_inside_zbin_arrival_to_decided", json(INSIDE_AFTER_PAUSE));
+                ObjectNode slow = beyondFloor(lineEach, 100_000, floorP99);
+                out.set("line_decisions_beyond_the_floor_p99", slow);
+                // the relayed floor's own beyond the same bound in the same phase (its first ROUNDS blocks alternated with
+                // the line's), and how they fall: a decision's hops and meter exchange without zbin
+                long[][] relayedEach = floor.relayedEach.subList(0, ROUNDS).toArray(new long[0][]);
+                long relayedSlow = 0, bound = Math.round(floorP99 * 1e6);
+                for (long[] b : relayedEach) for (long v : b) if (v > bound) relayedSlow++;
+                long relayedN = Arrays.stream(relayedEach).mapToLong(b -> b.length).sum(), relayedNear = slowNearAnother(relayedEach, bound);
+                ObjectNode rs = slow.putObject("relayed_floor_in_the_same_phase");
+                rs.put("beyond", relayedSlow);
+                rs.put("of", relayedN);
+                rs.put("within_" + NEAR + "_of_another", relayedNear);
                 System.out.printf(Locale.ROOT, "%n  %-52s %9s %9s %9s %9s%n", "latency at " + PACE + "/s, ms", "p50", "p99", "p99.9", "max");
                 for (var e : new Object[][] {{"floor: MQTT echo", floor.echo}, {"floor: meter request/response", floor.meter},
                         {"  (meter back to back, not the floor)", meterTight},
@@ -461,6 +538,14 @@ class LineBench {
                         relayedP50, relayedP99, line.getValueAtPercentile(50) / 1e6 - relayedP50, line.getValueAtPercentile(99) / 1e6 / relayedP99,
                         count(line, relayedP99), line.getTotalCount(),
                         count(lotAfterPause, relayedP99), lotAfterPause.getTotalCount(), count(afterPause, relayedP99), afterPause.getTotalCount());
+                System.out.printf(Locale.ROOT, "  the line's decisions beyond the floor's p99: %d of %d; of each, zbin's own time (arrival -> decided, the meter's"
+                        + " exchange in it) p50 %.3f, max %.3f ms (%d beyond the floor's p99 by it alone), the rest (MQTT hops, waiting for a CPU)"
+                        + " p50 %.3f, max %.3f ms; %d of them within %d parts (%d ms) of another; the relayed floor's in the same blocks' phase %d of %d, %d near another%n",
+                        slow.get("decisions").asLong(), slow.get("of").asLong(), slow.get("zbin_own_arrival_to_decided").get("p50_ms").asDouble(),
+                        slow.get("zbin_own_arrival_to_decided").get("max_ms").asDouble(), slow.get("zbin_own_alone_beyond_the_floor_p99").asLong(),
+                        slow.get("the_rest_mqtt_hops_and_waiting_for_a_cpu").get("p50_ms").asDouble(),
+                        slow.get("the_rest_mqtt_hops_and_waiting_for_a_cpu").get("max_ms").asDouble(), slow.get("within_" + NEAR + "_parts_of_another").asLong(),
+                        NEAR, NEAR * 1000 / PACE, relayedSlow, relayedN, relayedNear);
 
                 // Open loop: triggers at a fixed rate without waiting; every one must be answered exactly once.
                 ObjectNode rates = out.putObject("open_loop");
