@@ -45,8 +45,11 @@ import org.junit.jupiter.api.io.TempDir;
  */
 class LineBench {
     static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6, SHORT_LOTS = 40, SHORT_LOT = 100, LONG_RATE = 3000;
-    /** Decisions (and floor exchanges) before the first measured block: the compiler's top tier takes a method after thousands of calls. */
-    static final int WARM_PARTS = 15_000;
+    /**
+     * Decisions (and floor exchanges) before the first measured block: the compiler's top tier takes a method after thousands
+     * of calls ({@code zbin.bench.line.warm.parts}, for an A/B).
+     */
+    static final int WARM_PARTS = Integer.getInteger("zbin.bench.line.warm.parts", 15_000);
     /** Parts per lot while warming ({@code zbin.bench.line.warm.lot}; 15 000 warms in one lot, for an A/B). */
     static final int WARM_LOT = Integer.getInteger("zbin.bench.line.warm.lot", 1_000);
 
