@@ -116,6 +116,11 @@ class LineBench {
         return o;
     }
 
+    /** How many of the values are above {@code bound} (ns). */
+    static long above(long[][] each, long bound) {
+        return Arrays.stream(each).flatMapToLong(Arrays::stream).filter(v -> v > bound).count();
+    }
+
     /** How many of the values above {@code bound} (ns) have another above it within {@link #NEAR} places of the same block. */
     static long slowNearAnother(long[][] each, long bound) {
         long near = 0;
@@ -502,9 +507,8 @@ class LineBench {
                 // the relayed floor's own beyond the same bound in the same phase (its first ROUNDS blocks alternated with
                 // the line's), and how they fall: a decision's hops and meter exchange without zbin
                 long[][] relayedEach = floor.relayedEach.subList(0, ROUNDS).toArray(new long[0][]);
-                long relayedSlow = 0, bound = Math.round(floorP99 * 1e6);
-                for (long[] b : relayedEach) for (long v : b) if (v > bound) relayedSlow++;
-                long relayedN = Arrays.stream(relayedEach).mapToLong(b -> b.length).sum(), relayedNear = slowNearAnother(relayedEach, bound);
+                long bound = Math.round(floorP99 * 1e6), relayedSlow = above(relayedEach, bound), relayedNear = slowNearAnother(relayedEach, bound);
+                long relayedN = Arrays.stream(relayedEach).mapToLong(b -> b.length).sum();
                 ObjectNode rs = slow.putObject("relayed_floor_in_the_same_phase");
                 rs.put("beyond", relayedSlow);
                 rs.put("of", relayedN);
