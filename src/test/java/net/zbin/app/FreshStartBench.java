@@ -95,30 +95,9 @@ class FreshStartBench {
     @TempDir
     Path dir;
 
-    /**
-     * The daemon's process as {@link #HOW} says: from the jar ({@code zbin.bench.daemon.jar}, else the build's
-     * {@code target/zbin.jar}) with the class-data {@code archive} ({@code -XX:ArchiveClassesAtExit} when it does not exist
-     * yet: the process writes it when it stops) and the unit's {@code java} options, from the jar alone, or on this JVM's own class path. Options in
-     * {@code zbin.bench.daemon.jvm} go before the others (e.g. {@code -Xlog:class+load} to see what the first parts still
-     * load).
-     */
+    /** The daemon's process as {@link #HOW} says ({@link UnitProcess#start}). */
     Process start(Path cfg, String name, Path archive) throws Exception {
-        java.util.List<String> cmd = new java.util.ArrayList<>(java.util.List.of(Path.of(System.getProperty("java.home"), "bin", "java").toString()));
-        String extra = System.getProperty("zbin.bench.daemon.jvm", "");
-        if (!extra.isBlank()) cmd.addAll(java.util.List.of(extra.trim().split("\\s+")));
-        String jar = System.getProperty("zbin.bench.daemon.jar", "");
-        switch (HOW) {
-            case "unit" -> {
-                cmd.addAll(MosquittoAndSystemdFiles.unitJvmOptions(Path.of("config/systemd/zbin@.service")));
-                cmd.addAll(java.util.List.of((Files.exists(archive) ? "-XX:SharedArchiveFile=" : "-XX:ArchiveClassesAtExit=") + archive,
-                        "-jar", jar.isBlank() ? Jar.path() : jar));
-            }
-            case "jar" -> cmd.addAll(java.util.List.of("-jar", jar.isBlank() ? Jar.path() : jar));
-            case "classes" -> cmd.addAll(java.util.List.of("-cp", System.getProperty("java.class.path"), "net.zbin.app.Main"));
-            default -> throw new IllegalArgumentException("zbin.bench.daemon.start: '" + HOW + "' is not one of unit, jar, classes");
-        }
-        cmd.addAll(java.util.List.of("run", "--config", cfg.toString()));
-        return new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + name + ".log").toFile()).start();
+        return UnitProcess.start(dir, cfg, name, HOW, archive);
     }
 
     /** Decisions at 1 000/s whose process CPU time is counted, after the busy daemon's warm ones. */
@@ -154,8 +133,7 @@ class FreshStartBench {
 
     /** SIGTERM (a clean stop), forcibly when it takes more than 20 s. */
     static void stop(Process daemon) throws InterruptedException {
-        daemon.destroy();
-        if (!daemon.waitFor(20, TimeUnit.SECONDS)) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+        UnitProcess.stop(daemon);
     }
 
     /** Rows in the line's record files (lines other than each file's header; counting lines, not reading the rows). */
@@ -344,6 +322,13 @@ class FreshStartBench {
             firstFive.forEach(ff::add);
             ArrayNode si = out.putArray("inside_zbin_first_100_over_1ms_seq_ms");
             slowInside.forEach(si::add);
+            // a count, not a timing: how many decisions took zbin's own code over 1 ms, after a start and warm
+            long overFirst = inside.getTotalCount() - LineBench.count(inside, 1.0), overWarm = insideWarm.getTotalCount() - LineBench.count(insideWarm, 1.0);
+            ObjectNode over = out.putObject("inside_zbin_over_1ms");
+            over.put("first_100", overFirst);
+            over.put("first_100_of", inside.getTotalCount());
+            over.put("warm_reference", overWarm);
+            over.put("warm_reference_of", insideWarm.getTotalCount());
             ObjectNode v = LineBench.json(veryFirst);
             v.put("within_floor_p99", LineBench.count(veryFirst, floorP99));
             out.set("first_decision_after_each_start", v);
@@ -420,6 +405,8 @@ class FreshStartBench {
                     startsAll, firstOfEachStart.size(), warmAll, warmOfEachStart.size(), floorAll, floor.blockExchanges.size(), floorWithin, floorExchanges);
             System.out.println(relayedLine);
             System.out.println(relayedProcessLine);
+            System.out.printf(Locale.ROOT, "  inside zbin over 1 ms (arrival -> decided): %d of the first 100s' %d, %d of the warm reference's %d%n",
+                    overFirst, inside.getTotalCount(), overWarm, insideWarm.getTotalCount());
             assertEquals((long) STARTS * FIRST, first.getTotalCount(), "every trigger after each start answered");
             assertEquals((long) STARTS * WARM, warm.getTotalCount(), "every warm reference trigger answered");
             Path logDir = Path.of("target/bench/fresh-start-logs");

@@ -335,17 +335,28 @@ class LineBench {
      */
     static Map<String, Long> threadCpuNsByName(long pid) throws java.io.IOException {
         Map<String, Long> out = new java.util.TreeMap<>();
+        threadCpuNs(pid, (comm, totalUser) -> out.merge(comm.replaceAll("[0-9]", ""), totalUser[0], Long::sum));
+        return out;
+    }
+
+    /**
+     * Hands each live thread of process {@code pid} to {@code each}: its name as the kernel keeps it and {total, user} CPU
+     * time, ns, from /proc/PID/task/TID/stat (a thread that ends in between is left out).
+     */
+    static void threadCpuNs(long pid, java.util.function.BiConsumer<String, long[]> each) throws java.io.IOException {
         try (var tasks = Files.list(Path.of("/proc", Long.toString(pid), "task"))) {
             for (Path t : tasks.toList()) {
+                String stat;
                 try {
-                    String stat = Files.readString(t.resolve("stat"));
-                    out.merge(stat.substring(stat.indexOf('(') + 1, stat.lastIndexOf(')')).replaceAll("[0-9]", ""), statCpuNs(stat), Long::sum);
-                } catch (java.io.IOException | RuntimeException gone) {
-                    // the thread ended in between
+                    stat = Files.readString(t.resolve("stat"));
+                } catch (java.io.IOException gone) {
+                    continue; // the thread ended in between
                 }
+                String[] f = stat.substring(stat.lastIndexOf(')') + 2).split(" ");
+                long user = Long.parseLong(f[11]) * 10_000_000L;
+                each.accept(stat.substring(stat.indexOf('(') + 1, stat.lastIndexOf(')')), new long[] {statCpuNs(stat), user});
             }
         }
-        return out;
     }
 
     /** User + system CPU time of a process from /proc/PID/stat, ns (clock ticks of 10 ms, Linux's USER_HZ). */
@@ -382,11 +393,13 @@ class LineBench {
         ObjectNode out = Json.object();
         out.put("machine", Runtime.getRuntime().availableProcessors() + " cores, " + System.getProperty("java.vm.name") + " " + System.getProperty("java.version"));
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_queued_messages 100000\n");
-             BenchFloor floor = new BenchFloor(broker.url(), BenchFloor.Relays.IN_JVM)) {
-            try (LineRig rig = new LineRig(dir, "bench", broker.url(), LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n",
-                    "handler: {deadline_ms: 150}\n", null, new Contacts(), flushMs())) {
-                rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-                floor.meterAt(rig.meterServer.port());
+             // a daemon in a process of its own is set beside a relay in one too (BenchFloor.relayedProcess)
+             BenchFloor floor = new BenchFloor(broker.url(), LineUnderBench.HOW.equals("jvm") ? BenchFloor.Relays.IN_JVM : BenchFloor.Relays.IN_JVM_AND_PROCESS)) {
+            try (LineUnderBench rig = LineUnderBench.start(dir, broker.url(), flushMs())) {
+                out.put("daemon", rig.where());
+                System.out.println("  the daemon: " + rig.where());
+                rig.contacts().load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+                floor.meterAt(rig.meterPort());
                 Histogram meterTight = floor.meterBackToBack(SAMPLES);
                 // Warm parts first, as fast as they are answered, until the compiler's top tier has the path: a line in its
                 // shift (the first decisions after a start are FreshStartBench's, in a process of their own). With 600 at
@@ -499,6 +512,20 @@ class LineBench {
                 rf.put("own", floor.relayed.getTotalCount()); // 99 % of them within its p99, by definition
                 rf.put("first_decisions_of_a_lot_after_a_pause_within_its_p99", count(lotAfterPause, relayedP99));
                 rf.put("first_decisions_after_a_pause_same_lot_within_its_p99", count(afterPause, relayedP99));
+                if (floor.relayedProcess.getTotalCount() > 0) { // the relay as a process of its own, as the daemon is here
+                    double pp50 = floor.relayedProcess.getValueAtPercentile(50) / 1e6, pp99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
+                    ObjectNode rp = out.putObject("relayed_floor_own_process");
+                    rp.set("latency", json(floor.relayedProcess));
+                    rp.put("line_p50_over_it_ms", line.getValueAtPercentile(50) / 1e6 - pp50);
+                    rp.put("line_p99_over_its_p99", line.getValueAtPercentile(99) / 1e6 / pp99);
+                    rp.put("line_within_its_p99", count(line, pp99));
+                    rp.put("line", line.getTotalCount());
+                    rp.put("lot_changes_within_its_p99", count(lots, pp99));
+                    rp.put("lot_changes", lots.getTotalCount());
+                    rp.put("first_decisions_of_a_lot_within_its_p99", count(firstOfLot, pp99));
+                    rp.put("first_decisions_of_a_lot_after_a_pause_within_its_p99", count(lotAfterPause, pp99));
+                    rp.put("own", floor.relayedProcess.getTotalCount()); // 99 % of them within its p99, by definition
+                }
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
                 out.set("first_decision_after_a_pause_inside_zbin_arrival_to_decided", json(INSIDE_AFTER_PAUSE));
@@ -545,6 +572,14 @@ class LineBench {
                         relayedP50, relayedP99, line.getValueAtPercentile(50) / 1e6 - relayedP50, line.getValueAtPercentile(99) / 1e6 / relayedP99,
                         count(line, relayedP99), line.getTotalCount(),
                         count(lotAfterPause, relayedP99), lotAfterPause.getTotalCount(), count(afterPause, relayedP99), afterPause.getTotalCount());
+                if (floor.relayedProcess.getTotalCount() > 0) {
+                    double pp99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
+                    System.out.printf(Locale.ROOT, "  against the relayed floor with its responder a process of its own (p50 %.3f, p99 %.3f ms): the line's p99 %.2f x it;"
+                            + " within its p99: the line %d of %d, the lot changes %d of %d, the lots' first %d of %d (after a pause %d of %d)%n",
+                            floor.relayedProcess.getValueAtPercentile(50) / 1e6, pp99, line.getValueAtPercentile(99) / 1e6 / pp99,
+                            count(line, pp99), line.getTotalCount(), count(lots, pp99), lots.getTotalCount(),
+                            count(firstOfLot, pp99), firstOfLot.getTotalCount(), count(lotAfterPause, pp99), lotAfterPause.getTotalCount());
+                }
                 System.out.printf(Locale.ROOT, "  the line's decisions beyond the floor's p99: %d of %d; of each, zbin's own time (arrival -> decided, the meter's"
                         + " exchange in it) p50 %.3f, max %.3f ms (%d beyond the floor's p99 by it alone), the rest (MQTT hops, waiting for a CPU)"
                         + " p50 %.3f, max %.3f ms; %d of them within %d parts (%d ms) of another; the relayed floor's in the same blocks' phase %d of %d, %d near another%n",
@@ -592,9 +627,9 @@ class LineBench {
                     seen.clear();
                     sentAt.clear();
                     synchronized (openLat) { openLat.reset(); }
-                    Map<String, long[]> groups0 = daemonCpuByGroup();
-                    long cpu0 = daemonCpuNs(), broker0 = processCpuNs(broker.pid()), jvm0 = processCpuNs(self);
-                    long zbinSw0 = switches(self, LineBench::daemonTask), brokerSw0 = switches(broker.pid(), c -> true);
+                    Map<String, long[]> groups0 = rig.cpuByGroup();
+                    long cpu0 = rig.cpuNs(), broker0 = processCpuNs(broker.pid()), jvm0 = processCpuNs(self);
+                    long zbinSw0 = rig.switches(), brokerSw0 = switches(broker.pid(), c -> true);
                     long[] machine0 = machineJiffies();
                     long n = (long) rate * seconds, period = 1_000_000_000L / rate, next = System.nanoTime(), start = next;
                     for (long i = 0; i < n; i++, seq++) {
@@ -617,17 +652,17 @@ class LineBench {
                     long end = System.currentTimeMillis() + 20_000;
                     while (answered.get() < n && System.currentTimeMillis() < end) Thread.sleep(20);
                     double doneS = (System.nanoTime() - start) / 1e9;
-                    double zbinUs = (daemonCpuNs() - cpu0) / 1e3 / Math.max(1, answered.get());
-                    long daemonNs = daemonCpuNs() - cpu0, brokerNs = processCpuNs(broker.pid()) - broker0, jvmNs = processCpuNs(self) - jvm0;
+                    long daemonNs = rig.cpuNs() - cpu0, brokerNs = processCpuNs(broker.pid()) - broker0, jvmNs = processCpuNs(self) - jvm0;
                     long[] machine1 = machineJiffies();
-                    Map<String, long[]> groups1 = daemonCpuByGroup();
-                    double zbinSw = (double) (switches(self, LineBench::daemonTask) - zbinSw0) / Math.max(1, answered.get());
+                    double zbinUs = daemonNs / 1e3 / Math.max(1, answered.get());
+                    Map<String, long[]> groups1 = rig.cpuByGroup();
+                    double zbinSw = (double) (rig.switches() - zbinSw0) / Math.max(1, answered.get());
                     double brokerSw = (double) (switches(broker.pid(), c -> true) - brokerSw0) / Math.max(1, answered.get());
                     double brokerUs = brokerNs / 1e3 / Math.max(1, answered.get());
                     // Cores in use over the run: zbin's threads, the rest of this JVM (the fixed-rate client, the meter
                     // simulator, GC and JIT), Mosquitto, and the whole machine (anything else running counts here too).
                     double wallNs = doneS * 1e9, cores = Runtime.getRuntime().availableProcessors();
-                    double zbinCores = daemonNs / wallNs, rigCores = Math.max(0, jvmNs - daemonNs) / wallNs, brokerCores = brokerNs / wallNs;
+                    double zbinCores = daemonNs / wallNs, rigCores = Math.max(0, rig.inBenchJvm() ? jvmNs - daemonNs : jvmNs) / wallNs, brokerCores = brokerNs / wallNs;
                     double machineBusy = (double) (machine1[0] - machine0[0]) / Math.max(1, machine1[1] - machine0[1]) * cores;
                     ObjectNode r = rates.putObject(Integer.toString(rate));
                     double p50, p99;
