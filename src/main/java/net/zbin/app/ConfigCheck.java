@@ -65,7 +65,9 @@ final class ConfigCheck {
         out.printf(Locale.ROOT, "  handler deadline %d ms, dashboard every %s%n", c.deadlineMs(), SiValue.format(c.dashboardMs() / 1000.0, "s"));
         if (c.pinCpu() != null) {
             String notHere = net.zbin.app.daemon.CpuPin.problem(c.pinCpu());
-            out.printf(Locale.ROOT, "  from ready on, the line's threads run on CPU %d only%n", c.pinCpu());
+            String others = net.zbin.app.daemon.CpuPin.othersThan(c.pinCpu());
+            out.printf(Locale.ROOT, "  from ready on, the line's threads run on CPU %d only%s%n", c.pinCpu(),
+                    others == null ? "" : "; the JIT compiler's on CPUs " + others);
             if (notHere != null) out.printf(Locale.ROOT, "  warning: pin_cpu: %s: `zbin run` refuses this config on this machine%n", notHere);
             String irq = notHere == null ? net.zbin.app.daemon.CpuPin.interruptWarning(c.pinCpu()) : null;
             if (irq != null) out.printf(Locale.ROOT, "  warning: pin_cpu: %s%n", irq);

@@ -1,6 +1,7 @@
 package net.zbin.app;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
@@ -17,7 +18,10 @@ import net.zbin.sim.SimTcpServer;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
-/** {@code pin_cpu}: the real {@code zbin run} process keeps every thread on the CPU its config names, from ready on. */
+/**
+ * {@code pin_cpu}: the real {@code zbin run} process keeps every thread on the CPU its config names from ready on, but for
+ * the JIT compiler's, which run on the other CPUs it may use.
+ */
 class PinnedLineIT {
     @TempDir
     Path dir;
@@ -39,7 +43,7 @@ class PinnedLineIT {
     }
 
     @Test
-    void pinnedLine_everyThreadOnItsCpuFromReady_andItStillDecides() throws Exception {
+    void pinnedLine_everyThreadButTheCompilersOnItsCpuFromReady_andItStillDecides() throws Exception {
         Integer cpu = TestLine.quietCpu(); // the daemon, a process of its own, is pinned to it (as a careful engineer picks it)
         assertTrue(cpu != null, "no Cpus_allowed_list in /proc/self/status");
         SimMeter meter = new SimMeter(new Contacts(), net.zbin.sim.Fixture.IDEAL, Clock.systemUTC(), 9, 0, SimMeter.RandomFaults.NONE);
@@ -60,14 +64,25 @@ class PinnedLineIT {
             }
             List<String> threads = threadsOf(daemon.pid());
             assertTrue(threads.size() > 10, "a JVM has its threads: " + threads);
-            List<String> elsewhere = threads.stream().filter(t -> !t.endsWith("=" + cpu)).toList();
+            // the JIT compiler's threads on the other CPUs this process may use (none: with the line), every other thread on the line's
+            String others = CpuPin.othersThan(cpu);
+            List<String> compiler = threads.stream().filter(t -> t.contains("CompilerThre")).toList();
+            assertFalse(compiler.isEmpty(), "the JVM's compiler threads are among them: " + threads);
+            List<String> elsewhere = threads.stream().filter(t -> !t.contains("CompilerThre") && !t.endsWith("=" + cpu)).toList();
             assertEquals(List.of(), elsewhere, "threads not on CPU " + cpu + " alone, of " + threads);
+            for (String t : compiler) {
+                String list = t.substring(t.lastIndexOf('=') + 1);
+                if (others == null) assertEquals(Integer.toString(cpu), list, t + ": this process has no other CPU, the compiler stays with the line");
+                else assertFalse(CpuPin.allows(list, cpu), t + ": a compiler thread keeps off the line's CPU " + cpu + " (others: " + others + ")");
+            }
             assertTrue(threads.stream().anyMatch(t -> t.startsWith("MQTT Call")), "the MQTT client's threads are among them: " + threads);
-            assertTrue(Files.readString(dir.resolve("daemon.log")).contains("threads of the line on CPU " + cpu + " from now on"),
-                    "the log says so: " + Files.readString(dir.resolve("daemon.log")));
+            String log = Files.readString(dir.resolve("daemon.log"));
+            assertTrue(log.contains("threads of the line on CPU " + cpu + " from now on") && (others == null || log.contains("compiler threads on CPUs " + others)),
+                    "the log says so: " + log);
             Cli check = Cli.run("check", "--config", cfg.toString());
             assertEquals(0, check.exit(), check.out() + check.err());
-            assertTrue(check.out().contains("from ready on, the line's threads run on CPU " + cpu + " only") && !check.out().contains("warning: pin_cpu"),
+            assertTrue(check.out().contains("from ready on, the line's threads run on CPU " + cpu + " only")
+                            && (others == null || check.out().contains("the JIT compiler's on CPUs " + others)) && !check.out().contains("warning: pin_cpu"),
                     check.out());
         } finally {
             if (daemon != null) daemon.destroyForcibly().waitFor(10, TimeUnit.SECONDS);

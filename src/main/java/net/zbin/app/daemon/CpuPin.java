@@ -9,14 +9,15 @@ import org.slf4j.LoggerFactory;
 
 /**
  * Keeps every thread of this process on one CPU from the moment the line is ready (Linux: the threads' CPU affinity),
- * when the line config asks for it ({@code pin_cpu}).
+ * when the line config asks for it ({@code pin_cpu}), but for the JIT compiler's, which go to the other CPUs the process
+ * may use ({@link #compilerTo}).
  *
  * <p>Why: a part crosses five of the daemon's threads (the MQTT client's receiver, callback and sender, the measuring
  * thread, the record log's), and each hand-over wakes a thread. A thread woken on another CPU costs both CPUs an
  * interrupt, and on a virtual machine an exit to the hypervisor; on one CPU it is a plain switch. On the 2-core machine
  * zbin is built on, a pinned line used a fifth to a third less CPU per decision (README, "A CPU of its own"). Before
  * ready the process keeps every CPU: the start's compiling and reading the record log back run in parallel. Threads
- * started later (a reconnect's MQTT threads, the compiler's) inherit the CPU from the thread that starts them. Java
+ * started later (a reconnect's MQTT threads, a compiler thread) inherit the CPUs of the thread that starts them. Java
  * cannot set an affinity, {@code taskset} (util-linux) does, for the process's own threads without privilege.
  */
 public final class CpuPin {
@@ -78,6 +79,7 @@ public final class CpuPin {
      */
     static int pin(int cpu) {
         if (cpu < 0) throw new IllegalArgumentException("cpu: " + cpu + " is negative");
+        String others = othersThan(cpu);
         String pid = Long.toString(ProcessHandle.current().pid());
         String notRun = OwnTool.run(List.of("taskset", "--all-tasks", "--cpu-list", "--pid", Integer.toString(cpu), pid));
         if (notRun != null) {
@@ -86,10 +88,55 @@ public final class CpuPin {
         }
         String irq = interruptWarning(cpu);
         if (irq != null) LOG.warn("pin_cpu: {}", irq);
+        int moved = others == null ? 0 : compilerTo(others, cpu);
         int[] onIt = threadsOn(cpu);
-        if (onIt[0] == onIt[1] && onIt[1] > 0) LOG.info("all {} threads of the line on CPU {} from now on", onIt[1], cpu);
-        else LOG.warn("pin_cpu: {} of {} threads of the line on CPU {} only", onIt[0], onIt[1], cpu);
+        if (onIt[0] + moved == onIt[1] && onIt[1] > 0) {
+            LOG.info("all {} threads of the line on CPU {} from now on{}", onIt[0], cpu,
+                    moved == 0 ? "" : ", its " + moved + " compiler threads on CPUs " + others);
+        } else LOG.warn("pin_cpu: {} of {} threads of the line on CPU {} only, {} compiler threads elsewhere", onIt[0], onIt[1], cpu, moved);
         return onIt[0];
+    }
+
+    /**
+     * Sets the JIT compiler's threads to the CPUs of {@code list} and returns how many now keep off {@code awayFrom}. A compile holds a
+     * CPU for milliseconds; on the line's own CPU a part's threads wait behind it (at nice 19 the scheduler still lets
+     * it finish a protected slice). Elsewhere it takes nothing from the line: the first parts after a start, while the
+     * compiler's top tier is still at work, and any recompile later. Compiler threads the JVM adds later are started by
+     * a compiler thread and keep its CPUs.
+     */
+    static int compilerTo(String list, int awayFrom) {
+        int n = 0;
+        for (String tid : CompilerThreads.compilerTids()) {
+            if (OwnTool.run(List.of("taskset", "--cpu-list", "--pid", list, tid)) != null) continue;
+            String now = allowedOf(SELF.resolve("task").resolve(tid).resolve("status"));
+            try {
+                if (now != null && !allows(now, awayFrom)) n++;
+            } catch (IllegalArgumentException unreadable) { // not counted
+            }
+        }
+        return n;
+    }
+
+    /** The CPUs this process may use other than {@code cpu} ({@link #without}); null when there are none or they are unknown. */
+    public static String othersThan(int cpu) {
+        try {
+            return without(allowedHere(), cpu);
+        } catch (IllegalArgumentException unreadable) {
+            return null;
+        }
+    }
+
+    /** A kernel CPU list ({@code 0-3,6}) without {@code cpu}, as single CPUs ({@code 0,1,3,6}); null when none is left or the list is unknown. */
+    public static String without(String list, int cpu) {
+        if (list == null || list.isBlank()) return null;
+        StringBuilder out = new StringBuilder();
+        for (String part : list.trim().split(",")) {
+            String[] ends = part.trim().split("-", -1);
+            if (ends.length > 2 || ends[0].isEmpty()) throw new IllegalArgumentException("CPU list '" + list + "': '" + part + "' is not a CPU or a range");
+            int from = Integer.parseInt(ends[0].trim()), to = ends.length == 2 ? Integer.parseInt(ends[1].trim()) : from;
+            for (int c = from; c <= to; c++) if (c != cpu) out.append(out.length() == 0 ? "" : ",").append(c);
+        }
+        return out.length() == 0 ? null : out.toString();
     }
 
     /** The kernel's interrupt counts, {@code /proc/interrupts}; empty where there is none. */

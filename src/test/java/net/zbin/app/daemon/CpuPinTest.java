@@ -36,6 +36,17 @@ class CpuPinTest {
     }
 
     @Test
+    void theOtherCpus_aListWithoutTheLinesCpu_noneWhenNoneIsLeft() {
+        assertEquals("0,1,2,6", CpuPin.without("0-3,6", 3));
+        assertEquals("1", CpuPin.without("0-1", 0));
+        assertEquals("0,1", CpuPin.without("0-1", 5)); // a CPU not in the list takes nothing away
+        assertNull(CpuPin.without("2", 2)); // a process on one CPU: the compiler stays with the line
+        assertNull(CpuPin.without("", 0));
+        assertNull(CpuPin.without(null, 0));
+        assertThrows(IllegalArgumentException.class, () -> CpuPin.without("0-1-2", 0));
+    }
+
+    @Test
     void allowedList_readFromAStatusFile() throws Exception {
         Path status = Files.writeString(dir.resolve("status"), "Name:\tjava\nCpus_allowed:\t5\nCpus_allowed_list:\t0,2\nMems_allowed:\t1\n");
         assertEquals("0,2", CpuPin.allowedOf(status));
