@@ -98,11 +98,11 @@ public final class CpuPin {
     }
 
     /**
-     * Sets the JIT compiler's threads to the CPUs of {@code list} and returns how many now keep off {@code awayFrom}. A compile holds a
-     * CPU for milliseconds; on the line's own CPU a part's threads wait behind it (at nice 19 the scheduler still lets
-     * it finish a protected slice). Elsewhere it takes nothing from the line: the first parts after a start, while the
-     * compiler's top tier is still at work, and any recompile later. Compiler threads the JVM adds later are started by
-     * a compiler thread and keep its CPUs.
+     * Sets the JIT compiler's threads to the CPUs of {@code list} and returns how many now keep off {@code awayFrom}. A
+     * compile holds a CPU for milliseconds; on the line's own CPU a part's threads wait behind it (at nice 19 the
+     * scheduler still lets it finish a protected slice). Elsewhere it takes nothing from the line: the first parts after
+     * a start, while the compiler's top tier is still at work, and any recompile later. Compiler threads the JVM adds
+     * later are started by a compiler thread and keep its CPUs.
      */
     static int compilerTo(String list, int awayFrom) {
         int n = 0;
