@@ -41,7 +41,8 @@ import org.junit.jupiter.api.io.TempDir;
  * and open-loop rates (3 000/s for 60 s, the others for 10 s: {@code -Dzbin.bench.long.seconds}, {@code -Dzbin.bench.seconds}) with
  * lost and duplicated decisions counted and the cores each part of the rig used. The line and its floor
  * ({@link BenchFloor}) are measured in alternating blocks of the same run, so a shared machine's changing load weighs
- * on both. Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
+ * on both. The daemon runs in the bench's JVM; {@code -Dzbin.bench.line.daemon=process} runs it as {@code zbin run} in a
+ * process of its own ({@link LineUnderBench}). Run with {@code mvn -B -Pbench test}; results in {@code target/bench/line.json}.
  */
 class LineBench {
     static final int PACE = 200, SAMPLES = 3000, LOTS = 5, ROUNDS = 6, SHORT_LOTS = 40, SHORT_LOT = 100, LONG_RATE = 3000;
