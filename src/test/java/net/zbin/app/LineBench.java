@@ -382,6 +382,21 @@ class LineBench {
         return new long[] {total - idle, total};
     }
 
+    /**
+     * Writes into {@code o} a relayed floor's latency ({@code relay}) and the line's paced decisions against it: p50 over
+     * it, p99 over its p99, how many within its p99 (of its own exchanges 99 % are, by definition). Returns {@code o}.
+     */
+    static ObjectNode againstRelay(ObjectNode o, Histogram relay, Histogram line) {
+        double p50 = relay.getValueAtPercentile(50) / 1e6, p99 = relay.getValueAtPercentile(99) / 1e6;
+        o.set("latency", json(relay));
+        o.put("line_p50_over_it_ms", line.getValueAtPercentile(50) / 1e6 - p50);
+        o.put("line_p99_over_its_p99", line.getValueAtPercentile(99) / 1e6 / p99);
+        o.put("line_within_its_p99", count(line, p99));
+        o.put("line", line.getTotalCount());
+        o.put("own", relay.getTotalCount());
+        return o;
+    }
+
     static ObjectNode json(Histogram h) {
         ObjectNode n = Json.object();
         for (double p : new double[] {50, 99, 99.9}) n.put("p" + (p == 99.9 ? "999" : Integer.toString((int) p)) + "_ms", h.getValueAtPercentile(p) / 1e6);
@@ -504,28 +519,16 @@ class LineBench {
                 // the relayed floor (an echo whose responder makes the meter exchange before it answers, see BenchFloor)
                 // beside the summed one: what of the line's figures the rig's overlap explains
                 double relayedP50 = floor.relayedMs(50), relayedP99 = floor.relayedMs(99);
-                ObjectNode rf = out.putObject("relayed_floor");
-                rf.set("latency", json(floor.relayed));
-                rf.put("line_p50_over_it_ms", line.getValueAtPercentile(50) / 1e6 - relayedP50);
-                rf.put("line_p99_over_its_p99", line.getValueAtPercentile(99) / 1e6 / relayedP99);
-                rf.put("line_within_its_p99", count(line, relayedP99));
-                rf.put("line", line.getTotalCount());
-                rf.put("own", floor.relayed.getTotalCount()); // 99 % of them within its p99, by definition
+                ObjectNode rf = againstRelay(out.putObject("relayed_floor"), floor.relayed, line);
                 rf.put("first_decisions_of_a_lot_after_a_pause_within_its_p99", count(lotAfterPause, relayedP99));
                 rf.put("first_decisions_after_a_pause_same_lot_within_its_p99", count(afterPause, relayedP99));
                 if (floor.relayedProcess.getTotalCount() > 0) { // the relay as a process of its own, as the daemon is here
-                    double pp50 = floor.relayedProcess.getValueAtPercentile(50) / 1e6, pp99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
-                    ObjectNode rp = out.putObject("relayed_floor_own_process");
-                    rp.set("latency", json(floor.relayedProcess));
-                    rp.put("line_p50_over_it_ms", line.getValueAtPercentile(50) / 1e6 - pp50);
-                    rp.put("line_p99_over_its_p99", line.getValueAtPercentile(99) / 1e6 / pp99);
-                    rp.put("line_within_its_p99", count(line, pp99));
-                    rp.put("line", line.getTotalCount());
+                    double pp99 = floor.relayedProcess.getValueAtPercentile(99) / 1e6;
+                    ObjectNode rp = againstRelay(out.putObject("relayed_floor_own_process"), floor.relayedProcess, line);
                     rp.put("lot_changes_within_its_p99", count(lots, pp99));
                     rp.put("lot_changes", lots.getTotalCount());
                     rp.put("first_decisions_of_a_lot_within_its_p99", count(firstOfLot, pp99));
                     rp.put("first_decisions_of_a_lot_after_a_pause_within_its_p99", count(lotAfterPause, pp99));
-                    rp.put("own", floor.relayedProcess.getTotalCount()); // 99 % of them within its p99, by definition
                 }
                 out.set("inside_zbin_arrival_to_decided", json(INSIDE));
                 out.set("first_decision_of_a_lot_inside_zbin_arrival_to_decided", json(INSIDE_LOT));
