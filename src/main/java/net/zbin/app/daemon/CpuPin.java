@@ -49,14 +49,24 @@ public final class CpuPin {
      * @throws IllegalArgumentException when the list is not one
      */
     public static boolean allows(String list, int cpu) {
-        if (list == null || list.isBlank()) return false;
+        return cpus(list).contains(cpu);
+    }
+
+    /**
+     * The CPUs of a kernel CPU list ({@code 0-3,6} → 0, 1, 2, 3, 6), in its order; none for null or blank.
+     *
+     * @throws IllegalArgumentException when the list is not one
+     */
+    static List<Integer> cpus(String list) {
+        List<Integer> out = new java.util.ArrayList<>();
+        if (list == null || list.isBlank()) return out;
         for (String part : list.trim().split(",")) {
             String[] ends = part.trim().split("-", -1);
             if (ends.length > 2 || ends[0].isEmpty()) throw new IllegalArgumentException("CPU list '" + list + "': '" + part + "' is not a CPU or a range");
             int from = Integer.parseInt(ends[0].trim()), to = ends.length == 2 ? Integer.parseInt(ends[1].trim()) : from;
-            if (cpu >= from && cpu <= to) return true;
+            for (int c = from; c <= to; c++) out.add(c);
         }
-        return false;
+        return out;
     }
 
     /**
@@ -128,15 +138,8 @@ public final class CpuPin {
 
     /** A kernel CPU list ({@code 0-3,6}) without {@code cpu}, as single CPUs ({@code 0,1,3,6}); null when none is left or the list is unknown. */
     public static String without(String list, int cpu) {
-        if (list == null || list.isBlank()) return null;
-        StringBuilder out = new StringBuilder();
-        for (String part : list.trim().split(",")) {
-            String[] ends = part.trim().split("-", -1);
-            if (ends.length > 2 || ends[0].isEmpty()) throw new IllegalArgumentException("CPU list '" + list + "': '" + part + "' is not a CPU or a range");
-            int from = Integer.parseInt(ends[0].trim()), to = ends.length == 2 ? Integer.parseInt(ends[1].trim()) : from;
-            for (int c = from; c <= to; c++) if (c != cpu) out.append(out.length() == 0 ? "" : ",").append(c);
-        }
-        return out.length() == 0 ? null : out.toString();
+        String out = cpus(list).stream().filter(c -> c != cpu).map(String::valueOf).collect(java.util.stream.Collectors.joining(","));
+        return out.isEmpty() ? null : out;
     }
 
     /** The kernel's interrupt counts, {@code /proc/interrupts}; empty where there is none. */
