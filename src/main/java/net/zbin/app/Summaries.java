@@ -25,6 +25,7 @@ final class Summaries {
         out.printf(Locale.ROOT, "  late %d, missing %d, duplicate %d, contradictory %d, stale %d, passed on open or shorted contacts %d; "
                 + "answered as repeats %d%n", s.late(), s.missing(), s.duplicate(), s.contradictory(), s.stale(), s.passedOnOpenOrShort(),
                 s.repeatsAnswered());
+        s.duplicateAnswers().stream().limit(20).forEach(d -> out.println("    answered twice as new: " + d));
         out.printf(Locale.ROOT, "  fixture checks: %d passed, %d failed%s%s%n", s.checksPassed(), s.checksFailed(),
                 s.offlinePauses() > 0 ? "; fed paused " + s.offlinePauses() + " time(s) while the line was offline" : "",
                 s.seqRestarts() > 0 ? "; seq counter restarted " + s.seqRestarts() + " time(s)" : "");

@@ -52,7 +52,7 @@ class CombinedFaultsIT {
             assertEquals(0, s.missing(), "every trigger answered, after the handler's retry where needed");
             assertEquals(0, s.contradictory(), "a repeat never carries another bin");
             assertEquals(0, s.stale(), "no answer about another part");
-            assertEquals(0, s.duplicate(), "no presentation answered twice as new");
+            assertEquals(0, s.duplicate(), () -> "no presentation answered twice as new: " + s.duplicateAnswers());
             assertEquals(0, s.passedOnOpenOrShort(), "no pass for a part on open or shorted contacts: every graded reading was its own");
             assertTrue(s.reasons().getOrDefault("open-contact", 0L) > 0, "open contacts were presented (else the line above proved nothing)");
             assertEquals(s.finished(), dash.path("parts").asLong(), "the dashboard counted the parts the handler finished");

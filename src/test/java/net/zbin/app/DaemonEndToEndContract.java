@@ -40,7 +40,7 @@ abstract class DaemonEndToEndContract {
             rig.compensate();
             HandlerSim.Summary s = rig.runHandler(5000, 200, 500, 50);
             assertEquals(0, s.missing(), "missing");
-            assertEquals(0, s.duplicate(), "duplicate");
+            assertEquals(0, s.duplicate(), () -> "duplicate: " + s.duplicateAnswers());
             assertEquals(0, s.contradictory(), "contradictory");
             assertEquals(100, s.deliberateRepeats());
             // every deliberate repeat is answered as a repeat; so is a trigger the handler sent again for want of an answer in

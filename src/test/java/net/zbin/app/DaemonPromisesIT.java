@@ -67,7 +67,7 @@ class DaemonPromisesIT {
             assertEquals(3, s.seqRestarts());
             assertEquals(0, s.stale(), "no answer about another part");
             assertEquals(0, s.missing());
-            assertEquals(0, s.duplicate());
+            assertEquals(0, s.duplicate(), () -> "duplicate: " + s.duplicateAnswers());
             assertEquals(0, s.contradictory());
             long rows = 0;
             for (Path f : rig.recordFiles()) rows += Files.readAllLines(f).size() - 1;
@@ -171,7 +171,7 @@ class DaemonPromisesIT {
             assertEquals(0, s.missing(), "every trigger answered, after the handler's retry where needed");
             assertEquals(0, s.contradictory());
             assertEquals(0, s.stale());
-            assertEquals(0, s.duplicate());
+            assertEquals(0, s.duplicate(), () -> "duplicate: " + s.duplicateAnswers());
             // Typically 0.4 s (the redial every 100 ms); a connection left half-open by the kill is found by the 2 s keep-alive.
             // Each return was awaited (untilOnline, a bounded 20 s); the figures are printed above, not held to a clock.
         }

@@ -84,7 +84,7 @@ class SoakBench {
             assertEquals(0, s.missing());
             assertEquals(0, s.contradictory());
             assertEquals(0, s.stale());
-            assertEquals(0, s.duplicate());
+            assertEquals(0, s.duplicate(), () -> "duplicate: " + s.duplicateAnswers());
             line.checkRecords(dash);
         }
     }

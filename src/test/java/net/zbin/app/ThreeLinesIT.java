@@ -53,7 +53,7 @@ class ThreeLinesIT {
                 HandlerSim.Summary s = runs.get(i).get();
                 String line = lines[i][0], recipe = lines[i][1];
                 assertEquals(0, s.missing(), line + " missing");
-                assertEquals(0, s.duplicate(), line + " duplicate");
+                assertEquals(0, s.duplicate(), () -> line + " duplicate: " + s.duplicateAnswers());
                 assertEquals(0, s.contradictory(), line + " contradictory");
                 List<Tap.Msg> seen = taps.get(i).await(m -> true, (int) s.triggers(), 20_000);
                 for (Tap.Msg m : seen) assertEquals(recipe, m.json().path("recipe").asText(), line + " got a decision of another line: " + m.raw());

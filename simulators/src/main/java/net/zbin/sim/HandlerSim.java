@@ -72,13 +72,14 @@ public final class HandlerSim implements AutoCloseable {
 
     /**
      * Final counts. {@code bins} and {@code reasons} hold the final decision of each finished part; a part
-     * is finished when its last decision is pass or fail (not missing, not still a retest).
+     * is finished when its last decision is pass or fail (not missing, not still a retest). {@code duplicateAnswers}
+     * names each presentation counted in {@code duplicate}: its seq/part, whether it was sent again, and its two answers.
      */
     public record Summary(long parts, long triggers, long decisions, Map<Integer, Long> bins, Map<String, Long> reasons,
                           long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
                           long retests, long checksPassed, long checksFailed, double p50Ms, double p99Ms, double maxMs,
                           long offlinePauses, long finished, long stale, long seqRestarts, Map<Integer, String> grades,
-                          long deliberateRepeats, long resent, long passedOnOpenOrShort) {
+                          long deliberateRepeats, long resent, long passedOnOpenOrShort, java.util.List<String> duplicateAnswers) {
         /** Parts passed / parts finished, the same figure the dashboard and a replay of the record log give. */
         public double yieldPct() { return finished == 0 ? Double.NaN : 100.0 * passed / finished; }
     }
@@ -89,7 +90,7 @@ public final class HandlerSim implements AutoCloseable {
     private final MqttAsyncClient client;
     private final Map<String, CompletableFuture<JsonNode>> waiting = new ConcurrentHashMap<>();
     /** What a presentation was answered: enough to tell a contradictory repeat. */
-    private record Answer(int bin, String verdict) {}
+    private record Answer(int bin, String verdict, String reason) {}
 
     /** Answers by presentation (seq and part), the last {@value #REMEMBERED}: bounded, and small per entry. */
     private final Map<String, Answer> answered = java.util.Collections.synchronizedMap(new java.util.LinkedHashMap<>() {
@@ -98,6 +99,8 @@ public final class HandlerSim implements AutoCloseable {
     });
     private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
             stale = new AtomicLong(), resent = new AtomicLong();
+    /** Each presentation answered twice as new: its seq/part, whether it was sent again, and the two answers. */
+    private final java.util.List<String> duplicates = new java.util.concurrent.CopyOnWriteArrayList<>();
     /** Presentations whose trigger was sent again (no answer in time): a repeat answer to them is expected. */
     private final java.util.Set<String> retried = java.util.Collections.newSetFromMap(java.util.Collections.synchronizedMap(
             new java.util.LinkedHashMap<>() {
@@ -182,13 +185,17 @@ public final class HandlerSim implements AutoCloseable {
         long s = n.path("seq").asLong(-1);
         boolean repeat = n.path("repeat").asBoolean(false);
         String key = s + "/" + n.path("part").asText();
-        Answer first = answered.putIfAbsent(key, new Answer(n.path("bin").asInt(), n.path("verdict").asText()));
+        Answer first = answered.putIfAbsent(key, new Answer(n.path("bin").asInt(), n.path("verdict").asText(), n.path("reason").asText()));
         if (first == null && repeat && !retried.contains(key)) {
             stale.incrementAndGet(); // a repeat answer to a presentation sent once and never answered: it is about another part
             return;
         }
         if (first != null) {
-            if (!repeat) duplicate.incrementAndGet();
+            if (!repeat) {
+                duplicate.incrementAndGet();
+                duplicates.add(key + (retried.contains(key) ? " (sent again)" : " (sent once)") + ": first " + first.verdict() + "/"
+                        + first.reason() + ", then " + n.path("verdict").asText() + "/" + n.path("reason").asText());
+            }
             else {
                 repeatsAnswered.incrementAndGet();
                 if (first.bin() != n.path("bin").asInt() || !first.verdict().equals(n.path("verdict").asText()))
@@ -363,7 +370,7 @@ public final class HandlerSim implements AutoCloseable {
                 contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
                 any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades, deliberate, resent.get(),
-                passedNotThere);
+                passedNotThere, java.util.List.copyOf(duplicates));
     }
 
     /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */
