@@ -115,4 +115,48 @@ class HandlerSimIT {
             assertTrue(c.out().contains("fixture checks: 6 passed, 0 failed"), c.out());
         }
     }
+    /**
+     * A misbehaving line that answers every trigger twice as new: the handler simulator counts each presentation as a
+     * duplicate and names it with its two answers, so a test that fails on the count says which answers it got.
+     */
+    @Test
+    void aLineThatAnswersTwiceAsNew_isCountedAndNamedPresentationByPresentation() throws Exception {
+        org.eclipse.paho.client.mqttv3.MqttAsyncClient line = new org.eclipse.paho.client.mqttv3.MqttAsyncClient(broker.url(), "twice-line",
+                new org.eclipse.paho.client.mqttv3.persist.MemoryPersistence());
+        line.setCallback(new org.eclipse.paho.client.mqttv3.MqttCallback() {
+            public void connectionLost(Throwable t) { }
+
+            public void messageArrived(String topic, org.eclipse.paho.client.mqttv3.MqttMessage m) throws Exception {
+                var t = net.zbin.io.Json.mapper().readTree(m.getPayload());
+                var d = net.zbin.io.Json.object().put("seq", t.path("seq").asLong()).put("part", t.path("part").asText())
+                        .put("lot", t.path("lot").asText()).put("bin", 1).put("grade", "J").put("verdict", "pass").put("reason", "in-grade")
+                        .put("repeat", false);
+                byte[] b = net.zbin.io.Json.mapper().writeValueAsBytes(d);
+                line.publish("zbin/twice/decision", b, 1, false);
+                line.publish("zbin/twice/decision", b, 1, false); // the same presentation again, not marked as a repeat
+            }
+
+            public void deliveryComplete(org.eclipse.paho.client.mqttv3.IMqttDeliveryToken t) { }
+        });
+        line.connect().waitForCompletion(10_000);
+        line.subscribe("zbin/twice/trigger", 1).waitForCompletion(10_000);
+        line.publish("zbin/twice/state", "{\"online\": true, \"mode\": \"ready\"}".getBytes(StandardCharsets.UTF_8), 1, true).waitForCompletion(10_000);
+        int parts = 6;
+        HandlerSim.Options o = new HandlerSim.Options(broker.url(), "zbin", "twice", parts, 100, 150, 5000, 0, 0, 3, "h-twice",
+                NoDelaySockets.plain(), null, null, 30_000);
+        try (HandlerSim h = new HandlerSim(o, LineRig.quietMeter(Scenario.builtIn()), PartLoader.direct(new net.zbin.sim.Contacts()))) {
+            HandlerSim.Summary s = h.run(p -> { });
+            assertEquals(0, s.missing());
+            assertEquals(parts, s.finished());
+            // each part's second copy follows its first on the same connection; the last one's may come after the summary
+            assertTrue(s.duplicate() >= parts - 1 && s.duplicate() <= parts, "duplicates counted: " + s.duplicate());
+            assertEquals(s.duplicate(), s.duplicateAnswers().size(), "each one named: " + s.duplicateAnswers());
+            for (String d : s.duplicateAnswers())
+                assertTrue(d.matches("\\d+/\\S+ \\(sent once\\): first pass/in-grade, then pass/in-grade"), d);
+        } finally {
+            line.publish("zbin/twice/state", new byte[0], 1, true).waitForCompletion(10_000);
+            line.disconnect().waitForCompletion(10_000);
+            line.close();
+        }
+    }
 }

@@ -73,7 +73,7 @@ public final class HandlerSim implements AutoCloseable {
     /**
      * Final counts. {@code bins} and {@code reasons} hold the final decision of each finished part; a part
      * is finished when its last decision is pass or fail (not missing, not still a retest). {@code duplicateAnswers}
-     * names each presentation counted in {@code duplicate}: its seq/part, whether it was sent again, and its two answers.
+     * names the presentations counted in {@code duplicate} (the first 100): seq/part, whether sent again, and the two answers.
      */
     public record Summary(long parts, long triggers, long decisions, Map<Integer, Long> bins, Map<String, Long> reasons,
                           long passed, long missing, long duplicate, long late, long contradictory, long repeatsAnswered,
@@ -99,7 +99,8 @@ public final class HandlerSim implements AutoCloseable {
     });
     private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
             stale = new AtomicLong(), resent = new AtomicLong();
-    /** Each presentation answered twice as new: its seq/part, whether it was sent again, and the two answers. */
+    /** Each presentation answered twice as new (the first {@value #NAMED_DUPLICATES}): its seq/part, whether it was sent again, and the two answers. */
+    private static final int NAMED_DUPLICATES = 100;
     private final java.util.List<String> duplicates = new java.util.concurrent.CopyOnWriteArrayList<>();
     /** Presentations whose trigger was sent again (no answer in time): a repeat answer to them is expected. */
     private final java.util.Set<String> retried = java.util.Collections.newSetFromMap(java.util.Collections.synchronizedMap(
@@ -192,11 +193,10 @@ public final class HandlerSim implements AutoCloseable {
         }
         if (first != null) {
             if (!repeat) {
-                duplicate.incrementAndGet();
-                duplicates.add(key + (retried.contains(key) ? " (sent again)" : " (sent once)") + ": first " + first.verdict() + "/"
-                        + first.reason() + ", then " + n.path("verdict").asText() + "/" + n.path("reason").asText());
-            }
-            else {
+                if (duplicate.incrementAndGet() <= NAMED_DUPLICATES)
+                    duplicates.add(key + (retried.contains(key) ? " (sent again)" : " (sent once)") + ": first " + first.verdict() + "/"
+                            + first.reason() + ", then " + n.path("verdict").asText() + "/" + n.path("reason").asText());
+            } else {
                 repeatsAnswered.incrementAndGet();
                 if (first.bin() != n.path("bin").asInt() || !first.verdict().equals(n.path("verdict").asText()))
                     contradictory.incrementAndGet();
