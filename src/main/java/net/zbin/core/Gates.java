@@ -28,17 +28,17 @@ public record Gates(Double dMax, Double qMin, Double esrMaxOhm, Double thetaMinD
                     + " passes nothing (Q = 1/D, so q_min must be <= " + 1 / dMax + ")");
     }
 
-    /**
-     * The reason code of the first gate the reading fails, or null when it passes all. D and Q go
-     * through one quantity, D = R/|X| (Q ≥ q_min is D ≤ 1/q_min), so the two gates never disagree,
-     * also for an R that compensation left slightly below zero.
-     */
     /** The gates' one comparison: a loss or ESR passes at or below its limit (NaN never passes). */
     public static boolean passes(double metric, double limit) { return metric <= limit; }
 
     /** The D limit of a Q gate: D = 1/Q, so a Q gate and a D gate never disagree. */
     public static double dOfQ(double qMin) { return 1 / qMin; }
 
+    /**
+     * The reason code of the first gate the reading fails, or null when it passes all. D and Q go
+     * through one quantity, D = R/|X| (Q ≥ q_min is D ≤ 1/q_min), so the two gates never disagree,
+     * also for an R that compensation left slightly below zero.
+     */
     public Reason firstFailure(Impedance z) {
         double d = z.d();
         if (dMax != null && !passes(d, dMax)) return Reason.D_HIGH;

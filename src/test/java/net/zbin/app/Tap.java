@@ -101,7 +101,6 @@ public final class Tap implements AutoCloseable {
         }
     }
 
-    /** The first message at index {@code from} or later that matches; polls every millisecond, scanning only what is new. */
     /**
      * Presents one part on {@code line} as a handler does: the trigger ({@code seq}, part "P" + seq), then its answer
      * before the next part. A part answered {@code stale-trigger} (not measured: on a loaded machine a decision can take
@@ -117,6 +116,7 @@ public final class Tap implements AutoCloseable {
         }
     }
 
+    /** The first message at index {@code from} or later that matches; polls every millisecond, scanning only what is new. */
     public Msg awaitAfter(int from, Predicate<Msg> p, long timeoutMs) throws InterruptedException {
         long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
         int i = from;

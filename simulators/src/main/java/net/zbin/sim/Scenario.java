@@ -135,9 +135,6 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
         }
     }
 
-    /**
-     * @throws IllegalArgumentException naming the file, the key path and the problem
-     */
     /** A mapping error in the words of the file, not of the Java classes behind it. */
     static String plain(JsonMappingException e) {
         if (e instanceof com.fasterxml.jackson.databind.exc.UnrecognizedPropertyException u)
@@ -161,6 +158,11 @@ public record Scenario(String scenario, String description, long seed, Lot lot, 
         return "a value of the right kind";
     }
 
+    /**
+     * Reads a scenario file (YAML, keys in snake case; an unknown or repeated key is refused).
+     *
+     * @throws IllegalArgumentException naming the file, the key path and the problem
+     */
     public static Scenario read(Path file) throws IOException {
         try {
             return YAML.readValue(Files.readAllBytes(file), Scenario.class);

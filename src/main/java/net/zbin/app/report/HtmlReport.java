@@ -120,7 +120,6 @@ public final class HtmlReport {
         return this;
     }
 
-    /** Yield and risk against the first swept quantity's value (one curve per value of a second sweep). */
     /**
      * Yield (or value) and the two risks against the first sweep's setting, one line per value of the second sweep
      * (named in the legend), the recommended setting and the false-accept target marked.

@@ -445,7 +445,6 @@ public final class MqttLink implements Publisher, AutoCloseable {
         }
     }
 
-    /** Messages held for the broker's return. */
     /**
      * Whether a publish now goes straight to the client without waiting: connected, nothing held back in the outbox,
      * the in-flight window at most half full. Cheap: asked before each message that may run on Paho's own thread.
@@ -457,6 +456,7 @@ public final class MqttLink implements Publisher, AutoCloseable {
         return client.isConnected() && client.getInFlightMessageCount() < MAX_INFLIGHT / 2;
     }
 
+    /** Messages held for the broker's return. */
     public int buffered() {
         synchronized (window) {
             return outbox.size();
