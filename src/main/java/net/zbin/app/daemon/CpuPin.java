@@ -15,7 +15,7 @@ import org.slf4j.LoggerFactory;
  * <p>Why: a part crosses five of the daemon's threads (the MQTT client's receiver, callback and sender, the measuring
  * thread, the record log's), and each hand-over wakes a thread. A thread woken on another CPU costs both CPUs an
  * interrupt, and on a virtual machine an exit to the hypervisor; on one CPU it is a plain switch. On the 2-core machine
- * zbin is built on, a pinned line used a fifth to a third less CPU per decision (README, "A CPU of its own"). Before
+ * zbin is built on, a pinned line used an eighth to a third less CPU per decision (README, "A CPU of its own"). Before
  * ready the process keeps every CPU: the start's compiling and reading the record log back run in parallel. Threads
  * started later (a reconnect's MQTT threads, a compiler thread) inherit the CPUs of the thread that starts them. Java
  * cannot set an affinity, {@code taskset} (util-linux) does, for the process's own threads without privilege.
