@@ -291,7 +291,7 @@ abstract class DaemonEndToEndContract {
                     if (d.path("grade").asText().equals("J")) break;
                     Thread.sleep(100);
                 }
-                tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready") && tap.msgs.indexOf(m) > 3, 1, 5000);
+                tap.awaitFrom(4, m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 5000);
                 tap.await(m -> m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5000);
             }
         }

@@ -109,7 +109,7 @@ class DaemonProcessIT {
 
             int before = tap.msgs.size();
             Process again = startDaemon(cfg);
-            tap.await(m -> tap.msgs.indexOf(m) >= before && m.json().path("online").asBoolean(), 1, 20_000);
+            tap.awaitFrom(before, m -> m.json().path("online").asBoolean(), 1, 20_000);
             int online = tap.msgs.size();
             try (Tap decisions = new Tap(brokerUrl, "zbin/hg-line-2/decision")) {
                 // as a handler presents parts: one trigger, its answer, the next (a burst of 300 at a line that has just
@@ -120,7 +120,7 @@ class DaemonProcessIT {
             // right after the last answer loses nothing (only a power loss waits on the flush interval).
             again.destroyForcibly(); // SIGKILL: only the Will can tell
             assertTrue(again.waitFor(10, TimeUnit.SECONDS));
-            JsonNode will = tap.await(m -> tap.msgs.indexOf(m) >= online && !m.json().path("online").asBoolean(), 1, 15_000).get(0).json();
+            JsonNode will = tap.awaitFrom(online, m -> !m.json().path("online").asBoolean(), 1, 15_000).get(0).json();
             assertEquals("offline", will.path("mode").asText());
 
             // Nothing answered is lost to the SIGKILL, and the log reads back clean.

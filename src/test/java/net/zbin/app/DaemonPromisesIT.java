@@ -133,11 +133,11 @@ class DaemonPromisesIT {
             long t0 = System.nanoTime();
             try (SimTcpServer again = new SimTcpServer(rig.meter, port)) {
                 // No trigger is sent: the daemon finds the meter by itself.
-                tap.await(m -> tap.msgs.indexOf(m) >= before && m.topic().endsWith("/state")
+                tap.awaitFrom(before, m -> m.topic().endsWith("/state")
                         && m.json().path("mode").asText().equals("ready"), 1, 10_000);
                 // The backoff schedule itself is held by ReconnectBackoffTest (counts, not clocks); here the figure is printed.
                 System.out.printf("meter back: line ready after %.2f s (the profile's maximum backoff is 2 s)%n", (System.nanoTime() - t0) / 1e9);
-                tap.await(m -> tap.msgs.indexOf(m) >= before && m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5_000);
+                tap.awaitFrom(before, m -> m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5_000);
                 tap.publish("zbin/heal/trigger", "{\"seq\": 2, \"part\": \"P2\"}");
                 JsonNode d = tap.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 2, 1, 5_000).get(0).json();
                 assertEquals("J", d.path("grade").asText());

@@ -128,7 +128,7 @@ class FreshStartBench {
 
     /** Waits for the line's {@code ready} state among what the tap heard after its first {@code mark} messages. */
     static void awaitReady(Tap tap, int mark) throws Exception {
-        tap.await(m -> tap.msgs.indexOf(m) >= mark && m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+        tap.awaitFrom(mark, m -> m.json() != null && m.json().path("mode").asText().equals("ready"), 1, 60_000);
     }
 
     /** SIGTERM (a clean stop), forcibly when it takes more than 20 s. */

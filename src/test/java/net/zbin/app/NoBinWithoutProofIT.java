@@ -201,7 +201,7 @@ class NoBinWithoutProofIT {
                     && !m.json().path("active").asBoolean(), 1, 10_000);
             rig.compensate();
             int seen = tap.msgs.size();
-            tap.await(m -> tap.msgs.indexOf(m) > seen && m.topic().endsWith("/dashboard"), 1, 20_000);
+            tap.awaitFrom(seen + 1, m -> m.topic().endsWith("/dashboard"), 1, 20_000);
             JsonNode dash = tap.on("/dashboard").get(tap.on("/dashboard").size() - 1).json();
             assertEquals("[]", dash.path("alarms").toString(), "no alarm of another recipe on the line: " + dash.path("alarms"));
             assertEquals(0, dash.path("monitor").path("alarms").size(), "the monitor agrees: " + dash.path("monitor").path("alarms"));

@@ -62,7 +62,7 @@ class OneLineOneDaemonIT {
             Process again = start(cfg, "again.log"); // the lock went with the process
             try {
                 int seen = tap.msgs.size();
-                tap.await(m -> tap.msgs.indexOf(m) >= seen && m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"),
+                tap.awaitFrom(seen, m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"),
                         1, 30_000);
             } finally {
                 again.destroy();
@@ -86,7 +86,7 @@ class OneLineOneDaemonIT {
             assertTrue(d.waitFor(60, TimeUnit.SECONDS), "the daemon does not live on deaf");
             assertEquals(1, d.exitValue());
             assertTrue(Files.readString(dir.resolve("huge.log")).contains("fatal error in thread"), Files.readString(dir.resolve("huge.log")));
-            JsonNode will = tap.await(m -> tap.msgs.indexOf(m) >= seen && !m.json().path("online").asBoolean(true), 1, 30_000).get(0).json();
+            JsonNode will = tap.awaitFrom(seen, m -> !m.json().path("online").asBoolean(true), 1, 30_000).get(0).json();
             assertEquals("offline", will.path("mode").asText());
         }
         String limit = Files.readAllLines(Path.of("config/mosquitto/zbin.conf")).stream().filter(l -> l.startsWith("message_size_limit"))

@@ -67,7 +67,7 @@ class RecordFolderFailuresIT {
             // a handler that re-presents at once: 3 000 presentations as fast as the broker takes them
             int mark = tap.msgs.size();
             for (int i = 0; i < 3000; i++) tap.publishWaiting("zbin/full/trigger", "{\"seq\":" + (++seq) + ",\"part\":\"F" + seq + "\"}");
-            List<Tap.Msg> whileFull = tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/decision"), 3000, 60_000);
+            List<Tap.Msg> whileFull = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision"), 3000, 60_000);
             long paused = whileFull.stream().filter(m -> m.json().path("reason").asText().equals("line-paused")).count();
             // (a row small enough for the last page's slack can still be written now and then: the line may resume
             // for a moment, and every value decision it then gives has its row — checked below)
@@ -160,7 +160,7 @@ class RecordFolderFailuresIT {
     static JsonNode presentOn(Tap tap, String line, long seq) throws Exception {
         int mark = tap.msgs.size();
         tap.publish("zbin/" + line + "/trigger", "{\"seq\":" + seq + ",\"part\":\"R" + seq + "\"}");
-        return tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 10_000)
+        return tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 10_000)
                 .get(0).json();
     }
 
@@ -169,7 +169,7 @@ class RecordFolderFailuresIT {
         int mark = tap.msgs.size();
         tap.publish("zbin/full/trigger", "{\"seq\":" + seq + ",\"part\":\"F" + (retestOf < 0 ? seq : retestOf) + "\""
                 + (retestOf < 0 ? "" : ",\"retest_of\":" + retestOf) + "}");
-        List<Tap.Msg> got = tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq,
+        List<Tap.Msg> got = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq,
                 1, 10_000);
         return got.get(0).json();
     }

@@ -48,7 +48,7 @@ class RestartContinuityIT {
         int mark = tap.msgs.size();
         long t0 = System.nanoTime();
         slot[0] = start(cfg, log);
-        tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 60_000);
+        tap.awaitFrom(mark, m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 60_000);
         long ms = (System.nanoTime() - t0) / 1_000_000;
         System.out.printf("restart: process start to ready in %d ms (%s)%n", ms, log);
         return ms;
@@ -93,7 +93,7 @@ class RestartContinuityIT {
             }
             long heardAll = repeatsHeard(tap); // the 10 answered from the book again on top
             assertEquals(heard + 10, heardAll);
-            JsonNode after = tap.await(m -> tap.msgs.indexOf(m) >= mark && m.topic().endsWith("/dashboard")
+            JsonNode after = tap.awaitFrom(mark, m -> m.topic().endsWith("/dashboard")
                     && m.json().path("repeats").asLong() == heardAll, 1, 20_000).get(0).json();
             assertEquals("LOT-A", after.path("lot").asText(), "the lot named by command survives");
             assertEquals(30, after.path("parts").asLong(), "reset-counters survives: the lot's figures count from the reset");
@@ -105,7 +105,7 @@ class RestartContinuityIT {
             daemon[0].destroyForcibly().waitFor(10, TimeUnit.SECONDS);
             int mark2 = tap.msgs.size();
             startAndAwaitReady(tap, cfg, "d2.log", daemon);
-            JsonNode fresh = tap.await(m -> tap.msgs.indexOf(m) >= mark2 && m.topic().endsWith("/dashboard"), 1, 20_000).get(0).json();
+            JsonNode fresh = tap.awaitFrom(mark2, m -> m.topic().endsWith("/dashboard"), 1, 20_000).get(0).json();
             assertEquals("LOT-NEW", fresh.path("lot").asText(), "a lot command after the last row survives a kill -9");
             assertEquals(0, fresh.path("parts").asLong());
         } finally {

@@ -102,6 +102,23 @@ public final class Tap implements AutoCloseable {
     }
 
     /**
+     * Waits until {@code count} messages at index {@code from} or later match, or fails after the timeout. By place in
+     * {@link #msgs}, not by {@code indexOf}: a message equal to an earlier one (a repeat answer sent again, the same state
+     * payload) is a message of its own, and is counted where it came.
+     */
+    public List<Msg> awaitFrom(int from, Predicate<Msg> p, int count, long timeoutMs) throws InterruptedException {
+        long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
+        while (true) {
+            List<Msg> all = msgs; // a CopyOnWriteArrayList: the stream below reads one snapshot
+            List<Msg> got = all.stream().skip(from).filter(p).toList();
+            if (got.size() >= count) return got;
+            if (System.nanoTime() > end) throw new AssertionError("waited " + timeoutMs + " ms for " + count + " messages after #" + from + ", got "
+                    + got.size() + "; last: " + (all.isEmpty() ? "none" : all.get(all.size() - 1)));
+            Thread.sleep(10);
+        }
+    }
+
+    /**
      * Presents one part on {@code line} as a handler does: the trigger ({@code seq}, part "P" + seq), then its answer
      * before the next part. A part answered {@code stale-trigger} (not measured: on a loaded machine a decision can take
      * longer than the deadline) is presented again, as a handler does, 20 times at most, so what a test counts does not
