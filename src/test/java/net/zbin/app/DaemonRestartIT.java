@@ -91,7 +91,7 @@ class DaemonRestartIT {
             daemon.destroy(); // SIGTERM: clean stop, final dashboard
             assertTrue(daemon.waitFor(30, TimeUnit.SECONDS));
             // A presentation the handler re-sent during the run got its repeat answer then; the restarted daemon's answer to the
-            // same trigger is the same bytes (the decision read back from the record log equals the one in memory).
+            // same trigger is the same bytes (a decision read back from the record log gives the same payload: RecordLogTest).
             java.util.Set<String> earlier = tap.msgs.subList(0, sent).stream().map(Tap.Msg::raw).collect(java.util.stream.Collectors.toSet());
             long sameBytes = again.stream().limit(50).filter(m -> earlier.contains(m.raw())).count();
             System.out.println("kill -9 x5: " + s.finished() + " parts finished, " + h.resent() + " triggers resent, repeats answered "

@@ -11,9 +11,9 @@ import org.junit.jupiter.api.io.TempDir;
 
 /**
  * The tests' MQTT client counts a message where it came. A repeat answer is the same bytes each time it is sent, so a
- * wait that placed a message by {@code indexOf} (its first equal) missed the second one: a loaded run of
- * {@code DaemonRestartIT} waited for 50 answers after a restart and saw 49 — one presentation the handler had re-sent
- * during the run already had that very answer before the mark.
+ * wait that placed a message by {@code indexOf} (its first equal) missed the second one. A loaded run of
+ * {@code DaemonRestartIT} waited for 50 answers after a restart and saw 49, which this miss explains when a presentation
+ * the handler had re-sent during the run already had that very answer before the mark (the run kept no log to show it).
  */
 class TapIT {
     @TempDir
