@@ -91,14 +91,7 @@ public final class Tap implements AutoCloseable {
 
     /** Waits until {@code count} messages match, or fails after the timeout. */
     public List<Msg> await(Predicate<Msg> p, int count, long timeoutMs) throws InterruptedException {
-        long end = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
-        while (true) {
-            List<Msg> got = msgs.stream().filter(p).toList();
-            if (got.size() >= count) return got;
-            if (System.nanoTime() > end) throw new AssertionError("waited " + timeoutMs + " ms for " + count + " messages, got " + got.size()
-                    + "; last: " + (msgs.isEmpty() ? "none" : msgs.get(msgs.size() - 1)));
-            Thread.sleep(10);
-        }
+        return awaitFrom(0, p, count, timeoutMs);
     }
 
     /**
