@@ -32,16 +32,31 @@ import org.junit.jupiter.api.io.TempDir;
 class DaemonRestartIT {
     static final ObjectMapper M = new ObjectMapper();
 
-    @TempDir
+    /** Kept when the test fails: the daemons' logs are in it (its path is printed at the start). */
+    @TempDir(cleanup = org.junit.jupiter.api.io.CleanupMode.ON_SUCCESS)
     Path dir;
 
+    /**
+     * Every daemon the test starts: none may outlive a failed test (two loaded runs that failed left theirs redialling a
+     * broker that was gone, for the rest of the suite).
+     */
+    final List<Process> started = new java.util.ArrayList<>();
+
+    @org.junit.jupiter.api.AfterEach
+    void stopAll() throws InterruptedException {
+        for (Process p : started) if (p.isAlive()) p.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
+    }
+
     Process start(Path cfg, int n) throws Exception {
-        return new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
                 .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + n + ".log").toFile()).start();
+        started.add(p);
+        return p;
     }
 
     @Test
     void killNineFiveTimes_noContradictoryBin_everyAnswerHasItsRow_andTheLotContinues() throws Exception {
+        System.out.println("DaemonRestartIT: the daemons' logs in " + dir + " (kept if the test fails)");
         Scenario sc = LineRig.quietMeter(Scenario.builtIn());
         Contacts contacts = new Contacts();
         SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
