@@ -42,22 +42,17 @@ class DaemonProcessIT {
     }
 
     /** Every daemon a test starts: none may outlive a failed test (it would redial the next test's broker). */
-    final List<Process> started = new java.util.ArrayList<>();
+    final StartedProcesses started = new StartedProcesses();
 
     @org.junit.jupiter.api.AfterEach
-    void stopAll() throws InterruptedException {
-        for (Process p : started) if (p.isAlive()) p.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
-    }
+    void stopAll() throws InterruptedException { started.stopAll(); }
 
     Process startDaemon(Path cfg) throws Exception {
         return started(new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
                 .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + System.nanoTime() + ".log").toFile()).start());
     }
 
-    Process started(Process p) {
-        started.add(p);
-        return p;
-    }
+    Process started(Process p) { return started.add(p); }
 
     @Test
     void throughMosquitto_mosquittoClientsDriveZbinRun_cleanStopAndKillNineBothLeaveItOffline() throws Exception {

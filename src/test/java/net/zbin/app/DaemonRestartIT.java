@@ -36,22 +36,15 @@ class DaemonRestartIT {
     @TempDir(cleanup = org.junit.jupiter.api.io.CleanupMode.ON_SUCCESS)
     Path dir;
 
-    /**
-     * Every daemon the test starts: none may outlive a failed test (two loaded runs that failed left theirs redialling a
-     * broker that was gone, for the rest of the suite).
-     */
-    final List<Process> started = new java.util.ArrayList<>();
+    /** Every daemon the test starts (two loaded runs that failed had left theirs running for the rest of the suite). */
+    final StartedProcesses started = new StartedProcesses();
 
     @org.junit.jupiter.api.AfterEach
-    void stopAll() throws InterruptedException {
-        for (Process p : started) if (p.isAlive()) p.destroyForcibly().waitFor(10, TimeUnit.SECONDS);
-    }
+    void stopAll() throws InterruptedException { started.stopAll(); }
 
     Process start(Path cfg, int n) throws Exception {
-        Process p = new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
-                .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + n + ".log").toFile()).start();
-        started.add(p);
-        return p;
+        return started.add(new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+                .redirectErrorStream(true).redirectOutput(dir.resolve("daemon-" + n + ".log").toFile()).start());
     }
 
     @Test

@@ -115,6 +115,7 @@ class HandlerSimIT {
             assertTrue(c.out().contains("fixture checks: 6 passed, 0 failed"), c.out());
         }
     }
+
     /**
      * A misbehaving line that answers every trigger twice as new: the handler simulator counts each presentation as a
      * duplicate and names it with its two answers, so a test that fails on the count says which answers it got.

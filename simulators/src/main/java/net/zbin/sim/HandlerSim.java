@@ -99,9 +99,13 @@ public final class HandlerSim implements AutoCloseable {
     });
     private final AtomicLong duplicate = new AtomicLong(), contradictory = new AtomicLong(), repeatsAnswered = new AtomicLong(),
             stale = new AtomicLong(), resent = new AtomicLong();
-    /** Each presentation answered twice as new (the first {@value #NAMED_DUPLICATES}): its seq/part, whether it was sent again, and the two answers. */
+    /**
+     * Each presentation answered twice as new (the first {@value #NAMED_DUPLICATES}): its seq/part, whether it was sent
+     * again, and the two answers. Counted in {@link #duplicate} under its own lock, so a summary's count and names agree
+     * even when a late copy arrives as the summary is taken.
+     */
     private static final int NAMED_DUPLICATES = 100;
-    private final java.util.List<String> duplicates = new java.util.concurrent.CopyOnWriteArrayList<>();
+    private final java.util.List<String> duplicates = new java.util.ArrayList<>();
     /** Presentations whose trigger was sent again (no answer in time): a repeat answer to them is expected. */
     private final java.util.Set<String> retried = java.util.Collections.newSetFromMap(java.util.Collections.synchronizedMap(
             new java.util.LinkedHashMap<>() {
@@ -193,9 +197,11 @@ public final class HandlerSim implements AutoCloseable {
         }
         if (first != null) {
             if (!repeat) {
-                if (duplicate.incrementAndGet() <= NAMED_DUPLICATES)
-                    duplicates.add(key + (retried.contains(key) ? " (sent again)" : " (sent once)") + ": first " + first.verdict() + "/"
-                            + first.reason() + ", then " + n.path("verdict").asText() + "/" + n.path("reason").asText());
+                String named = key + (retried.contains(key) ? " (sent again)" : " (sent once)") + ": first " + first.verdict() + "/"
+                        + first.reason() + ", then " + n.path("verdict").asText() + "/" + n.path("reason").asText();
+                synchronized (duplicates) {
+                    if (duplicate.incrementAndGet() <= NAMED_DUPLICATES) duplicates.add(named);
+                }
             } else {
                 repeatsAnswered.incrementAndGet();
                 if (first.bin() != n.path("bin").asInt() || !first.verdict().equals(n.path("verdict").asText()))
@@ -366,11 +372,17 @@ public final class HandlerSim implements AutoCloseable {
         }
         Thread.sleep(200); // late duplicates still arrive
         boolean any = lat.getTotalCount() > 0;
-        return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicate.get(), late,
+        long duplicated;
+        java.util.List<String> named;
+        synchronized (duplicates) {
+            duplicated = duplicate.get();
+            named = java.util.List.copyOf(duplicates);
+        }
+        return new Summary(o.parts(), triggers, decisions, bins, reasons, passed, missing, duplicated, late,
                 contradictory.get(), repeatsAnswered.get(), retests, checksOk, checksBad,
                 any ? lat.getValueAtPercentile(50) / 1000.0 : Double.NaN, any ? lat.getValueAtPercentile(99) / 1000.0 : Double.NaN,
                 any ? lat.getMaxValue() / 1000.0 : Double.NaN, pauses, finished, stale.get(), restarts, grades, deliberate, resent.get(),
-                passedNotThere, java.util.List.copyOf(duplicates));
+                passedNotThere, named);
     }
 
     /** Sends the trigger of decision d again: the answer must be a repeat with the same bin. */
