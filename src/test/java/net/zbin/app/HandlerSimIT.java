@@ -139,8 +139,10 @@ class HandlerSimIT {
 
             public void deliveryComplete(org.eclipse.paho.client.mqttv3.IMqttDeliveryToken t) { }
         });
-        line.connect().waitForCompletion(10_000);
-        line.subscribe("zbin/twice/trigger", 1).waitForCompletion(10_000);
+        // a loaded Moquette may drop a connection that subscribes the moment it is accepted: dial again, as Tap does
+        org.eclipse.paho.client.mqttv3.MqttConnectOptions co = new org.eclipse.paho.client.mqttv3.MqttConnectOptions();
+        co.setCleanSession(true);
+        net.zbin.sim.BrokerDial.connectAndSubscribe(line, co, new String[] {"zbin/twice/trigger"}, new int[] {1}, 10_000);
         line.publish("zbin/twice/state", "{\"online\": true, \"mode\": \"ready\"}".getBytes(StandardCharsets.UTF_8), 1, true).waitForCompletion(10_000);
         int parts = 6;
         HandlerSim.Options o = new HandlerSim.Options(broker.url(), "zbin", "twice", parts, 100, 150, 5000, 0, 0, 3, "h-twice",
