@@ -158,6 +158,7 @@ public final class Daemon implements AutoCloseable {
     /** Recovers from the record log, warms up, connects and serves; waits up to {@code connectTimeoutMs} for the broker. */
     public void start(long connectTimeoutMs) throws Exception {
         lock();
+        dispatch.watchStalls(cfg.line());
         monitor.keepLimits(setup.recipe());
         mqtt = new MqttLink(cfg.mqtt(), topics.state(), mode.offline(), List.of(topics.trigger(), topics.command()), this::route);
         dispatch.runIdleMessagesInPlace(mqtt::hasRoom);

@@ -26,8 +26,10 @@ import org.slf4j.LoggerFactory;
  *
  * <p>A message is stamped when Paho's thread hands it here; while that thread ran a part, messages behind it waited
  * unstamped. So after a run in place longer than {@link #SHORT_NANOS}, the messages that follow it closely are taken to
- * have come when that run began: a trigger's wait (its deadline check, {@code stale-trigger}) is never undercounted by
- * more than a short run.
+ * have come when that run began. The same holds while the whole
+ * process stood still ({@link StallWatch}): a message taken up right after is taken to have come when the stand-still
+ * began. A trigger's wait (its deadline check, {@code stale-trigger}) is never undercounted by more than a short run or
+ * a stand-still too short for the watch.
  */
 final class Dispatch {
     private static final Logger LOG = LoggerFactory.getLogger(Dispatch.class);
@@ -85,6 +87,8 @@ final class Dispatch {
     private volatile long lastMessageNanos;
     /** The last run in place, start and end (written and read on Paho's callback thread, which a reconnect may replace). */
     private volatile long inPlaceStart, inPlaceEnd;
+    /** Tells when the process stood still; started by {@link #watchStalls}. */
+    private final StallWatch stalls;
     private volatile boolean closing;
     /** Whether the MQTT link can take an answer without waiting (its window has room): never wait on Paho's thread. */
     private volatile BooleanSupplier linkHasRoom = () -> false;
@@ -99,6 +103,7 @@ final class Dispatch {
         this.quietNanos = quietNanos;
         this.nanos = nanos;
         this.idleSince = nanos.getAsLong();
+        this.stalls = new StallWatch(nanos);
         overflow = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(OVERFLOW),
                 r -> Daemon.named(r, "overflow-" + line), (r, ex) -> LOG.error("overflow queue full: a message got no answer"));
         work = new ThreadPoolExecutor(1, 1, 0, TimeUnit.MILLISECONDS, new ArrayBlockingQueue<>(QUEUE),
@@ -178,12 +183,18 @@ final class Dispatch {
     /**
      * When a message handed over at {@code now} may have come: then, unless a run in place longer than a short one
      * ended just before (within the quiet time or that run's length) — the message may have waited behind it, unseen,
-     * and is taken to have come when that run began.
+     * and is taken to have come when that run began — or the process stood still just before (the earlier of the two).
      */
     private long arrival(long now) {
         long ran = inPlaceEnd - inPlaceStart;
-        return ran > SHORT_NANOS && now - inPlaceEnd < Math.max(quietNanos, ran) ? inPlaceStart : now;
+        long behindRun = ran > SHORT_NANOS && now - inPlaceEnd < Math.max(quietNanos, ran) ? inPlaceStart : now;
+        return Math.min(behindRun, stalls.mayHaveComeAt(now));
     }
+
+    /** Starts watching for stand-stills of the process (the daemon does; a test drives {@link #stallWatch} itself). */
+    void watchStalls(String line) { stalls.start(line); }
+
+    StallWatch stallWatch() { return stalls; }
 
     /**
      * Runs the message on this (Paho's) thread if the line is still idle once the turn is ours: nothing handed over
@@ -230,6 +241,7 @@ final class Dispatch {
     /** Finishes what is queued, then stops. */
     void close() {
         closing = true;
+        stalls.stop();
         turn.lock(); // a message running on Paho's thread ends first
         turn.unlock();
         work.shutdown();

@@ -167,6 +167,54 @@ class DispatchTest {
     }
 
     @Test
+    void aStandStillOfTheProcess_datesTheMessagesTakenUpRightAfterItToItsStart_thenTheLineStampsAgain() throws Exception {
+        java.util.concurrent.atomic.AtomicLong clock = new java.util.concurrent.atomic.AtomicLong(1_000_000_000L);
+        Dispatch d = new Dispatch("stood-still", Dispatch.QUIET_NANOS, clock::get);
+        d.runIdleMessagesInPlace(() -> true);
+        StallWatch watch = d.stallWatch();
+        List<Seen> seen = new java.util.concurrent.CopyOnWriteArrayList<>();
+        java.util.concurrent.Semaphore handled = new java.util.concurrent.Semaphore(0);
+        Dispatch.Handler quick = new Dispatch.Handler() {
+            public void handle(byte[] p, long at, Ack ack) {
+                seen.add(new Seen(new String(p), Thread.currentThread(), at));
+                clock.addAndGet(100_000); // an answer without a reading: 0.1 ms
+                handled.release();
+            }
+
+            public Runnable overflow(byte[] p, long at) { return () -> { }; }
+
+            public boolean inPlace() { return true; }
+        };
+        try {
+            for (int i = 0; i < 100; i++) { // the watch beats on a running process
+                clock.addAndGet(StallWatch.BEAT_NANOS);
+                watch.beat();
+            }
+            long lastBeat = clock.get();
+            clock.addAndGet(400_000_000L); // the process stands still 0.4 s with a trigger and its copy on the connection
+            d.submit(quick, "A".getBytes(), Ack.NONE); // taken up before the watch moves again
+            watch.beat();
+            clock.addAndGet(1_000_000L);
+            d.submit(quick, "A-copy".getBytes(), Ack.NONE); // taken up after the watch saw the stand-still end
+            assertTrue(handled.tryAcquire(2, 60, TimeUnit.SECONDS));
+            assertEquals(lastBeat, seen.get(0).at(), "A may have waited since the stand-still began");
+            assertEquals(lastBeat, seen.get(1).at(), "so may its copy: it came before A's answer");
+
+            awaitIdle(d);
+            for (int i = 0; i < 50; i++) { // 100 ms of a running process
+                clock.addAndGet(StallWatch.BEAT_NANOS);
+                watch.beat();
+            }
+            long bCame = clock.get();
+            d.submit(quick, "B".getBytes(), Ack.NONE);
+            assertTrue(handled.tryAcquire(1, 60, TimeUnit.SECONDS));
+            assertEquals(bCame, seen.get(2).at(), "a part presented well after the stand-still: stamped when it came");
+        } finally {
+            d.close();
+        }
+    }
+
+    @Test
     void aCommand_neverRunsOnTheCallersThread_evenOnAnIdleLine() throws Exception {
         assertTrue(threadThatRan(true, false) != Thread.currentThread(), "a command may hold the line for seconds: never on Paho's thread");
     }

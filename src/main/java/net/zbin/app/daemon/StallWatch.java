@@ -1,0 +1,91 @@
+package net.zbin.app.daemon;
+
+import java.util.concurrent.locks.LockSupport;
+import java.util.function.LongSupplier;
+
+/**
+ * Notices when this process stood still — stopped by a signal, its virtual CPU taken away by the host, a collection that
+ * stops every thread — so that a message taken up right after it counts as come when it began.
+ *
+ * <p>Why: a message is stamped when the MQTT client's thread takes it up. While the process stands still, a trigger (and
+ * the handler's copy of it, sent when its patience ran out) waits on the connection unseen; stamped afterwards, it would
+ * look fresh: measured although its deadline passed long ago and another part may be on the contacts, and a copy sent
+ * before the first one's answer would look sent after it. A thread of its own beats every {@link #BEAT_NANOS}; a beat later
+ * than {@link #STALL_NANOS} after the one before marks a stand-still from the earlier beat to the later one, and a beat
+ * that is overdue when a message comes means one may be going on, seen from a thread that moves again first.
+ *
+ * <p>What it cannot see: one thread held off the CPU while the others run (the MQTT client's reader on a loaded machine);
+ * and stand-stills shorter than {@link #STALL_NANOS}, which a deadline of tens of milliseconds or more can afford.
+ */
+final class StallWatch {
+    /** How often the watch's thread beats, ns: 500 wake-ups a second, well under 1 % of a CPU. */
+    static final long BEAT_NANOS = 2_000_000;
+    /** A gap between beats longer than this is a stand-still, ns (five beats: a late wake-up is not one). */
+    static final long STALL_NANOS = 10_000_000;
+    /**
+     * How long after a stand-still ended a message still counts as come when it began, at most, ns: the messages that
+     * waited on the connection are read within microseconds of the process moving again, or a few milliseconds on a
+     * loaded machine; a longer window would only turn parts presented after it into late ones.
+     */
+    static final long DRAIN_NANOS = 50_000_000;
+    /** A stand-still this long or longer is logged, ns. */
+    static final long LOGGED_NANOS = 50_000_000;
+    private static final org.slf4j.Logger LOG = org.slf4j.LoggerFactory.getLogger(StallWatch.class);
+
+    /** One stand-still: from the last beat before it to the first after it (System.nanoTime). */
+    private record Stall(long startNanos, long endNanos) {}
+
+    private final LongSupplier nanos;
+    private volatile long beatNanos;
+    private volatile Stall last = new Stall(Long.MIN_VALUE / 4, Long.MIN_VALUE / 4);
+    private volatile boolean stopped;
+    /** Whether anything beats: a watch that never beat (a line not started, a test's own clock) sees no stand-still. */
+    private volatile boolean watching;
+
+    /** @param nanos the monotonic clock, ns (System.nanoTime: the line stamps messages with it) */
+    StallWatch(LongSupplier nanos) {
+        this.nanos = nanos;
+        this.beatNanos = nanos.getAsLong();
+    }
+
+    /** Starts the watch's thread (a daemon thread, beating until {@link #stop}). */
+    void start(String line) {
+        beat();
+        Daemon.named(() -> {
+            while (!stopped) {
+                LockSupport.parkNanos(BEAT_NANOS);
+                beat();
+            }
+        }, "stall-watch-" + line).start();
+    }
+
+    void stop() { stopped = true; }
+
+    /** One beat, now: called by the watch's thread, and by tests with their own clock. */
+    void beat() {
+        long now = nanos.getAsLong(), before = beatNanos;
+        if (now - before > STALL_NANOS) {
+            last = new Stall(before, now);
+            if (now - before >= LOGGED_NANOS) LOG.warn("the process stood still for {} ms", (now - before) / 1_000_000);
+        }
+        beatNanos = now;
+        watching = true;
+    }
+
+    /**
+     * When a message taken up at {@code nowNanos} may have come: the last beat, when the watch is overdue (the process may
+     * be coming out of a stand-still the watch has not yet seen end); the start of the last stand-still, when it ended
+     * less than its own length (at least {@link #STALL_NANOS}, at most {@link #DRAIN_NANOS}) before, or after; else
+     * {@code nowNanos} (also while nothing beats).
+     */
+    long mayHaveComeAt(long nowNanos) {
+        if (!watching) return nowNanos;
+        long beat = beatNanos;
+        if (nowNanos - beat > STALL_NANOS) return beat;
+        Stall s = last;
+        // (a stand-still that the watch saw end after this message was taken up covers it: "after" is negative then)
+        long after = nowNanos - s.endNanos();
+        return nowNanos > s.startNanos() && after < Math.min(DRAIN_NANOS, Math.max(STALL_NANOS, s.endNanos() - s.startNanos()))
+                ? s.startNanos() : nowNanos;
+    }
+}

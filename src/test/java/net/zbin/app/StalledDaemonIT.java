@@ -1,0 +1,127 @@
+package net.zbin.app;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+import net.zbin.sim.Contacts;
+import net.zbin.sim.PartModel;
+import net.zbin.sim.Scenario;
+import net.zbin.sim.SimMeter;
+import net.zbin.sim.SimTcpServer;
+import org.apache.commons.csv.CSVFormat;
+import org.apache.commons.csv.CSVRecord;
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.CleanupMode;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * The real {@code zbin run} process made to stand still (SIGSTOP) while a trigger and the handler's copy of it wait on its
+ * connection, longer than the handler's deadline, then let go (SIGCONT) — as a machine that stops a process (swapping, a
+ * host that takes the virtual CPU away, a long collection) does. The trigger was never taken up in time: another part may
+ * be on the contacts by now, so it is answered without a reading, and its copy, sent before that answer, gets that answer
+ * again and no reading either.
+ */
+class StalledDaemonIT {
+    private static final String LINE = "still";
+    /** The handler's deadline in this test's line, ms. */
+    private static final int DEADLINE_MS = 150;
+
+    /** Kept when the test fails: the daemon's log is in it. */
+    @TempDir(cleanup = CleanupMode.ON_SUCCESS)
+    Path dir;
+
+    final StartedProcesses started = new StartedProcesses();
+
+    @AfterEach
+    void stopAll() throws InterruptedException { started.stopAll(); }
+
+    @Test
+    void aTriggerThatWaitedWhileTheProcessStoodStill_isAnsweredWithoutAReading_andItsCopyGetsThatAnswerAgain() throws Exception {
+        Scenario sc = LineRig.quietMeter(Scenario.builtIn());
+        Contacts contacts = new Contacts();
+        contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        try (MosquittoProcess broker = new MosquittoProcess(dir, "");
+             SimTcpServer sim = new SimTcpServer(meter, 0);
+             Tap tap = new Tap(broker.url(), "zbin/" + LINE + "/decision", "zbin/" + LINE + "/state")) {
+            Path cfg = TestLine.write(dir, LINE, broker.url(), sim.port(),
+                    "handler: {deadline_ms: " + DEADLINE_MS + ", repeat_window_ms: 600000}\n");
+            Process daemon = started.add(new ProcessBuilder("java", "-jar", Jar.path(), "run", "--config", cfg.toString())
+                    .redirectErrorStream(true).redirectOutput(dir.resolve("daemon.log").toFile()).start());
+            tap.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean(), 1, 60_000);
+
+            JsonNode first = answer(tap, 1);
+            assertTrue(first.path("value").isNumber(), "a part on a running line is measured: " + first);
+
+            signal(daemon, "STOP");
+            int mark = tap.msgs.size();
+            trigger(tap, 2);
+            trigger(tap, 2); // the handler's copy: its patience ran out while the line stood still
+            // The scenario: the process stands still three deadlines long with both on its connection (not a wait for
+            // something to happen: nothing can, the process is stopped).
+            Thread.sleep(3L * DEADLINE_MS);
+            signal(daemon, "CONT");
+
+            List<Tap.Msg> two = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 2, 2, 30_000);
+            JsonNode a = two.get(0).json(), copy = two.get(1).json();
+            assertFalse(a.path("repeat").asBoolean(), "the presentation's answer: " + a);
+            assertEquals("stale-trigger", a.path("reason").asText(), "it waited past the deadline, unseen: not measured: " + a);
+            assertEquals("retest", a.path("verdict").asText(), a.toString());
+            assertFalse(a.path("value").isNumber(), "no reading: " + a);
+            assertTrue(a.path("latency_ms").asDouble() >= DEADLINE_MS, "its wait counts the time the process stood still: " + a);
+            assertTrue(copy.path("repeat").asBoolean(), "the copy came before that answer: the same answer again, not a reading: " + copy);
+            assertEquals(a.path("reason"), copy.path("reason"), copy.toString());
+            assertEquals(a.path("bin"), copy.path("bin"), copy.toString());
+
+            // The line goes on: a new presentation is measured (the first ones straight after the stand-still may still
+            // count it in their wait; bounded, by count).
+            boolean measured = false;
+            for (int seq = 3; seq < 60 && !measured; seq++) measured = answer(tap, seq).path("value").isNumber();
+            assertTrue(measured, "a part presented after the stand-still is measured");
+
+            daemon.destroy();
+            assertTrue(daemon.waitFor(30, TimeUnit.SECONDS), "clean stop");
+            int rowsOfTwo = 0;
+            try (var files = Files.list(dir.resolve("records-" + LINE))) {
+                for (Path p : files.sorted().toList()) {
+                    try (var csv = CSVFormat.DEFAULT.builder().setHeader().setSkipHeaderRecord(true).get().parse(Files.newBufferedReader(p))) {
+                        for (CSVRecord r : csv) {
+                            if (!r.get("seq").equals("2")) continue;
+                            rowsOfTwo++;
+                            assertEquals("stale-trigger", r.get("reason"), "the row of the presentation that waited: " + r);
+                        }
+                    }
+                }
+            }
+            assertEquals(1, rowsOfTwo, "one row for the presentation, none for its copy");
+            String log = Files.readString(dir.resolve("daemon.log"));
+            assertTrue(log.contains("the process stood still for"), "the stand-still is logged: " + log);
+            log.lines().filter(l -> l.contains("stood still")).forEach(l -> System.out.println("StalledDaemonIT: " + l));
+        }
+    }
+
+    private static void trigger(Tap tap, long seq) throws Exception {
+        tap.publishAcknowledged("zbin/" + LINE + "/trigger", "{\"seq\": " + seq + ", \"part\": \"ST-" + seq + "\", \"lot\": \"ST-LOT-1\"}");
+    }
+
+    /** Presents {@code seq} and returns its answer. */
+    private static JsonNode answer(Tap tap, long seq) throws Exception {
+        int from = tap.msgs.size();
+        trigger(tap, seq);
+        return tap.awaitFrom(from, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 30_000).get(0).json();
+    }
+
+    /** Sends the process a signal by name ({@code STOP}, {@code CONT}) with the system's {@code kill}. */
+    private static void signal(Process p, String name) throws Exception {
+        Process k = new ProcessBuilder("kill", "-" + name, Long.toString(p.pid())).inheritIO().start();
+        assertTrue(k.waitFor(10, TimeUnit.SECONDS) && k.exitValue() == 0, "kill -" + name);
+    }
+}

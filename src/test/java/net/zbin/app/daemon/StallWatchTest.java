@@ -1,0 +1,80 @@
+package net.zbin.app.daemon;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+
+import java.util.concurrent.atomic.AtomicLong;
+import org.junit.jupiter.api.Test;
+
+class StallWatchTest {
+    private static final long MS = 1_000_000;
+    private final AtomicLong clock = new AtomicLong(5_000 * MS);
+    private final StallWatch w = new StallWatch(clock::get);
+
+    /** Beats every 2 ms for {@code ms}, as the watch's thread does on a process that runs. */
+    private void run(long ms) {
+        for (long t = 0; t < ms; t += 2) {
+            clock.addAndGet(2 * MS);
+            w.beat();
+        }
+    }
+
+    @Test
+    void aWatchThatNeverBeat_seesNoStandStill() {
+        StallWatch idle = new StallWatch(clock::get);
+        clock.addAndGet(1_000 * MS);
+        assertEquals(clock.get(), idle.mayHaveComeAt(clock.get()));
+    }
+
+    @Test
+    void aProcessThatRuns_stampsAMessageWhenItIsTakenUp() {
+        run(100);
+        long now = clock.get() + MS;
+        assertEquals(now, w.mayHaveComeAt(now));
+    }
+
+    @Test
+    void aLateWakeUpShorterThanAStandStill_isNotOne() {
+        run(10);
+        clock.addAndGet(StallWatch.STALL_NANOS); // a wake-up late by five beats: not more than the bound
+        w.beat();
+        long now = clock.get() + MS;
+        assertEquals(now, w.mayHaveComeAt(now));
+    }
+
+    @Test
+    void aStandStillTheWatchSawEnd_datesTheMessagesRightAfterItToItsStart_thenNoMore() {
+        run(10);
+        long began = clock.get();
+        clock.addAndGet(400 * MS); // stopped for 0.4 s
+        w.beat();
+        long ended = clock.get();
+        assertEquals(began, w.mayHaveComeAt(ended + MS), "read right after it: may have waited on the connection since it began");
+        assertEquals(began, w.mayHaveComeAt(ended - MS), "taken up just before the watch beat again: covered too");
+        run(StallWatch.DRAIN_NANOS / MS + 2);
+        long now = clock.get();
+        assertEquals(now, w.mayHaveComeAt(now), "after the drain window a part is new: its wait counts from now");
+    }
+
+    @Test
+    void aShortStandStill_coversOnlyItsOwnLengthAfterIt() {
+        run(10);
+        long began = clock.get();
+        clock.addAndGet(20 * MS);
+        w.beat();
+        long ended = clock.get();
+        run(14);
+        assertEquals(began, w.mayHaveComeAt(clock.get()), "20 ms still, 14 ms after");
+        run(8);
+        assertEquals(clock.get(), w.mayHaveComeAt(clock.get()), "20 ms still, 22 ms after: new");
+    }
+
+    @Test
+    void anOverdueWatch_datesTheMessageToItsLastBeat() {
+        run(10);
+        long lastBeat = clock.get();
+        clock.addAndGet(300 * MS); // the taking thread moves again before the watch's
+        assertEquals(lastBeat, w.mayHaveComeAt(clock.get()), "a stand-still may be ending now: counted from the last beat");
+        clock.addAndGet(-295 * MS);
+        assertEquals(clock.get(), w.mayHaveComeAt(clock.get()), "5 ms after the last beat: not overdue");
+    }
+}
