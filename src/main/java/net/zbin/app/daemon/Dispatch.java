@@ -26,10 +26,9 @@ import org.slf4j.LoggerFactory;
  *
  * <p>A message is stamped when Paho's thread hands it here; while that thread ran a part, messages behind it waited
  * unstamped. So after a run in place longer than {@link #SHORT_NANOS}, the messages that follow it closely are taken to
- * have come when that run began. The same holds while the whole
- * process stood still ({@link StallWatch}): a message taken up right after is taken to have come when the stand-still
- * began. A trigger's wait (its deadline check, {@code stale-trigger}) is never undercounted by more than a short run or
- * a stand-still too short for the watch.
+ * have come when that run began. So are the messages taken up right after the whole process stood still
+ * ({@link StallWatch}): to have come when the stand-still began. A trigger's wait (its deadline check,
+ * {@code stale-trigger}) is never undercounted by more than a short run or a stand-still too short for the watch.
  */
 final class Dispatch {
     private static final Logger LOG = LoggerFactory.getLogger(Dispatch.class);
