@@ -26,8 +26,8 @@ import org.slf4j.LoggerFactory;
  *
  * <p>A message is stamped when Paho's thread hands it here; while that thread ran a part, messages behind it waited
  * unstamped. So after a run in place longer than {@link #SHORT_NANOS}, the messages that follow it closely are taken to
- * have come when that run began. So are the messages taken up right after the whole process stood still
- * ({@link StallWatch}): to have come when the stand-still began. A trigger's wait (its deadline check,
+ * have come when that run began. So are the messages taken up as the whole process moves again after standing still
+ * ({@link StallWatch}), and those back to back behind them: to have come when the stand-still began. A trigger's wait (its deadline check,
  * {@code stale-trigger}) is never undercounted by more than a short run or a stand-still too short for the watch.
  */
 final class Dispatch {
@@ -88,6 +88,17 @@ final class Dispatch {
     private volatile long inPlaceStart, inPlaceEnd;
     /** Tells when the process stood still; started by {@link #watchStalls}. */
     private final StallWatch stalls;
+    /**
+     * When the last message taken up was dated to a stand-still's start, that start (else {@link Long#MIN_VALUE}), and
+     * when Paho's thread was done with it: the next one taken up back to back ({@link #BACK_TO_BACK_NANOS}) had waited
+     * behind it and gets the same date. Paho's callback thread only.
+     */
+    private volatile long stoodStillSince = Long.MIN_VALUE, lastTakenDone;
+    /**
+     * Messages waiting in the MQTT client are taken up this close one after another, ns; a handler's reaction to an
+     * answer comes a broker's round trip later at the least.
+     */
+    static final long BACK_TO_BACK_NANOS = 100_000;
     private volatile boolean closing;
     /** Whether the MQTT link can take an answer without waiting (its window has room): never wait on Paho's thread. */
     private volatile BooleanSupplier linkHasRoom = () -> false;
@@ -167,15 +178,19 @@ final class Dispatch {
      */
     void submit(Handler h, byte[] payload, Ack ack) {
         long now = nanos.getAsLong(), arrived = arrival(now);
-        if (h.inPlace() && lastMessageNanos <= SHORT_NANOS && handedOver.get() == 0 && now - idleSince >= quietNanos && !closing
-                && linkHasRoom.getAsBoolean() && inPlace(h, payload, arrived, ack))
-            return;
-        if (work.getQueue().isEmpty()) ack.hold();
-        handedOver.incrementAndGet();
         try {
-            work.execute(new Job(h, payload, arrived, ack));
-        } catch (RejectedExecutionException e) {
-            LOG.debug("stopping: message dropped"); // the rejection handler counted it off
+            if (h.inPlace() && lastMessageNanos <= SHORT_NANOS && handedOver.get() == 0 && now - idleSince >= quietNanos && !closing
+                    && linkHasRoom.getAsBoolean() && inPlace(h, payload, arrived, ack))
+                return;
+            if (work.getQueue().isEmpty()) ack.hold();
+            handedOver.incrementAndGet();
+            try {
+                work.execute(new Job(h, payload, arrived, ack));
+            } catch (RejectedExecutionException e) {
+                LOG.debug("stopping: message dropped"); // the rejection handler counted it off
+            }
+        } finally {
+            lastTakenDone = nanos.getAsLong();
         }
     }
 
@@ -187,7 +202,10 @@ final class Dispatch {
     private long arrival(long now) {
         long ran = inPlaceEnd - inPlaceStart;
         long behindRun = ran > SHORT_NANOS && now - inPlaceEnd < Math.max(quietNanos, ran) ? inPlaceStart : now;
-        return Math.min(behindRun, stalls.mayHaveComeAt(now));
+        long stood = stalls.mayHaveComeAt(now);
+        if (stood == now && stoodStillSince != Long.MIN_VALUE && now - lastTakenDone <= BACK_TO_BACK_NANOS) stood = stoodStillSince;
+        stoodStillSince = stood < now ? stood : Long.MIN_VALUE;
+        return Math.min(behindRun, stood);
     }
 
     /** Starts watching for stand-stills of the process (the daemon does; a test drives {@link #stallWatch} itself). */

@@ -26,11 +26,13 @@ final class StallWatch {
     /** A gap between beats longer than this is a stand-still, ns (five beats: a late wake-up is not one). */
     static final long STALL_NANOS = 10_000_000;
     /**
-     * How long after a stand-still ended a message still counts as come when it began, at most, ns: the messages that
-     * waited on the connection are read within microseconds of the process moving again, or a few milliseconds on a
-     * loaded machine; a longer window would only turn parts presented after it into late ones.
+     * How long after the watch saw a stand-still end a message still counts as come when it began, ns: one beat. The
+     * messages that waited on the connection are taken up as the process moves again, before or just after the watch;
+     * the ones behind them follow back to back ({@link Dispatch} carries the date along). A longer window would date
+     * a handler's answer to the first of them — a part presented again at once — to the stand-still too, and again,
+     * until its retests ran out.
      */
-    static final long DRAIN_NANOS = 50_000_000;
+    static final long AFTER_NANOS = BEAT_NANOS;
     /** A stand-still this long or longer is logged, ns. */
     static final long LOGGED_NANOS = 50_000_000;
     private static final org.slf4j.Logger LOG = org.slf4j.LoggerFactory.getLogger(StallWatch.class);
@@ -53,7 +55,8 @@ final class StallWatch {
 
     /** Starts the watch's thread (a daemon thread, beating until {@link #stop}). */
     void start(String line) {
-        beat();
+        beatNanos = nanos.getAsLong(); // from now: the time since the line was built is no stand-still
+        watching = true;
         Daemon.named(() -> {
             while (!stopped) {
                 LockSupport.parkNanos(BEAT_NANOS);
@@ -77,9 +80,8 @@ final class StallWatch {
 
     /**
      * When a message taken up at {@code nowNanos} may have come: the last beat, when the watch is overdue (the process may
-     * be coming out of a stand-still the watch has not yet seen end); the start of the last stand-still, when it ended
-     * less than its own length (at least {@link #STALL_NANOS}, at most {@link #DRAIN_NANOS}) before, or after; else
-     * {@code nowNanos} (also while nothing beats).
+     * be coming out of a stand-still the watch has not yet seen end); the start of the last stand-still, when the watch
+     * saw it end less than {@link #AFTER_NANOS} before, or after; else {@code nowNanos} (also while nothing beats).
      */
     long mayHaveComeAt(long nowNanos) {
         if (!watching) return nowNanos;
@@ -88,7 +90,6 @@ final class StallWatch {
         Stall s = last;
         // (a stand-still that the watch saw end after this message was taken up covers it: "after" is negative then)
         long after = nowNanos - s.endNanos();
-        return nowNanos > s.startNanos() && after < Math.min(DRAIN_NANOS, Math.max(STALL_NANOS, s.endNanos() - s.startNanos()))
-                ? s.startNanos() : nowNanos;
+        return nowNanos > s.startNanos() && after < AFTER_NANOS ? s.startNanos() : nowNanos;
     }
 }

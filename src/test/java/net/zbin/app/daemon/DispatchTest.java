@@ -191,24 +191,23 @@ class DispatchTest {
                 watch.beat();
             }
             long lastBeat = clock.get();
-            clock.addAndGet(400_000_000L); // the process stands still 0.4 s with a trigger and its copy on the connection
+            clock.addAndGet(400_000_000L); // the process stands still 0.4 s with messages on the connection
             d.submit(quick, "A".getBytes(), Ack.NONE); // taken up before the watch moves again
             watch.beat();
-            clock.addAndGet(1_000_000L);
-            d.submit(quick, "A-copy".getBytes(), Ack.NONE); // taken up after the watch saw the stand-still end
-            assertTrue(handled.tryAcquire(2, 60, TimeUnit.SECONDS));
+            clock.addAndGet(1_900_000L);
+            d.submit(quick, "A-copy".getBytes(), Ack.NONE); // taken up after the watch saw the stand-still end, within a beat
+            awaitIdle(d);
+            clock.addAndGet(50_000L);
+            d.submit(quick, "C".getBytes(), Ack.NONE); // back to back behind the copy, more than a beat after the end
+            awaitIdle(d);
+            clock.addAndGet(300_000L);
+            long bCame = clock.get();
+            d.submit(quick, "B".getBytes(), Ack.NONE); // a handler's answer to one of them: a round trip later
+            assertTrue(handled.tryAcquire(4, 60, TimeUnit.SECONDS));
             assertEquals(lastBeat, seen.get(0).at(), "A may have waited since the stand-still began");
             assertEquals(lastBeat, seen.get(1).at(), "so may its copy: it came before A's answer");
-
-            awaitIdle(d);
-            for (int i = 0; i < 50; i++) { // 100 ms of a running process
-                clock.addAndGet(StallWatch.BEAT_NANOS);
-                watch.beat();
-            }
-            long bCame = clock.get();
-            d.submit(quick, "B".getBytes(), Ack.NONE);
-            assertTrue(handled.tryAcquire(1, 60, TimeUnit.SECONDS));
-            assertEquals(bCame, seen.get(2).at(), "a part presented well after the stand-still: stamped when it came");
+            assertEquals(lastBeat, seen.get(2).at(), "and what was taken up back to back behind them");
+            assertEquals(bCame, seen.get(3).at(), "a part presented after an answer: stamped when it came");
         } finally {
             d.close();
         }
