@@ -270,6 +270,8 @@ final class TriggerPath {
     /**
      * Measures and grades, unless the line is paused or the trigger waited longer than the handler's deadline:
      * by then the handler may have moved another part onto the contacts, so that seq's answer must not be a reading.
+     * The wait is checked again right before each reading is asked for: setting the meter's conditions, or the process
+     * standing still, may have taken it past the deadline since.
      */
     private Grading decide(Trigger t, Recipe r, int attempt, long arrivedNanos) {
         if (mode.mode() == Mode.PAUSED) return Grader.notMeasured(r, Reason.LINE_PAUSED);
@@ -283,6 +285,7 @@ final class TriggerPath {
             do {
                 meter.apply(session.conditions()); // sends nothing while the conditions stay; a later step's are set before its reading
                 long t0 = System.nanoTime();
+                if (t0 - arrivedNanos > deadlineNanos) return Grader.notMeasured(r, Reason.STALE_TRIGGER);
                 MeterReading mr = meter.measure();
                 long now = System.nanoTime();
                 // another reading fits when, at twice this one's time, it still ends inside the handler's deadline

@@ -42,6 +42,8 @@ class TriggerPathTest {
         int measured, applied;
         final java.util.List<Double> appliedFreqs = new java.util.ArrayList<>();
         TestConditions now;
+        /** Runs when conditions are set (a meter that takes its time to change them). */
+        Runnable onApply = () -> { };
 
         ScriptedMeter reading(double devPct) {
             double c = 100e-9 * (1 + devPct / 100), x = -1 / (W * c);
@@ -54,6 +56,7 @@ class TriggerPathTest {
         public void apply(TestConditions conditions) {
             if (conditions.equals(now)) return; // as a real session: nothing sent while the conditions stay
             now = conditions;
+            onApply.run();
             applied++;
             appliedFreqs.add(conditions.freqHz());
         }
@@ -267,6 +270,24 @@ class TriggerPathTest {
         records.close();
         List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
         assertEquals(3, rows.size(), "a header and a row for each presentation, none for the copy: " + rows);
+    }
+
+    @Test
+    void aTriggerWhoseDeadlinePassesWhileTheMeterIsSet_isNotRead_andAnsweredStale() throws Exception {
+        meter.reading(1.0);
+        long margin = 1_000_000_000L;
+        meter.onApply = () -> { // setting the conditions takes longer than the trigger had left (the scenario, not a wait)
+            try {
+                Thread.sleep(margin / 1_000_000 + 100);
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+            }
+        };
+        long arrived = System.nanoTime() - (cfg.deadlineMs() * 1_000_000L - margin); // a second of its deadline left
+        path.onTrigger("{\"seq\": 9, \"part\": \"P9\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), arrived);
+        assertEquals(1, meter.applied, "in time when taken up: the meter was set");
+        assertEquals(0, meter.measured, "past the deadline once set: no reading asked for");
+        assertEquals("stale-trigger", decisions().get(0).path("reason").asText());
     }
 
     @Test
