@@ -17,9 +17,6 @@ import net.zbin.app.daemon.Daemon;
 import net.zbin.io.LineConfig;
 import net.zbin.io.LineConfigLoader;
 import net.zbin.io.meter.ProfileMeterSession;
-import net.zbin.sim.Contacts;
-import net.zbin.sim.PartModel;
-import net.zbin.sim.Scenario;
 import net.zbin.sim.SimMeter;
 import net.zbin.sim.SimTcpServer;
 import org.apache.commons.csv.CSVFormat;
@@ -44,10 +41,7 @@ class BusyCopiesIT {
 
     @Test
     void everyTriggerSentTwiceIntoAFullQueue_bothAnsweredAlike_theCopyARepeatWithoutARow() throws Exception {
-        Scenario sc = LineRig.quietMeter(Scenario.builtIn());
-        Contacts contacts = new Contacts();
-        contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        SimMeter meter = LineRig.oneCapacitorMeter();
         try (MosquittoProcess broker = new MosquittoProcess(dir, "max_inflight_messages 0\nmax_queued_messages 200000\n");
              SimTcpServer server = new SimTcpServer(meter, 0)) {
             // a repeat window longer than the test, however slow the machine: a copy is a copy, not a new presentation

@@ -95,6 +95,17 @@ public class LineRig implements AutoCloseable {
         meterServer.close();
     }
 
+    /**
+     * A simulated meter of the built-in scenario without faults, one 100 nF capacitor (2 % off, D 0.01) on its contacts:
+     * every part presented reads as that one.
+     */
+    public static SimMeter oneCapacitorMeter() {
+        Scenario sc = quietMeter(Scenario.builtIn());
+        Contacts contacts = new Contacts();
+        contacts.load(new net.zbin.sim.PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
+        return new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+    }
+
     /** A scenario like the built-in one but without meter faults, so every reading is a reading. */
     public static Scenario quietMeter(Scenario s) {
         return new Scenario(s.scenario(), s.description(), s.seed(), s.lot(), s.part(), s.fixture(), s.contact(),

@@ -7,12 +7,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.time.Clock;
 import java.util.List;
 import java.util.concurrent.TimeUnit;
-import net.zbin.sim.Contacts;
-import net.zbin.sim.PartModel;
-import net.zbin.sim.Scenario;
 import net.zbin.sim.SimMeter;
 import net.zbin.sim.SimTcpServer;
 import org.apache.commons.csv.CSVFormat;
@@ -45,10 +41,7 @@ class StalledDaemonIT {
 
     @Test
     void aTriggerThatWaitedWhileTheProcessStoodStill_isAnsweredWithoutAReading_andItsCopyGetsThatAnswerAgain() throws Exception {
-        Scenario sc = LineRig.quietMeter(Scenario.builtIn());
-        Contacts contacts = new Contacts();
-        contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-        SimMeter meter = new SimMeter(contacts, sc.fixture().toFixture(), Clock.systemUTC(), sc.seed(), 0, SimMeter.RandomFaults.NONE);
+        SimMeter meter = LineRig.oneCapacitorMeter();
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
              SimTcpServer sim = new SimTcpServer(meter, 0);
              Tap tap = new Tap(broker.url(), "zbin/" + LINE + "/decision", "zbin/" + LINE + "/state")) {
