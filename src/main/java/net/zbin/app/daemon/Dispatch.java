@@ -27,8 +27,9 @@ import org.slf4j.LoggerFactory;
  * <p>A message is stamped when Paho's thread hands it here; while that thread ran a part, messages behind it waited
  * unstamped. So after a run in place longer than {@link #SHORT_NANOS}, the messages that follow it closely are taken to
  * have come when that run began. So are the messages taken up as the whole process moves again after standing still
- * ({@link StallWatch}), and those back to back behind them: to have come when the stand-still began. A trigger's wait (its deadline check,
- * {@code stale-trigger}) is never undercounted by more than a short run or a stand-still too short for the watch.
+ * ({@link StallWatch}), and those back to back behind them: to have come when the stand-still began. A trigger's wait
+ * (its deadline check, {@code stale-trigger}) is never undercounted by more than a short run or a stand-still too short
+ * for the watch.
  */
 final class Dispatch {
     private static final Logger LOG = LoggerFactory.getLogger(Dispatch.class);
