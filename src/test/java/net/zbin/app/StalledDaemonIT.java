@@ -7,7 +7,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.List;
 import java.util.concurrent.TimeUnit;
 import net.zbin.sim.SimMeter;
 import net.zbin.sim.SimTcpServer;
@@ -19,11 +18,11 @@ import org.junit.jupiter.api.io.CleanupMode;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * The real {@code zbin run} process made to stand still (SIGSTOP) while a trigger and the handler's copy of it wait on its
- * connection, longer than the handler's deadline, then let go (SIGCONT) — as a machine that stops a process (swapping, a
- * host that takes the virtual CPU away, a long collection) does. The trigger was never taken up in time: another part may
- * be on the contacts by now, so it is answered without a reading, and its copy, sent before that answer, gets that answer
- * again and no reading either.
+ * The real {@code zbin run} process made to stand still (SIGSTOP) while a trigger waits on its connection, longer than the
+ * handler's deadline, then let go (SIGCONT) — as a machine that stops a process (swapping, a host that takes the virtual
+ * CPU away, a long collection) does. The trigger was never taken up in time: another part may be on the contacts by now,
+ * so it is answered without a reading. (What a copy of it taken up right behind it gets depends on the threads' order on a
+ * loaded machine; {@code DispatchTest} holds the rule with its own clock.)
  */
 class StalledDaemonIT {
     private static final String LINE = "still";
@@ -40,7 +39,7 @@ class StalledDaemonIT {
     void stopAll() throws InterruptedException { started.stopAll(); }
 
     @Test
-    void aTriggerThatWaitedWhileTheProcessStoodStill_isAnsweredWithoutAReading_andItsCopyGetsThatAnswerAgain() throws Exception {
+    void aTriggerThatWaitedWhileTheProcessStoodStill_isAnsweredWithoutAReading() throws Exception {
         SimMeter meter = LineRig.oneCapacitorMeter();
         try (MosquittoProcess broker = new MosquittoProcess(dir, "");
              SimTcpServer sim = new SimTcpServer(meter, 0);
@@ -57,22 +56,17 @@ class StalledDaemonIT {
             signal(daemon, "STOP");
             int mark = tap.msgs.size();
             trigger(tap, 2);
-            trigger(tap, 2); // the handler's copy: its patience ran out while the line stood still
-            // The scenario: the process stands still three deadlines long with both on its connection (not a wait for
-            // something to happen: nothing can, the process is stopped).
+            // The scenario: the process stands still three deadlines long with the trigger on its connection (not a wait
+            // for something to happen: nothing can, the process is stopped).
             Thread.sleep(3L * DEADLINE_MS);
             signal(daemon, "CONT");
 
-            List<Tap.Msg> two = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 2, 2, 30_000);
-            JsonNode a = two.get(0).json(), copy = two.get(1).json();
+            JsonNode a = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 2, 1, 30_000).get(0).json();
             assertFalse(a.path("repeat").asBoolean(), "the presentation's answer: " + a);
             assertEquals("stale-trigger", a.path("reason").asText(), "it waited past the deadline, unseen: not measured: " + a);
             assertEquals("retest", a.path("verdict").asText(), a.toString());
             assertFalse(a.path("value").isNumber(), "no reading: " + a);
             assertTrue(a.path("latency_ms").asDouble() >= DEADLINE_MS, "its wait counts the time the process stood still: " + a);
-            assertTrue(copy.path("repeat").asBoolean(), "the copy came before that answer: the same answer again, not a reading: " + copy);
-            assertEquals(a.path("reason"), copy.path("reason"), copy.toString());
-            assertEquals(a.path("bin"), copy.path("bin"), copy.toString());
 
             // The line goes on: a new presentation is measured (the first ones straight after the stand-still may still
             // count it in their wait; bounded, by count).
@@ -94,7 +88,7 @@ class StalledDaemonIT {
                     }
                 }
             }
-            assertEquals(1, rowsOfTwo, "one row for the presentation, none for its copy");
+            assertEquals(1, rowsOfTwo, "one row for the presentation");
             String log = Files.readString(dir.resolve("daemon.log"));
             assertTrue(log.contains("the process stood still for"), "the stand-still is logged: " + log);
             log.lines().filter(l -> l.contains("stood still")).forEach(l -> System.out.println("StalledDaemonIT: " + l));

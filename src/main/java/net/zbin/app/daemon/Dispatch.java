@@ -95,6 +95,8 @@ final class Dispatch {
      * behind it and gets the same date. Paho's callback thread only.
      */
     private volatile long stoodStillSince = Long.MIN_VALUE, lastTakenDone;
+    /** When the last message was taken up (Paho's callback thread only). */
+    private volatile long lastTaken = Long.MIN_VALUE / 4;
     /**
      * Messages waiting in the MQTT client are taken up this close one after another, ns; a handler's reaction to an
      * answer comes a broker's round trip later at the least.
@@ -203,7 +205,8 @@ final class Dispatch {
     private long arrival(long now) {
         long ran = inPlaceEnd - inPlaceStart;
         long behindRun = ran > SHORT_NANOS && now - inPlaceEnd < Math.max(quietNanos, ran) ? inPlaceStart : now;
-        long stood = stalls.mayHaveComeAt(now);
+        long stood = stalls.mayHaveComeAt(now, lastTaken);
+        lastTaken = now;
         if (stood == now && stoodStillSince != Long.MIN_VALUE && now - lastTakenDone <= BACK_TO_BACK_NANOS) stood = stoodStillSince;
         stoodStillSince = stood < now ? stood : Long.MIN_VALUE;
         return Math.min(behindRun, stood);

@@ -33,6 +33,12 @@ final class StallWatch {
      * until its retests ran out.
      */
     static final long AFTER_NANOS = BEAT_NANOS;
+    /**
+     * How long after the watch saw a stand-still end the first message taken up since still counts as come when it
+     * began, ns: on a loaded machine the thread that takes messages up may move again well after the watch's. At most
+     * one message, so a part presented after a stand-still costs one retest at worst.
+     */
+    static final long FIRST_NANOS = 500_000_000;
     /** A stand-still this long or longer is logged, ns. */
     static final long LOGGED_NANOS = 50_000_000;
     private static final org.slf4j.Logger LOG = org.slf4j.LoggerFactory.getLogger(StallWatch.class);
@@ -81,15 +87,19 @@ final class StallWatch {
     /**
      * When a message taken up at {@code nowNanos} may have come: the last beat, when the watch is overdue (the process may
      * be coming out of a stand-still the watch has not yet seen end); the start of the last stand-still, when the watch
-     * saw it end less than {@link #AFTER_NANOS} before, or after; else {@code nowNanos} (also while nothing beats).
+     * saw it end less than {@link #AFTER_NANOS} before, or after, or less than {@link #FIRST_NANOS} before and nothing
+     * was taken up since; else {@code nowNanos} (also while nothing beats).
+     *
+     * @param lastTakenNanos when the message before this one was taken up
      */
-    long mayHaveComeAt(long nowNanos) {
+    long mayHaveComeAt(long nowNanos, long lastTakenNanos) {
         if (!watching) return nowNanos;
         long beat = beatNanos;
         if (nowNanos - beat > STALL_NANOS) return beat;
         Stall s = last;
         // (a stand-still that the watch saw end after this message was taken up covers it: "after" is negative then)
         long after = nowNanos - s.endNanos();
-        return nowNanos > s.startNanos() && after < AFTER_NANOS ? s.startNanos() : nowNanos;
+        boolean first = lastTakenNanos - s.endNanos() < 0 && after < FIRST_NANOS;
+        return nowNanos > s.startNanos() && (after < AFTER_NANOS || first) ? s.startNanos() : nowNanos;
     }
 }

@@ -9,6 +9,8 @@ class StallWatchTest {
     private static final long MS = 1_000_000;
     private final AtomicLong clock = new AtomicLong(5_000 * MS);
     private final StallWatch w = new StallWatch(clock::get);
+    /** No message taken up before. */
+    private static final long NONE = Long.MIN_VALUE / 4;
 
     /** Beats every 2 ms for {@code ms}, as the watch's thread does on a process that runs. */
     private void run(long ms) {
@@ -22,7 +24,7 @@ class StallWatchTest {
     void aWatchThatNeverBeat_seesNoStandStill() {
         StallWatch idle = new StallWatch(clock::get);
         clock.addAndGet(1_000 * MS);
-        assertEquals(clock.get(), idle.mayHaveComeAt(clock.get()));
+        assertEquals(clock.get(), idle.mayHaveComeAt(clock.get(), NONE));
     }
 
     @Test
@@ -31,7 +33,7 @@ class StallWatchTest {
         clock.addAndGet(100 * MS); // the line built, then started a while later
         late.start("test");
         try {
-            assertEquals(clock.get(), late.mayHaveComeAt(clock.get()));
+            assertEquals(clock.get(), late.mayHaveComeAt(clock.get(), NONE));
         } finally {
             late.stop();
         }
@@ -41,7 +43,7 @@ class StallWatchTest {
     void aProcessThatRuns_stampsAMessageWhenItIsTakenUp() {
         run(100);
         long now = clock.get() + MS;
-        assertEquals(now, w.mayHaveComeAt(now));
+        assertEquals(now, w.mayHaveComeAt(now, NONE));
     }
 
     @Test
@@ -50,7 +52,7 @@ class StallWatchTest {
         clock.addAndGet(StallWatch.STALL_NANOS); // a wake-up late by five beats: not more than the bound
         w.beat();
         long now = clock.get() + MS;
-        assertEquals(now, w.mayHaveComeAt(now));
+        assertEquals(now, w.mayHaveComeAt(now, NONE));
     }
 
     @Test
@@ -60,11 +62,11 @@ class StallWatchTest {
         clock.addAndGet(400 * MS); // stopped for 0.4 s
         w.beat();
         long ended = clock.get();
-        assertEquals(began, w.mayHaveComeAt(ended + MS), "read right after it: may have waited on the connection since it began");
-        assertEquals(began, w.mayHaveComeAt(ended - MS), "taken up just before the watch beat again: covered too");
+        assertEquals(began, w.mayHaveComeAt(ended - MS, NONE), "taken up just before the watch beat again: covered");
+        assertEquals(began, w.mayHaveComeAt(ended + MS, ended - MS), "read right after it: may have waited on the connection since it began");
         run(2);
         long now = clock.get();
-        assertEquals(now, w.mayHaveComeAt(now), "a beat after it, a message is new: its wait counts from now");
+        assertEquals(now, w.mayHaveComeAt(now, ended + MS), "a beat after it, a message is new: its wait counts from now");
     }
 
     @Test
@@ -74,8 +76,8 @@ class StallWatchTest {
         clock.addAndGet(2_000 * MS);
         w.beat();
         long ended = clock.get();
-        assertEquals(began, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS - 1));
-        assertEquals(ended + StallWatch.AFTER_NANOS, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS),
+        assertEquals(began, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS - 1, NONE));
+        assertEquals(ended + StallWatch.AFTER_NANOS, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS, ended + StallWatch.AFTER_NANOS - 1),
                 "two seconds still, a beat after: new (a handler presenting again at once is not dated back again and again)");
     }
 
@@ -84,8 +86,23 @@ class StallWatchTest {
         run(10);
         long lastBeat = clock.get();
         clock.addAndGet(300 * MS); // the taking thread moves again before the watch's
-        assertEquals(lastBeat, w.mayHaveComeAt(clock.get()), "a stand-still may be ending now: counted from the last beat");
+        assertEquals(lastBeat, w.mayHaveComeAt(clock.get(), NONE), "a stand-still may be ending now: counted from the last beat");
         clock.addAndGet(-295 * MS);
-        assertEquals(clock.get(), w.mayHaveComeAt(clock.get()), "5 ms after the last beat: not overdue");
+        assertEquals(clock.get(), w.mayHaveComeAt(clock.get(), NONE), "5 ms after the last beat: not overdue");
+    }
+
+    @Test
+    void theFirstMessageTakenUpAfterAStandStill_isDatedToItsStart_evenWhenItsThreadMovesLate_theNextIsNot() {
+        run(10);
+        long began = clock.get();
+        clock.addAndGet(400 * MS);
+        w.beat();
+        long ended = clock.get();
+        run(30); // the thread that takes messages up moves again 30 ms after the watch (a loaded machine)
+        long first = clock.get();
+        assertEquals(began, w.mayHaveComeAt(first, ended - 500 * MS), "the first since: it may have waited through it");
+        assertEquals(first + MS, w.mayHaveComeAt(first + MS, first), "the next one, a millisecond later: new");
+        run(StallWatch.FIRST_NANOS / MS);
+        assertEquals(clock.get(), w.mayHaveComeAt(clock.get(), ended - 500 * MS), "long after it, even the first since is new");
     }
 }
