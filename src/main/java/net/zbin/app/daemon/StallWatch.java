@@ -35,10 +35,11 @@ final class StallWatch {
     static final long AFTER_NANOS = BEAT_NANOS;
     /**
      * How long after the watch saw a stand-still end the first message taken up since still counts as come when it
-     * began, ns: on a loaded machine the thread that takes messages up may move again well after the watch's. At most
-     * one message, so a part presented after a stand-still costs one retest at worst.
+     * began, at most, ns (and no longer than the stand-still lasted): on a loaded machine the thread that takes messages
+     * up may move again milliseconds after the watch's. At most one message, and its wait grows by no more than twice
+     * the stand-still, so a part presented after one costs one retest at worst.
      */
-    static final long FIRST_NANOS = 500_000_000;
+    static final long FIRST_NANOS = 50_000_000;
     /** A stand-still this long or longer is logged, ns. */
     static final long LOGGED_NANOS = 50_000_000;
     private static final org.slf4j.Logger LOG = org.slf4j.LoggerFactory.getLogger(StallWatch.class);
@@ -87,8 +88,8 @@ final class StallWatch {
     /**
      * When a message taken up at {@code nowNanos} may have come: the last beat, when the watch is overdue (the process may
      * be coming out of a stand-still the watch has not yet seen end); the start of the last stand-still, when the watch
-     * saw it end less than {@link #AFTER_NANOS} before, or after, or less than {@link #FIRST_NANOS} before and nothing
-     * was taken up since; else {@code nowNanos} (also while nothing beats).
+     * saw it end less than {@link #AFTER_NANOS} before, or after, or — nothing taken up since — less than its own length
+     * (at most {@link #FIRST_NANOS}) before; else {@code nowNanos} (also while nothing beats).
      *
      * @param lastTakenNanos when the message before this one was taken up
      */
@@ -99,7 +100,7 @@ final class StallWatch {
         Stall s = last;
         // (a stand-still that the watch saw end after this message was taken up covers it: "after" is negative then)
         long after = nowNanos - s.endNanos();
-        boolean first = lastTakenNanos - s.endNanos() < 0 && after < FIRST_NANOS;
+        boolean first = lastTakenNanos - s.endNanos() < 0 && after < Math.min(FIRST_NANOS, s.endNanos() - s.startNanos());
         return nowNanos > s.startNanos() && (after < AFTER_NANOS || first) ? s.startNanos() : nowNanos;
     }
 }

@@ -105,4 +105,18 @@ class StallWatchTest {
         run(StallWatch.FIRST_NANOS / MS);
         assertEquals(clock.get(), w.mayHaveComeAt(clock.get(), ended - 500 * MS), "long after it, even the first since is new");
     }
+
+    @Test
+    void afterAShortStandStill_theFirstMessageIsDatedBackOnlyWithinItsLength() {
+        run(10);
+        long began = clock.get();
+        clock.addAndGet(12 * MS); // a late wake-up of the watch on a loaded machine, or a short collection
+        w.beat();
+        long ended = clock.get();
+        run(8);
+        assertEquals(began, w.mayHaveComeAt(clock.get(), ended - 100 * MS), "8 ms after a 12 ms stand-still: dated to it");
+        run(8);
+        assertEquals(clock.get(), w.mayHaveComeAt(clock.get(), ended - 100 * MS),
+                "16 ms after it: new — a fresh part's wait does not grow by more than twice a short stand-still");
+    }
 }
