@@ -12,6 +12,18 @@ class StallWatchTest {
     /** No message taken up before. */
     private static final long NONE = Long.MIN_VALUE / 4;
 
+    /** A stand-still the watch saw: the last beat before it and the first after it. */
+    private record Stood(long began, long ended) {}
+
+    /** 10 ms of a running process, then a stand-still of {@code ms} that the watch's next beat ends. */
+    private Stood standStill(long ms) {
+        run(10);
+        long began = clock.get();
+        clock.addAndGet(ms * MS);
+        w.beat();
+        return new Stood(began, clock.get());
+    }
+
     /** Beats every 2 ms for {@code ms}, as the watch's thread does on a process that runs. */
     private void run(long ms) {
         for (long t = 0; t < ms; t += 2) {
@@ -57,11 +69,8 @@ class StallWatchTest {
 
     @Test
     void aStandStillTheWatchSawEnd_datesTheMessagesRightAfterItToItsStart_thenNoMore() {
-        run(10);
-        long began = clock.get();
-        clock.addAndGet(400 * MS); // stopped for 0.4 s
-        w.beat();
-        long ended = clock.get();
+        Stood st = standStill(400); // stopped for 0.4 s
+        long began = st.began(), ended = st.ended();
         assertEquals(began, w.mayHaveComeAt(ended - MS, NONE), "taken up just before the watch beat again: covered");
         assertEquals(began, w.mayHaveComeAt(ended + MS, ended - MS), "read right after it: may have waited on the connection since it began");
         run(2);
@@ -71,11 +80,8 @@ class StallWatchTest {
 
     @Test
     void aLongStandStill_datesOnlyWhatIsTakenUpWithinABeatOfItsEnd() {
-        run(10);
-        long began = clock.get();
-        clock.addAndGet(2_000 * MS);
-        w.beat();
-        long ended = clock.get();
+        Stood st = standStill(2_000);
+        long began = st.began(), ended = st.ended();
         assertEquals(began, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS - 1, NONE));
         assertEquals(ended + StallWatch.AFTER_NANOS, w.mayHaveComeAt(ended + StallWatch.AFTER_NANOS, ended + StallWatch.AFTER_NANOS - 1),
                 "two seconds still, a beat after: new (a handler presenting again at once is not dated back again and again)");
@@ -93,11 +99,8 @@ class StallWatchTest {
 
     @Test
     void theFirstMessageTakenUpAfterAStandStill_isDatedToItsStart_evenWhenItsThreadMovesLate_theNextIsNot() {
-        run(10);
-        long began = clock.get();
-        clock.addAndGet(400 * MS);
-        w.beat();
-        long ended = clock.get();
+        Stood st = standStill(400);
+        long began = st.began(), ended = st.ended();
         run(30); // the thread that takes messages up moves again 30 ms after the watch (a loaded machine)
         long first = clock.get();
         assertEquals(began, w.mayHaveComeAt(first, ended - 500 * MS), "the first since: it may have waited through it");
@@ -108,11 +111,8 @@ class StallWatchTest {
 
     @Test
     void afterAShortStandStill_theFirstMessageIsDatedBackOnlyWithinItsLength() {
-        run(10);
-        long began = clock.get();
-        clock.addAndGet(12 * MS); // a late wake-up of the watch on a loaded machine, or a short collection
-        w.beat();
-        long ended = clock.get();
+        Stood st = standStill(12); // a late wake-up of the watch on a loaded machine, or a short collection
+        long began = st.began(), ended = st.ended();
         run(8);
         assertEquals(began, w.mayHaveComeAt(clock.get(), ended - 100 * MS), "8 ms after a 12 ms stand-still: dated to it");
         run(8);
