@@ -3,6 +3,7 @@ package net.zbin.app.daemon;
 import java.util.LinkedHashMap;
 import java.util.Map;
 import net.zbin.core.Decision;
+import net.zbin.core.Reason;
 import net.zbin.core.Trigger;
 
 /**
@@ -29,6 +30,13 @@ final class DecisionBook {
      *                      decision read back from the record log was answered by an earlier process
      */
     private record Entry(Decision decision, long atMs, long answeredNanos, boolean answerTimed) {}
+
+    /**
+     * How long after a {@code stale-trigger} answer went out a copy of its trigger still counts as sent before it (ns):
+     * in a loaded suite run a copy likely sent before the answer was taken up 1.7 ms after it; a handler presenting the part again
+     * with the same seq this soon after hearing the answer gets it once more and presents again.
+     */
+    static final long STALE_COPY_NANOS = 50_000_000L;
 
     private final long windowMs;
     private final Map<Long, Entry> bySeq;
@@ -87,11 +95,16 @@ final class DecisionBook {
      * stale trigger) is measured when its trigger comes again — unless this trigger came before that answer went out:
      * the handler sent it again without having heard the answer (its patience ran out while the line was late), acts on
      * that answer, and gets it again. Measured, it would give the presentation a second, contradicting answer and a
-     * graded row the handler never acted on.
+     * graded row the handler never acted on. A {@code stale-trigger} answer means the line was late, which is when the
+     * handler's copies are on their way and the MQTT thread may take one up only after the answer went out: a copy taken
+     * up within {@link #STALE_COPY_NANOS} after it counts as sent before it.
      */
     private static boolean repeats(Entry e, long arrivedNanos) {
-        if (e.decision().grading().reason().kind() != net.zbin.core.Reason.Kind.NOT_MEASURED) return true;
-        return e.answerTimed() && arrivedNanos - e.answeredNanos() < 0;
+        Reason reason = e.decision().grading().reason();
+        if (reason.kind() != Reason.Kind.NOT_MEASURED) return true;
+        if (!e.answerTimed()) return false;
+        long afterAnswer = arrivedNanos - e.answeredNanos();
+        return afterAnswer < (reason == Reason.STALE_TRIGGER ? STALE_COPY_NANOS : 0);
     }
 
     /** The attempt of a presentation that retests {@code retestOf}: one more than that one's, if it is the same part. */
@@ -99,7 +112,7 @@ final class DecisionBook {
         if (t.retestOf() < 0) return 0;
         Entry e = bySeq.get(t.retestOf());
         if (e == null || !e.decision().part().equals(t.part()) || !e.decision().lot().equals(lotId)) return 1;
-        boolean measured = e.decision().grading().reason().kind() != net.zbin.core.Reason.Kind.NOT_MEASURED;
+        boolean measured = e.decision().grading().reason().kind() != Reason.Kind.NOT_MEASURED;
         return e.decision().attempt() + (measured ? 1 : 0); // a presentation not measured does not count against the limit
     }
 

@@ -89,7 +89,7 @@ class DecisionBookTest {
     }
 
     @Test
-    void aTriggerSentAgainBeforeItsNotMeasuredAnswerWentOut_getsThatAnswerAgain_oneSentAfterIsMeasured() {
+    void aTriggerSentAgainBeforeItsNotMeasuredAnswerWentOut_getsThatAnswerAgain_aStaleOnesCopyJustAfterToo_oneSentLaterIsMeasured() {
         DecisionBook b = new DecisionBook(5000, 100);
         b.enterLot("L1");
         Decision stale = new Decision(2, "P2", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.STALE_TRIGGER), 700, false, 0);
@@ -97,12 +97,20 @@ class DecisionBookTest {
         // the handler's patience ran out while the line was late: its copy came at 4.9 ms, before the answer went out
         var again = assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, 4_900_000L));
         assertEquals(Reason.STALE_TRIGGER, again.decision().grading().reason());
-        // sent after the answer went out: presented again, measured
-        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, 5_100_000L));
+        // taken up just after the answer went out (the line was late, the copy likely on its way): still a copy
+        long window = DecisionBook.STALE_COPY_NANOS;
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, 5_000_000L + window - 1));
+        // taken up a window after the answer went out: presented again, measured
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, 5_000_000L + window));
         // nanoTime may be negative: the order is by difference, not by sign
-        b.put(stale, 1000, -5_000_000L);
-        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, -5_100_000L));
-        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, -4_900_000L));
+        b.put(stale, 1000, -5_000_000L - window);
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, -5_000_000L - 1));
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, -5_000_000L));
+        // another answer without a reading (the line paused) has no such window: a trigger after it is measured
+        Decision paused = new Decision(4, "P4", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.LINE_PAUSED), 1, false, 0);
+        b.put(paused, 1000, 5_000_000L);
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(4, "P4"), "L1", 1001, 4_900_000L));
+        assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(4, "P4"), "L1", 1001, 5_000_000L));
         // a measured decision is a repeat whenever its copy came
         b.put(decided(3, "P3", "L1", 0), 1000, 5_000_000L);
         assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(3, "P3"), "L1", 1001, 5_100_000L));

@@ -173,7 +173,7 @@ class TriggerPathTest {
     }
 
     @Test
-    void aStaleTrigger_itsCopySentBeforeTheAnswer_getsTheSameAnswer_notAReading_oneSentAfterIsMeasured() throws Exception {
+    void aStaleTrigger_itsCopySentBeforeOrTakenUpJustAfterTheAnswer_getsTheSameAnswer_notAReading_oneSentLaterIsMeasured() throws Exception {
         String t = "{\"seq\": 7, \"part\": \"P7\", \"lot\": \"L1\"}";
         byte[] p = t.getBytes(StandardCharsets.UTF_8);
         long arrived = System.nanoTime() - (cfg.deadlineMs() + 100) * 1_000_000L; // waited past the handler's deadline
@@ -186,11 +186,16 @@ class TriggerPathTest {
         assertEquals("stale-trigger", d.get(1).path("reason").asText(), "the copy gets the answer the handler acts on: " + d.get(1));
         assertTrue(d.get(1).path("repeat").asBoolean(), d.get(1).toString());
         assertEquals(0, meter.measured, "nothing read for a part that may have moved");
-        // presented again after the answer went out: measured
-        meter.reading(1.0);
+        // taken up right after the answer went out: likely sent before it (the line was late), the same answer again
         trigger(t);
+        assertEquals("stale-trigger", decisions().get(2).path("reason").asText());
+        assertTrue(decisions().get(2).path("repeat").asBoolean(), decisions().get(2).toString());
+        assertEquals(0, meter.measured);
+        // presented again later than that (stamped as come a window after now: the book compares stamps): measured
+        meter.reading(1.0);
+        path.onTrigger(p, System.nanoTime() + DecisionBook.STALE_COPY_NANOS);
         assertEquals(1, meter.measured);
-        assertEquals("J", decisions().get(2).path("grade").asText());
+        assertEquals("J", decisions().get(3).path("grade").asText());
         records.close();
         List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
         assertEquals(3, rows.size(), "a header, the stale answer's row and the measured one's (a repeat has none): " + rows);
