@@ -94,8 +94,8 @@ class BusyCopiesIT {
             assertEquals(1, first.size(), "the held part: one answer");
             assertFalse(first.get(0).path("repeat").asBoolean(), "the held part: measured, not a repeat");
             assertTrue(first.get(0).path("value").isNumber(), "the held part: graded from its reading once released: " + first.get(0));
-            // Each presentation's two messages get one answer twice, the copy's a repeat; or — a copy that came after its
-            // original's line-busy answer went out is a new presentation, as a handler's deliberate one would be —
+            // Each presentation's two messages get one answer twice, the copy's a repeat; or — a copy that came 50 ms or more
+            // after its original's line-busy answer went out is a new presentation, as a handler's deliberate one would be —
             // line-busy twice, neither a repeat. A copy of a queued trigger always came before its original's answer
             // (stale-trigger, the queue having waited on the meter; or a reading, on a machine that drained it in time).
             Map<String, Integer> byReason = new TreeMap<>();

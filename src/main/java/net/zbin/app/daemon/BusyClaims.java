@@ -8,8 +8,9 @@ import net.zbin.core.Trigger;
  * The presentations the overflow thread answers {@code line-busy}, so that a handler's copy of such a trigger is not
  * measured behind that answer's back. A trigger beyond the full queue is claimed here on Paho's thread, before Paho
  * hands on the next message, so its copy always finds the claim; the overflow thread stamps when the answer went out.
- * A copy that reached the line before then (the handler had not heard the answer it then acts on) gets
- * {@code line-busy} again, not a reading; one sent after it is a deliberate new presentation and is measured.
+ * A copy that reached the line before then (the handler had not heard the answer it then acts on), or was taken up
+ * within {@link DecisionBook#LATE_COPY_NANOS} after it (the line is late, Paho's thread behind), gets {@code line-busy}
+ * again, not a reading; one sent later is a deliberate new presentation and is measured.
  * Kept for the repeat window after the answer (a copy may wait in the queue), bounded by count: each holds the decoded
  * trigger (its part and lot at most 128 characters each) and two stamps, not the answer, which is built again.
  */
@@ -71,7 +72,8 @@ final class BusyClaims {
 
     /**
      * The measuring thread, or Paho's for a copy that is itself beyond the full queue: the claim {@code t} is a copy of
-     * — the same seq, part, lot and kind, arrived ({@code arrivedNanos}) before that claim's answer went out — or null.
+     * — the same seq, part, lot and kind, arrived ({@code arrivedNanos}) before that claim's answer went out or within
+     * {@link DecisionBook#LATE_COPY_NANOS} after — or null.
      */
     Claim copyOf(Trigger t, String lot, long arrivedNanos) {
         if (bySeq.isEmpty()) return null; // the usual case: no seq boxed on the trigger path
@@ -79,7 +81,7 @@ final class BusyClaims {
         if (c == null) return null;
         Trigger o = c.trigger;
         if (!o.part().equals(t.part()) || !c.lot.equals(lot) || o.kind() != t.kind()) return null;
-        return !c.answered || arrivedNanos - c.answeredNanos < 0 ? c : null;
+        return !c.answered || arrivedNanos - c.answeredNanos < DecisionBook.LATE_COPY_NANOS ? c : null;
     }
 
     /** Claims kept (for tests). */

@@ -32,11 +32,13 @@ final class DecisionBook {
     private record Entry(Decision decision, long atMs, long answeredNanos, boolean answerTimed) {}
 
     /**
-     * How long after a {@code stale-trigger} answer went out a copy of its trigger still counts as sent before it (ns):
-     * in a loaded suite run a copy likely sent before the answer was taken up 1.7 ms after it; a handler presenting the part again
+     * How long after an answer the line gave because it was late ({@code stale-trigger}, or {@code line-busy} from the
+     * overflow queue, {@link BusyClaims}) a copy of its trigger still counts as sent before it (ns). The line is late
+     * when a handler's copies are on their way and the MQTT thread takes them up late: in a loaded suite run a copy
+     * likely sent before a {@code stale-trigger} answer was taken up 1.7 ms after it. A handler presenting the part again
      * with the same seq this soon after hearing the answer gets it once more and presents again.
      */
-    static final long STALE_COPY_NANOS = 50_000_000L;
+    static final long LATE_COPY_NANOS = 50_000_000L;
 
     private final long windowMs;
     private final Map<Long, Entry> bySeq;
@@ -95,16 +97,15 @@ final class DecisionBook {
      * stale trigger) is measured when its trigger comes again — unless this trigger came before that answer went out:
      * the handler sent it again without having heard the answer (its patience ran out while the line was late), acts on
      * that answer, and gets it again. Measured, it would give the presentation a second, contradicting answer and a
-     * graded row the handler never acted on. A {@code stale-trigger} answer means the line was late, which is when the
-     * handler's copies are on their way and the MQTT thread may take one up only after the answer went out: a copy taken
-     * up within {@link #STALE_COPY_NANOS} after it counts as sent before it.
+     * graded row the handler never acted on. A copy taken up within {@link #LATE_COPY_NANOS} after a
+     * {@code stale-trigger} answer counts as sent before it.
      */
     private static boolean repeats(Entry e, long arrivedNanos) {
         Reason reason = e.decision().grading().reason();
         if (reason.kind() != Reason.Kind.NOT_MEASURED) return true;
         if (!e.answerTimed()) return false;
         long afterAnswer = arrivedNanos - e.answeredNanos();
-        return afterAnswer < (reason == Reason.STALE_TRIGGER ? STALE_COPY_NANOS : 0);
+        return afterAnswer < (reason == Reason.STALE_TRIGGER ? LATE_COPY_NANOS : 0);
     }
 
     /** The attempt of a presentation that retests {@code retestOf}: one more than that one's, if it is the same part. */

@@ -12,14 +12,16 @@ class BusyClaimsTest {
     static Trigger t(long seq, String part) { return new Trigger(seq, part, "L1", Trigger.Kind.PART, -1); }
 
     @Test
-    void aCopyBeforeTheAnswerWentOut_isCovered_oneAfter_orOfAnotherPresentation_isNot() {
+    void aCopyBeforeOrJustAfterTheAnswerWentOut_isCovered_oneLater_orOfAnotherPresentation_isNot() {
         BusyClaims b = new BusyClaims(5_000, 100);
         Trigger t = t(4, "P4");
         BusyClaims.Claim c = b.claim(t, "L1", 0);
         assertSame(c, b.copyOf(t, "L1", 10), "the answer has not gone out yet");
         b.answered(c, 1_000, 1);
         assertSame(c, b.copyOf(t, "L1", 999), "came before the answer went out");
-        assertNull(b.copyOf(t, "L1", 1_001), "sent after the answer: a deliberate new presentation");
+        long late = DecisionBook.LATE_COPY_NANOS;
+        assertSame(c, b.copyOf(t, "L1", 1_000 + late - 1), "taken up just after the answer went out (the line is late): a copy");
+        assertNull(b.copyOf(t, "L1", 1_000 + late), "taken up later: a deliberate new presentation");
         assertNull(b.copyOf(t(4, "other"), "L1", 10), "another part under the same seq");
         assertNull(b.copyOf(t, "L2", 10), "another lot");
         assertNull(b.copyOf(new Trigger(4, "P4", "L1", Trigger.Kind.OPEN, -1), "L1", 10), "another kind");

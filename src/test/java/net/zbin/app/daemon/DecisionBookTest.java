@@ -98,7 +98,7 @@ class DecisionBookTest {
         var again = assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, 4_900_000L));
         assertEquals(Reason.STALE_TRIGGER, again.decision().grading().reason());
         // taken up just after the answer went out (the line was late, the copy likely on its way): still a copy
-        long window = DecisionBook.STALE_COPY_NANOS;
+        long window = DecisionBook.LATE_COPY_NANOS;
         assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(2, "P2"), "L1", 1001, 5_000_000L + window - 1));
         // taken up a window after the answer went out: presented again, measured
         assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 1001, 5_000_000L + window));

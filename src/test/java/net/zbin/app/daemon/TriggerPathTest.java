@@ -193,7 +193,7 @@ class TriggerPathTest {
         assertEquals(0, meter.measured);
         // presented again later than that (stamped as come a window after now: the book compares stamps): measured
         meter.reading(1.0);
-        path.onTrigger(p, System.nanoTime() + DecisionBook.STALE_COPY_NANOS);
+        path.onTrigger(p, System.nanoTime() + DecisionBook.LATE_COPY_NANOS);
         assertEquals(1, meter.measured);
         assertEquals("J", decisions().get(3).path("grade").asText());
         records.close();
@@ -202,7 +202,7 @@ class TriggerPathTest {
     }
 
     @Test
-    void aLineBusyTrigger_itsCopySentBeforeTheBusyAnswerWentOut_getsLineBusyAgain_notAReading_oneSentAfterIsMeasured() throws Exception {
+    void aLineBusyTrigger_itsCopySentBeforeOrTakenUpJustAfterTheBusyAnswer_getsLineBusyAgain_notAReading_oneSentLaterIsMeasured() throws Exception {
         String t = "{\"seq\": 9, \"part\": \"P9\", \"lot\": \"L1\"}";
         byte[] p = t.getBytes(StandardCharsets.UTF_8);
         long arrived = System.nanoTime();
@@ -223,12 +223,17 @@ class TriggerPathTest {
         meter.reading(1.0);
         path.onTrigger("{\"seq\": 9, \"part\": \"P9b\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), arrived + 3_000);
         assertEquals(1, meter.measured);
-        // presented again after the line-busy answer went out: measured
+        // presented again after the line-busy answer went out: taken up at once, still a copy; later, measured
         meter.reading(1.0);
         trigger("{\"seq\": 10, \"part\": \"P10\", \"lot\": \"L1\"}");
         path.busy("{\"seq\": 11, \"part\": \"P11\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8), System.nanoTime()).run();
-        meter.reading(1.0);
         trigger("{\"seq\": 11, \"part\": \"P11\", \"lot\": \"L1\"}");
+        assertEquals(2, meter.measured);
+        assertTrue(decisions().get(decisions().size() - 1).path("repeat").asBoolean(), decisions().toString());
+        meter.reading(1.0);
+        // stamped as come a window after now (the claims compare stamps, not the clock)
+        path.onTrigger("{\"seq\": 11, \"part\": \"P11\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8),
+                System.nanoTime() + DecisionBook.LATE_COPY_NANOS);
         assertEquals(3, meter.measured);
         assertEquals("J", decisions().get(decisions().size() - 1).path("grade").asText());
         records.close();
@@ -256,7 +261,7 @@ class TriggerPathTest {
     }
 
     @Test
-    void aCopyItselfBeyondTheFullQueue_getsItsOriginalsLineBusyAsARepeat_noSecondRow_oneSentAfterTheAnswerIsNew() throws Exception {
+    void aCopyItselfBeyondTheFullQueue_getsItsOriginalsLineBusyAsARepeat_noSecondRow_oneSentLaterIsNew() throws Exception {
         byte[] p = "{\"seq\": 21, \"part\": \"P21\", \"lot\": \"L1\"}".getBytes(StandardCharsets.UTF_8);
         long arrived = System.nanoTime();
         Runnable original = path.busy(p, arrived);
@@ -268,9 +273,12 @@ class TriggerPathTest {
         for (JsonNode x : d) assertEquals("line-busy", x.path("reason").asText(), d.toString());
         assertTrue(!d.get(0).path("repeat").asBoolean(), "the original's own answer: " + d);
         assertTrue(d.get(1).path("repeat").asBoolean(), "the copy's is that answer again: " + d);
-        // after that answer went out, the same trigger beyond the full queue is a new presentation: line-busy, a row of its own
+        // taken up just after that answer went out: still a copy (the line is late); later than the window after it, the
+        // same trigger beyond the full queue is a new presentation: line-busy, a row of its own
         path.busy(p, System.nanoTime()).run();
-        assertTrue(!decisions().get(2).path("repeat").asBoolean(), decisions().toString());
+        assertTrue(decisions().get(2).path("repeat").asBoolean(), decisions().toString());
+        path.busy(p, System.nanoTime() + DecisionBook.LATE_COPY_NANOS).run(); // stamped a window after now
+        assertTrue(!decisions().get(3).path("repeat").asBoolean(), decisions().toString());
         assertEquals(0, meter.measured);
         records.close();
         List<String> rows = Files.readAllLines(Files.list(cfg.records().dir()).findFirst().orElseThrow());
