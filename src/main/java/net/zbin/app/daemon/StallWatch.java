@@ -42,6 +42,13 @@ final class StallWatch {
     static final long FIRST_NANOS = 50_000_000;
     /** A stand-still this long or longer is logged, ns. */
     static final long LOGGED_NANOS = 50_000_000;
+    /**
+     * At most {@link #LOGGED_PER_MINUTE} warnings a minute: an overloaded machine can stop the process many times a
+     * minute, and a line per stand-still would bury the log; the ones held back are counted in the next warning, or in a
+     * summary once the minute is over.
+     */
+    static final int LOGGED_PER_MINUTE = 10;
+    private static final long MINUTE_NANOS = 60_000_000_000L;
     private static final org.slf4j.Logger LOG = org.slf4j.LoggerFactory.getLogger(StallWatch.class);
 
     /** One stand-still: from the last beat before it to the first after it (System.nanoTime). */
@@ -53,6 +60,11 @@ final class StallWatch {
     private volatile boolean stopped;
     /** Whether anything beats: a watch that never beat (a line not started, a test's own clock) sees no stand-still. */
     private volatile boolean watching;
+    /** The beating thread's own: when the minute of warnings began, the warnings in it, and the stand-stills held back. */
+    private long minuteNanos = Long.MIN_VALUE / 4;
+    private int loggedInMinute;
+    private int heldBack;
+    private long heldBackLongestNanos;
 
     /** @param nanos the monotonic clock, ns (System.nanoTime: the line stamps messages with it) */
     StallWatch(LongSupplier nanos) {
@@ -79,10 +91,43 @@ final class StallWatch {
         long now = nanos.getAsLong(), before = beatNanos;
         if (now - before > STALL_NANOS) {
             last = new Stall(before, now);
-            if (now - before >= LOGGED_NANOS) LOG.warn("the process stood still for {} ms", (now - before) / 1_000_000);
+            if (now - before >= LOGGED_NANOS) logged(now, now - before);
+        } else if (heldBack > 0 && now - minuteNanos >= MINUTE_NANOS) {
+            LOG.warn("the process stood still again: {} times more in the last {} s, the longest {} ms", heldBack,
+                    (now - minuteNanos) / 1_000_000_000, heldBackLongestNanos / 1_000_000);
+            newMinute(now);
         }
         beatNanos = now;
         watching = true;
+    }
+
+    /** A stand-still of {@code lengthNanos} long enough to tell the operator of: now, or counted into a later warning. */
+    private void logged(long now, long lengthNanos) {
+        if (now - minuteNanos >= MINUTE_NANOS) {
+            if (heldBack > 0) {
+                LOG.warn("the process stood still for {} ms (held back in the minute before: {} more, the longest {} ms)",
+                        lengthNanos / 1_000_000, heldBack, heldBackLongestNanos / 1_000_000);
+                newMinute(now);
+                return;
+            }
+            minuteNanos = now;
+            loggedInMinute = 0;
+        }
+        if (loggedInMinute < LOGGED_PER_MINUTE) {
+            LOG.warn("the process stood still for {} ms", lengthNanos / 1_000_000);
+            loggedInMinute++;
+            return;
+        }
+        heldBack++;
+        heldBackLongestNanos = Math.max(heldBackLongestNanos, lengthNanos);
+    }
+
+    /** A new minute of warnings, begun with one (a summary of the stand-stills held back). */
+    private void newMinute(long now) {
+        minuteNanos = now;
+        loggedInMinute = 1;
+        heldBack = 0;
+        heldBackLongestNanos = 0;
     }
 
     /**

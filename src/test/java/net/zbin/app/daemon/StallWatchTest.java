@@ -119,4 +119,41 @@ class StallWatchTest {
         assertEquals(clock.get(), w.mayHaveComeAt(clock.get(), ended - 100 * MS),
                 "16 ms after it: new — a fresh part's wait does not grow by more than twice a short stand-still");
     }
+
+    @Test
+    void standStills_areLoggedUpToTenAMinute_theOnesHeldBackCountedInALaterWarning() {
+        var log = (ch.qos.logback.classic.Logger) org.slf4j.LoggerFactory.getLogger(StallWatch.class);
+        var heard = new ch.qos.logback.core.read.ListAppender<ch.qos.logback.classic.spi.ILoggingEvent>();
+        heard.start();
+        log.addAppender(heard);
+        try {
+            standStill(30); // shorter than LOGGED_NANOS: not worth a line
+            for (int i = 0; i < StallWatch.LOGGED_PER_MINUTE; i++) standStill(100);
+            assertEquals(StallWatch.LOGGED_PER_MINUTE, heard.list.size());
+            assertEquals("the process stood still for 100 ms", messages(heard).get(0));
+            standStill(80); // an overloaded machine: three more within the minute, held back
+            standStill(300);
+            standStill(60);
+            assertEquals(StallWatch.LOGGED_PER_MINUTE, heard.list.size());
+            run(60_000);
+            assertEquals("the process stood still again: 3 times more in the last 60 s, the longest 300 ms",
+                    messages(heard).get(StallWatch.LOGGED_PER_MINUTE));
+            int said = heard.list.size();
+            assertEquals(StallWatch.LOGGED_PER_MINUTE + 1, said, "nothing more while the process runs");
+            for (int i = 0; i < StallWatch.LOGGED_PER_MINUTE; i++) standStill(70); // the summary was one of this minute's ten
+            assertEquals(said + StallWatch.LOGGED_PER_MINUTE - 1, heard.list.size());
+            standStill(61_000); // the minute ends within this one (no beat between to sum up): said, with the one held back
+            assertEquals("the process stood still for 61000 ms (held back in the minute before: 1 more, the longest 70 ms)",
+                    messages(heard).get(heard.list.size() - 1));
+            said = heard.list.size();
+            run(120_000);
+            assertEquals(said, heard.list.size(), "nothing held back: no summary");
+        } finally {
+            log.detachAppender(heard);
+        }
+    }
+
+    private static java.util.List<String> messages(ch.qos.logback.core.read.ListAppender<ch.qos.logback.classic.spi.ILoggingEvent> a) {
+        return a.list.stream().map(ch.qos.logback.classic.spi.ILoggingEvent::getFormattedMessage).toList();
+    }
 }
