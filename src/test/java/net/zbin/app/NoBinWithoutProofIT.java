@@ -50,9 +50,9 @@ class NoBinWithoutProofIT {
                 // every fifth good part, the meter repeats its reading as an extra line: without proof of pairing
                 // the next query (the open part's) would read it
                 if (!open && seq % 10 == 1) rig.meter.inject(SimFault.STRAY, 1);
-                long s = seq;
-                tap.publish("zbin/stray/trigger", "{\"seq\":" + s + ",\"part\":\"P" + s + "\"}");
-                JsonNode d = tap.await(m -> decision(m, s), 1, 10_000).get(0).json();
+                // presented as a handler does: again after a stale-trigger (a loaded machine), so the count below does
+                // not depend on the machine's speed
+                JsonNode d = tap.present("stray", seq);
                 if (open) {
                     openSeen++;
                     if (d.path("verdict").asText().equals("pass")) openPassed++;
