@@ -54,10 +54,18 @@ class BusyCopiesIT {
             LineConfig cfg = LineConfigLoader.load(cfgFile);
             Daemon daemon = new Daemon(cfg, ProfileMeterSession.open(cfg.meter(), Clock.systemUTC()), Clock.systemUTC());
             Map<Long, List<JsonNode>> answers = new TreeMap<>();
+            int presented = 0; // the answers to ANSWERED before the flood: more than one if it was answered stale-trigger
             try (Tap tap = new Tap(broker.url(), "zbin/flood/decision")) {
                 daemon.start(30_000);
-                send(tap, ANSWERED); // measured and answered before the line is held
-                tap.await(m -> seqOf(m) == ANSWERED, 1, 180_000);
+                // measured and answered before the line is held; a loaded machine can make the first trigger wait past the
+                // deadline (stale-trigger), and then it is presented again, as a handler does (past the 50 ms in which the
+                // line takes the same seq for a copy of the late answer's trigger)
+                for (JsonNode a = null; a == null || a.path("reason").asText().equals("stale-trigger") && presented < 20; ) {
+                    if (presented > 0) Thread.sleep(60);
+                    send(tap, ANSWERED);
+                    int n = ++presented;
+                    a = tap.await(m -> seqOf(m) == ANSWERED, n, 180_000).get(n - 1).json();
+                }
                 meter.holdReadings();
                 long readings = meter.measurements();
                 send(tap, 0);
@@ -75,9 +83,9 @@ class BusyCopiesIT {
                 tap.await(m -> m.json().path("reason").asText().equals("line-busy"), 2 * PARTS - 10_000, 180_000);
                 // the queue is full and stays so while the reading is held: a copy of the presentation answered before it
                 send(tap, ANSWERED);
-                tap.await(m -> seqOf(m) == ANSWERED, 2, 180_000);
+                tap.await(m -> seqOf(m) == ANSWERED, presented + 1, 180_000);
                 meter.releaseReadings();
-                tap.await(m -> true, 2 * PARTS + 3, 180_000);
+                tap.await(m -> true, 2 * PARTS + 2 + presented, 180_000);
                 for (Tap.Msg m : tap.msgs) answers.computeIfAbsent(seqOf(m), k -> new java.util.ArrayList<>()).add(m.json());
             } finally {
                 meter.releaseReadings();
@@ -85,11 +93,13 @@ class BusyCopiesIT {
             }
 
             List<JsonNode> early = answers.get((long) ANSWERED);
-            assertFalse(early.get(0).path("repeat").asBoolean(), "measured before the line was held: " + early);
-            assertTrue(early.get(0).path("value").isNumber(), "measured before the line was held: " + early);
-            assertTrue(early.get(1).path("repeat").asBoolean(), "its copy, beyond the full queue, gets its answer again: " + early);
+            assertEquals(presented + 1, early.size(), early.toString());
+            JsonNode measured = early.get(presented - 1), copy = early.get(presented);
+            assertFalse(measured.path("repeat").asBoolean(), "measured before the line was held: " + early);
+            assertTrue(measured.path("value").isNumber(), "measured before the line was held: " + early);
+            assertTrue(copy.path("repeat").asBoolean(), "its copy, beyond the full queue, gets its answer again: " + early);
             for (String f : List.of("reason", "bin", "value", "grade"))
-                assertEquals(early.get(0).path(f), early.get(1).path(f), "the copy's answer is the presentation's, " + f + ": " + early);
+                assertEquals(measured.path(f), copy.path(f), "the copy's answer is the presentation's, " + f + ": " + early);
             List<JsonNode> first = answers.get(0L);
             assertEquals(1, first.size(), "the held part: one answer");
             assertFalse(first.get(0).path("repeat").asBoolean(), "the held part: measured, not a repeat");
@@ -143,7 +153,8 @@ class BusyCopiesIT {
                 }
             }
             assertEquals(PARTS + 2, rows.size(), "a row for every presentation");
-            assertEquals(1, rows.get((long) ANSWERED).size(), "one row for the presentation answered before the line was held, none for its copy");
+            assertEquals(presented, rows.get((long) ANSWERED).size(),
+                    "a row for each answer to the presentation before the line was held (one, unless stale-trigger), none for its copy");
             for (long seq = 1; seq <= PARTS; seq++) {
                 String reason = answers.get(seq).get(0).path("reason").asText();
                 assertEquals(java.util.Collections.nCopies(fresh.get(seq).intValue(), reason), rows.get(seq),
