@@ -59,8 +59,8 @@ class BrokerAclIT {
                  Tap engineer = Tap.login(broker.url(), "engineer", "engineer-secret", "zbin/acl/#")) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
                 handler.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean(), 1, 10_000);
-                handler.publish("zbin/acl/trigger", "{\"seq\": 1, \"part\": \"acl-1\"}");
-                assertEquals("J", handler.await(m -> m.topic().endsWith("/decision"), 1, 10_000).get(0).json().path("grade").asText());
+                // (presented again after a stale-trigger, as a handler does: a loaded machine can make the first one wait)
+                assertEquals("J", handler.present("acl", 1).path("grade").asText());
                 operator.await(m -> m.topic().endsWith("/decision"), 1, 10_000);
 
                 // No sleeping to prove that nothing arrived: each refused message is acknowledged by the broker (which
@@ -77,7 +77,7 @@ class BrokerAclIT {
                 otherHandler.publishAcknowledged("zbin/acl/trigger", "{\"seq\": 3}");               // another line's handler may not trigger here
                 handler.publishAcknowledged("zbin/acl/trigger", "{\"seq\": 4, \"part\": \"acl-4\"}"); // the fence
                 handler.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 4, 1, 10_000);
-                assertEquals(List.of(1L, 4L), handler.on("/decision").stream().map(m -> m.json().path("seq").asLong()).toList(),
+                assertEquals(List.of(1L, 4L), handler.on("/decision").stream().map(m -> m.json().path("seq").asLong()).distinct().toList(),
                         "no decision for the operator's trigger nor for another line's handler");
                 assertEquals(0, otherHandler.on("/decision").size(), "another line's handler reads nothing of this line");
             }

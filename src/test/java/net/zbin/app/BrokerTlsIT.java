@@ -55,8 +55,7 @@ class BrokerTlsIT {
             try (LineRig rig = new LineRig(dir, "tls", url, LineRig.quietMeter(Scenario.builtIn()), "mlcc-x7r-100n", "", "topic_root: zbin, tls: {ca_file: ca.pem}}");
                  Tap tap = new Tap(broker.url(), "zbin/tls/decision")) {
                 rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-                tap.publish("zbin/tls/trigger", "{\"seq\": 1}");
-                assertEquals("J", tap.await(m -> true, 1, 10_000).get(0).json().path("grade").asText());
+                assertEquals("J", tap.present("tls", 1).path("grade").asText()); // again after a stale-trigger (a loaded machine)
             }
             Path cfg = TestLine.write(dir.resolve("wrong"), "tls2", url, 5025, "");
             Files.copy(dir.resolve("other.pem"), dir.resolve("wrong/other.pem"));
@@ -112,8 +111,7 @@ class BrokerTlsIT {
             Process daemon = pb.start();
             try (Tap tap = Tap.login(broker.url(), "tester", "tester-pw", "zbin/tlsc/decision", "zbin/tlsc/state")) {
                 tap.await(m -> m.topic().endsWith("/state") && m.json().path("online").asBoolean(), 1, 30_000);
-                tap.publish("zbin/tlsc/trigger", "{\"seq\": 1, \"part\": \"T1\"}");
-                assertEquals("J", tap.await(m -> m.topic().endsWith("/decision"), 1, 10_000).get(0).json().path("grade").asText());
+                assertEquals("J", tap.present("tlsc", 1).path("grade").asText()); // again after a stale-trigger (a loaded machine)
             } finally {
                 daemon.destroy();
                 assertTrue(daemon.waitFor(30, TimeUnit.SECONDS));

@@ -138,8 +138,7 @@ class DaemonPromisesIT {
                 // The backoff schedule itself is held by ReconnectBackoffTest (counts, not clocks); here the figure is printed.
                 System.out.printf("meter back: line ready after %.2f s (the profile's maximum backoff is 2 s)%n", (System.nanoTime() - t0) / 1e9);
                 tap.awaitFrom(before, m -> m.topic().endsWith("/alarm") && !m.json().path("active").asBoolean(), 1, 5_000);
-                tap.publish("zbin/heal/trigger", "{\"seq\": 2, \"part\": \"P2\"}");
-                JsonNode d = tap.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 2, 1, 5_000).get(0).json();
+                JsonNode d = tap.present("heal", 2); // again after a stale-trigger, as a handler does (a loaded machine)
                 assertEquals("J", d.path("grade").asText());
             }
         }
