@@ -44,8 +44,8 @@ final class StallWatch {
     static final long LOGGED_NANOS = 50_000_000;
     /**
      * At most {@link #LOGGED_PER_MINUTE} warnings a minute: an overloaded machine can stop the process many times a
-     * minute, and a line per stand-still would bury the log; the ones held back are counted in the next warning, or in a
-     * summary once the minute is over.
+     * minute, and a line per stand-still would bury the log; the ones held back are counted in one line once the minute is
+     * over.
      */
     static final int LOGGED_PER_MINUTE = 10;
     private static final long MINUTE_NANOS = 60_000_000_000L;
@@ -93,9 +93,7 @@ final class StallWatch {
             last = new Stall(before, now);
             if (now - before >= LOGGED_NANOS) logged(now, now - before);
         } else if (heldBack > 0 && now - minuteNanos >= MINUTE_NANOS) {
-            LOG.warn("the process stood still again: {} times more in the last {} s, the longest {} ms", heldBack,
-                    (now - minuteNanos) / 1_000_000_000, heldBackLongestNanos / 1_000_000);
-            newMinute(now);
+            sumUp(now);
         }
         beatNanos = now;
         watching = true;
@@ -104,14 +102,11 @@ final class StallWatch {
     /** A stand-still of {@code lengthNanos} long enough to tell the operator of: now, or counted into a later warning. */
     private void logged(long now, long lengthNanos) {
         if (now - minuteNanos >= MINUTE_NANOS) {
-            if (heldBack > 0) {
-                LOG.warn("the process stood still for {} ms (held back in the minute before: {} more, the longest {} ms)",
-                        lengthNanos / 1_000_000, heldBack, heldBackLongestNanos / 1_000_000);
-                newMinute(now);
-                return;
+            if (heldBack > 0) sumUp(now);
+            else {
+                minuteNanos = now;
+                loggedInMinute = 0;
             }
-            minuteNanos = now;
-            loggedInMinute = 0;
         }
         if (loggedInMinute < LOGGED_PER_MINUTE) {
             LOG.warn("the process stood still for {} ms", lengthNanos / 1_000_000);
@@ -122,8 +117,10 @@ final class StallWatch {
         heldBackLongestNanos = Math.max(heldBackLongestNanos, lengthNanos);
     }
 
-    /** A new minute of warnings, begun with one (a summary of the stand-stills held back). */
-    private void newMinute(long now) {
+    /** The stand-stills held back in the minute that is over, in one warning that begins the next minute. */
+    private void sumUp(long now) {
+        LOG.warn("stand-stills not logged in the last {} s: {}, the longest {} ms", (now - minuteNanos) / 1_000_000_000,
+                heldBack, heldBackLongestNanos / 1_000_000);
         minuteNanos = now;
         loggedInMinute = 1;
         heldBack = 0;
