@@ -42,6 +42,7 @@ public class DecisionJmh {
     Compensation comp, none;
     Reading[] readings;
     Path lot;
+    net.zbin.core.DecisionEvent[] events;
 
     @Setup(Level.Trial)
     public void setUp() throws Exception {
@@ -60,6 +61,13 @@ public class DecisionJmh {
             readings[i] = new Reading(recipe.freqHz(), Math.abs(rnd.nextGaussian() * 0.012 * x), x);
         }
         lot = ReplayBench.lot(ROWS);
+        events = new net.zbin.core.DecisionEvent[READINGS];
+        Instant t0 = Instant.parse("2026-03-02T08:00:00Z");
+        for (int i = 0; i < READINGS; i++) {
+            var g = Grader.grade(recipe, readings[i], comp, 0);
+            events[i] = new net.zbin.core.DecisionEvent(t0.plusNanos(i * 5_000_000L), "line-7",
+                    new net.zbin.core.Decision(1000 + i, "GRM-100N-X7R", "LOT-2026-0302-A", Trigger.Kind.PART, recipe.name(), g, 0.083, false, 0));
+        }
     }
 
     /** One decision: compensation, equivalent circuit, D/Q/ESR/θ, plausibility and grade. */
@@ -81,6 +89,19 @@ public class DecisionJmh {
     @OperationsPerInvocation(READINGS)
     public void decideUncompensated(Blackhole bh) {
         for (Reading r : readings) bh.consume(Grader.grade(recipe, r, none, 0));
+    }
+
+    /**
+     * What the measuring thread does after the grade before the answer leaves: the record row and the decision payload
+     * encoded, for a graded part of the lot (one row and one payload per operation).
+     */
+    @Benchmark
+    @OperationsPerInvocation(READINGS)
+    public void rowAndPayload(Blackhole bh) {
+        for (net.zbin.core.DecisionEvent e : events) {
+            bh.consume(net.zbin.io.RecordLog.encode(e));
+            bh.consume(net.zbin.io.mqtt.Payloads.bytes(net.zbin.io.DecisionFields.json(e.decision())));
+        }
     }
 
     /** Replay: each row read from the CSV file, parsed and graded (ops/s = rows/s). */
