@@ -27,8 +27,8 @@ import org.openjdk.jmh.annotations.State;
 import org.openjdk.jmh.infra.Blackhole;
 
 /**
- * JMH: the decision core (a raw reading compensated and graded against the MLCC recipe) and replay (a row of
- * the record-log format parsed and graded). Run by {@link JmhBench}.
+ * JMH: the decision core (a raw reading compensated and graded against the MLCC recipe), replay (a row of the
+ * record-log format parsed and graded), and a decision's record row and payload encoded. Run by {@link JmhBench}.
  */
 @State(Scope.Benchmark)
 @BenchmarkMode(Mode.Throughput)
@@ -66,7 +66,7 @@ public class DecisionJmh {
         for (int i = 0; i < READINGS; i++) {
             var g = Grader.grade(recipe, readings[i], comp, 0);
             events[i] = new net.zbin.core.DecisionEvent(t0.plusNanos(i * 5_000_000L), "line-7",
-                    new net.zbin.core.Decision(1000 + i, "GRM-100N-X7R", "LOT-2026-0302-A", Trigger.Kind.PART, recipe.name(), g, 0.083, false, 0));
+                    new net.zbin.core.Decision(1000 + i, "NC104-0042", "LOT-2026-0302-A", Trigger.Kind.PART, recipe.name(), g, 0.083, false, 0));
         }
     }
 
