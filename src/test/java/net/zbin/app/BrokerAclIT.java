@@ -3,6 +3,7 @@ package net.zbin.app;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import com.fasterxml.jackson.databind.JsonNode;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
@@ -79,6 +80,10 @@ class BrokerAclIT {
                 handler.await(m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == 4, 1, 10_000);
                 assertEquals(List.of(1L, 4L), handler.on("/decision").stream().map(m -> m.json().path("seq").asLong()).distinct().toList(),
                         "no decision for the operator's trigger nor for another line's handler");
+                // the one seq presented more than once is the first part, and only after stale-trigger answers
+                List<JsonNode> ofOne = handler.on("/decision").stream().filter(m -> m.json().path("seq").asLong() == 1).map(Tap.Msg::json).toList();
+                for (JsonNode a : ofOne.subList(0, ofOne.size() - 1)) assertEquals("stale-trigger", a.path("reason").asText(), ofOne.toString());
+                assertEquals(1, handler.on("/decision").stream().filter(m -> m.json().path("seq").asLong() == 4).count(), "the fence: one answer");
                 assertEquals(0, otherHandler.on("/decision").size(), "another line's handler reads nothing of this line");
             }
         }
