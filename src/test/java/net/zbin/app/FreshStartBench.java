@@ -120,10 +120,10 @@ class FreshStartBench {
     }
 
     /** Waits (120 s at most) until the line's record files hold {@code rows} rows: the parts sent are decided and logged. */
-    static void awaitRows(Path dir, long rows) throws Exception {
+    static void awaitRows(RowCount count, long rows) throws Exception {
         long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(120);
-        while (recordLines(dir) < rows && System.nanoTime() < end) Thread.sleep(100);
-        if (recordLines(dir) < rows) throw new AssertionError("the busy daemon logged " + recordLines(dir) + " rows of " + rows + " within 120 s");
+        while (count.rows() < rows && System.nanoTime() < end) Thread.sleep(100);
+        if (count.rows() < rows) throw new AssertionError("the busy daemon logged " + count.rows() + " rows of " + rows + " within 120 s");
     }
 
     /** Waits for the line's {@code ready} state among what the tap heard after its first {@code mark} messages. */
@@ -136,19 +136,38 @@ class FreshStartBench {
         UnitProcess.stop(daemon);
     }
 
-    /** Rows in the line's record files (lines other than each file's header; counting lines, not reading the rows). */
-    static long recordLines(Path dir) throws java.io.IOException {
-        Path records = dir.resolve("records-fresh");
-        if (!Files.isDirectory(records)) return 0;
-        long n = 0;
-        try (var files = Files.list(records)) {
-            for (Path f : files.filter(x -> x.getFileName().toString().endsWith(".csv")).toList()) {
-                try (var lines = Files.lines(f)) {
-                    n += Math.max(0, lines.count() - 1);
+    /**
+     * Rows in the line's record files (lines other than each file's header), counted as the files grow: each call reads
+     * only the bytes written since the one before. Read whole every 100 ms, the day's files (tens of MB at the end of the
+     * busy phase) would take the CPU the daemon's last decisions of a counted phase need.
+     */
+    static final class RowCount {
+        private final Path records;
+        /** Per file: bytes read so far, and the line ends among them. */
+        private final Map<Path, long[]> read = new java.util.HashMap<>();
+        private final java.nio.ByteBuffer buf = java.nio.ByteBuffer.allocate(1 << 16);
+
+        RowCount(Path dir) { records = dir.resolve("records-fresh"); }
+
+        long rows() throws java.io.IOException {
+            if (!Files.isDirectory(records)) return 0;
+            long n = 0;
+            try (var files = Files.list(records)) {
+                for (Path f : files.filter(x -> x.getFileName().toString().endsWith(".csv")).toList()) {
+                    long[] at = read.computeIfAbsent(f, x -> new long[2]);
+                    try (var ch = java.nio.channels.FileChannel.open(f)) {
+                        ch.position(at[0]);
+                        int got;
+                        while ((got = ch.read(buf.clear())) > 0) {
+                            for (int i = 0; i < got; i++) if (buf.get(i) == '\n') at[1]++;
+                            at[0] += got;
+                        }
+                    }
+                    n += Math.max(0, at[1] - 1);
                 }
             }
+            return n;
         }
-        return n;
     }
 
     @Test
@@ -240,7 +259,8 @@ class FreshStartBench {
             double cpuZbinUs, cpuBrokerUs, cpuSeconds;
             int quietAfterS;
             Map<String, Double> cpuByThread = new java.util.TreeMap<>();
-            long rowsBefore = recordLines(dir);
+            RowCount rowCount = new RowCount(dir);
+            long rowsBefore = rowCount.rows();
             Process filler = start(cfg, "busy", archive);
             logs.add("busy");
             try {
@@ -253,7 +273,7 @@ class FreshStartBench {
                 int warmRows = busyRows - CPU_PARTS;
                 if (warmRows < CPU_PARTS) throw new IllegalArgumentException("zbin.bench.readback.rows: " + busyRows + " is under " + 2 * CPU_PARTS);
                 sendAtRate(tap, 0, warmRows, 2000);
-                awaitRows(dir, rowsBefore + warmRows);
+                awaitRows(rowCount, rowsBefore + warmRows);
                 // Warm means the compiler has done its work: at the counted pace, a second at a time, until the process's
                 // compiler threads used no CPU tick (10 ms) in a second (30 s at most); those parts are logged too.
                 int quietFrom = warmRows;
@@ -265,11 +285,11 @@ class FreshStartBench {
                 }
                 quietAfterS = (quietFrom - warmRows) / 1000;
                 warmRows = quietFrom;
-                awaitRows(dir, rowsBefore + warmRows);
+                awaitRows(rowCount, rowsBefore + warmRows);
                 Map<String, Long> byName0 = LineBench.threadCpuNsByName(filler.pid());
                 long zbin0 = LineBench.processCpuNs(filler.pid()), broker0 = LineBench.processCpuNs(broker.pid()), t0 = System.nanoTime();
                 sendAtRate(tap, warmRows, CPU_PARTS, 1000);
-                awaitRows(dir, rowsBefore + warmRows + CPU_PARTS);
+                awaitRows(rowCount, rowsBefore + warmRows + CPU_PARTS);
                 cpuZbinUs = (LineBench.processCpuNs(filler.pid()) - zbin0) / 1e3 / CPU_PARTS;
                 cpuBrokerUs = (LineBench.processCpuNs(broker.pid()) - broker0) / 1e3 / CPU_PARTS;
                 cpuSeconds = (System.nanoTime() - t0) / 1e9;
@@ -280,7 +300,7 @@ class FreshStartBench {
             } finally {
                 stop(filler);
             }
-            long readBackRows = recordLines(dir);
+            long readBackRows = rowCount.rows();
             long[] readyWithRows = new long[3];
             for (int i = 0; i < readyWithRows.length; i++) {
                 int mark = tap.msgs.size();
