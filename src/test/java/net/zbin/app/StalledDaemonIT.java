@@ -62,6 +62,7 @@ class StalledDaemonIT {
             assertTrue(first.path("value").isNumber(), "a part on a running line is measured: " + first);
 
             signal(daemon, "STOP");
+            awaitStopped(daemon);
             int mark = tap.msgs.size();
             trigger(tap, 2);
             // The scenario: the process stands still three deadlines long with the trigger on its connection (not a wait
@@ -122,6 +123,35 @@ class StalledDaemonIT {
         int from = tap.msgs.size();
         trigger(tap, seq);
         return tap.awaitFrom(from, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 30_000).get(0).json();
+    }
+
+    /**
+     * Waits (10 s at most) until every thread of {@code p} is stopped. {@code kill} returns once the signal is sent, not
+     * once the process stands still: one of its threads must run to take the signal and stop the others, and on a busy
+     * machine it may wait for a CPU while the others go on — in one suite run the daemon answered the trigger sent right
+     * after {@code kill -STOP} returned, measured, and stood still only after.
+     */
+    private static void awaitStopped(Process p) throws Exception {
+        Path tasks = Path.of("/proc", Long.toString(p.pid()), "task");
+        long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(10);
+        while (true) {
+            boolean all = true;
+            try (var ts = Files.list(tasks)) {
+                for (Path t : ts.toList()) {
+                    try {
+                        String stat = Files.readString(t.resolve("stat"));
+                        // the state is the field after the command name, which is in parentheses and may hold spaces
+                        char state = stat.charAt(stat.lastIndexOf(')') + 2);
+                        if ("TtZX".indexOf(state) < 0) all = false; // stopped, or a thread on its way out
+                    } catch (java.nio.file.NoSuchFileException gone) {
+                        // a thread that ended meanwhile stands still enough
+                    }
+                }
+            }
+            if (all) return;
+            if (System.nanoTime() > end) throw new AssertionError("the daemon did not stand still within 10 s of kill -STOP");
+            Thread.sleep(1);
+        }
     }
 
     /** Sends the process a signal by name ({@code STOP}, {@code CONT}) with the system's {@code kill}. */
