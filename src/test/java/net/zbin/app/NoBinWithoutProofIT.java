@@ -79,15 +79,19 @@ class NoBinWithoutProofIT {
             String cmd = "zbin/refuse/command";
             tap.publish(cmd, "{\"cmd\":\"recipe\",\"name\":\"c0g-at-100m\",\"id\":\"r\"}");
             tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("r"), 1, 10_000);
+            // presented as a handler does: again after a stale-trigger (a stand-still of a loaded machine just before
+            // a trigger is taken up makes it stale), so the first answer that measured is the one checked
+            JsonNode first = null;
             for (long seq = 1; seq <= 20; seq++) {
-                long s = seq;
-                tap.publish("zbin/refuse/trigger", "{\"seq\":" + s + ",\"part\":\"C" + s + "\"" + (s > 1 ? ",\"retest_of\":" + (s - 1) : "") + "}");
-                JsonNode d = tap.await(m -> decision(m, s), 1, 10_000).get(0).json();
+                JsonNode d = tap.present("refuse", seq, "{\"seq\":" + seq + ",\"part\":\"C" + seq + "\"" + (seq > 1 ? ",\"retest_of\":" + (seq - 1) : "") + "}");
+                if (first == null) first = d;
+            }
+            for (Tap.Msg m : tap.on("/decision")) {
+                JsonNode d = m.json();
                 assertFalse(d.path("verdict").asText().equals("pass"), "no value bin at a frequency the meter refused: " + d);
                 assertTrue(d.path("value").isNull(), "no value from a reading at other conditions: " + d);
             }
-            JsonNode first = tap.on("/decision").get(0).json();
-            assertEquals("setup-refused", first.path("reason").asText());
+            assertEquals("setup-refused", first.path("reason").asText(), first.toString());
             assertEquals("retest", first.path("verdict").asText());
             JsonNode alarm = tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-setup-refused")
                     && m.json().path("active").asBoolean(), 1, 10_000).get(0).json();
@@ -107,8 +111,7 @@ class NoBinWithoutProofIT {
             tap.publish(cmd, "{\"cmd\":\"recipe\",\"name\":\"mlcc-x7r-100n\",\"id\":\"back\"}");
             tap.await(m -> m.topic().endsWith("/command/result") && m.json().path("id").asText().equals("back"), 1, 10_000);
             rig.contacts.load(new PartModel.Capacitor(100e-9, 0.02, 0, 0.01), 0);
-            tap.publish("zbin/refuse/trigger", "{\"seq\":100,\"part\":\"X100\"}");
-            assertEquals("J", tap.await(m -> decision(m, 100), 1, 10_000).get(0).json().path("grade").asText());
+            assertEquals("J", tap.present("refuse", 100, "{\"seq\":100,\"part\":\"X100\"}").path("grade").asText());
             tap.await(m -> m.topic().endsWith("/alarm") && m.json().path("code").asText().equals("meter-setup-refused")
                     && !m.json().path("active").asBoolean(), 1, 10_000);
             tap.await(m -> m.topic().endsWith("/state") && m.json().path("mode").asText().equals("ready"), 1, 10_000);

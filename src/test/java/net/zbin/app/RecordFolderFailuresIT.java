@@ -157,20 +157,14 @@ class RecordFolderFailuresIT {
         }
     }
 
+    /** One presentation on {@code line}, again after a stale-trigger answer ({@link Tap#present}). */
     static JsonNode presentOn(Tap tap, String line, long seq) throws Exception {
-        int mark = tap.msgs.size();
-        tap.publish("zbin/" + line + "/trigger", "{\"seq\":" + seq + ",\"part\":\"R" + seq + "\"}");
-        return tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq, 1, 10_000)
-                .get(0).json();
+        return tap.present(line, seq, "{\"seq\":" + seq + ",\"part\":\"R" + seq + "\"}");
     }
 
-    /** One presentation: publish, await its answer. */
+    /** One presentation on the full disk's line, again after a stale-trigger answer ({@link Tap#present}). */
     static JsonNode present(Tap tap, long seq, long retestOf) throws Exception {
-        int mark = tap.msgs.size();
-        tap.publish("zbin/full/trigger", "{\"seq\":" + seq + ",\"part\":\"F" + (retestOf < 0 ? seq : retestOf) + "\""
+        return tap.present("full", seq, "{\"seq\":" + seq + ",\"part\":\"F" + (retestOf < 0 ? seq : retestOf) + "\""
                 + (retestOf < 0 ? "" : ",\"retest_of\":" + retestOf) + "}");
-        List<Tap.Msg> got = tap.awaitFrom(mark, m -> m.topic().endsWith("/decision") && m.json().path("seq").asLong() == seq,
-                1, 10_000);
-        return got.get(0).json();
     }
 }

@@ -120,9 +120,14 @@ public final class Tap implements AutoCloseable {
      * line's decisions; returns the last answer.
      */
     public JsonNode present(String line, long seq) throws Exception {
+        return present(line, seq, "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
+    }
+
+    /** As {@link #present(String, long)}, with the trigger's whole payload given ({@code seq} must be its seq). */
+    public JsonNode present(String line, long seq, String trigger) throws Exception {
         for (int attempt = 1; ; attempt++) {
             int mark = msgs.size();
-            publish("zbin/" + line + "/trigger", "{\"seq\":" + seq + ",\"part\":\"P" + seq + "\"}");
+            publish("zbin/" + line + "/trigger", trigger);
             JsonNode a = awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json() != null && m.json().path("seq").asLong() == seq, 30_000).json();
             if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
             Thread.sleep(60);
