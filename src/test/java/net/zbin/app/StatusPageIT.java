@@ -201,6 +201,10 @@ class StatusPageIT {
 
             // the lot done, the figures settle: /metrics parsed by the client library equals the last dashboard
             awaitLine(out, Pattern.compile("the lot is done"), 180_000);
+            // the handler's account of the lot, printed before that line: on a loaded machine a part can run out of
+            // re-presentations (stale-trigger answers after stand-stills) and stay unfinished, so not every one of 12 000 is a part of the figures
+            Matcher finished = awaitLine(out, Pattern.compile("(\\d+) parts finished of (\\d+) presented"), 1_000);
+            assertEquals(12_000, Long.parseLong(finished.group(2)), finished.group());
             int from = tap.msgs.size();
             tap.awaitAfter(from, m -> m.topic().endsWith("/dashboard"), 10_000);
             JsonNode last = tap.awaitAfter(tap.msgs.size(), m -> m.topic().endsWith("/dashboard"), 10_000).json();
@@ -208,7 +212,9 @@ class StatusPageIT {
             Map<String, Double> dash = new HashMap<>();
             for (JsonNode b : last.path("bins")) dash.merge(b.path("bin").asText() + "/" + b.path("grade").asText(), b.path("count").asDouble(), Double::sum);
             assertEquals(dash, parts, "parts by bin: /metrics = the dashboard");
-            assertTrue(last.path("parts").asLong() >= 12_000);
+            assertEquals(Long.parseLong(finished.group(1)), last.path("parts").asLong(), "the dashboard counts every part the handler finished: "
+                    + finished.group() + "; " + out.stream().filter(l -> l.contains("late ") || l.contains("triggers in all")).toList());
+            assertTrue(last.path("parts").asLong() >= 6_000, "most of the lot was decided, not sent back: " + last);
 
             List<LogEntry> console = browser.manage().logs().get(LogType.BROWSER).getAll();
             assertTrue(console.stream().noneMatch(e -> e.getLevel().intValue() >= Level.WARNING.intValue()), "console: " + console);
