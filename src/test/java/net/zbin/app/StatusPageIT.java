@@ -205,6 +205,8 @@ class StatusPageIT {
             // re-presentations (stale-trigger answers after stand-stills) and stay unfinished, so not every one of 12 000 is a part of the figures
             Matcher finished = awaitLine(out, Pattern.compile("(\\d+) parts finished of (\\d+) presented"), 1_000);
             assertEquals(12_000, Long.parseLong(finished.group(2)), finished.group());
+            // and none lost: every presentation answered once, none about another part
+            awaitLine(out, Pattern.compile("missing 0, duplicate 0, contradictory 0, stale 0,"), 1_000);
             int from = tap.msgs.size();
             tap.awaitAfter(from, m -> m.topic().endsWith("/dashboard"), 10_000);
             JsonNode last = tap.awaitAfter(tap.msgs.size(), m -> m.topic().endsWith("/dashboard"), 10_000).json();
