@@ -115,7 +115,7 @@ public final class DemoCommand implements Callable<Integer> {
                 }
                 if (stay) {
                     Progress.end(o);
-                    Summaries.print(o, s); // the handler's account of the lot, before the wait: the page shows the line's
+                    Summaries.print(o, s); // the handler's account of the lot before the wait (the page shows the line's own figures)
                     o.println("  the lot is done; the line and its page stay up until Ctrl-C");
                     o.flush();
                     new java.util.concurrent.CountDownLatch(1).await();

@@ -98,11 +98,7 @@ class DaemonProcessIT {
             tap.await(m -> m.json().path("online").asBoolean(), 1, 20_000);
             // The README's example: mosquitto_sub waits for one decision, mosquitto_pub sends a trigger — again after a
             // stale-trigger answer, as a handler does (a stand-still of a loaded machine as the trigger is taken up)
-            JsonNode d = null;
-            for (int attempt = 1; attempt <= 20 && (d == null || d.path("reason").asText().equals("stale-trigger")); attempt++) {
-                if (d != null) Thread.sleep(60); // a copy within 50 ms of the stale answer gets that answer again
-                d = viaMosquittoClients(brokerPort);
-            }
+            JsonNode d = Tap.againWhileStale(() -> viaMosquittoClients(brokerPort));
             assertEquals(1, d.path("seq").asLong());
             assertEquals("J", d.path("grade").asText());
             assertEquals("ext-0001", d.path("part").asText());

@@ -125,10 +125,20 @@ public final class Tap implements AutoCloseable {
 
     /** As {@link #present(String, long)}, with the trigger's whole payload given ({@code seq} must be its seq). */
     public JsonNode present(String line, long seq, String trigger) throws Exception {
-        for (int attempt = 1; ; attempt++) {
+        return againWhileStale(() -> {
             int mark = msgs.size();
             publish("zbin/" + line + "/trigger", trigger);
-            JsonNode a = awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json() != null && m.json().path("seq").asLong() == seq, 30_000).json();
+            return awaitAfter(mark, m -> m.topic().endsWith("/decision") && m.json() != null && m.json().path("seq").asLong() == seq, 30_000).json();
+        });
+    }
+
+    /**
+     * The re-presentation rule of {@link #present(String, long)} for any way of presenting a part once: {@code once} again,
+     * 60 ms after its answer, while that answer is {@code stale-trigger}, 20 times at most; returns the last answer.
+     */
+    public static JsonNode againWhileStale(java.util.concurrent.Callable<JsonNode> once) throws Exception {
+        for (int attempt = 1; ; attempt++) {
+            JsonNode a = once.call();
             if (!a.path("reason").asText().equals("stale-trigger") || attempt == 20) return a;
             Thread.sleep(60);
         }
