@@ -1,5 +1,6 @@
 package net.zbin.app.daemon;
 
+import java.util.ArrayDeque;
 import java.util.LinkedHashMap;
 import java.util.Map;
 import net.zbin.core.Decision;
@@ -11,7 +12,11 @@ import net.zbin.core.Trigger;
  * presentation — same seq, part and lot, within the repeat window — gets the same answer again and is
  * never measured twice, and a retest finds its attempt count. A seq that comes back with another part
  * or lot, or after the window, is a new presentation (handlers restart their counters): it is measured
- * and counted as a reused seq. A new lot starts a fresh book. Bounded by count. Written by the measuring thread only;
+ * and counted as a reused seq. A new lot starts a fresh book. Bounded by count and by age: a presentation is kept a
+ * minute (or the repeat window, when longer) for its retests, but its whole decision only for the repeat window — after
+ * that, only what a retest and a reused seq ask of it ({@link Past}). At a handler's pace a minute is thousands of
+ * decisions, and every young collection of the JVM copies what is still alive: with whole decisions kept the minute, the
+ * young collections of a line deciding 1 000 parts a second paused about 40 % longer. Written by the measuring thread only;
  * read by Paho's thread too, for a copy that arrives while the queue is full ({@link #repeatOf}), so access is locked
  * (uncontended on the trigger path: a lock costs nanoseconds against a decision's tens of microseconds).
  */
@@ -25,11 +30,31 @@ final class DecisionBook {
     /** A presentation to measure; {@code reusedSeq} when its seq was decided before for another presentation. */
     record Fresh(boolean reusedSeq) implements Lookup {}
 
+    /** A presentation in the book, decided at {@code atMs} (the line's clock, ms). */
+    private sealed interface Kept permits Entry, Past {
+        long atMs();
+    }
+
     /**
+     * A presentation within its repeat window, with the whole decision to answer again.
+     *
      * @param answeredNanos when its answer went out (System.nanoTime), meaningful only when {@code answerTimed}: a
      *                      decision read back from the record log was answered by an earlier process
      */
-    private record Entry(Decision decision, long atMs, long answeredNanos, boolean answerTimed) {}
+    private record Entry(Decision decision, long atMs, long answeredNanos, boolean answerTimed) implements Kept {}
+
+    /**
+     * A presentation past its repeat window: no copy of it is answered again (a trigger with its seq is a new
+     * presentation, counted as a reused seq), so only what a retest of it asks is kept.
+     *
+     * @param measured whether it was measured (a presentation not measured does not count against the retest limit)
+     */
+    private record Past(String part, String lot, int attempt, boolean measured, long atMs) implements Kept {
+        static Past of(Entry e) {
+            Decision d = e.decision();
+            return new Past(d.part(), d.lot(), d.attempt(), d.grading().reason().kind() != Reason.Kind.NOT_MEASURED, e.atMs());
+        }
+    }
 
     /**
      * How long after an answer the line gave because it was late ({@code stale-trigger}, or {@code line-busy} from the
@@ -41,7 +66,9 @@ final class DecisionBook {
     static final long LATE_COPY_NANOS = 50_000_000L;
 
     private final long windowMs;
-    private final Map<Long, Entry> bySeq;
+    private final Map<Long, Kept> bySeq;
+    /** The seqs put with their whole decision, oldest first (some since replaced or gone): where {@link #put} looks for decisions past their window. */
+    private final ArrayDeque<Long> whole = new ArrayDeque<>();
     private volatile String lot = "";
     private long reused;
 
@@ -53,7 +80,7 @@ final class DecisionBook {
         this.windowMs = windowMs;
         this.bySeq = new LinkedHashMap<>(1024, 0.75f, false) {
             @Override
-            protected boolean removeEldestEntry(Map.Entry<Long, Entry> e) { return size() > capacity; }
+            protected boolean removeEldestEntry(Map.Entry<Long, Kept> e) { return size() > capacity; }
         };
     }
 
@@ -65,15 +92,16 @@ final class DecisionBook {
         if (l.equals(lot)) return false;
         lot = l;
         bySeq.clear();
+        whole.clear();
         return true;
     }
 
     /** @param arrivedNanos when the trigger came (System.nanoTime, as the line stamps it) */
     synchronized Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) {
-        Entry e = bySeq.get(t.seq());
-        if (e == null) return new Fresh(false);
-        Decision d = e.decision();
-        if (same(e, t, lotId, nowMs)) return repeats(e, arrivedNanos) ? new Repeat(d) : new Fresh(false);
+        Kept k = bySeq.get(t.seq());
+        if (k == null) return new Fresh(false);
+        // past its window when a later decision was put (the line's clock stepped back since, if it looks within it now)
+        if (k instanceof Entry e && same(e, t, lotId, nowMs)) return repeats(e, arrivedNanos) ? new Repeat(e.decision()) : new Fresh(false);
         reused++;
         return new Fresh(true);
     }
@@ -83,8 +111,7 @@ final class DecisionBook {
      * presentation, or one to measure again). Counts nothing.
      */
     synchronized Repeat repeatOf(Trigger t, String lotId, long nowMs, long arrivedNanos) {
-        Entry e = bySeq.get(t.seq());
-        return e != null && same(e, t, lotId, nowMs) && repeats(e, arrivedNanos) ? new Repeat(e.decision()) : null;
+        return bySeq.get(t.seq()) instanceof Entry e && same(e, t, lotId, nowMs) && repeats(e, arrivedNanos) ? new Repeat(e.decision()) : null;
     }
 
     private boolean same(Entry e, Trigger t, String lotId, long nowMs) {
@@ -111,10 +138,11 @@ final class DecisionBook {
     /** The attempt of a presentation that retests {@code retestOf}: one more than that one's, if it is the same part. */
     synchronized int attemptFor(Trigger t, String lotId) {
         if (t.retestOf() < 0) return 0;
-        Entry e = bySeq.get(t.retestOf());
-        if (e == null || !e.decision().part().equals(t.part()) || !e.decision().lot().equals(lotId)) return 1;
-        boolean measured = e.decision().grading().reason().kind() != Reason.Kind.NOT_MEASURED;
-        return e.decision().attempt() + (measured ? 1 : 0); // a presentation not measured does not count against the limit
+        Kept k = bySeq.get(t.retestOf());
+        if (k == null) return 1;
+        Past p = k instanceof Entry e ? Past.of(e) : (Past) k;
+        if (!p.part().equals(t.part()) || !p.lot().equals(lotId)) return 1;
+        return p.attempt() + (p.measured() ? 1 : 0); // a presentation not measured does not count against the limit
     }
 
     /** A decision whose answer went out at an unknown time (read back from the record log). */
@@ -124,12 +152,24 @@ final class DecisionBook {
     void put(Decision d, long atMs, long answeredNanos) { put(d, atMs, answeredNanos, true); }
 
     private synchronized void put(Decision d, long atMs, long answeredNanos, boolean answerTimed) {
-        bySeq.remove(d.seq());
-        bySeq.put(d.seq(), new Entry(d, atMs, answeredNanos, answerTimed));
+        Long key = d.seq();
+        bySeq.remove(key);
+        bySeq.put(key, new Entry(d, atMs, answeredNanos, answerTimed));
+        whole.addLast(key);
+        // Decisions past the repeat window are answered no more: kept only for their retests.
+        while (!whole.isEmpty()) {
+            Long seq = whole.peekFirst();
+            Kept k = bySeq.get(seq);
+            if (k instanceof Entry e) {
+                if (atMs - e.atMs() <= windowMs) break;
+                bySeq.replace(seq, Past.of(e)); // keeps its place in the book's order
+            }
+            whole.pollFirst();
+        }
         // Presentations older than the repeat window and a minute for retests are of no further use: memory stays flat.
         var it = bySeq.values().iterator();
         while (it.hasNext()) {
-            Entry oldest = it.next();
+            Kept oldest = it.next();
             if (atMs - oldest.atMs() <= Math.max(windowMs, 60_000)) break;
             it.remove();
         }
@@ -139,4 +179,7 @@ final class DecisionBook {
     synchronized long reusedSeqs() { return reused; }
 
     synchronized int size() { return bySeq.size(); }
+
+    /** Presentations kept with their whole decision (the others are past their repeat window). */
+    synchronized int withWholeDecision() { return (int) bySeq.values().stream().filter(k -> k instanceof Entry).count(); }
 }

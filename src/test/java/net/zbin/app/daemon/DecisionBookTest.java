@@ -120,6 +120,36 @@ class DecisionBookTest {
     }
 
     @Test
+    void aDecisionPastItsWindow_isAnsweredNoMore_butItsRetestsStillCount_forAMinute() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(decided(1, "P1", "L1", 1), 1000);
+        b.put(new Decision(2, "P2", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.LINE_PAUSED), 1, false, 0), 1000);
+        b.put(decided(3, "P3", "L1", 0), 6000); // 1 and 2 are 5 s old: still within the window
+        assertEquals(3, b.withWholeDecision());
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(1, "P1"), "L1", 6000, 0));
+        b.put(decided(4, "P4", "L1", 0), 6001); // now past it: kept for retests only
+        assertEquals(2, b.withWholeDecision());
+        assertEquals(4, b.size());
+        // a copy of it is a new presentation, even if the line's clock stepped back and it looks within the window
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(1, "P1"), "L1", 5000, 0)).reusedSeq());
+        assertEquals(null, b.repeatOf(trigger(1, "P1"), "L1", 5000, 0));
+        // its retests count as before: one more than a measured attempt, the same after one not measured
+        assertEquals(2, b.attemptFor(new Trigger(5, "P1", "", Trigger.Kind.PART, 1), "L1"));
+        assertEquals(1, b.attemptFor(new Trigger(5, "P9", "", Trigger.Kind.PART, 1), "L1"), "retest_of names another part");
+        assertEquals(0, b.attemptFor(new Trigger(6, "P2", "", Trigger.Kind.PART, 2), "L1"));
+        // a seq put again is answered again within its own window, and goes past it in its turn
+        b.put(decided(1, "P1", "L1", 2), 7000);
+        assertEquals(2, assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(1, "P1"), "L1", 7000, 0)).decision().attempt());
+        b.put(decided(7, "P7", "L1", 0), 12_001);
+        assertEquals(1, b.withWholeDecision());
+        // a minute on, gone
+        b.put(decided(8, "P8", "L1", 0), 67_001); // over a minute after 1 was put again (7 000)
+        assertEquals(1, b.attemptFor(new Trigger(9, "P1", "", Trigger.Kind.PART, 1), "L1"));
+        assertEquals(2, b.size()); // 7 (within a minute) and 8
+    }
+
+    @Test
     void theBook_isBoundedByCount() {
         DecisionBook b = new DecisionBook(5000, 10);
         b.enterLot("L1");
