@@ -67,8 +67,12 @@ final class DecisionBook {
 
     private final long windowMs;
     private final Map<Long, Kept> bySeq;
-    /** The seqs put with their whole decision, oldest first (some since replaced or gone): where {@link #put} looks for decisions past their window. */
-    private final ArrayDeque<Long> whole = new ArrayDeque<>();
+    /**
+     * The entries put with their whole decision, oldest first, some since replaced (their seq put again) or gone: where
+     * {@link #put} looks for decisions past their window. By entry, not by seq: a seq put again must not hold the
+     * entries behind its first place whole.
+     */
+    private final ArrayDeque<Entry> whole = new ArrayDeque<>();
     private volatile String lot = "";
     private long reused;
 
@@ -152,15 +156,15 @@ final class DecisionBook {
     void put(Decision d, long atMs, long answeredNanos) { put(d, atMs, answeredNanos, true); }
 
     private synchronized void put(Decision d, long atMs, long answeredNanos, boolean answerTimed) {
-        Long key = d.seq();
-        bySeq.remove(key);
-        bySeq.put(key, new Entry(d, atMs, answeredNanos, answerTimed));
-        whole.addLast(key);
+        Entry entry = new Entry(d, atMs, answeredNanos, answerTimed);
+        bySeq.remove(d.seq());
+        bySeq.put(d.seq(), entry);
+        whole.addLast(entry);
         // Decisions past the repeat window are answered no more: kept only for their retests.
         while (!whole.isEmpty()) {
-            Long seq = whole.peekFirst();
-            Kept k = bySeq.get(seq);
-            if (k instanceof Entry e) {
+            Entry e = whole.peekFirst();
+            Long seq = e.decision().seq();
+            if (bySeq.get(seq) == e) {
                 if (atMs - e.atMs() <= windowMs) break;
                 bySeq.replace(seq, Past.of(e)); // keeps its place in the book's order
             }

@@ -150,6 +150,19 @@ class DecisionBookTest {
     }
 
     @Test
+    void aSeqPutAgain_doesNotKeepTheDecisionsAfterItsFirstPlaceWhole() {
+        DecisionBook b = new DecisionBook(5000, 100);
+        b.enterLot("L1");
+        b.put(new Decision(1, "P1", "L1", Trigger.Kind.PART, "t", Grader.notMeasured(R, Reason.LINE_PAUSED), 1, false, 0), 0);
+        b.put(decided(2, "P2", "L1", 0), 1000);
+        b.put(decided(1, "P1", "L1", 0), 5500); // presented again after the pause, measured
+        b.put(decided(3, "P3", "L1", 0), 6500); // 2 is now past its window; 1 (put again) and 3 are not
+        assertEquals(2, b.withWholeDecision());
+        assertInstanceOf(DecisionBook.Repeat.class, b.find(trigger(1, "P1"), "L1", 6500, 0));
+        assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(2, "P2"), "L1", 6500, 0)).reusedSeq());
+    }
+
+    @Test
     void theBook_isBoundedByCount() {
         DecisionBook b = new DecisionBook(5000, 10);
         b.enterLot("L1");
