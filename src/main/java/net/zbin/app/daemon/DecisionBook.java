@@ -16,7 +16,7 @@ import net.zbin.core.Trigger;
  * minute (or the repeat window, when longer) for its retests, but its whole decision only for the repeat window — after
  * that, only what a retest and a reused seq ask of it ({@link Past}). At a handler's pace a minute is thousands of
  * decisions, and every young collection of the JVM copies what is still alive: with whole decisions kept the minute, the
- * young collections of a line deciding 1 000 parts a second paused about 40 % longer. Written by the measuring thread only;
+ * young collections of a line deciding 1 000 parts a second paused about a third longer. Written by the measuring thread only;
  * read by Paho's thread too, for a copy that arrives while the queue is full ({@link #repeatOf}), so access is locked
  * (uncontended on the trigger path: a lock costs nanoseconds against a decision's tens of microseconds).
  */
