@@ -30,7 +30,7 @@ final class DecisionBook {
     /** A presentation to measure; {@code reusedSeq} when its seq was decided before for another presentation. */
     record Fresh(boolean reusedSeq) implements Lookup {}
 
-    /** A presentation in the book, decided at {@code atMs} (the line's clock, ms). */
+    /** A presentation in the book, taken up at {@code atMs} (the line's monotonic time, ms). */
     private sealed interface Kept permits Entry, Past {
         long atMs();
     }
@@ -104,7 +104,9 @@ final class DecisionBook {
     synchronized Lookup find(Trigger t, String lotId, long nowMs, long arrivedNanos) {
         Kept k = bySeq.get(t.seq());
         if (k == null) return new Fresh(false);
-        // past its window when a later decision was put (the line's clock stepped back since, if it looks within it now)
+        // A Past went past its window against a later put's time. The line's times are monotonic and a lookup on the
+        // measuring thread comes after every put before it, so it is past it now too; a copy that Paho's thread stamped a
+        // few ms before a concurrent put (repeatOf, at the window's very edge) is not answered again, as a new one.
         if (k instanceof Entry e && same(e, t, lotId, nowMs)) return repeats(e, arrivedNanos) ? new Repeat(e.decision()) : new Fresh(false);
         reused++;
         return new Fresh(true);

@@ -131,7 +131,7 @@ class DecisionBookTest {
         b.put(decided(4, "P4", "L1", 0), 6001); // now past it: kept for retests only
         assertEquals(2, b.withWholeDecision());
         assertEquals(4, b.size());
-        // a copy of it is a new presentation, even if the line's clock stepped back and it looks within the window
+        // a copy of it is a new presentation, even one stamped before the put that took it past its window
         assertTrue(assertInstanceOf(DecisionBook.Fresh.class, b.find(trigger(1, "P1"), "L1", 5000, 0)).reusedSeq());
         assertEquals(null, b.repeatOf(trigger(1, "P1"), "L1", 5000, 0));
         // its retests count as before: one more than a measured attempt, the same after one not measured
